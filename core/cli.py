@@ -1,0 +1,244 @@
+"""The ``prunella`` subcommands. Bad input prints one sentence with the fix and exits with 2.
+
+The entry point lives in gui/launch.py, which hands subcommands here without importing Qt.
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from . import __version__
+from .derive import DerivationRequest, Derivation, derive
+from .design import DesignSpec
+from .errors import Cancelled, InputError
+from .grow import TreeSettings
+from .model import TreeModel
+from .resample import CVSettings
+from .safe_files import write_csv_safely, write_text_atomic
+from .table import read_table
+from .variables import DataDictionary, infer_dictionary, merge_dictionary
+
+SUBCOMMANDS = ("fit", "score")
+EXIT_BAD_INPUT = 2
+
+
+class _Parser(argparse.ArgumentParser):
+    def error(self, message: str):  # one sentence, exit 2, like every other bad input
+        self.exit(EXIT_BAD_INPUT, f"prunella: {message}; see 'prunella {self.prog.split()[-1]} --help'.\n")
+
+
+def _csv_list(text: str | None) -> tuple[str, ...]:
+    return tuple(part.strip() for part in text.split(",") if part.strip()) if text else ()
+
+
+def build_parser() -> argparse.ArgumentParser:
+    parser = _Parser(prog="prunella", description="Cross-validated, cost-complexity-pruned "
+                     "decision trees for clinical spreadsheets. Run without a command to open the app.")
+    parser.add_argument("--version", action="version", version=f"prunella {__version__}")
+    sub = parser.add_subparsers(dest="command", parser_class=_Parser)
+
+    fit = sub.add_parser("fit", help="grow, prune and cross-validate a tree from a spreadsheet")
+    fit.add_argument("data", help="CSV, TSV or XLSX file, one row per visit")
+    fit.add_argument("--outcome", required=True, help="column to predict")
+    fit.add_argument("--sheet", help="XLSX sheet name (default: the first sheet)")
+    fit.add_argument("--task", choices=("classification", "regression"),
+                     help="default: classification for categories, regression for numbers")
+    fit.add_argument("--positive", help="positive class of a two-class outcome (default: yes/1)")
+    fit.add_argument("--predictors", help="comma-separated columns to ask about "
+                     "(default: every predictor in the data dictionary)")
+    fit.add_argument("--exclude", help="comma-separated columns to leave out")
+    fit.add_argument("--dictionary", help="data dictionary (JSON or CSV) with roles, kinds, labels, units")
+    fit.add_argument("--patient-id", help="patient identifier column: repeat visits stay in one fold")
+    fit.add_argument("--site", help="site column: cross-validate by leaving one site out at a time")
+    fit.add_argument("--folds", type=int, default=10, help="number of folds (default 10)")
+    fit.add_argument("--repeats", type=int, default=1, help="repeat the k-fold split R times")
+    fit.add_argument("--loo", action="store_true", help="leave-one-out cross-validation")
+    fit.add_argument("--holdout", type=float, help="share of patients set aside before growing, "
+                     "to check the tree on (e.g. 0.25)")
+    fit.add_argument("--min-leaf", type=int, default=5, help="minimum patients per leaf (default 5)")
+    fit.add_argument("--max-depth", type=int, help="maximum depth of the grown tree")
+    fit.add_argument("--criterion", help="split criterion: gini or entropy (classification), "
+                     "squared_error or friedman_mse (regression)")
+    fit.add_argument("--priors", default="observed", help="class priors: observed, equal, or "
+                     "comma-separated numbers in class order")
+    fit.add_argument("--miss-cost", type=float, help="two classes: missing a positive is X times "
+                     "as bad as a needless alarm")
+    fit.add_argument("--risk", choices=("cost", "impurity"), default="cost",
+                     help="node risk for pruning a classification tree (default cost)")
+    fit.add_argument("--size", default="1se", help="tree size: 1se (default), min, or a number of leaves")
+    fit.add_argument("--seed", type=int, default=0, help="random seed (default 0)")
+    fit.add_argument("--jobs", type=int, default=1, help="parallel folds (default 1; -1 = all cores)")
+    fit.add_argument("--model", required=True, help="where to write the model JSON")
+    fit.add_argument("--curve", help="write the pruning curve as CSV")
+    fit.add_argument("--rules", help="write the tree as plain-text rules")
+    fit.add_argument("--quiet", action="store_true", help="print only warnings")
+
+    score = sub.add_parser("score", help="route rows of a spreadsheet through a saved model")
+    score.add_argument("model", help="model JSON written by 'prunella fit'")
+    score.add_argument("data", help="CSV, TSV or XLSX file")
+    score.add_argument("--sheet", help="XLSX sheet name (default: the first sheet)")
+    score.add_argument("--out", required=True, help="where to write the scored CSV")
+    return parser
+
+
+def main(argv: list[str] | None = None) -> int:
+    """Run a subcommand; returns the exit status."""
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    if args.command is None:
+        parser.print_help()
+        return EXIT_BAD_INPUT
+    try:
+        if args.command == "fit":
+            return _fit(args)
+        if args.command == "score":
+            return _score(args)
+    except InputError as exc:
+        print(f"prunella: {exc}", file=sys.stderr)
+        return EXIT_BAD_INPUT
+    except Cancelled as exc:
+        print(f"prunella: {exc}", file=sys.stderr)
+        return 130
+    except KeyboardInterrupt:
+        print("prunella: interrupted.", file=sys.stderr)
+        return 130
+    return 0
+
+
+def _refuse_overwrite(target: str | None, *sources: str) -> None:
+    if target is None:
+        return
+    for source in sources:
+        if Path(source).exists() and Path(target).resolve() == Path(source).resolve():
+            raise InputError(f"{target} is an input file; choose another name for the output "
+                             "so the input stays unchanged.")
+
+
+def load_dictionary(table, dictionary_path: str | None) -> tuple[DataDictionary, list[str]]:
+    """Inferred dictionary, overridden by the saved one if given."""
+    inferred, notes = infer_dictionary(table.frame)
+    if dictionary_path:
+        merged, more = merge_dictionary(inferred, DataDictionary.load(dictionary_path))
+        return merged, notes + more
+    return inferred, notes
+
+
+def request_from_args(args, dictionary: DataDictionary) -> DerivationRequest:
+    """The derivation request described by ``prunella fit`` options."""
+    if args.outcome not in dictionary:
+        dictionary.get(args.outcome)  # raises the "no such column" message
+    patient = args.patient_id or next((c.name for c in dictionary.by_role("patient_id")), None)
+    excluded = set(_csv_list(args.exclude)) | {args.outcome, patient, args.site}
+    for name in _csv_list(args.exclude):
+        dictionary.get(name)
+    if args.predictors:
+        predictors = tuple(p for p in _csv_list(args.predictors) if p not in excluded)
+    else:
+        predictors = tuple(c.name for c in dictionary.by_role("predictor") if c.name not in excluded)
+    design = DesignSpec(outcome=args.outcome, predictors=predictors, task=args.task,
+                        positive=args.positive, patient_id=patient, site=args.site)
+    priors: str | tuple[float, ...] = args.priors
+    if priors not in ("observed", "equal"):
+        try:
+            priors = tuple(float(p) for p in _csv_list(args.priors))
+        except ValueError:
+            raise InputError("--priors must be observed, equal, or numbers separated by commas "
+                             "(one per class).") from None
+    tree = TreeSettings(min_leaf=args.min_leaf, max_depth=args.max_depth, criterion=args.criterion,
+                        priors=priors, miss_cost=args.miss_cost, risk=args.risk, seed=args.seed)
+    plan = "loo" if args.loo else ("site" if args.site else "kfold")
+    cv = CVSettings(plan=plan, folds=args.folds, repeats=args.repeats, seed=args.seed)
+    size: str | int = args.size
+    if size not in ("1se", "min"):
+        try:
+            size = int(size)
+        except ValueError:
+            raise InputError("--size must be 1se, min or a number of leaves.") from None
+    return DerivationRequest(design=design, tree=tree, cv=cv, holdout=args.holdout, size=size)
+
+
+def curve_frame(derivation: Derivation) -> pd.DataFrame:
+    """The pruning curve as a table: size, α, training risk, CV risk and its SE."""
+    path = derivation.path
+    return pd.DataFrame({
+        "leaves": path.leaves, "alpha": path.alpha, "grid_alpha": path.grid,
+        "train_risk": path.train_risk, "cv_risk": path.cv_risk, "cv_se": path.cv_se,
+        "is_min": np.arange(len(path.leaves)) == path.min_index,
+        "is_1se": np.arange(len(path.leaves)) == path.one_se_index,
+    })
+
+
+def _fit(args) -> int:
+    _refuse_overwrite(args.model, args.data)
+    _refuse_overwrite(args.curve, args.data)
+    _refuse_overwrite(args.rules, args.data)
+    table = read_table(args.data, sheet=args.sheet)
+    dictionary, notes = load_dictionary(table, args.dictionary)
+    request = request_from_args(args, dictionary)
+    derivation = derive(table, dictionary, request, jobs=args.jobs)
+    model = derivation.model
+    model.save(args.model)
+    if args.curve:
+        write_csv_safely(curve_frame(derivation), args.curve)
+    if args.rules:
+        write_text_atomic(args.rules, model.rules())
+    for warning in list(table.provenance.warnings) + notes + list(derivation.notes):
+        print(f"note: {warning}", file=sys.stderr)
+    if not args.quiet:
+        print(summary_text(derivation))
+    return 0
+
+
+def summary_text(derivation: Derivation) -> str:
+    """What a fit found: the pruning path with CV beside training risk, and the chosen tree."""
+    path, model = derivation.path, derivation.model
+    lines = [f"Prunella {__version__}: {model.outcome.display} ({model.task}), {model.n_rows} rows, "
+             f"{path.description}.",
+             f"Risk: {model.path['risk_measure']}.", "",
+             f"{'leaves':>7} {'training':>9} {'cross-validated':>16} {'± SE':>7}"]
+    for k in range(len(path.leaves)):
+        mark = ""
+        if k == path.min_index:
+            mark += "  minimum"
+        if k == path.one_se_index:
+            mark += "  1-SE choice"
+        lines.append(f"{path.leaves[k]:>7} {path.train_risk[k]:>9.4f} {path.cv_risk[k]:>16.4f} "
+                     f"{path.cv_se[k]:>7.4f}{mark}")
+    chosen = model.chosen
+    lines += ["", f"Chosen: {chosen['leaves']} leaves ({chosen['rule']}), cross-validated risk "
+              f"{chosen['cv_risk']:.4f} ± {chosen['cv_se']:.4f} (training {chosen['train_risk']:.4f}).",
+              f"Model fingerprint: {model.fingerprint[:12]}"]
+    check = model.extra.get("validation")
+    if check:
+        measured = ", ".join(f"{k} {v:.4f}" for k, v in check.items() if isinstance(v, float))
+        lines.append(f"Checked on {check['n']} set-aside rows: {measured}.")
+    lines += ["", model.rules(), "Decision support only: it supports and does not replace clinical "
+              "judgment. Validate locally before use."]
+    return "\n".join(lines)
+
+
+def _score(args) -> int:
+    _refuse_overwrite(args.out, args.data, args.model)
+    model = TreeModel.load(args.model)
+    table = read_table(args.data, sheet=args.sheet)
+    scored = model.apply(table.frame)
+    out = table.frame.copy()
+    out["prunella_box"] = scored.leaf
+    out["prunella_prediction"] = scored.prediction
+    if model.positive is not None:
+        share = {n.id: n.counts[1] / max(n.n, 1) for n in model.leaves}
+        out[f"prunella_share_{model.positive}"] = [round(share[i], 4) for i in scored.leaf]
+    write_csv_safely(out, args.out)
+    for warning in list(table.provenance.warnings) + list(scored.warnings):
+        print(f"note: {warning}", file=sys.stderr)
+    print(f"Scored {len(out)} rows into {args.out}.")
+    return 0
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

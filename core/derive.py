@@ -1,0 +1,314 @@
+"""The whole derivation in one call: table → analysis → grown tree → CV path → chosen model.
+
+The GUI, the command line and the tests all call :func:`derive` and :func:`choose_model`, so
+each user path runs exactly the same code.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+import pandas as pd
+
+from . import __version__
+from .design import AnalysisData, DesignSpec, MatrixColumn, prepare_analysis
+from .errors import InputError
+from .grow import TreeSettings
+from .model import Node, Question, TreeModel, column_values, question_text
+from .prune import parents_of
+from .pathcv import CancelFlag, CrossValidatedPath, Progress, cross_validate_path
+from .resample import CVSettings, holdout_split
+from .table import LoadedTable
+from .thresholds import round_threshold
+from .values import parse_dates
+from .variables import DataDictionary
+
+
+@dataclass(frozen=True)
+class DerivationRequest:
+    """Everything the user chose before pressing Run."""
+
+    design: DesignSpec
+    tree: TreeSettings = TreeSettings()
+    cv: CVSettings = CVSettings()
+    holdout: float | None = None  # share of patients set aside before growing
+    size: str | int = "1se"
+
+    def to_dict(self) -> dict:
+        d = self.design
+        return {"design": {"outcome": d.outcome, "predictors": list(d.predictors), "task": d.task,
+                           "positive": d.positive, "patient_id": d.patient_id, "site": d.site},
+                "tree": self.tree.to_dict(), "cv": self.cv.to_dict(), "holdout": self.holdout,
+                "size": self.size}
+
+    @classmethod
+    def from_dict(cls, data: dict) -> "DerivationRequest":
+        d = data["design"]
+        design = DesignSpec(outcome=d["outcome"], predictors=tuple(d["predictors"]),
+                            task=d.get("task"), positive=d.get("positive"),
+                            patient_id=d.get("patient_id"), site=d.get("site"))
+        return cls(design=design, tree=TreeSettings.from_dict(data.get("tree", {})),
+                   cv=CVSettings.from_dict(data.get("cv", {})), holdout=data.get("holdout"),
+                   size=data.get("size", "1se"))
+
+
+@dataclass(frozen=True)
+class Derivation:
+    """The result of a run: the CV path, the chosen model, and the held-out rows if any."""
+
+    request: DerivationRequest
+    table: LoadedTable = field(repr=False)
+    dictionary: DataDictionary = field(repr=False)
+    data: AnalysisData = field(repr=False)  # derivation rows
+    heldout: AnalysisData | None = field(repr=False)
+    path: CrossValidatedPath = field(repr=False)
+    model: TreeModel = field(repr=False)
+    notes: tuple[str, ...] = ()
+
+
+def derive(table: LoadedTable, dictionary: DataDictionary, request: DerivationRequest,
+           jobs: int = 1, progress: Progress | None = None,
+           cancel: CancelFlag | None = None) -> Derivation:
+    """Grow, prune and cross-validate a tree and choose its size as the request says."""
+    full = prepare_analysis(table.frame, dictionary, request.design)
+    notes = list(full.notes)
+    heldout = None
+    data = full
+    if request.holdout:
+        strat = full.y if full.task == "classification" else None
+        keep, out = holdout_split(full.n, request.holdout, request.cv.seed, y=strat,
+                                  groups=full.groups)
+        data, heldout = full.subset(keep), full.subset(out)
+        notes.append(f"{len(out)} of {full.n} rows were set aside before growing, to check the "
+                     "tree on patients it never saw.")
+    if data.task == "classification" and np.unique(data.y).size < len(data.classes):
+        raise InputError("After setting patients aside, one outcome class has no patients left "
+                         "for growing; use a smaller held-out share.")
+    path = cross_validate_path(data, request.tree, request.cv, jobs=jobs, progress=progress,
+                               cancel=cancel)
+    index, rule = path.index_for(request.size)
+    model = build_model(path, index, rule, table, dictionary, request)
+    derivation = Derivation(request, table, dictionary, data, heldout, path, model, tuple(notes))
+    if heldout is not None:
+        model = _with_heldout_check(derivation)
+        derivation = Derivation(request, table, dictionary, data, heldout, path, model,
+                                tuple(notes))
+    return derivation
+
+
+def choose_model(derivation: Derivation, size: str | int) -> Derivation:
+    """The same run with another size chosen from the pruning path (no refitting)."""
+    index, rule = derivation.path.index_for(size)
+    model = build_model(derivation.path, index, rule, derivation.table, derivation.dictionary,
+                        derivation.request)
+    chosen = Derivation(derivation.request, derivation.table, derivation.dictionary,
+                        derivation.data, derivation.heldout, derivation.path, model,
+                        derivation.notes)
+    if derivation.heldout is not None:
+        model = _with_heldout_check(chosen)
+        chosen = Derivation(derivation.request, derivation.table, derivation.dictionary,
+                            derivation.data, derivation.heldout, derivation.path, model,
+                            derivation.notes)
+    return chosen
+
+
+# --- building the plain model ---------------------------------------------------------------
+
+
+def build_model(path: CrossValidatedPath, index: int, rule: str, table: LoadedTable,
+                dictionary: DataDictionary, request: DerivationRequest) -> TreeModel:
+    """The subtree at position ``index`` of the pruning sequence, as a plain TreeModel."""
+    grown = path.grown
+    data, tree, encoding = grown.data, grown.tree, grown.encoding
+    internal = grown.sequence.internal_at(path.grid[index])
+    X = encoding.matrix(data)
+    membership = tree.estimator.decision_path(X).tocsc()
+    order = _breadth_first(tree, internal)  # (sklearn node id, depth) in box order
+    box_of = {node: i + 1 for i, (node, _) in enumerate(order)}
+    nodes = []
+    for node, depth in order:
+        stats = _node_stats(tree, node, data)
+        if internal[node]:
+            rows = membership.indices[membership.indptr[node]:membership.indptr[node + 1]]
+            column = encoding.columns[tree.feature[node]]
+            question = _question(column, tree, node, X[rows], data, rows)
+            yes, no = tree.children_right[node], tree.children_left[node]
+            spec = column.spec
+            nodes.append(Node(id=box_of[node], depth=depth, question=question,
+                              children=(box_of[yes], box_of[no]),
+                              text=question_text(question, spec), **stats))
+        else:
+            nodes.append(Node(id=box_of[node], depth=depth, text=_outcome_text(stats, data),
+                              **stats))
+    sequence = grown.sequence
+    path_dict = {
+        "leaves": sequence.leaves.tolist(),
+        "alpha": sequence.alpha.tolist(),
+        "train_risk": sequence.train_risk.tolist(),
+        "cv_risk": path.cv_risk.tolist(),
+        "cv_se": path.cv_se.tolist(),
+        "grid_alpha": [None if not np.isfinite(a) else float(a) for a in path.grid],
+        "risk_measure": ("mean squared error" if data.task == "regression"
+                         else "expected misclassification cost per patient"),
+        "cv": path.description,
+        "folds": path.n_folds,
+        "min_leaves": int(sequence.leaves[path.min_index]),
+        "one_se_leaves": int(sequence.leaves[path.one_se_index]),
+    }
+    chosen = {"leaves": int(sequence.leaves[index]), "rule": rule,
+              "cv_risk": float(path.cv_risk[index]), "cv_se": float(path.cv_se[index]),
+              "train_risk": float(sequence.train_risk[index])}
+    used = sorted({encoding.columns[f].spec.name for f in set(tree.feature[internal].tolist())})
+    predictors = tuple(p.spec for p in data.predictors)
+    extra = {
+        "prunella_version": __version__,
+        "settings": request.to_dict(),
+        "data": {"file": table.provenance.path.split("/")[-1], "sheet": table.provenance.sheet,
+                 "sha256": table.provenance.sha256, "rows_in_file": table.provenance.n_rows},
+        "cohort": _cohort(table.frame, dictionary, data, request),
+        "columns_asked": used,
+    }
+    if grown.costs is not None:
+        extra["costs"] = {"priors": grown.costs.priors.tolist(), "loss": grown.costs.loss.tolist()}
+    model = TreeModel(task=data.task, outcome=data.outcome, classes=data.classes,
+                      predictors=predictors, nodes=tuple(nodes), n_rows=data.n, path=path_dict,
+                      chosen=chosen, extra=extra)
+    _check_routes(model, tree, internal, X, data, box_of)
+    return model
+
+
+def _breadth_first(tree, internal: np.ndarray) -> list[tuple[int, int]]:
+    order, queue = [], [(0, 0)]
+    while queue:
+        node, depth = queue.pop(0)
+        order.append((node, depth))
+        if internal[node]:  # YES (right, value above) first
+            queue.extend([(tree.children_right[node], depth + 1),
+                          (tree.children_left[node], depth + 1)])
+    return order
+
+
+def _node_stats(tree, node: int, data: AnalysisData) -> dict:
+    n = int(tree.n[node])
+    if data.task == "regression":
+        return {"n": n, "mean": float(tree.mean[node]),
+                "sd": float(np.sqrt(max(tree.prune_risk[node] * data.n / max(n - 1, 1), 0.0))),
+                "prediction": float(tree.label[node])}
+    return {"n": n, "counts": tuple(int(c) for c in tree.class_counts[node]),
+            "prediction": data.classes[int(tree.label[node])]}
+
+
+def _outcome_text(stats: dict, data: AnalysisData) -> str:
+    label = data.outcome.display
+    n = stats["n"]
+    if data.task == "regression":
+        unit = f" {data.outcome.unit}" if data.outcome.unit else ""
+        return f"{label}: mean {stats['mean']:.3g}{unit} ({n} patients)"
+    counts = stats["counts"]
+    if len(data.classes) == 2:
+        share = counts[1] / max(n, 1)
+        return (f"{label}: {stats['prediction']} expected ({share:.0%} of {n} patients "
+                f"had {data.classes[1]})")
+    share = counts[data.classes.index(stats["prediction"])] / max(n, 1)
+    return f"{label}: {stats['prediction']} expected ({share:.0%} of {n} patients)"
+
+
+def _question(column: MatrixColumn, tree, node: int, X_rows: np.ndarray, data: AnalysisData,
+              rows: np.ndarray) -> Question:
+    threshold = np.float64(tree.threshold[node])
+    missing_goes = "no" if tree.missing_left[node] else "yes"
+    values = X_rows[:, tree.feature[node]].astype(np.float64)
+    present = ~np.isnan(values)
+    left = values <= threshold  # scikit-learn's own test, float32 value against float64 threshold
+    if not (present & ~left).any() or not (present & left).any():
+        # All recorded values on one side: the split is "recorded or not".
+        return Question(column=column.spec.name, kind="missing", missing_goes="yes")
+    if column.kind == "numeric":
+        original = data.predictors[column.predictor].numbers[rows]
+        lo = float(np.max(original[present & left]))
+        hi = float(np.min(original[present & ~left]))
+        return Question(column=column.spec.name, kind="above", threshold=round_threshold(lo, hi),
+                        missing_goes=missing_goes)
+    return Question(column=column.spec.name, kind="in", yes_levels=column.yes_levels(threshold),
+                    no_levels=column.no_levels(threshold), missing_goes=missing_goes)
+
+
+def _check_routes(model: TreeModel, tree, internal, X, data: AnalysisData, box_of) -> None:
+    """The printed model must send every derivation patient where the grower sent them."""
+    asked = set(model.columns_asked())
+    values = {t.spec.name: column_values(t.numbers, t.codes, t.spec) for t in data.predictors
+              if t.spec.name in asked}
+    by_model = model.route(values, data.n)
+    grower_leaf = tree.estimator.apply(X)
+    parent = parents_of(tree.children_left, tree.children_right)
+    unique = np.unique(grower_leaf)
+    boxes = np.array([box_of[_chosen_leaf(parent, internal, leaf)] for leaf in unique.tolist()])
+    by_tree = boxes[np.searchsorted(unique, grower_leaf)]
+    if not np.array_equal(by_model, by_tree):
+        bad = int((by_model != by_tree).sum())
+        raise RuntimeError(f"internal check failed: the rounded chart sends {bad} derivation "
+                           "patients to another box than the grown tree")
+
+
+def _chosen_leaf(parent: np.ndarray, internal: np.ndarray, leaf: int) -> int:
+    """The node of the chosen subtree where a grower leaf ends up: its first non-internal
+    ancestor, counting from the root."""
+    path = [leaf]
+    while parent[path[-1]] >= 0:
+        path.append(parent[path[-1]])
+    for node in reversed(path):
+        if not internal[node]:
+            return node
+    return leaf
+
+
+def _cohort(frame: pd.DataFrame, dictionary: DataDictionary, data: AnalysisData,
+            request: DerivationRequest) -> dict:
+    cohort = {"visits": data.n}
+    if data.groups is not None:
+        cohort["patients"] = int(np.unique(data.groups).size)
+    if data.sites is not None and data.site_levels:
+        counts = np.bincount(data.sites[data.sites >= 0], minlength=len(data.site_levels))
+        cohort["sites"] = {lv: int(c) for lv, c in zip(data.site_levels, counts) if c}
+    dates = [c.name for c in dictionary.columns if c.kind == "date" and c.name in frame.columns]
+    if dates:
+        parsed = parse_dates(frame[dates[0]].iloc[data.rows])
+        if parsed.notna().any():
+            cohort["date_column"] = dictionary.get(dates[0]).display
+            cohort["first_date"] = parsed.min().date().isoformat()
+            cohort["last_date"] = parsed.max().date().isoformat()
+    if data.task == "classification":
+        counts = np.bincount(data.y, minlength=len(data.classes))
+        cohort["outcome_counts"] = {c: int(k) for c, k in zip(data.classes, counts)}
+    else:
+        cohort["outcome_mean"] = float(np.mean(data.y))
+    return cohort
+
+
+def _with_heldout_check(derivation: Derivation) -> TreeModel:
+    """Record how the chosen tree does on the rows set aside before growing."""
+    model, heldout = derivation.model, derivation.heldout
+    values = {t.spec.name: column_values(t.numbers, t.codes, t.spec) for t in heldout.predictors
+              if t.spec.name in model.columns_asked()}
+    leaves = model.route(values, heldout.n)
+    predicted = model.predictions(leaves)
+    check = {"source": f"held-out part of the derivation file ({derivation.request.holdout:.0%} "
+                       "set aside before growing)", "n": heldout.n}
+    if model.task == "regression":
+        errors = predicted.astype(float) - heldout.y
+        check["mean_squared_error"] = float(np.mean(errors ** 2))
+    else:
+        truth = np.array(model.classes, dtype=object)[heldout.y]
+        check["accuracy"] = float(np.mean(predicted == truth))
+        costs = model.extra.get("costs")
+        if costs:
+            loss = np.asarray(costs["loss"])
+            pred_index = np.array([model.classes.index(p) for p in predicted])
+            counts = np.bincount(derivation.data.y, minlength=len(model.classes))
+            weight = np.asarray(costs["priors"]) * counts.sum() / np.maximum(counts, 1)
+            check["risk"] = float(np.mean(loss[heldout.y, pred_index] * weight[heldout.y]))
+    extra = dict(model.extra)
+    extra["validation"] = check
+    return TreeModel(model.task, model.outcome, model.classes, model.predictors, model.nodes,
+                     model.n_rows, model.path, model.chosen, extra)

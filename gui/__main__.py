@@ -1,0 +1,5 @@
+import sys
+
+from gui.launch import main
+
+sys.exit(main())

@@ -1,0 +1,203 @@
+"""Checks of the invented demo cohort in sample_data/.
+
+Invented demo data — not a reference: these checks test our own generator (that it is
+reproducible and carries the structure it promises), not any clinical or scientific fact.
+"""
+
+from __future__ import annotations
+
+import csv
+import datetime as dt
+import hashlib
+import json
+import subprocess
+import sys
+from pathlib import Path
+
+import openpyxl
+import pytest
+
+SAMPLE_DIR = Path(__file__).resolve().parents[1] / "sample_data"
+SCRIPT = SAMPLE_DIR / "make_demo_cohort.py"
+DATA_FILES = ["breathless_ed.csv", "breathless_ed.xlsx", "breathless_ed.dictionary.json"]
+EXPECTED_COLUMNS = [
+    "visit_id", "patient_id", "campus", "arrival_date", "age", "sex",
+    "resp_rate", "spo2", "heart_rate", "temperature", "systolic_bp", "crp",
+    "triage_level", "arrival_mode", "complaint", "admitted", "los_hours", "bed_booked",
+]
+ROLES = {"outcome", "predictor", "patient_id", "site", "ignore"}
+KINDS = {"numeric", "binary", "ordinal", "nominal", "identifier", "date", "text"}
+
+
+def _sha256(path: Path) -> str:
+    return hashlib.sha256(path.read_bytes()).hexdigest()
+
+
+@pytest.fixture(scope="module")
+def regenerated(tmp_path_factory: pytest.TempPathFactory) -> Path:
+    out = tmp_path_factory.mktemp("demo_cohort")
+    subprocess.run([sys.executable, str(SCRIPT), str(out)], check=True,
+                   capture_output=True, text=True, timeout=300)
+    return out
+
+
+@pytest.fixture(scope="module")
+def rows() -> list[dict[str, str]]:
+    with open(SAMPLE_DIR / "breathless_ed.csv", encoding="utf-8", newline="") as fh:
+        return list(csv.DictReader(fh))
+
+
+@pytest.fixture(scope="module")
+def dictionary() -> dict:
+    return json.loads((SAMPLE_DIR / "breathless_ed.dictionary.json").read_text(encoding="utf-8"))
+
+
+# --- reproducibility ------------------------------------------------------------------------
+
+@pytest.mark.parametrize("name", DATA_FILES)
+def test_script_reproduces_committed_file_byte_for_byte(regenerated: Path, name: str) -> None:
+    assert _sha256(regenerated / name) == _sha256(SAMPLE_DIR / name), (
+        f"{name} differs from a fresh run of make_demo_cohort.py: rerun the script and commit"
+    )
+
+
+def test_script_refuses_missing_output_folder(tmp_path: Path) -> None:
+    result = subprocess.run([sys.executable, str(SCRIPT), str(tmp_path / "nope")],
+                            capture_output=True, text=True, timeout=60)
+    assert result.returncode == 2
+    assert "does not exist" in result.stderr
+    assert not (tmp_path / "nope").exists()
+
+
+def test_csv_format() -> None:
+    raw = (SAMPLE_DIR / "breathless_ed.csv").read_bytes()
+    raw.decode("utf-8")
+    assert b"\r" not in raw
+    assert raw.endswith(b"\n")
+
+
+# --- shape ----------------------------------------------------------------------------------
+
+def test_shape_and_ids(rows: list[dict[str, str]]) -> None:
+    assert list(rows[0].keys()) == EXPECTED_COLUMNS
+    assert 3600 <= len(rows) <= 4400
+    patients = {r["patient_id"] for r in rows}
+    assert 2900 <= len(patients) <= 3700
+    assert len({r["visit_id"] for r in rows}) == len(rows)
+    assert len(patients) < len(rows), "some patients should return"
+
+
+def test_values_in_range(rows: list[dict[str, str]]) -> None:
+    assert {r["campus"] for r in rows} == {"North", "Riverside"}
+    assert {r["admitted"] for r in rows} == {"yes", "no"}
+    assert {r["bed_booked"] for r in rows} == {"yes", "no"}
+    assert {r["triage_level"] for r in rows} == {"1", "2", "3", "4", "5"}
+    dates = [dt.date.fromisoformat(r["arrival_date"]) for r in rows]
+    assert min(dates) >= dt.date(2024, 1, 1) and max(dates) <= dt.date(2025, 12, 31)
+    assert all(18 <= int(r["age"]) <= 99 for r in rows)
+    assert all(int(r["spo2"]) <= 100 for r in rows)
+    sbp = [int(r["systolic_bp"]) for r in rows]
+    sentinel_share = sum(v == -99 for v in sbp) / len(sbp)
+    assert 0.003 <= sentinel_share <= 0.03
+    assert all(70 <= v <= 220 for v in sbp if v != -99)
+    blank_temps = sum(r["temperature"] == "" for r in rows)
+    assert 1 <= blank_temps <= 0.02 * len(rows)
+
+
+def test_xlsx_holds_the_same_table(rows: list[dict[str, str]]) -> None:
+    wb = openpyxl.load_workbook(SAMPLE_DIR / "breathless_ed.xlsx", read_only=True)
+    assert wb.sheetnames == ["visits", "about"]
+    sheet = list(wb["visits"].iter_rows(values_only=True))
+    assert list(sheet[0]) == EXPECTED_COLUMNS
+    assert len(sheet) - 1 == len(rows)
+
+    def same(cell: object, text: str) -> bool:
+        # XLSX keeps numbers as numbers (37.0 reads back as 37) and dates as dates.
+        if cell is None:
+            return text == ""
+        if isinstance(cell, dt.datetime):
+            return cell.date().isoformat() == text
+        if isinstance(cell, (int, float)):
+            return text != "" and float(cell) == float(text)
+        return cell == text
+
+    for xrow, crow in zip(sheet[1:], rows):
+        for name, cell in zip(EXPECTED_COLUMNS, xrow):
+            assert same(cell, crow[name]), (crow["visit_id"], name, cell, crow[name])
+    about = " ".join(str(r[0]) for r in wb["about"].iter_rows(values_only=True) if r[0])
+    assert "INVENTED" in about
+    wb.close()
+
+
+# --- dictionary -----------------------------------------------------------------------------
+
+def test_dictionary_lists_every_column_once(dictionary: dict) -> None:
+    assert dictionary["format"] == "prunella-dictionary/1"
+    names = [c["name"] for c in dictionary["columns"]]
+    assert sorted(names) == sorted(EXPECTED_COLUMNS)
+    assert len(names) == len(set(names))
+    keys = {"name", "role", "kind", "label", "unit", "missing_codes", "levels", "positive", "note"}
+    for col in dictionary["columns"]:
+        assert set(col) == keys, col["name"]
+        assert col["role"] in ROLES, col["name"]
+        assert col["kind"] in KINDS, col["name"]
+
+
+def test_dictionary_roles(dictionary: dict, rows: list[dict[str, str]]) -> None:
+    by_name = {c["name"]: c for c in dictionary["columns"]}
+    outcomes = [c["name"] for c in dictionary["columns"] if c["role"] == "outcome"]
+    assert outcomes == ["admitted"]
+    assert by_name["admitted"]["positive"] == "yes"
+    assert by_name["los_hours"]["role"] == "ignore"
+    assert "regression outcome" in by_name["los_hours"]["note"]
+    assert by_name["bed_booked"]["role"] == "ignore"
+    assert "leakage" in by_name["bed_booked"]["note"]
+    assert by_name["systolic_bp"]["missing_codes"] == ["-99"]
+    assert by_name["triage_level"]["levels"] == ["1", "2", "3", "4", "5"]
+    assert by_name["patient_id"]["role"] == "patient_id"
+    assert by_name["campus"]["role"] == "site"
+    # Every listed level actually occurs, and nothing outside the list does.
+    for col in dictionary["columns"]:
+        if col["kind"] in {"binary", "nominal", "ordinal"}:
+            seen = {r[col["name"]] for r in rows} - {""}
+            assert seen == set(col["levels"]), col["name"]
+
+
+# --- planted facts (invented demo data — not a reference) -----------------------------------
+
+def _rate(rows: list[dict[str, str]]) -> float:
+    return sum(r["admitted"] == "yes" for r in rows) / len(rows)
+
+
+def test_low_spo2_is_the_strong_split(rows: list[dict[str, str]]) -> None:
+    low = [r for r in rows if int(r["spo2"]) <= 91]
+    high = [r for r in rows if int(r["spo2"]) >= 92]
+    assert _rate(low) - _rate(high) >= 0.35
+    assert 0.30 <= _rate(rows) <= 0.40
+
+
+def test_riverside_admits_more_in_the_moderate_box(rows: list[dict[str, str]]) -> None:
+    moderate = [r for r in rows if int(r["spo2"]) >= 92 and int(r["resp_rate"]) > 24]
+    north = [r for r in moderate if r["campus"] == "North"]
+    riverside = [r for r in moderate if r["campus"] == "Riverside"]
+    assert _rate(riverside) - _rate(north) >= 0.15
+
+
+def test_bed_booked_is_a_near_copy_of_the_outcome(rows: list[dict[str, str]]) -> None:
+    agree = sum(r["bed_booked"] == r["admitted"] for r in rows) / len(rows)
+    assert agree >= 0.95
+    assert agree < 1.0, "a perfect copy would make the leakage too obvious"
+
+
+def test_crp_often_missing(rows: list[dict[str, str]]) -> None:
+    share = sum(r["crp"] == "" for r in rows) / len(rows)
+    assert 0.2 <= share <= 0.45
+
+    def missing_share(subset: list[dict[str, str]]) -> float:
+        return sum(r["crp"] == "" for r in subset) / len(subset)
+
+    walked = [r for r in rows if r["arrival_mode"] == "walked in"]
+    others = [r for r in rows if r["arrival_mode"] != "walked in"]
+    assert missing_share(walked) > missing_share(others)
+    assert (missing_share([r for r in rows if r["campus"] == "Riverside"])
+            > missing_share([r for r in rows if r["campus"] == "North"]))
