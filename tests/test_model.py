@@ -130,3 +130,33 @@ def test_damaged_or_foreign_model_files_are_refused(tmp_path):
     path.write_text("not json")
     with pytest.raises(InputError, match="not valid JSON"):
         TreeModel.load(path)
+
+
+def test_three_classes_with_a_nominal_predictor_and_a_loss_matrix():
+    rng = np.random.default_rng(3)
+    n = 900
+    colour = rng.choice(["red", "green", "blue", "grey"], size=n)
+    size = rng.normal(size=n)
+    outcome = np.where(colour == "red", "A", np.where(size > 0.5, "B", "C"))
+    flip = rng.random(n) < 0.1
+    outcome[flip] = rng.choice(["A", "B", "C"], size=flip.sum())
+    frame = pd.DataFrame({"colour": colour, "size": size, "kind": outcome})
+    dictionary = DataDictionary((
+        ColumnSpec("colour", kind="nominal", levels=("blue", "green", "grey", "red")),
+        ColumnSpec("size"),
+        ColumnSpec("kind", role="outcome", kind="nominal", levels=("A", "B", "C")),
+    ))
+    table = LoadedTable(frame, Provenance("k.csv", None, "b" * 64, n, 3))
+    loss = ((0, 1, 1), (1, 0, 1), (5, 5, 0))  # missing a C is five times as bad
+    request = DerivationRequest(DesignSpec("kind", ("colour", "size")), tree=TreeSettings(loss=loss))
+    model = derive(table, dictionary, request).model
+    assert model.classes == ("A", "B", "C")
+    colour_questions = [n for n in model.nodes if n.question and n.question.column == "colour"]
+    # Several classes: a nominal question asks about one level at a time, in words.
+    assert colour_questions and colour_questions[0].question.yes_levels == ("red",)
+    assert colour_questions[0].text == "colour: red?"
+    predicted = model.apply(frame).prediction
+    assert np.mean(predicted == outcome) > 0.8
+    with pytest.raises(InputError, match="3×3"):
+        derive(table, dictionary, DerivationRequest(DesignSpec("kind", ("colour",)),
+                                                    tree=TreeSettings(loss=((0, 1), (1, 0)))))
