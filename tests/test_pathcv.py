@@ -166,3 +166,15 @@ def test_leave_one_site_out_and_stratified_folds():
         fold_plan(CVSettings(plan="site"), 150)
     with pytest.raises(InputError, match="fewer folds"):
         fold_plan(CVSettings(folds=200), 150)
+
+
+def test_folds_follow_a_joblib_backend_chosen_by_the_caller():
+    """With jobs=None the caller's joblib configuration decides where folds run (a cluster
+    backend plugs in the same way); results do not depend on it."""
+    from joblib import parallel_config
+
+    data = _regression_data(n=200)
+    plain = cross_validate_path(data, TreeSettings(min_leaf=5), CVSettings(folds=4))
+    with parallel_config(backend="threading", n_jobs=2):
+        threaded = cross_validate_path(data, TreeSettings(min_leaf=5), CVSettings(folds=4), jobs=None)
+    np.testing.assert_array_equal(plain.cv_risk, threaded.cv_risk)
