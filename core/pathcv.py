@@ -10,6 +10,7 @@ case, how many path nodes are still internal at each α′ gives every predictio
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from functools import cached_property
 from typing import Callable
 
 import numpy as np
@@ -37,6 +38,16 @@ class GrownModel:
     encoding: Encoding = field(repr=False)
     tree: GrownTree = field(repr=False)
     sequence: PruningSequence = field(repr=False)
+
+    @cached_property
+    def matrix(self) -> np.ndarray:
+        """The derivation rows as the grower saw them (computed once)."""
+        return self.encoding.matrix(self.data)
+
+    @cached_property
+    def membership(self):
+        """Which derivation rows pass through each node (CSC: column = node), computed once."""
+        return self.tree.estimator.decision_path(self.matrix).tocsc()
 
 
 @dataclass(frozen=True)
