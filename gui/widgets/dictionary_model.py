@@ -113,7 +113,8 @@ class DictionaryModel(QAbstractTableModel):
         return None
 
     def setData(self, index: QModelIndex, value, role: int = Qt.EditRole) -> bool:  # noqa: N802
-        if role != Qt.EditRole or not index.isValid() or self._dictionary is None:
+        if role != Qt.EditRole or not index.isValid() or self._dictionary is None \
+                or not self.flags(index) & Qt.ItemIsEditable:
             return False
         spec = self._dictionary.columns[index.row()]
         field = COLUMNS[index.column()][0]
