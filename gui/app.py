@@ -36,6 +36,9 @@ def make_application(qt_args: list[str] | None = None):
     app.setApplicationName(APPLICATION)
     app.setApplicationDisplayName("Prunella")
     QSettings.setDefaultFormat(QSettings.IniFormat)
+    # Group titles read as section headings; what is inside keeps the normal weight.
+    app.setStyleSheet("QGroupBox { font-weight: bold; } "
+                      "QGroupBox QWidget { font-weight: normal; }")
     if ICON.is_file():
         app.setWindowIcon(QIcon(str(ICON)))
     return app

@@ -75,8 +75,7 @@ class OutcomePanel(Panel):
         cost_row.addWidget(self.cost_spin)
         cost_row.addWidget(self.cost_after, 1)
         self.cost_before.setWordWrap(True)
-        form.addRow(self.cost_before)
-        form.addRow("", cost_row)
+        form.addRow(self.cost_before, cost_row)
         form.addRow("Patient number:", self.patient_combo)
         form.addRow("Site:", self.site_combo)
         choices = QGroupBox("The outcome")
@@ -213,7 +212,7 @@ class OutcomePanel(Panel):
                 self.positive_combo.addItem(level, level)
             self._select(self.positive_combo, design.positive or self._default_positive(spec))
             positive = self.positive_combo.currentData()
-            self.cost_before.setText(f"Missing a patient whose outcome was “{positive}” is")
+            self.cost_before.setText(f"Missing a patient with “{positive}” is:")
         for widget in (self.positive_label, self.positive_combo, self.cost_before,
                        self.cost_spin, self.cost_after):
             widget.setVisible(two)

@@ -26,9 +26,9 @@ CRITERIA = {
     "regression": (("Squared error (usual)", None), ("Friedman's improvement", "friedman_mse")),
 }
 PLANS = (
-    ("Split the patients into parts (k-fold cross-validation)", "kfold"),
-    ("Leave one patient out at a time (leave-one-out)", "loo"),
-    ("Leave one site out at a time", "site"),
+    ("Parts in turn (k-fold cross-validation)", "kfold"),
+    ("One patient at a time (leave-one-out)", "loo"),
+    ("One site at a time (leave-one-site-out)", "site"),
     ("One validation split", "split"),
 )
 RULE_WORDS = {"1se": "the smallest tree within one standard error of the lowest error",
@@ -121,7 +121,7 @@ class SizePanel(Panel):
         self.holdout.setSuffix(" %")
         self.holdout.setSpecialValueText("none")
         check_form = QFormLayout()
-        check_form.addRow(self.plan)
+        check_form.addRow("Method:", self.plan)
         self.folds_label, self.repeats_label, self.share_label = (
             QLabel("Parts (folds):"), QLabel("Repeats:"), QLabel("Share held out:"))
         check_form.addRow(self.folds_label, self.folds)
@@ -142,7 +142,7 @@ class SizePanel(Panel):
         self.cancel_button.setEnabled(False)
         self.progress = QProgressBar()
         self.progress.setTextVisible(True)
-        self.progress.setFormat("%v of %m steps")
+        self.progress.setFormat("")
         self.progress.setValue(0)
         self.status = QLabel("")
         self.status.setWordWrap(True)
@@ -151,6 +151,11 @@ class SizePanel(Panel):
         run_row.addWidget(self.cancel_button)
         run_row.addWidget(self.progress, 1)
 
+        for combo in (self.criterion, self.risk, self.priors, self.plan):
+            combo.setSizeAdjustPolicy(QComboBox.AdjustToMinimumContentsLengthWithIcon)
+            combo.setMinimumContentsLength(16)
+        for form in (grow_form, check_form):
+            form.setFieldGrowthPolicy(QFormLayout.AllNonFixedFieldsGrow)
         settings = QWidget()
         settings_layout = QVBoxLayout(settings)
         settings_layout.setContentsMargins(0, 0, 6, 0)
@@ -168,7 +173,9 @@ class SizePanel(Panel):
         left_layout.addWidget(scroll, 1)
         left_layout.addLayout(run_row)
         left_layout.addWidget(self.status)
-        left.setMinimumWidth(340)
+        # Wide enough for every setting: the scroll area only ever scrolls vertically.
+        left.setMinimumWidth(settings.sizeHint().width()
+                             + scroll.verticalScrollBar().sizeHint().width() + 8)
 
         # The curve and the choice of size.
         self.curve = CurveCanvas()
@@ -206,7 +213,7 @@ class SizePanel(Panel):
         splitter.addWidget(right)
         splitter.setStretchFactor(0, 0)
         splitter.setStretchFactor(1, 1)
-        splitter.setSizes([380, 800])
+        splitter.setSizes([left.minimumWidth(), 800])
         splitter.setChildrenCollapsible(False)
         self.body.addWidget(splitter, 1)
         self.not_ready = Banner("ℹ", "Go to step 2")
@@ -351,6 +358,7 @@ class SizePanel(Panel):
         return self._busy
 
     def _progress(self, done: int, total: int) -> None:
+        self.progress.setFormat("%v of %m steps")
         self.progress.setRange(0, total)
         self.progress.setValue(done)
         if done < total:
@@ -393,6 +401,7 @@ class SizePanel(Panel):
         self._busy = False
         self.progress.setRange(0, 1)
         self.progress.setValue(0)
+        self.progress.setFormat("")
         self.cancel_button.setEnabled(False)
         self._enable_settings()
         self.run_finished.emit()

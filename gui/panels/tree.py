@@ -8,7 +8,7 @@ from html import escape
 from PySide6.QtCore import Qt
 from PySide6.QtWidgets import (
     QComboBox, QFormLayout, QGroupBox, QHBoxLayout, QLabel, QLineEdit, QPushButton, QScrollArea,
-    QSplitter, QTextBrowser, QToolButton, QVBoxLayout, QWidget,
+    QSizePolicy, QSplitter, QTextBrowser, QToolButton, QVBoxLayout, QWidget,
 )
 
 from core.explain import box_details, route_patient
@@ -90,6 +90,7 @@ class TreePanel(Panel):
 
         self.lookup_form = QFormLayout()
         self.lookup_form.setFieldGrowthPolicy(QFormLayout.AllNonFixedFieldsGrow)
+        self.lookup_form.setRowWrapPolicy(QFormLayout.WrapLongRows)
         self.clear_button = explain(QPushButton("Clear"), "Forget the values entered for this "
                                     "patient.")
         self.clear_button.clicked.connect(self.clear_lookup)
@@ -106,6 +107,9 @@ class TreePanel(Panel):
         scroll = QScrollArea()
         scroll.setWidget(lookup_inner)
         scroll.setWidgetResizable(True)
+        scroll.setHorizontalScrollBarPolicy(Qt.ScrollBarAlwaysOff)
+        scroll.setFrameShape(QScrollArea.NoFrame)
+        self.result.setSizePolicy(QSizePolicy.Ignored, QSizePolicy.Preferred)
         lookup_box = QGroupBox("Look up one patient")
         lookup_box.setToolTip("Only the questions this tree asks are needed; leave a value "
                               "blank if it was not recorded.")
@@ -116,12 +120,15 @@ class TreePanel(Panel):
         side.addWidget(details_box)
         side.addWidget(lookup_box)
         side.setChildrenCollapsible(False)
+        side.setStretchFactor(0, 1)
+        side.setStretchFactor(1, 1)
+        side.setMinimumWidth(340)
         splitter = QSplitter(Qt.Horizontal)
         splitter.addWidget(left)
         splitter.addWidget(side)
         splitter.setStretchFactor(0, 3)
         splitter.setStretchFactor(1, 1)
-        splitter.setSizes([900, 360])
+        splitter.setSizes([900, 420])
         splitter.setChildrenCollapsible(False)
         self.empty = Banner("ℹ", "Go to step 3")
         self.empty.button.clicked.connect(lambda: self.go_to.emit("size"))
@@ -226,8 +233,8 @@ class TreePanel(Panel):
         self.last_route = route
         self.view.light_path(route.boxes)
         leaf = model.node(route.outcome_box)
-        steps = "".join(f"<li>{escape(s.text())}</li>" for s in route.steps)
         warn = "".join(f"<p>⚠ {escape(w)}</p>" for w in route.warnings)
+        # The way there is lit in the diagram and listed in the box details above.
         self.result.setText(f"<p><b>Reaches box {route.outcome_box}:</b> {escape(leaf.text)}</p>"
-                            f"<ol>{steps}</ol>{warn}")
+                            f"{warn}")
         self.show_box(route.outcome_box)

@@ -69,7 +69,12 @@ class CurveCanvas(FigureCanvasQTAgg):
         self._chosen = chosen
         self._redraw()
 
+    def legend_texts(self) -> list[str]:
+        return [t.get_text() for legend in self.figure.legends for t in legend.get_texts()]
+
     def _draw_empty(self) -> None:
+        for legend in self.figure.legends:
+            legend.remove()
         ax = self.axes
         ax.clear()
         ax.set_axis_off()
@@ -122,7 +127,12 @@ class CurveCanvas(FigureCanvasQTAgg):
         ax.set_xlabel("Size of the tree (number of outcome boxes)")
         ax.set_ylabel(f"Error ({data.risk_measure})", wrap=True)
         ax.grid(True, which="major", color="#dddddd", lw=0.6)
-        ax.legend(fontsize="small", loc="upper right", framealpha=0.92)
+        # Below the axes, outside them, so it never hides a point of the curve.
+        for old in self.figure.legends:
+            old.remove()
+        handles, labels = ax.get_legend_handles_labels()
+        self.figure.legend(handles, labels, loc="outside lower center", ncols=2,
+                           fontsize="small", frameon=False, markerscale=0.7)
         self.draw_idle()
 
     def _clicked(self, event) -> None:

@@ -36,7 +36,8 @@ class BoxItem(QGraphicsPathItem):
         self.label.setDefaultTextColor(INK)
         self.label.setFont(font)
         self.label.setTextWidth(TEXT_WIDTH)
-        self.label.setPlainText(text)
+        # A word joiner after "/" keeps units such as "/min" on one line with their number.
+        self.label.setPlainText(text.replace(" /", "\u00a0/").replace("/", "/\u2060"))
         self.badge = QGraphicsSimpleTextItem(str(box), self)
         badge_font = QFont(font)
         badge_font.setBold(True)

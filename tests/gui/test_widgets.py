@@ -113,6 +113,6 @@ def test_curve_click_picks_the_nearest_size(qtbot):
     for leaves in (7, 2, 12):
         qtbot.mouseClick(canvas, Qt.LeftButton, pos=canvas.position_of(leaves))
     assert picked == [7, 2, 12]
-    labels = [t.get_text() for t in canvas.axes.get_legend().get_texts()]
+    labels = canvas.legend_texts()
     assert any("Cross-validated" in t for t in labels) and any("Training" in t for t in labels)
     assert any("fits" == t for t in labels)
