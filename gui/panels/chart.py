@@ -132,6 +132,7 @@ class ChartPanel(Panel):
         scroll = QScrollArea()
         scroll.setWidget(left)
         scroll.setWidgetResizable(True)
+        scroll.setFocusPolicy(Qt.NoFocus)  # tab goes to the controls inside, not the frame
         scroll.setFrameShape(QFrame.NoFrame)
         scroll.setHorizontalScrollBarPolicy(Qt.ScrollBarAlwaysOff)
         scroll.setMinimumWidth(330)

@@ -90,6 +90,7 @@ class CheckingPanel(Panel):
         scroll = QScrollArea()
         scroll.setWidget(inner)
         scroll.setWidgetResizable(True)
+        scroll.setFocusPolicy(Qt.NoFocus)  # tab goes to the controls inside, not the frame
         self.empty = Banner("ℹ", "Go to step 3")
         self.empty.button.clicked.connect(lambda: self.go_to.emit("size"))
         self.body.addWidget(self.empty)

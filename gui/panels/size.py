@@ -165,6 +165,7 @@ class SizePanel(Panel):
         scroll = QScrollArea()
         scroll.setWidget(settings)
         scroll.setWidgetResizable(True)
+        scroll.setFocusPolicy(Qt.NoFocus)  # tab goes to the controls inside, not the frame
         scroll.setFrameShape(QFrame.NoFrame)
         scroll.setHorizontalScrollBarPolicy(Qt.ScrollBarAlwaysOff)
         left = QWidget()

@@ -109,6 +109,7 @@ class TreePanel(Panel):
         scroll.setWidgetResizable(True)
         scroll.setHorizontalScrollBarPolicy(Qt.ScrollBarAlwaysOff)
         scroll.setFrameShape(QScrollArea.NoFrame)
+        scroll.setFocusPolicy(Qt.NoFocus)
         self.result.setSizePolicy(QSizePolicy.Ignored, QSizePolicy.Preferred)
         lookup_box = QGroupBox("Look up one patient")
         lookup_box.setToolTip("Only the questions this tree asks are needed; leave a value "
@@ -194,6 +195,10 @@ class TreePanel(Panel):
                 field.currentIndexChanged.connect(self.look_up)
             self._fields[column] = field
             self.lookup_form.addRow(label, field)
+        # Keyboard order: the details, then the patient's values top to bottom, then Clear.
+        chain = [self.details] + list(self._fields.values()) + [self.clear_button]
+        for first, second in zip(chain, chain[1:]):
+            QWidget.setTabOrder(first, second)
         self.look_up()
 
     def values(self) -> dict[str, str | None]:

@@ -118,3 +118,41 @@ def test_back_and_next_walk_the_steps(window, qtbot):
     assert "run step 3" in window.panels["checking"].empty.text.text()
     window.steps.setCurrentRow(0)
     assert window.current_step() == "data"
+
+
+def _tab_chain(window, start) -> list:
+    """The visible widgets Tab reaches, in order, from ``start`` round to it again."""
+    chain, widget = [], start
+    for _ in range(5000):
+        widget = widget.nextInFocusChain()
+        if widget is start:
+            break
+        if widget.isVisible() and widget.isEnabled() and widget.focusPolicy() & Qt.TabFocus:
+            chain.append(widget)
+    return chain
+
+
+def _in_order(chain, widgets) -> bool:
+    positions = [chain.index(w) for w in widgets]
+    return positions == sorted(positions)
+
+
+def test_tab_order_follows_each_step(demo, qtbot, run):
+    window = demo
+    outcome = window.panels["outcome"]
+    window.go_to("outcome")
+    chain = _tab_chain(window, window.steps)
+    assert _in_order(chain, [outcome.outcome_combo, outcome.task_combo, outcome.positive_combo,
+                             outcome.cost_spin, outcome.patient_combo, outcome.site_combo,
+                             outcome.checklist.search, outcome.checklist.view,
+                             window.next_button])
+    run(window)
+    size = window.panels["size"]
+    chain = _tab_chain(window, window.steps)
+    assert _in_order(chain, [size.min_leaf, size.max_depth, size.plan, size.folds, size.seed,
+                             size.run_button, size.size_combo, size.one_se_button])
+    window.go_to("tree")
+    tree = window.panels["tree"]
+    chain = _tab_chain(window, window.steps)
+    assert _in_order(chain, [tree.view, tree.details, *tree._fields.values(), tree.clear_button,
+                             window.next_button])
