@@ -78,8 +78,8 @@ class Stability:
             return f"{self.resamples} resamples: no resample asked any question."
         top = self.predictors[0]
         sizes = np.array(self.leaves)
-        return (f"{self.resamples} bootstrap resamples: {top.label} was the first question in "
-                f"{top.first / self.resamples:.0%}; median size {np.median(sizes):.0f} leaves "
+        return (f"{top.label} was the first question in {top.first / self.resamples:.0%} of "
+                f"{self.resamples} bootstrap resamples; median size {np.median(sizes):.0f} boxes "
                 f"(range {sizes.min()}–{sizes.max()})")
 
 

@@ -395,3 +395,15 @@ def _fingerprint_without_validation(model: TreeModel) -> str:
         return model.fingerprint
     extra = {k: v for k, v in model.extra.items() if k != "validation"}
     return replace(model, extra=extra).fingerprint
+
+
+def training_measures(derivation: "Derivation") -> Measures:
+    """The chosen tree measured on the very patients it was grown on (resubstitution).
+
+    Optimistic by construction: show it only beside the cross-validated and checked measures.
+    """
+    model, data = derivation.model, derivation.data
+    asked = set(model.columns_asked())
+    values = {t.spec.name: column_values(t.numbers, t.codes, t.spec) for t in data.predictors
+              if t.spec.name in asked}
+    return measure_model(model, data.y, model.route(values, data.n))
