@@ -98,8 +98,7 @@ def _skeleton(data: AnalysisData, request: "DerivationRequest", rows: np.ndarray
     grown = path.grown
     tree, encoding = grown.tree, grown.encoding
     internal = grown.sequence.internal_at(path.grid[index])
-    X = encoding.matrix(sample)
-    membership = tree.estimator.decision_path(X).tocsc()
+    X, membership = grown.matrix, grown.membership
     nodes: dict[int, tuple | None] = {}
     stack = [0]
     while stack:

@@ -5,6 +5,7 @@ from __future__ import annotations
 from pathlib import Path
 
 import numpy as np
+import pandas as pd
 import pytest
 
 from core.derive import DerivationRequest, derive
@@ -15,11 +16,21 @@ from core.nested import nested_cross_validate
 from core.resample import CVSettings
 from core.table import LoadedTable, Provenance, read_table
 from core.variables import ColumnSpec, DataDictionary
-from tests.waveform import CLASSES, FEATURES, waveform_frame
+from tests.waveform import waveform
 
 SAMPLE = Path(__file__).resolve().parents[1] / "sample_data"
+FEATURES = tuple(f"x{m}" for m in range(1, 22))
+CLASSES = ("1", "2", "3")
 WAVE_DICTIONARY = DataDictionary(tuple(ColumnSpec(f) for f in FEATURES) + (
     ColumnSpec("wave", role="outcome", kind="nominal", levels=CLASSES),))
+
+
+def waveform_frame(n, seed):
+    """Waveform cases (tests/waveform.py) as a table: x1..x21 and the class '1', '2' or '3'."""
+    X, y = waveform(n, seed)
+    frame = pd.DataFrame(X, columns=list(FEATURES))
+    frame["wave"] = np.array(CLASSES, dtype=object)[y]
+    return frame
 
 
 def _wave_table(n, seed):
