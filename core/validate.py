@@ -96,10 +96,15 @@ class ValidationResult:
                   "calibration_outside": list(self.calibration_outside)}
         if self.data_sha256:
             record["data_sha256"] = self.data_sha256
+        # Plain numbers under the keys the first held-out check used (accuracy, risk,
+        # mean_squared_error); [value, low, high] triples for the measures with intervals.
         if isinstance(m, RegressionMeasures):
-            record.update(rmse=m.rmse, mae=m.mae, r2=m.r2, mean_error=m.mean_error)
+            record.update(mean_squared_error=m.rmse ** 2, rmse=m.rmse, mae=m.mae, r2=m.r2,
+                          mean_error=m.mean_error)
         else:
-            record.update(accuracy=_triple(m.accuracy), cost=m.cost, brier=m.brier)
+            record.update(accuracy=m.accuracy.value, accuracy_interval=[m.accuracy.low,
+                                                                        m.accuracy.high],
+                          risk=m.cost, risk_se=m.cost_se, brier=m.brier)
             if m.headline is not None:
                 head = m.headline
                 record.update(sensitivity=_triple(head.sensitivity),
