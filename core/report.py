@@ -16,7 +16,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import sklearn
-from reportlab.platypus import Paragraph
+from reportlab.platypus import KeepTogether, Paragraph
 
 from . import __version__
 from .cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER, UNCHECKED_DETAIL
@@ -119,6 +119,18 @@ def write_report(contents: ReportContents, path: str | Path) -> None:
 # --- helpers ----------------------------------------------------------------------------------
 
 
+def _grouped(digest: str) -> str:
+    """A long hexadecimal fingerprint in groups of 16, so it wraps between groups."""
+    return " ".join(digest[i:i + 16] for i in range(0, len(digest), 16))
+
+
+def _risk(value: float, task: str) -> str:
+    """A risk as printed: 3 decimals for costs per patient, 4 significant digits for errors."""
+    if task == "classification":
+        return f"{value:.3f}"
+    return f"{value:.0f}" if abs(value) >= 1000 else f"{value:.4g}"
+
+
 def _pct(k: int, n: int) -> str:
     return f"{k / n:.0%}" if n else "–"
 
@@ -194,12 +206,13 @@ def _data_source(c: ReportContents, s: Styles) -> list:
     rows = [["Item", "Value"], ["File", Path(p.path).name]]
     if p.sheet:
         rows.append(["Sheet", p.sheet])
-    rows += [["SHA-256 fingerprint of the file", p.sha256],
+    rows += [["SHA-256 fingerprint of the file", _grouped(p.sha256)],
              ["Rows and columns in the file", f"{p.n_rows} rows, {p.n_columns} columns"]]
     if p.encoding:
         rows.append(["Text encoding, delimiter, decimal mark",
                      f"{p.encoding}, {p.delimiter!r}, {p.decimal!r}"])
-    rows.append(["Model fingerprint (SHA-256 of the model file's content)", model.fingerprint])
+    rows.append(["Model fingerprint (SHA-256 of the model file's content)",
+                 _grouped(model.fingerprint)])
     story = [para("The tree was derived from the file below. The fingerprint identifies its exact "
                   "bytes: a file with another fingerprint is other data.", s.body),
              table(rows, [0.36, 0.64], s)]
@@ -355,7 +368,7 @@ def _pruning(c: ReportContents, s: Styles) -> list:
     order = sorted(range(len(leaves)), key=lambda k: leaves[k])
     keep = set(order[:14]) | {leaves.index(path["min_leaves"]), leaves.index(path["one_se_leaves"]),
                               leaves.index(c.model.chosen["leaves"])}
-    rows = [["Boxes", "Training risk", "Cross-validated risk", "SE", "Mark"]]
+    rows = [["Boxes", "Mark", "Training risk", "Cross-validated risk", "SE"]]
     for k in sorted(keep, key=lambda k: leaves[k]):
         marks = []
         if leaves[k] == path["min_leaves"]:
@@ -364,12 +377,14 @@ def _pruning(c: ReportContents, s: Styles) -> list:
             marks.append("1-SE")
         if leaves[k] == c.model.chosen["leaves"]:
             marks.append("chosen")
-        rows.append([str(leaves[k]), f"{path['train_risk'][k]:.4f}", f"{path['cv_risk'][k]:.4f}",
-                     f"{path['cv_se'][k]:.4f}", ", ".join(marks)])
+        digits = (lambda v: f"{v:.4f}") if c.model.task == "classification" else (
+            lambda v: _risk(v, "regression"))
+        rows.append([str(leaves[k]), ", ".join(marks), digits(path["train_risk"][k]),
+                     digits(path["cv_risk"][k]), digits(path["cv_se"][k])])
     shown = "" if len(keep) == len(leaves) else (f" ({len(keep)} of the {len(leaves)} sizes "
                                                  "shown: the smallest trees and the marked ones)")
     story += [para(f"Risk: {path.get('risk_measure', 'risk')}{shown}.", s.body),
-              table(rows, [0.12, 0.2, 0.24, 0.14, 0.3], s, align_right=(0, 1, 2, 3))]
+              table(rows, [0.1, 0.24, 0.2, 0.24, 0.16], s, align_right=(0, 2, 3, 4))]
     return story
 
 
@@ -455,20 +470,21 @@ def _performance(c: ReportContents, s: Styles) -> list:
         head = ["Estimate (patients used)", "Visits", "Mean squared error (± SE)", "RMSE", "MAE", "R²"]
         widths = [0.36, 0.1, 0.18, 0.12, 0.12, 0.12]
     width = len(head)
-    ch = model.chosen
+    ch, task = model.chosen, model.task
     rows = [head,
             _perf_row("Training (optimistic)", "the derivation patients themselves", model.n_rows,
-                      training_measures(der), f"{ch['train_risk']:.3f}", s),
+                      training_measures(der), _risk(ch["train_risk"], task), s),
             _perf_row("Cross-validated", model.path.get("cv", "cross-validation"), model.n_rows,
-                      None, f"{ch['cv_risk']:.3f} ± {ch['cv_se']:.3f}", s)[:width]]
+                      None, f"{_risk(ch['cv_risk'], task)} ± {_risk(ch['cv_se'], task)}", s)[:width]]
     if c.nested is not None:
         rows.append(_perf_row("Nested cross-validation (honest)",
                               "outer folds never used for growing or sizing", c.nested.n,
-                              c.nested.measures, f"{c.nested.risk:.3f} ± {c.nested.risk_se:.3f}", s))
+                              c.nested.measures, f"{_risk(c.nested.risk, task)} ± "
+                              f"{_risk(c.nested.risk_se, task)}", s))
     for check in c.checks:
         m = check.measures
         risk = (f"{m.cost:.3f} ± {m.cost_se:.3f}" if isinstance(m, ClassificationMeasures)
-                else f"{m.rmse ** 2:.4g}")
+                else _risk(m.rmse ** 2, task))
         rows.append(_perf_row("Held-out check" if check.kind == "held-out" else "External check",
                               check.source, check.n, m, risk, s))
     story = [para("Performance of the chosen tree, from the most optimistic estimate (the "
@@ -477,7 +493,7 @@ def _performance(c: ReportContents, s: Styles) -> list:
                   "standard error. " + ("Cost is the expected misclassification cost per "
                   "patient under the costs and priors of section 5, comparable across rows."
                   if classification else "Errors are in the outcome's unit."), s.body),
-             para("8.1 Overview", s.h2), table(rows, widths, s, align_right=(1,))]
+             KeepTogether([para("8.1 Overview", s.h2), table(rows, widths, s, align_right=(1,))])]
     if c.nested is not None:
         story += _nested_detail(c.nested, s)
     for i, check in enumerate(c.checks, 2 + (c.nested is not None)):
@@ -488,17 +504,37 @@ def _performance(c: ReportContents, s: Styles) -> list:
 
 
 def _nested_detail(nested: NestedResult, s: Styles) -> list:
+    task = "regression" if nested.risk_measure == "mean squared error" else "classification"
     rows = [["Outer fold", "Growing patients", "Test visits", "Boxes chosen inside",
              "Inner CV risk", "Outer test risk"]]
     for f in nested.folds:
         rows.append([str(f.fold), str(f.n_train), str(f.n_test), str(f.leaves),
-                     f"{f.inner_cv_risk:.3f}", f"{f.test_risk:.3f}"])
+                     _risk(f.inner_cv_risk, task), _risk(f.test_risk, task)])
     return [para("8.2 Nested cross-validation", s.h2),
             para(f"{nested.description}. Inside every outer fold the whole procedure ran again "
                  f"(growing, cross-validating the pruning path, choosing the size by the "
                  f"{nested.size_rule}); the chosen tree was then measured on the outer fold. "
                  "The spread of the chosen sizes shows how firmly the data fix the size.", s.body),
             table(rows, [0.13, 0.18, 0.15, 0.2, 0.17, 0.17], s, align_right=(1, 2, 3, 4, 5))]
+
+
+def _measure_tables(m: Measures, s: Styles) -> list:
+    if not isinstance(m, ClassificationMeasures) or m.positive is not None:
+        return [table([["Measure", "Value (95% interval)"]] + [list(r) for r in m.rows()],
+                      [0.5, 0.5], s)]
+    overall = [["Measure", "Value (95% interval)"], ["Patients", str(m.n)],
+               ["Accuracy", m.accuracy.text()],
+               ["Misclassification cost per patient", f"{m.cost:.3f} (SE {m.cost_se:.3f})"],
+               ["Brier score (summed over classes)", f"{m.brier:.3f}"]]
+    if m.auc_macro is not None:
+        overall.append(["Mean one-vs-rest ROC area", f"{m.auc_macro:.2f}"])
+    per_class = [["Class (against the rest)", "Patients", "Sensitivity", "Specificity", "PPV",
+                  "NPV", "ROC area (DeLong)"]]
+    for r in m.per_class:
+        per_class.append([r.label, str(r.n_with), r.sensitivity.text(), r.specificity.text(),
+                          r.ppv.text(), r.npv.text(), r.roc.text() if r.roc else "–"])
+    return [table(overall, [0.5, 0.5], s),
+            table(per_class, [0.19, 0.1, 0.14, 0.14, 0.14, 0.14, 0.15], s, align_right=(1,))]
 
 
 def _check_detail(check: ValidationResult, number: str, s: Styles) -> list:
@@ -510,8 +546,7 @@ def _check_detail(check: ValidationResult, number: str, s: Styles) -> list:
     if check.columns is not None:
         story += [para(line, s.bullet) for line in check.columns.lines()]
     story += [para(f"Warning: {w}", s.bullet) for w in check.warnings]
-    story.append(table([["Measure", "Value (95% interval)"]] + [list(r) for r in m.rows()],
-                       [0.5, 0.5], s))
+    story += _measure_tables(m, s)
     if isinstance(m, ClassificationMeasures):
         header = ["Observed \\ predicted"] + list(m.classes)
         rows = [header] + [[label] + [str(v) for v in row] for label, row in zip(m.classes, m.confusion)]
@@ -522,8 +557,8 @@ def _check_detail(check: ValidationResult, number: str, s: Styles) -> list:
     if m.calibration:
         percent = isinstance(m, ClassificationMeasures)
         what = "rate" if percent else "mean"
-        rows = [["Box", "Outcome", f"Derivation {what}", "Derivation patients",
-                 f"Observed {what} (95% CI)", "New patients", "Agrees"]]
+        rows = [["Box", "Rate of" if percent else "Outcome", f"Derivation {what}",
+                 "Derivation patients", f"Observed {what} (95% CI)", "New patients", "Agrees"]]
         for r in m.calibration:
             derived = f"{r.derivation_value:.0%}" if percent else f"{r.derivation_value:.3g}"
             rows.append([str(r.box), r.label, derived, str(r.derivation_n),
@@ -557,8 +592,9 @@ def _stability(c: ReportContents, s: Styles) -> list:
         return [para("Not assessed in this report (bootstrap resamples were switched off).", s.body)]
     unit = "patients (all their visits together)" if st.patient_level else "visits"
     story = [para(f"The whole procedure (growing, cross-validating, choosing the size) was rerun "
-                  f"on {st.resamples} bootstrap resamples of {unit}. {st.summary()}. "
-                  f"{st.no_question} resample(s) chose a tree without any question.", s.body),
+                  f"on {st.resamples} bootstrap resamples of {unit}. {st.summary()}."
+                  + (f" {st.no_question} resample(s) chose a tree without any question."
+                     if st.no_question else ""), s.body),
              figure(stability_figure(st), f"Figure {s.next_figure()}. Share of resamples in which each predictor "
                     "was the first question (solid) or was asked anywhere (hatched).", s)]
     rows = [["Predictor", "First question", "Asked anywhere"]]

@@ -47,7 +47,7 @@ def pruning_curve_figure(path: dict) -> Figure:
     leaves = np.asarray(path["leaves"], dtype=float)
     cv, se = np.asarray(path["cv_risk"]), np.asarray(path["cv_se"])
     train = np.asarray(path["train_risk"])
-    fig = _figure()
+    fig = _figure(3.9)
     ax = fig.add_subplot()
     _style(ax)
     ax.errorbar(leaves, cv, yerr=se, color=BLUE, marker="o", markersize=3.5, linewidth=1.2,
@@ -60,17 +60,18 @@ def pruning_curve_figure(path: dict) -> Figure:
                label="minimum + 1 SE")
     ax.plot([leaves[k_min]], [cv[k_min]], linestyle="none", marker="D", markersize=8,
             markerfacecolor="none", markeredgecolor=VERMILION, markeredgewidth=1.5,
-            label=f"minimum risk: {int(leaves[k_min])} leaves")
+            label=f"minimum risk: {int(leaves[k_min])} boxes")
     ax.plot([leaves[k_one]], [cv[k_one]], linestyle="none", marker="s", markersize=9,
             markerfacecolor="none", markeredgecolor=GREEN, markeredgewidth=1.5,
-            label=f"1-SE choice: {int(leaves[k_one])} leaves")
+            label=f"1-SE choice: {int(leaves[k_one])} boxes")
     if leaves.max() > 12:
         ax.set_xscale("log")
         ticks = [t for t in (1, 2, 3, 5, 10, 20, 50, 100, 200, 500, 1000) if t <= leaves.max()]
         ax.set_xticks(ticks, [str(t) for t in ticks])
     ax.set_xlabel("Size of the tree (number of outcome boxes)", fontsize=9)
     ax.set_ylabel(path.get("risk_measure", "risk").capitalize(), fontsize=8)
-    ax.legend(fontsize=7.5, frameon=False, loc="upper right")
+    # Below the axes, so the legend never hides a point whatever the curve's shape.
+    fig.legend(loc="outside lower center", ncols=3, fontsize=7.5, frameon=False)
     return fig
 
 
@@ -153,7 +154,10 @@ def calibration_figure(measures: Measures, title: str | None = None) -> Figure:
         ax.yaxis.set_major_formatter(lambda v, _: f"{v:.0%}")
     if title:
         ax.set_title(title, fontsize=9)
-    ax.legend(fontsize=7, frameon=False, loc="upper left")
+    if rows and len({r.label for r in rows}) > 1:  # many entries: below the axes
+        fig.legend(loc="outside lower center", ncols=2, fontsize=6.5, frameon=False)
+    else:
+        ax.legend(fontsize=7, frameon=False, loc="upper left")
     return fig
 
 

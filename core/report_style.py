@@ -127,7 +127,7 @@ def table(rows: list[list], widths: list[float], styles: Styles, header: bool = 
                      colors.HexColor("#cfcfcf")))
     result.setStyle(TableStyle(commands))
     # A short table is never split over two pages (a lone row on a page reads badly).
-    return KeepTogether([result]) if len(rows) <= 14 else result
+    return KeepTogether([result]) if len(rows) <= 20 else result
 
 
 def figure(fig, caption: str, styles: Styles, width: float = 1.0) -> KeepTogether:
@@ -140,9 +140,10 @@ def figure(fig, caption: str, styles: Styles, width: float = 1.0) -> KeepTogethe
     return KeepTogether([image, Paragraph(caption, styles.caption)])
 
 
-def figures_side_by_side(figs: list, caption: str, styles: Styles) -> KeepTogether:
-    """Two or three figures in one row, one caption below."""
-    share = 1.0 / len(figs)
+def figures_side_by_side(figs: list, caption: str, styles: Styles,
+                         width: float = 0.88) -> KeepTogether:
+    """Two or three figures in one row (``width`` of the text width), one caption below."""
+    share = width / len(figs)
     images = []
     for fig in figs:
         w_in, h_in = fig.get_size_inches()

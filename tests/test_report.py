@@ -96,6 +96,6 @@ def test_figures_are_plain_matplotlib_figures(contents):
         assert figure_png(fig, dpi=50).startswith(b"\x89PNG")
     again = pruning_curve_figure(contents.model.path)
     assert figure_png(again, dpi=50) == figure_png(pruning_curve_figure(contents.model.path), dpi=50)
-    legend = [t.get_text() for t in figures[0].axes[0].get_legend().get_texts()]
+    legend = [t.get_text() for t in figures[0].legends[0].get_texts()]
     assert any("1-SE choice" in t for t in legend) and any("minimum risk" in t for t in legend)
     assert any("training risk" in t for t in legend)
