@@ -383,8 +383,9 @@ def _pruning(c: ReportContents, s: Styles) -> list:
                      digits(path["cv_risk"][k]), digits(path["cv_se"][k])])
     shown = "" if len(keep) == len(leaves) else (f" ({len(keep)} of the {len(leaves)} sizes "
                                                  "shown: the smallest trees and the marked ones)")
-    story += [para(f"Risk: {path.get('risk_measure', 'risk')}{shown}.", s.body),
-              table(rows, [0.1, 0.24, 0.2, 0.24, 0.16], s, align_right=(0, 2, 3, 4))]
+    story.append(KeepTogether([para(f"Risk: {path.get('risk_measure', 'risk')}{shown}.", s.body),
+                               table(rows, [0.1, 0.24, 0.2, 0.24, 0.16], s,
+                                     align_right=(0, 2, 3, 4), keep=False)]))
     return story
 
 
@@ -493,7 +494,8 @@ def _performance(c: ReportContents, s: Styles) -> list:
                   "standard error. " + ("Cost is the expected misclassification cost per "
                   "patient under the costs and priors of section 5, comparable across rows."
                   if classification else "Errors are in the outcome's unit."), s.body),
-             KeepTogether([para("8.1 Overview", s.h2), table(rows, widths, s, align_right=(1,))])]
+             KeepTogether([para("8.1 Overview", s.h2),
+                           table(rows, widths, s, align_right=(1,), keep=False)])]
     if c.nested is not None:
         story += _nested_detail(c.nested, s)
     for i, check in enumerate(c.checks, 2 + (c.nested is not None)):
@@ -551,9 +553,11 @@ def _check_detail(check: ValidationResult, number: str, s: Styles) -> list:
         header = ["Observed \\ predicted"] + list(m.classes)
         rows = [header] + [[label] + [str(v) for v in row] for label, row in zip(m.classes, m.confusion)]
         share = 0.7 / (len(m.classes) + 1)
-        story += [para("Confusion matrix (rows: observed outcome; columns: the tree's prediction).",
-                       s.body), table(rows, [share] * (len(m.classes) + 1), s,
-                                      align_right=tuple(range(1, len(m.classes) + 1)))]
+        story.append(KeepTogether([
+            para("Confusion matrix (rows: observed outcome; columns: the tree's prediction).",
+                 s.body),
+            table(rows, [share] * (len(m.classes) + 1), s,
+                  align_right=tuple(range(1, len(m.classes) + 1)), keep=False)]))
     if m.calibration:
         percent = isinstance(m, ClassificationMeasures)
         what = "rate" if percent else "mean"
@@ -564,11 +568,12 @@ def _check_detail(check: ValidationResult, number: str, s: Styles) -> list:
             rows.append([str(r.box), r.label, derived, str(r.derivation_n),
                          r.observed_text(percent), str(r.n),
                          {True: "yes", False: "NO: outside", None: "–"}[r.agrees]])
-        story += [para(f"Calibration by outcome box: the derivation {what} against the {what} "
-                       f"observed in the new patients. 'Agrees' means the derivation {what} lies "
-                       "inside the observed 95% interval.", s.body),
-                  table(rows, [0.07, 0.15, 0.13, 0.13, 0.22, 0.12, 0.18], s,
-                        align_right=(2, 3, 5))]
+        intro = para(f"Calibration by outcome box: the derivation {what} against the {what} "
+                     f"observed in the new patients. 'Agrees' means the derivation {what} lies "
+                     "inside the observed 95% interval.", s.body)
+        calibration = table(rows, [0.07, 0.15, 0.13, 0.13, 0.22, 0.12, 0.18], s,
+                            align_right=(2, 3, 5), keep=False)
+        story += [KeepTogether([intro, calibration])] if len(rows) <= 20 else [intro, calibration]
     figures = []
     if isinstance(m, ClassificationMeasures) and any(r.roc for r in m.per_class):
         figures.append(roc_figure(m))

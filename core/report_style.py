@@ -96,7 +96,7 @@ def para(value: str, style: ParagraphStyle, markup: bool = False) -> Paragraph:
 
 
 def table(rows: list[list], widths: list[float], styles: Styles, header: bool = True,
-          bold_first: bool = False, align_right: tuple[int, ...] = ()):
+          bold_first: bool = False, align_right: tuple[int, ...] = (), keep: bool = True):
     """A ruled table whose cells wrap; ``widths`` are shares of the text width (sum ≤ 1)."""
     cells = []
     for i, row in enumerate(rows):
@@ -127,7 +127,9 @@ def table(rows: list[list], widths: list[float], styles: Styles, header: bool = 
                      colors.HexColor("#cfcfcf")))
     result.setStyle(TableStyle(commands))
     # A short table is never split over two pages (a lone row on a page reads badly).
-    return KeepTogether([result]) if len(rows) <= 20 else result
+    # (keep=False when the caller keeps it together with its introduction: nested
+    # KeepTogethers leave pages half empty.)
+    return KeepTogether([result]) if keep and len(rows) <= 20 else result
 
 
 def figure(fig, caption: str, styles: Styles, width: float = 1.0) -> KeepTogether:
