@@ -38,6 +38,7 @@ class Session(QObject):
     result_changed = Signal()  # a new run finished (or the result was cleared)
     chosen_changed = Signal()  # another size was chosen from the same run
     chart_changed = Signal()  # chart options
+    check_changed = Signal()  # which check on separate patients the chart prints
     state_changed = Signal()  # out-of-date steps or unsaved changes
 
     def __init__(self, parent: QObject | None = None) -> None:
@@ -53,6 +54,7 @@ class Session(QObject):
         self.chosen: Derivation | None = None  # the run with the chosen size
         self.size: str | int = "1se"
         self.chart: dict = dict(DEFAULT_CHART)
+        self.check = None  # a ValidationResult the chart prints instead of the model's own
         self.project_path: str | None = None
         self.dirty = False
         self.expected_fingerprint: str | None = None  # from a reopened project
@@ -128,6 +130,22 @@ class Session(QObject):
     @property
     def model(self):
         return None if self.chosen is None else self.chosen.model
+
+    def set_check(self, check) -> None:
+        """Which check on separate patients the chart and exports record (None: the model's
+        own record, i.e. the held-out check or none)."""
+        if check is self.check:
+            return
+        self.check = check
+        self.check_changed.emit()
+
+    def chart_derivation(self) -> Derivation | None:
+        """The chosen run, its model carrying the check the chart should print."""
+        if self.chosen is None or self.check is None:
+            return self.chosen
+        from core.validate import with_validation
+
+        return replace(self.chosen, model=with_validation(self.chosen.model, self.check))
 
     # --- derived state ------------------------------------------------------------------------
 

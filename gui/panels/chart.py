@@ -171,6 +171,7 @@ class ChartPanel(Panel):
         self.min_text.valueChanged.connect(self._write_back)
         session.chart_changed.connect(self.refresh_options)
         session.chart_changed.connect(self.schedule_preview)
+        session.check_changed.connect(self.schedule_preview)
         session.result_changed.connect(self.refresh)
         session.chosen_changed.connect(self.refresh)
         self.refresh_options()
@@ -238,7 +239,8 @@ class ChartPanel(Panel):
         self._serial += 1
         path = str(Path(self._temp.path()) / f"preview-{self._serial}.pdf")
         self.preview_note.setText("Drawing the chart…")
-        self.job = workers.Job(write_chart, self.session.chosen, dict(self.session.chart), path)
+        self.job = workers.Job(write_chart, self.session.chart_derivation().model,
+                               dict(self.session.chart), path)
         self.job.signals.done.connect(self._preview_ready)
         self.job.signals.failed.connect(self._preview_failed)
         workers.start(self.job)
@@ -338,7 +340,8 @@ class ChartPanel(Panel):
     def export_model(self) -> None:
         target = self._save_name("Save the model", ".json", "Prunella model (*.json)")
         if target:
-            self._write(lambda: self.session.model.save(target), target)
+            model = self.session.chart_derivation().model  # with the check it records
+            self._write(lambda: model.save(target), target)
 
     def export_rules(self) -> None:
         target = self._save_name("Save the rules", ".txt", "Text (*.txt)")

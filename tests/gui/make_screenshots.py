@@ -49,6 +49,7 @@ def main(argv: list[str]) -> int:
             window.grab().save(str(out / f"0-empty-{width}x{height}.png"))
             window.open_demo()
             settle(until=lambda: window.session.table is not None)
+            window.panels["size"].holdout.setValue(25)  # so step 5 has a check to show
             window.panels["size"].run()
             settle(until=lambda: window.session.model is not None and not window.panels["size"].running)
             tree = window.panels["tree"]

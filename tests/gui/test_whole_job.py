@@ -117,21 +117,6 @@ def test_tree_view_click_and_patient_lookup(demo, qtbot, run):
     assert tree.last_route is None and not any(i.lit for i in tree.view.boxes.values())
 
 
-def test_checking_step_shows_cv_beside_training_and_heldout(demo, qtbot, run):
-    window = demo
-    size = window.panels["size"]
-    size.holdout.setValue(25)
-    assert window.session.holdout == 0.25
-    run(window)
-    checking = window.panels["checking"]
-    text = checking.cv_label.text()
-    chosen = window.session.model.chosen
-    assert f"{chosen['cv_risk']:.3f}" in text and f"{chosen['train_risk']:.3f}" in text
-    check = window.session.model.extra["validation"]
-    assert checking.unchecked.isHidden()
-    assert f"{check['n']:,}" in checking.validation_label.text()
-
-
 def test_model_file_keeps_the_settings(demo, qtbot, run, tmp_path, dialogs):
     window = demo
     window.panels["size"].min_leaf.setValue(20)
