@@ -339,10 +339,10 @@ class CheckingPanel(Panel):
     def _clear(layout) -> None:
         while layout.count():
             item = layout.takeAt(0)
-            if item.widget() is not None:
-                item.widget().hide()  # at once: deleteLater only acts on the next event loop pass
-                item.widget().setParent(None)
-                item.widget().deleteLater()
+            widget = item.widget()
+            if widget is not None:
+                widget.hide()  # at once: deleteLater only acts on the next pass of the loop
+                widget.deleteLater()
             elif item.layout() is not None:
                 CheckingPanel._clear(item.layout())
 
