@@ -85,6 +85,28 @@ def window(qtbot, dialogs):
     win.session.dirty = False  # no prompt when the test closes it
 
 
+_DEMO_READS: dict = {}
+
+
+@pytest.fixture(autouse=True)
+def demo_read_once(monkeypatch):
+    """Read the (unchanging) demo files once per session: the app still reads them through the
+    same worker and function, only the parsing is not repeated for every test."""
+    import gui.panels.data as data_panel
+
+    real = data_panel.read_data
+
+    def read_data(path, sheet, dictionary_path):
+        key = (str(path), sheet, None if dictionary_path is None else str(dictionary_path))
+        if Path(path).resolve() != DEMO.resolve():
+            return real(path, sheet, dictionary_path)
+        if key not in _DEMO_READS:
+            _DEMO_READS[key] = real(path, sheet, dictionary_path)
+        return _DEMO_READS[key]
+
+    monkeypatch.setattr(data_panel, "read_data", read_data)
+
+
 @pytest.fixture
 def demo(window, qtbot):
     """The window with the demo cohort open (File → Open the demo cohort)."""

@@ -25,9 +25,17 @@ def test_broken_spreadsheet_shows_a_message(window, qtbot, dialogs, tmp_path, na
     assert path.read_bytes() == content  # never modified
     assert window.session.table is None
     panel = window.panels["data"]
-    qtbot.waitUntil(lambda: panel.open_button.isEnabled(), timeout=5000)
-    window.demo_action.trigger()  # still usable
+    qtbot.waitUntil(lambda: panel.open_button.isEnabled(), timeout=5000)  # ready for another
+
+
+def test_after_a_broken_file_the_next_one_opens(window, qtbot, dialogs, tmp_path):
+    path = tmp_path / "empty.csv"
+    path.write_bytes(b"")
+    window.open_any(str(path))
+    qtbot.waitUntil(lambda: bool(dialogs.texts("warning")), timeout=10000)
+    window.demo_action.trigger()
     qtbot.waitUntil(lambda: window.session.table is not None, timeout=15000)
+    assert window.session.table.provenance.n_rows == 3950
 
 
 @pytest.mark.parametrize("content, words", [
