@@ -63,6 +63,8 @@ class Session(QObject):
 
     def set_data(self, table: LoadedTable, dictionary: DataDictionary,
                  notes: tuple[str, ...] = ()) -> None:
+        if table is not self.table:
+            self.design = None  # another file: its outcome and predictors are chosen afresh
         self.table, self.dictionary, self.notes = table, dictionary, tuple(notes)
         self._touch()
         self.data_changed.emit()

@@ -66,6 +66,8 @@ class ChartPanel(Panel):
         self._timer.setSingleShot(True)
         self._timer.setInterval(350)  # wait for typing to pause
         self._timer.timeout.connect(self.render_preview)
+        self._outdated = True  # the preview does not show the current tree and options yet
+        self._after_render = None  # (action, title) waiting for the chart to be drawn
 
         self.title_edit = explain(QLineEdit(), "The chart's heading; leave blank for one made "
                                   "from the outcome.")
@@ -226,7 +228,15 @@ class ChartPanel(Panel):
         self.schedule_preview()
 
     def schedule_preview(self) -> None:
-        if self.session.model is not None:
+        """Draw the preview soon, but only while the step is on screen (drawing takes a
+        moment; export and print draw it if it is missing)."""
+        self._outdated = True
+        if self.session.model is not None and self.isVisible():
+            self._timer.start()
+
+    def showEvent(self, event) -> None:  # noqa: N802
+        super().showEvent(event)
+        if self._outdated and self.session.model is not None:
             self._timer.start()
 
     def render_preview(self) -> None:
@@ -235,14 +245,17 @@ class ChartPanel(Panel):
             return
         if self.job is not None and self.job.running:
             self._timer.start()  # one at a time; try again shortly
+            self._outdated = True
             return
         self._serial += 1
+        self._outdated = False
         path = str(Path(self._temp.path()) / f"preview-{self._serial}.pdf")
         self.preview_note.setText("Drawing the chart…")
         self.job = workers.Job(write_chart, self.session.chart_derivation().model,
                                dict(self.session.chart), path)
         self.job.signals.done.connect(self._preview_ready)
         self.job.signals.failed.connect(self._preview_failed)
+        self.job.signals.finished.connect(self._render_over)
         workers.start(self.job)
 
     def _preview_ready(self, path: str) -> None:
@@ -259,6 +272,20 @@ class ChartPanel(Panel):
         self.preview_error = message
         self.preview_note.setText(message)
         self.preview_stack.setCurrentIndex(0)
+
+    def _render_over(self) -> None:
+        waiting, self._after_render = self._after_render, None
+        if waiting is None:
+            return
+        if self._outdated:  # options changed while drawing: draw again, then act
+            self._after_render = waiting
+            self._timer.start()
+            return
+        action, title = waiting
+        if self.pdf_path is not None:
+            action()
+        else:
+            self.warn(self.preview_error or "The chart could not be drawn.", title)
 
     @property
     def preview_busy(self) -> bool:
@@ -285,11 +312,24 @@ class ChartPanel(Panel):
             return None
         return path
 
-    def export_pdf(self) -> None:
-        if self.pdf_path is None:
-            self.warn(self.preview_error or "The chart is still being drawn; try again in a "
-                      "moment.", "No chart to save")
+    def _with_pdf(self, action, title: str) -> None:
+        """Run ``action`` on the current chart, drawing it first if it is not drawn yet."""
+        if self.session.model is None:
             return
+        if self.pdf_path is not None and not self._outdated and not self.preview_busy:
+            action()
+            return
+        if not self._outdated and not self.preview_busy and self.preview_error:
+            self.warn(self.preview_error, title)  # it was drawn, and it cannot be
+            return
+        self._after_render = (action, title)
+        self._timer.stop()
+        self.render_preview()
+
+    def export_pdf(self) -> None:
+        self._with_pdf(self._export_pdf, "No chart to save")
+
+    def _export_pdf(self) -> None:
         target = self._save_name("Save the chart", ".pdf", "PDF (*.pdf)")
         if target:
             self._copy_pdf(target)
@@ -303,10 +343,9 @@ class ChartPanel(Panel):
         self.message.setText(f"Saved {Path(target).name}.")
 
     def print_chart(self) -> None:
-        if self.pdf_path is None:
-            self.warn(self.preview_error or "The chart is still being drawn; try again in a "
-                      "moment.", "No chart to print")
-            return
+        self._with_pdf(self._print_chart, "No chart to print")
+
+    def _print_chart(self) -> None:
         printer = QPrinter(QPrinter.HighResolution)
         dialog = QPrintDialog(printer, self)
         dialog.setWindowTitle("Print the chart")

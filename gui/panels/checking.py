@@ -264,7 +264,9 @@ class CheckingPanel(Panel):
     # --- what is shown ----------------------------------------------------------------------
 
     def _result_changed(self) -> None:
-        self._external_paths.clear()
+        if self.session.chosen is None:  # a new or reopened project: its own checks only
+            self._external_paths.clear()
+            self._pending_path = None
         self._chosen_changed()
 
     def _chosen_changed(self) -> None:

@@ -124,10 +124,16 @@ class OutcomePanel(Panel):
         design = self.session.design
         if design is None or design.outcome not in dictionary:
             design = self.default_design()
-            if design is not None:
-                self._writing = True
-                self.session.set_design(design, by_user=False)
-                self._writing = False
+        elif any(p not in dictionary or dictionary.get(p).kind not in PREDICTOR_KINDS
+                 for p in design.predictors):
+            # A column that changed to a kind a tree cannot ask about leaves the predictors.
+            design = replace(design, predictors=tuple(
+                p for p in design.predictors
+                if p in dictionary and dictionary.get(p).kind in PREDICTOR_KINDS))
+        if design is not self.session.design:
+            self._writing = True
+            self.session.set_design(design, by_user=False)
+            self._writing = False
         self._fill(design)
 
     def default_design(self) -> DesignSpec | None:
