@@ -156,7 +156,7 @@ def too_large_message(leaves: int, fitting: int | None, options: ChartOptions) -
     if larger:
         text += f", or print on larger paper ({PAPER_NAMES[larger]})."
     else:
-        text += f"; {paper} is the largest paper Prunella prints on."
+        text += f"; {paper} is already among the largest papers Prunella prints on (A3, Tabloid)."
     return text
 
 

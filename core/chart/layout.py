@@ -277,7 +277,7 @@ def _size_boxes(spec: TreeSpec, style: LayoutStyle, measure: Measure) -> dict[in
         if box.kind == "outcome" and box.heading is not None:
             r = badge_radius(box)
             heading = measure(box.heading.text, box.heading.bold, s * box.heading.scale)
-            width = max(width, heading + 2 * (2 * r + gap))  # band word centred clear of badge
+            width = max(width, 2 * r + gap + heading - 0.4 * pad_x)  # band word after the badge
         text_w[box.kind] = max(text_w[box.kind], width)
     # Outcome text re-wrapped to the shared width: a line that no longer needs breaking isn't.
     for i, box in spec.boxes.items():
@@ -309,7 +309,8 @@ def _size_boxes(spec: TreeSpec, style: LayoutStyle, measure: Measure) -> dict[in
         lines = [Line(box.number, True, round(0.95 * s, 3), badge[0], badge[1] + CAP * 0.95 * s)]
         if box.heading is not None:
             hs = s * box.heading.scale
-            lines.append(Line(box.heading.text, box.heading.bold, hs, w / 2, strip / 2 + CAP * hs))
+            lines.append(Line(box.heading.text, box.heading.bold, hs, badge[0] + r + gap,
+                              strip / 2 + CAP * hs, False))
         y = top
         for para, texts, _ in paras:
             size = para.scale * s

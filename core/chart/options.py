@@ -29,16 +29,16 @@ ORIENTATIONS = ("auto", "portrait", "landscape")
 DIRECTIONS = ("auto", "down", "right")
 
 
-LARGE_PAPER_SCALE = 1.25
+LARGE_PAPER_SCALE = 7 / 6
 
 
 def default_min_text(paper: str) -> float:
-    """The smallest text size for ``paper``: 9 pt on A4/Letter, 1.25 × that (11.25 pt) on
-    A3/Tabloid. A bigger chart is read from further away, so its floor rises; but it rises
-    less than the sheet (each side √2 ≈ 1.41 × its half-size sheet), or a larger sheet would
-    hold no larger tree and suggesting one would be empty advice."""
+    """The smallest text size for ``paper``: 9 pt on A4/Letter, 10.5 pt (7/6 of that) on
+    A3/Tabloid. A bigger chart is read from a little further away, so its floor rises; but it
+    rises much less than the sheet (each side √2 ≈ 1.41 × its half-size sheet), or a larger
+    sheet would hold no larger tree and suggesting one would be empty advice."""
     paper = check_paper(paper)
-    return BASE_MIN_TEXT * (1.0 if _BASE_PAPER[paper] == paper else LARGE_PAPER_SCALE)
+    return round(BASE_MIN_TEXT * (1.0 if _BASE_PAPER[paper] == paper else LARGE_PAPER_SCALE), 2)
 
 
 def margin_for(paper: str) -> float:

@@ -113,7 +113,7 @@ class _Frame:
             self.panel += (_moved_block(block, m, bottom),)
             bottom -= gap
         if placement == "bottom":
-            k = max(1, min(4, int((cw + gap) // (column_em + gap))))
+            k = max(1, min(4, len(others), int((cw + gap) // (column_em + gap))))
             col_w = (cw - (k - 1) * gap) / k
             blocks = self._columns(others, k, col_w, gap)
             panel_top = bottom - max((blk.rect.bottom for blk in blocks), default=0)
