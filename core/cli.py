@@ -320,8 +320,9 @@ def _chart(args) -> int:
     from .chart import write_chart
 
     _refuse_overwrite(args.out, args.model)
+    options = chart_options_from_args(args)  # bad options are told before any reading
     model = TreeModel.load(args.model)
-    plan = write_chart(model, args.out, chart_options_from_args(args))
+    plan = write_chart(model, args.out, options)
     print(_chart_note(plan, args.out))
     return 0
 

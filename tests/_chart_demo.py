@@ -66,3 +66,17 @@ def three_classes():
     dictionary = DataDictionary(dictionary.columns + (spec,))
     return derive(table, dictionary, DerivationRequest(
         DesignSpec("stay", predictors, patient_id="patient_id"), cv=CVSettings(folds=5)))
+
+
+@lru_cache(maxsize=None)
+def length_of_stay_size(leaves: int):
+    return choose_model(length_of_stay(), leaves)
+
+
+@lru_cache(maxsize=None)
+def three_classes_size(leaves: int):
+    return choose_model(three_classes(), leaves)
+
+
+def choose(derivation, leaves: int):
+    return choose_model(derivation, leaves)

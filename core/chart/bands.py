@@ -65,7 +65,7 @@ def number(value: float, unit: str = "") -> str:
     if not math.isfinite(value):
         return "–"
     digits = max(0, 2 - int(math.floor(math.log10(abs(value))))) if value else 0
-    text = f"{value:,.{min(digits, 3)}f}"
+    text = f"{value:,.{min(digits, 3)}f}".replace("-", "−")  # a true minus sign
     if unit:
         text += unit if unit in ("%", "°C", "°F", "°") else f" {unit}"
     return text
@@ -89,8 +89,8 @@ def banding(model: TreeModel, cuts: tuple[float, ...] | None = None,
     """The bands for ``model``: relative to its cohort by default, or at absolute ``cuts``
     (percent for two-class rates, outcome units for means)."""
     if model.task == "classification" and len(model.classes) > 2:
-        bands = tuple(Band(word=c.upper(), style=class_style(k),
-                           meaning=f"{c} is the expected outcome")
+        # The class name as the data spell it: upper-casing would turn "72 h" into "72 H".
+        bands = tuple(Band(word=c, style=class_style(k), meaning="expected")
                       for k, c in enumerate(model.classes))
         return Banding(bands=bands, kind="class")
     regression = model.task == "regression"

@@ -10,7 +10,10 @@ from dataclasses import dataclass
 
 from .. import __version__
 from ..cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER, UNCHECKED_DETAIL
-from ..intervals import mean_interval, wilson_interval
+from functools import lru_cache
+
+from ..intervals import mean_interval
+from ..intervals import wilson_interval as _wilson_interval
 from ..model import Node, TreeModel
 from .bands import Band, Banding, banding, box_value, number, percent, rate_phrase
 from .layout import BoxSpec, Para, TreeSpec
@@ -19,6 +22,7 @@ from .options import ChartOptions
 HOW_TO_READ = ("How to read: start at box 1. Answer each question; follow YES or NO until "
                "you reach an outcome box.")
 NOT_RECORDED = "or not recorded"
+wilson_interval = lru_cache(maxsize=4096)(_wilson_interval)  # the planner asks many times
 
 
 @dataclass(frozen=True)
@@ -100,7 +104,7 @@ def outcome_paras(model: TreeModel, node: Node, options: ChartOptions) -> tuple[
         paras.append(Para(f"{rate} of {count}" if count else f"Rate {rate}"))
         paras.append(Para(f"95% CI {span(percent(low)[:-1], percent(high))}"))
     if node.n < options.small_cell:
-        paras.append(Para(f"Small group: uncertain", bold=True))
+        paras.append(Para("Small group", bold=True))
     return tuple(paras)
 
 
@@ -152,7 +156,8 @@ def default_subtitle(model: TreeModel) -> str:
     dates = ""
     if cohort.get("first_date"):
         dates = f", {cohort['first_date']} to {cohort['last_date']}"
-    return f"{outcome}. Derived from {_cohort_size(model)}{dates}."
+    visits = cohort.get("visits", model.n_rows)
+    return f"{outcome}. Derived from {_plural(visits, count_word(model))}{dates}."
 
 
 def _cohort_size(model: TreeModel) -> str:
@@ -190,10 +195,10 @@ def _rule(model: TreeModel) -> str:
     rule = chosen.get("rule")
     boxes = _plural(int(chosen["leaves"]), "outcome boxes")
     if rule == "1se":
-        return (f"Size: {boxes}, by the 1-SE rule (smallest tree within one SE of the lowest "
+        return (f"Size: {boxes} (1-SE rule: the smallest tree within one SE of the lowest "
                 "cross-validated error).")
     if rule == "min":
-        return f"Size: {boxes}, the lowest cross-validated error."
+        return f"Size: {boxes} (the lowest cross-validated error)."
     return f"Size: {boxes}, chosen by the user."
 
 
@@ -204,19 +209,19 @@ def _performance(model: TreeModel) -> PanelSection:
         name = "mean squared error"
         unit = f" {model.outcome.unit}" if model.outcome.unit else ""
         extra = f" (root {number(math.sqrt(max(chosen['cv_risk'], 0)))}{unit})"
-        about = f"Error: {measure}."
+        about = f"error = {measure}"
     elif _is_error_rate(model):
         name, extra = "error rate", ""
-        about = f"Error: {measure}, equal costs."
+        about = f"error = {measure}, equal costs"
     else:
         name, extra = "misclassification cost", ""
-        about = f"Error: {measure}, with the costs set at derivation."
+        about = f"error = {measure}, with the costs set at derivation"
     items = (
         PanelItem(f"Cross-validated {name}: {_risk(model, chosen['cv_risk'])} "
                   f"(SE {_risk(model, chosen['cv_se'])}){extra}", bold=True),
-        PanelItem(f"Training {name}: {_risk(model, chosen['train_risk'])} (same patients; "
-                  "optimistic)"),
-        PanelItem(f"{path.get('cv', 'Cross-validation').capitalize()}. {about}"),
+        PanelItem(f"Training {name}: {_risk(model, chosen['train_risk'])} (optimistic: "
+                  "the same patients)"),
+        PanelItem(f"{path.get('cv', 'Cross-validation').capitalize()}; {about}."),
         PanelItem(_rule(model)),
     )
     return PanelSection("How well it predicts", items)
@@ -224,10 +229,11 @@ def _performance(model: TreeModel) -> PanelSection:
 
 def _cohort(model: TreeModel) -> PanelSection:
     cohort = model.extra.get("cohort", {})
-    items = [PanelItem(_cohort_size(model).capitalize() + ".")]
+    size = _cohort_size(model)
     if cohort.get("first_date"):
-        label = cohort.get("date_column", "Dates")
-        items.append(PanelItem(f"{label}: {cohort['first_date']} to {cohort['last_date']}."))
+        label = cohort.get("date_column", "dates").lower()
+        size += f"; {label} {cohort['first_date']} to {cohort['last_date']}"
+    items = [PanelItem(size[0].upper() + size[1:] + ".")]
     sites = cohort.get("sites")
     if sites:
         items.append(PanelItem("Sites: " + ", ".join(f"{k} ({v:,})" for k, v in sites.items()) + "."))

@@ -11,6 +11,8 @@ enough to find them with core/prune.py.
 
 from __future__ import annotations
 
+from dataclasses import replace
+from functools import lru_cache
 from typing import TYPE_CHECKING
 
 import numpy as np
@@ -22,7 +24,7 @@ from ..prune import collapse_alphas
 from .content import chart_text
 from .layout import BoxSpec, LayoutStyle, Measure, Para, TreeSpec, layout_tree, reportlab_measure
 from .options import LARGER_PAPER, PAPER_NAMES, ChartOptions, margin_for, page_size
-from .page import ChartPlan, plan_page
+from .page import ChartPlan, deepest_possible, plan_page
 
 if TYPE_CHECKING:
     from ..derive import Derivation
@@ -51,7 +53,7 @@ def tree_fits(model: TreeModel, options: ChartOptions, measure: Measure = report
     """Whether ``model`` (with ``collapsed`` boxes drawn as outcomes) fits at the minimum."""
     options = options.checked()
     leaves = _leaf_count(model, collapsed)
-    if leaves > _most_leaves(options, measure):
+    if leaves > _most_leaves(options.paper, options.min_text, measure):
         return False
     return plan_page(chart_text(model, options, collapsed), options, measure, quick=True) is not None
 
@@ -118,19 +120,20 @@ def _leaf_count(model: TreeModel, collapsed: frozenset[int]) -> int:
     return count
 
 
-def _most_leaves(options: ChartOptions, measure: Measure) -> int:
+@lru_cache(maxsize=64)
+def _most_leaves(paper: str, size: float, measure: Measure) -> int:
     """An upper bound on the outcome boxes any page arrangement can hold: boxes never overlap,
     so all of them (each at least as big as the smallest possible outcome box and question
     box) must fit in the printable area."""
-    s = options.min_text
+    s = size
     spec = TreeSpec(1, {1: (2, 3)}, {1: BoxSpec("question", "1", (Para("x"),)),
                                      2: BoxSpec("outcome", "2", (Para("x"),), Para("LOW", True)),
                                      3: BoxSpec("outcome", "3", (Para("x"),), Para("LOW", True))},
                     {(1, 2): (Para("YES", True),), (1, 3): (Para("NO", True),)})
     boxes = layout_tree(spec, LayoutStyle(s), measure).boxes
     area = (boxes[2].rect.w * boxes[2].rect.h) + (boxes[1].rect.w * boxes[1].rect.h)
-    w, h = page_size(options.paper, False)
-    m = margin_for(options.paper)
+    w, h = page_size(paper, False)
+    m = margin_for(paper)
     return max(1, int((w - 2 * m) * (h - 2 * m) / area) + 1)
 
 
@@ -164,18 +167,41 @@ def sizes_that_fit(derivation: "Derivation", paper: str = "a4", orientation: str
                    min_text: float | None = None, measure: Measure = reportlab_measure,
                    options: ChartOptions | None = None) -> list[int]:
     """Numbers of outcome boxes (leaves) of ``derivation.path.leaves`` whose tree fits on one
-    page of ``paper`` at ``min_text``, in the order of the path (largest first)."""
+    page of ``paper`` at ``min_text``, in the order of the path (largest first).
+
+    Candidates come from :func:`core.derive.choose_model`; trees with more boxes than the
+    page could hold packed edge to edge, or deeper than any arrangement allows, are
+    skipped before they are built."""
     from ..derive import choose_model
 
     base = options or ChartOptions()
-    options = ChartOptions(**{**base.__dict__, "paper": paper, "orientation": orientation,
-                              "min_text": min_text}).checked()
-    limit = _most_leaves(options, measure)
+    options = replace(base, paper=paper, orientation=orientation, min_text=min_text).checked()
+    most = _most_leaves(options.paper, options.min_text, measure)
+    deepest = deepest_possible(chart_text(derivation.model, options), options, measure)
+    path = derivation.path
+    depths = _subtree_depths(path)
     sizes = []
-    for leaves in dict.fromkeys(int(v) for v in derivation.path.leaves):
-        if leaves > limit:
-            continue  # more boxes than the page could hold even packed edge to edge
+    for index, leaves in enumerate(int(v) for v in path.leaves):
+        if leaves in sizes or leaves > most or depths[index] > deepest:
+            continue
         model = choose_model(derivation, leaves).model
         if tree_fits(model, options, measure):
             sizes.append(leaves)
     return sizes
+
+
+def _subtree_depths(path) -> list[int]:
+    """Depth of every subtree of the pruning sequence, from the grown tree's arrays."""
+    grown = path.grown
+    left, right = grown.tree.children_left, grown.tree.children_right
+    depths = []
+    for alpha in path.grid:
+        internal = grown.sequence.internal_at(alpha)
+        deepest, stack = 0, [(0, 0)]
+        while stack:
+            node, d = stack.pop()
+            deepest = max(deepest, d)
+            if internal[node]:
+                stack += [(int(left[node]), d + 1), (int(right[node]), d + 1)]
+        depths.append(deepest)
+    return depths

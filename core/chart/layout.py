@@ -44,6 +44,11 @@ def _unit_width(text: str, bold: bool) -> float:
 
 def wrap(text: str, width: float, bold: bool, size: float, measure: Measure) -> list[str]:
     """Greedy word wrap to ``width``; a word longer than the width keeps a line of its own."""
+    return list(_wrap(text, width, bold, size, measure))
+
+
+@lru_cache(maxsize=1 << 15)
+def _wrap(text: str, width: float, bold: bool, size: float, measure: Measure) -> tuple[str, ...]:
     lines: list[str] = []
     for paragraph in text.split("\n"):
         current = ""
@@ -55,7 +60,7 @@ def wrap(text: str, width: float, bold: bool, size: float, measure: Measure) -> 
             else:
                 current = trial
         lines.append(current)
-    return lines
+    return tuple(lines)
 
 
 # --- what goes in -----------------------------------------------------------------------
@@ -356,12 +361,21 @@ Profile = list[tuple[float, float, float]]
 
 
 def _combine(a: Profile, b: Profile, outer) -> Profile:
-    """The outline of two profiles together: ``outer`` (min or max) wherever both are."""
-    cuts = sorted({t for piece in a + b for t in piece[:2]})
+    """The outline of two profiles together: ``outer`` (min or max) wherever both are; a
+    sweep over both sorted piece lists."""
+    cuts = sorted({t for piece in a for t in piece[:2]} | {t for piece in b for t in piece[:2]})
     out: Profile = []
+    i = j = 0
     for t0, t1 in zip(cuts, cuts[1:]):
-        mid = (t0 + t1) / 2
-        edges = [e for p in (a, b) for lo, hi, e in p if lo <= mid < hi]
+        while i < len(a) and a[i][1] <= t0:
+            i += 1
+        while j < len(b) and b[j][1] <= t0:
+            j += 1
+        edges = []
+        if i < len(a) and a[i][0] <= t0:
+            edges.append(a[i][2])
+        if j < len(b) and b[j][0] <= t0:
+            edges.append(b[j][2])
         if not edges:
             continue
         edge = outer(edges)
@@ -380,10 +394,16 @@ def _separation(right: Profile, left: Profile, gap: float) -> float:
     """How far the subtree with ``left`` outline must move across to keep ``gap`` from
     everything on the ``right`` outline wherever their depth ranges meet."""
     need = -float("inf")
-    for lo, hi, edge in right:
-        for lo2, hi2, edge2 in left:
-            if lo < hi2 and lo2 < hi:
-                need = max(need, edge - edge2 + gap)
+    i = j = 0
+    while i < len(right) and j < len(left):
+        lo, hi, edge = right[i]
+        lo2, hi2, edge2 = left[j]
+        if lo < hi2 and lo2 < hi:
+            need = max(need, edge - edge2 + gap)
+        if hi <= hi2:
+            i += 1
+        else:
+            j += 1
     return need
 
 

@@ -11,9 +11,11 @@ from __future__ import annotations
 import itertools
 import math
 from dataclasses import dataclass, replace
+from functools import lru_cache
 
 from .content import ChartText, PanelItem, PanelSection
-from .layout import LEADING, CAP, Line, LayoutStyle, Measure, Rect, TreeLayout, layout_tree, wrap
+from .layout import (CAP, LEADING, BoxSpec, LayoutStyle, Line, Measure, Para, Rect, TreeLayout,
+                     TreeSpec, layout_tree, wrap)
 from .options import ChartOptions, margin_for, page_size
 from .style import TypeScale
 
@@ -79,9 +81,8 @@ class _Frame:
         self.banner, self.banner_lines = None, ()
         if text.banner:
             pad, inner = 0.45 * b, []
-            bottom = self._lines(inner, text.banner[0], m + pad, y + pad, cw - 2 * pad, True,
-                                 scale.heading)
-            bottom = self._lines(inner, text.banner[1], m + pad, bottom, cw - 2 * pad, False, b)
+            runs = [(text.banner[0] + ".", True), (text.banner[1], False)]
+            bottom = self._runs(inner, runs, m + pad, y + pad, cw - 2 * pad, b)
             self.banner = Rect(m, y, cw, bottom + pad - y)
             self.banner_lines = tuple(inner)
             y = self.banner.bottom + 0.5 * b
@@ -129,6 +130,37 @@ class _Frame:
             lowest = max((blk.rect.bottom for blk in blocks), default=0) + top
             self.panel_overflows = lowest > bottom + 1e-6
             self.tree_area = Rect(m, top, cw - col_w - 2 * gap, bottom - 0.5 * gap - top)
+
+    def _runs(self, out: list[Line], runs: list[tuple[str, bool]], x: float, y: float,
+              width: float, size: float) -> float:
+        """Wrap a paragraph whose words are bold or not (a bold headline running into its
+        explanation); returns the y below the last line."""
+        words = [(w, bold) for text, bold in runs for w in text.split()]
+        space = self.measure(" ", False, size)
+        lines: list[list[tuple[str, bool]]] = [[]]
+        used = 0.0
+        for word, bold in words:
+            w = self.measure(word, bold, size)
+            if lines[-1] and used + space + w > width:
+                lines.append([])
+                used = 0.0
+            used += (space if lines[-1] else 0.0) + w
+            lines[-1].append((word, bold))
+        for line in lines:
+            left = x
+            baseline = y + size * LEADING / 2 + CAP * size
+            # consecutive words of one weight become one piece of text
+            pieces: list[tuple[str, bool]] = []
+            for word, bold in line:
+                if pieces and pieces[-1][1] == bold:
+                    pieces[-1] = (pieces[-1][0] + " " + word, bold)
+                else:
+                    pieces.append((word, bold))
+            for text, bold in pieces:
+                out.append(Line(text, bold, size, left, baseline, False))
+                left += self.measure(text, bold, size) + space
+            y += size * LEADING
+        return y
 
     def _lines(self, out: list[Line], text: str, x: float, y: float, width: float, bold: bool,
                size: float) -> float:
@@ -214,6 +246,55 @@ def _largest(make, area: Rect, low: float, high: float, step: float):
     return best
 
 
+def _depth(spec) -> int:
+    deepest, stack = 0, [(spec.root, 0)]
+    while stack:
+        node, d = stack.pop()
+        deepest = max(deepest, d)
+        stack.extend((c, d + 1) for c in spec.children.get(node, ()))
+    return deepest
+
+
+@lru_cache(maxsize=64)
+def _smallest_level(direction: str, size: float, measure: Measure) -> tuple[float, float]:
+    """Along the depth axis: the least a level (question box and its arrows) and an outcome
+    box can take, from boxes with the least possible text."""
+    x = Para("x")
+    spec = TreeSpec(1, {1: (2, 3)}, {1: BoxSpec("question", "1", (x,)),
+                                     2: BoxSpec("outcome", "2", (x, x), Para("LOW", True)),
+                                     3: BoxSpec("outcome", "3", (x, x), Para("LOW", True))},
+                    {(1, 2): (Para("YES", True),), (1, 3): (Para("NO", True),)})
+    layout = layout_tree(spec, LayoutStyle(size, direction), measure)
+    root, child = layout.boxes[1].rect, layout.boxes[2].rect
+    if direction == "down":
+        return child.y - root.y, child.h
+    return child.x - root.x, child.w
+
+
+def _too_deep(spec, direction: str, size: float, measure: Measure, area: Rect) -> bool:
+    """A cheap refusal: even the smallest boxes, one level after another along the tree's
+    deepest path, would not fit ``area``."""
+    level, outcome = _smallest_level(direction, size, measure)
+    need = _depth(spec) * level + outcome
+    return need > (area.h if direction == "down" else area.w) + 1e-6
+
+
+def deepest_possible(text: ChartText, options: ChartOptions, measure: Measure) -> int:
+    """The greatest tree depth that any page arrangement could hold (a cheap bound: a deeper
+    tree is refused by :func:`_too_deep` everywhere). Three body lines of slack allow for
+    panels whose wording differs a little from ``text``'s."""
+    floor, deepest = options.min_text, 0
+    slack = 3 * floor * LEADING
+    for landscape, placement in itertools.product(_orientations(options), ("bottom", "side")):
+        frame = _Frame(text, options, landscape, placement, measure)
+        area = frame.tree_area
+        for direction in _directions(options):
+            level, outcome = _smallest_level(direction, floor, measure)
+            room = (area.h if direction == "down" else area.w) + slack
+            deepest = max(deepest, int((room - outcome) // level))
+    return deepest
+
+
 def _orientations(options: ChartOptions) -> tuple[bool, ...]:
     return {"portrait": (False,), "landscape": (True,)}.get(options.orientation, (False, True))
 
@@ -237,6 +318,8 @@ def plan_page(text: ChartText, options: ChartOptions, measure: Measure,
             continue
         area = frame.tree_area
         for direction, wraps, reach in itertools.product(_directions(options), WRAPS, REACHES):
+            if _too_deep(text.tree, direction, floor, measure, area):
+                continue
             style = LayoutStyle(floor, direction, *wraps)
             layout = layout_tree(text.tree, style, measure, 1.0, reach)
             room = min(area.w / layout.width, area.h / layout.height)

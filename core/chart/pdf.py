@@ -10,9 +10,7 @@ from __future__ import annotations
 import io
 from pathlib import Path
 
-from reportlab.graphics import renderPDF
-from reportlab.graphics.barcode import qr
-from reportlab.graphics.shapes import Drawing
+from reportlab.graphics.barcode.qrencoder import QRCode, QRErrorCorrectLevel
 from reportlab.lib.colors import HexColor
 from reportlab.pdfgen import canvas as pdfcanvas
 
@@ -167,12 +165,28 @@ def _panel(p: _Painter, block: PanelBlock, b: float) -> None:
 
 
 def _qr(canvas: pdfcanvas.Canvas, plan: ChartPlan) -> None:
-    widget = qr.QrCodeWidget(f"sha256:{plan.text.fingerprint}", barLevel="M", barBorder=0)
-    x0, y0, x1, y1 = widget.getBounds()
+    """The model fingerprint as a QR code, drawn module by module with reportlab's encoder
+    (its drawing widget would bring a font of its own into the file)."""
+    code = QRCode(None, QRErrorCorrectLevel.M)
+    code.addData(f"sha256:{plan.text.fingerprint}")
+    code.make()
+    count = code.getModuleCount()
     box = plan.qr
-    drawing = Drawing(box.w, box.h, transform=[box.w / (x1 - x0), 0, 0, box.h / (y1 - y0), 0, 0])
-    drawing.add(widget)
-    renderPDF.draw(drawing, canvas, box.x, plan.height - box.bottom)
+    unit = box.w / count
+    canvas.saveState()
+    canvas.setFillColor(HexColor(style.OKABE_ITO["black"]))
+    for row in range(count):
+        col = 0
+        while col < count:
+            if not code.isDark(row, col):
+                col += 1
+                continue
+            start = col
+            while col < count and code.isDark(row, col):
+                col += 1
+            canvas.rect(box.x + start * unit, plan.height - box.y - (row + 1) * unit,
+                        (col - start) * unit, unit, stroke=0, fill=1)
+    canvas.restoreState()
 
 
 def draw(plan: ChartPlan) -> tuple[bytes, set[tuple[str, str]]]:
@@ -207,7 +221,7 @@ def draw(plan: ChartPlan) -> tuple[bytes, set[tuple[str, str]]]:
         top = min(blk.rect.y for blk in plan.panel) - 0.9 * b
         p.hline(pr.x, pr.right, top, style.RULE, 0.6)
     else:
-        x = min(blk.rect.x for blk in plan.panel) - 1.0 * b
+        x = min(blk.rect.x for blk in plan.panel if blk.section.kind != "caution") - 1.0 * b
         p.polyline(((x, area.y), (x, area.bottom)), style.RULE, 0.6)
     for block in plan.panel:
         _panel(p, block, b)

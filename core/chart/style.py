@@ -188,7 +188,7 @@ class TypeScale:
 
     @property
     def subtitle(self) -> float:
-        return round(self.body * 1.15, 2)
+        return round(self.body * 1.1, 2)
 
     @property
     def heading(self) -> float:
