@@ -6,12 +6,12 @@ Everything here is plain text built from the model; the layout and the PDF only 
 from __future__ import annotations
 
 import math
+import re
 from dataclasses import dataclass
+from functools import lru_cache
 
 from .. import __version__
 from ..cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER, UNCHECKED_DETAIL
-from functools import lru_cache
-
 from ..intervals import mean_interval
 from ..intervals import wilson_interval as _wilson_interval
 from ..model import Node, TreeModel
@@ -69,10 +69,14 @@ def _plural(n: int, word: str) -> str:
     return f"{n:,} {word[:-1] if n == 1 else word}"
 
 
+_COUNTS_NOTE = re.compile(r" \([^()]*\)$")
+
+
 def expected_text(model: TreeModel, node: Node) -> str:
-    """The expected outcome in words, as the model file words it."""
+    """The expected outcome in words, as the model file words it (without the counts in
+    brackets at its end, which the box prints its own way)."""
     if node.leaf and node.text:
-        return node.text.split(" (")[0]
+        return _COUNTS_NOTE.sub("", node.text)
     label = model.outcome.display
     if model.task == "regression":
         return f"{label}: mean {node.mean:.3g}" + (f" {model.outcome.unit}" if model.outcome.unit else "")
@@ -108,9 +112,9 @@ def outcome_paras(model: TreeModel, node: Node, options: ChartOptions) -> tuple[
     return tuple(paras)
 
 
-def tree_spec(model: TreeModel, options: ChartOptions, bands: Banding,
-              collapsed: frozenset[int] = frozenset()) -> tuple[TreeSpec, dict[int, Band]]:
-    """The boxes and arrows of ``model`` (internal boxes in ``collapsed`` drawn as outcomes)."""
+def tree_spec(model: TreeModel, options: ChartOptions,
+              bands: Banding) -> tuple[TreeSpec, dict[int, Band]]:
+    """The boxes and arrows of ``model``."""
     children: dict[int, tuple[int, ...]] = {}
     boxes: dict[int, BoxSpec] = {}
     labels: dict[tuple[int, int], tuple[Para, ...]] = {}
@@ -118,7 +122,7 @@ def tree_spec(model: TreeModel, options: ChartOptions, bands: Banding,
     stack = [model.root.id]
     while stack:
         node = model.node(stack.pop())
-        if node.leaf or node.id in collapsed:
+        if node.leaf:
             band = bands.band_of(model, node)
             band_of[node.id] = band
             boxes[node.id] = BoxSpec("outcome", str(node.id), outcome_paras(model, node, options),
@@ -280,11 +284,10 @@ def _key(model: TreeModel, bands: Banding, options: ChartOptions) -> PanelSectio
     return PanelSection("Key", tuple(items), kind="key")
 
 
-def chart_text(model: TreeModel, options: ChartOptions,
-               collapsed: frozenset[int] = frozenset()) -> ChartText:
+def chart_text(model: TreeModel, options: ChartOptions) -> ChartText:
     """Every word of the chart for ``model`` (``options`` already checked)."""
     bands = banding(model, options.band_cuts, options.band_ratio)
-    spec, band_of = tree_spec(model, options, bands, collapsed)
+    spec, band_of = tree_spec(model, options, bands)
     small = frozenset(i for i in band_of if model.node(i).n < options.small_cell)
     banner = None if model.extra.get("validation") else (UNCHECKED_BANNER, UNCHECKED_DETAIL)
     sections = [_cohort(model), _performance(model)]

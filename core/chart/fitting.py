@@ -21,7 +21,7 @@ from ..errors import InputError
 from ..grow import ClassCosts, growth_class_weights
 from ..model import TreeModel
 from ..prune import collapse_alphas
-from .content import chart_text
+from .content import chart_text, expected_text
 from .layout import BoxSpec, LayoutStyle, Measure, Para, TreeSpec, layout_tree, reportlab_measure
 from .options import LARGER_PAPER, PAPER_NAMES, ChartOptions, margin_for, page_size
 from .page import ChartPlan, deepest_possible, plan_page
@@ -50,12 +50,41 @@ def plan_chart(model: TreeModel, options: ChartOptions | None = None,
 
 def tree_fits(model: TreeModel, options: ChartOptions, measure: Measure = reportlab_measure,
               collapsed: frozenset[int] = frozenset()) -> bool:
-    """Whether ``model`` (with ``collapsed`` boxes drawn as outcomes) fits at the minimum."""
+    """Whether ``model`` (pruned at the ``collapsed`` boxes) fits at the minimum text size."""
     options = options.checked()
-    leaves = _leaf_count(model, collapsed)
-    if leaves > _most_leaves(options.paper, options.min_text, measure):
+    if _leaf_count(model, collapsed) > _most_leaves(options.paper, options.min_text, measure):
         return False
-    return plan_page(chart_text(model, options, collapsed), options, measure, quick=True) is not None
+    if collapsed:
+        model = pruned_model(model, collapsed)
+    return plan_page(chart_text(model, options), options, measure, quick=True) is not None
+
+
+def pruned_model(model: TreeModel, collapsed: frozenset[int]) -> TreeModel:
+    """``model`` with the boxes in ``collapsed`` made outcome boxes, renumbered 1, 2, ...
+    breadth-first (YES first) as core/derive.py numbers a tree, its size and errors taken
+    from the pruning path the model keeps."""
+    order, queue = [], [model.root.id]
+    while queue:  # breadth-first, YES before NO
+        node = model.node(queue.pop(0))
+        order.append(node)
+        if not (node.leaf or node.id in collapsed):
+            queue.extend(node.children)
+    number = {node.id: k + 1 for k, node in enumerate(order)}
+    nodes = []
+    for node in order:
+        if node.leaf or node.id in collapsed:
+            text = node.text if node.leaf else expected_text(model, node)
+            nodes.append(replace(node, id=number[node.id], question=None, children=(), text=text))
+        else:
+            nodes.append(replace(node, id=number[node.id],
+                                 children=tuple(number[c] for c in node.children)))
+    leaves = sum(1 for node in nodes if node.leaf)
+    path, chosen = model.path, dict(model.chosen)
+    if leaves in path.get("leaves", ()):
+        k = path["leaves"].index(leaves)
+        chosen = {"leaves": leaves, "rule": "user", "cv_risk": path["cv_risk"][k],
+                  "cv_se": path["cv_se"][k], "train_risk": path["train_risk"][k]}
+    return replace(model, nodes=tuple(nodes), chosen=chosen)
 
 
 def smaller_trees(model: TreeModel) -> list[tuple[int, frozenset[int]]]:
