@@ -499,3 +499,20 @@ def test_nothing_leaves_the_printable_area_or_overlaps(paper: str, size) -> None
     lines = list(plan.header) + list(plan.footer)
     for line in lines:
         assert printable.y <= line.baseline <= printable.bottom
+
+
+def test_the_qr_code_reads_back_as_the_model_fingerprint(chosen_pdf, tmp_path) -> None:
+    """Decoded by an independent reader (zbar), when the machine has it."""
+    import shutil
+    import subprocess
+
+    if not (shutil.which("pdftoppm") and shutil.which("zbarimg")):
+        pytest.skip("needs poppler-utils and zbar-tools")
+    pdf = tmp_path / "chart.pdf"
+    pdf.write_bytes(chosen_pdf)
+    subprocess.run(["pdftoppm", "-r", "200", "-png", "-singlefile", str(pdf),
+                    str(tmp_path / "chart")], check=True)
+    read = subprocess.run(["zbarimg", "-q", "--raw", str(tmp_path / "chart.png")],
+                          capture_output=True, text=True)
+    fingerprint = demo.admitted().model.fingerprint
+    assert read.stdout.strip() == f"sha256:{fingerprint}"
