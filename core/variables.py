@@ -219,10 +219,11 @@ def infer_column(name: str, values: pd.Series) -> tuple[ColumnSpec, list[str]]:
         if set(distinct.tolist()) <= {0.0, 1.0}:
             return ColumnSpec(kind="binary", levels=("0", "1"), **base), notes
         whole = bool(np.all(distinct == np.round(distinct)))
+        # A negative code such as -99 in a column whose other values are all >= 0.
         sentinels = tuple(str(int(v)) for v in distinct if v in (-9, -99, -999, -9999)
-                          and finite.min() == v and (finite > v).mean() > 0.9
+                          and not (finite[finite != v] < 0).any()
                           and np.sum(finite == v) < 0.5 * len(finite))
-        if sentinels and not (finite[finite > float(sentinels[-1])] < 0).any():
+        if sentinels:
             notes.append(f"{name!r}: the value {', '.join(sentinels)} looks like a code for "
                          "'not recorded' and is treated as missing; remove it from the "
                          "column's missing-value codes if it is a real value.")
@@ -250,7 +251,8 @@ def infer_column(name: str, values: pd.Series) -> tuple[ColumnSpec, list[str]]:
                              + "); they were read as 'yes' and 'no'.")
             return ColumnSpec(kind="binary", levels=("no", "yes"), positive=None, **base), notes
         levels = _canonical_levels(text)
-        return ColumnSpec(kind="binary", levels=tuple(levels), **base), notes
+        role = "site" if _SITE_HINT.search(name) else "predictor"
+        return ColumnSpec(kind="binary", levels=tuple(levels), role=role, **base), notes
     if n_unique >= 0.95 * n_present and n_present >= 20:
         dates = parse_dates(present)
         if dates.notna().mean() >= 0.9:

@@ -220,7 +220,8 @@ def test_a_held_out_check_from_derive_is_printed() -> None:
     text = page_text(render_chart(run.model, options()))
     check = run.model.extra["validation"]
     assert UNCHECKED_BANNER not in text
-    assert f"accuracy {check['accuracy']:.3f}" in text
+    assert flat(check["summary"]) in text
+    assert f"{check['n']:,}" in text
 
 
 # --- legibility and colour ------------------------------------------------------------------
