@@ -517,3 +517,26 @@ def test_the_qr_code_reads_back_as_the_model_fingerprint(chosen_pdf, tmp_path) -
                           capture_output=True, text=True)
     fingerprint = demo.admitted().model.fingerprint
     assert read.stdout.strip() == f"sha256:{fingerprint}"
+
+
+def test_a_bare_model_and_a_recorded_or_not_question_still_print(chosen) -> None:
+    """A model file without cohort, data or costs (hand-made or old) prints; a question that
+    asks whether a value was recorded gets plain YES and NO."""
+    from core.model import TreeModel
+
+    data = chosen.to_dict()
+    for key in ("cohort", "data", "costs", "settings", "validation"):
+        data.pop(key, None)
+    root = data["nodes"][0]
+    root["split"] = {"column": "crp", "kind": "missing", "threshold": None, "yes_levels": [],
+                     "no_levels": [], "missing_goes": "yes"}
+    root["question"] = "C-reactive protein (CRP) not recorded?"
+    bare = TreeModel.from_dict(data)
+    plan = plan_chart(bare, options())
+    pdf = draw(plan)[0]
+    frags = fragments(pdf)
+    labels = {a.branch: flat(text_inside(a.label, frags)) for a in plan.tree.arrows if a.parent == 1}
+    assert labels == {0: "YES", 1: "NO"}
+    text = page_text(pdf)
+    assert "C-reactive protein (CRP) not recorded?" in text
+    assert "Data unknown" in text and UNCHECKED_BANNER in text

@@ -137,8 +137,9 @@ def _outcome(p: _Painter, box: PlacedBox, plan: ChartPlan, s: float) -> None:
     strip = Rect(r.x, r.y, r.w, box.strip)
     p.rect(strip, band.strip, None, radius=corner)
     p.rect(Rect(r.x, r.y + box.strip / 2, r.w, box.strip / 2), band.strip, None)
-    p.rect(r, None, band.edge, band.edge_width * s / 9, radius=corner,
-           dash=(0.5 * s, 0.3 * s) if small else None)
+    edge = band.edge_width * s / 9
+    inset = Rect(r.x + edge / 2, r.y + edge / 2, r.w - edge, r.h - edge)  # ink stays inside
+    p.rect(inset, None, band.edge, edge, radius=corner, dash=(0.5 * s, 0.3 * s) if small else None)
     bx, by, radius = box.badge
     p.circle(bx, by, radius, style.BADGE_FILL)
     number, heading, *rest = box.lines
