@@ -8,7 +8,7 @@ from __future__ import annotations
 
 import datetime as dt
 import math
-from dataclasses import dataclass, field, replace
+from dataclasses import dataclass, replace
 
 from ..errors import InputError
 
@@ -70,7 +70,6 @@ class ChartOptions:
     band_cuts: tuple[float, ...] | None = None  # absolute cut-points (percent, or outcome units)
     band_ratio: float = 1.25  # relative bands: HIGHER at ≥ ratio × the cohort's rate
     printed: dt.date | None = None  # the date printed on the chart (default: today)
-    extra: dict = field(default_factory=dict, compare=False)
 
     def checked(self) -> "ChartOptions":
         """The options with defaults filled in, or one clear InputError."""

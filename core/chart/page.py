@@ -2,8 +2,10 @@
 
 The planner tries portrait and landscape (unless fixed), the side panel below the tree or
 beside it, the tree growing down or to the right, and a few wrap widths; it keeps the
-arrangement whose tree text is largest (never below the minimum), then the one the tree fills
-best. A tree that fits no arrangement at the minimum size is refused.
+arrangement whose tree text is largest (never below the minimum, at most 1.5 × it), then
+top-down over left-to-right, then the one the tree fills best. The cautions always run across
+the page above the footer. A tree that fits no arrangement at the minimum size gets None (the
+caller refuses it), and spare room is shared out by spreading the tree.
 """
 
 from __future__ import annotations
@@ -14,14 +16,13 @@ from dataclasses import dataclass, replace
 from functools import lru_cache
 
 from .content import ChartText, PanelItem, PanelSection
-from .layout import (CAP, LEADING, BoxSpec, LayoutStyle, Line, Measure, Para, Rect, TreeLayout,
-                     TreeSpec, layout_tree, wrap)
+from .layout import BoxSpec, LayoutStyle, Para, TreeLayout, TreeSpec, layout_tree
+from .text import CAP, LEADING, Line, Measure, Rect, wrap
 from .options import ChartOptions, margin_for, page_size
 from .style import TypeScale
 
 MAX_TREE_SCALE = 1.5  # tree text up to 1.5 × the minimum when the tree leaves room
 WRAPS = ((12.0, 11.0), (14.0, 13.0), (18.0, 15.0))  # (question, outcome) wrap widths in em
-REACHES = (1.0,)  # connector length factors tried (longer ones rarely help; kept as a knob)
 QR_EM = 4.6  # QR code side in units of the body size
 
 
@@ -317,26 +318,25 @@ def plan_page(text: ChartText, options: ChartOptions, measure: Measure,
         if frame.panel_overflows:
             continue
         area = frame.tree_area
-        for direction, wraps, reach in itertools.product(_directions(options), WRAPS, REACHES):
+        for direction, wraps in itertools.product(_directions(options), WRAPS):
             if _too_deep(text.tree, direction, floor, measure, area):
                 continue
             style = LayoutStyle(floor, direction, *wraps)
-            layout = layout_tree(text.tree, style, measure, 1.0, reach)
+            layout = layout_tree(text.tree, style, measure)
             room = min(area.w / layout.width, area.h / layout.height)
             if room < 1 - 1e-9:
                 continue
             if quick:
                 return _finish(text, options, frame, layout, measure, stretch=False)
             size = math.floor(floor * min(room, MAX_TREE_SCALE) * 20 + 1e-6) / 20
-            grown = layout_tree(text.tree, replace(style, size=max(size, floor)), measure, 1.0, reach)
+            grown = layout_tree(text.tree, replace(style, size=max(size, floor)), measure)
             while not _fits(grown, area) and grown.size > floor:  # rounding only
                 grown = layout_tree(text.tree, replace(style, size=max(floor, grown.size - 0.05)),
-                                    measure, 1.0, reach)
+                                    measure)
             used = (grown.width * grown.height) / (area.w * area.h)
             # Largest text first; then top-down (how flowcharts are read), then the
             # arrangement the tree fills best.
-            key = (round(grown.size, 2), direction == "down", round(used, 3), -reach,
-                   not landscape)
+            key = (round(grown.size, 2), direction == "down", round(used, 3), not landscape)
             if best_key is None or key > best_key:
                 best_key, best = key, (frame, grown)
     if best is None:
