@@ -38,9 +38,9 @@ class PlacedBox:
 
     def moved(self, dx: float, dy: float) -> "PlacedBox":
         bx, by, r = self.badge
-        return replace(self, rect=self.rect.moved(dx, dy),
-                       lines=tuple(ln.moved(dx, dy) for ln in self.lines),
-                       badge=(bx + dx, by + dy, r))
+        return PlacedBox(self.id, self.kind, self.rect.moved(dx, dy),
+                         tuple(ln.moved(dx, dy) for ln in self.lines), (bx + dx, by + dy, r),
+                         self.strip, self.point)
 
 
 @dataclass(frozen=True)
@@ -53,9 +53,10 @@ class PlacedArrow:
     label_lines: tuple[Line, ...]
 
     def moved(self, dx: float, dy: float) -> "PlacedArrow":
-        return replace(self, points=tuple((x + dx, y + dy) for x, y in self.points),
-                       label=self.label.moved(dx, dy),
-                       label_lines=tuple(ln.moved(dx, dy) for ln in self.label_lines))
+        return PlacedArrow(self.parent, self.child, self.branch,
+                           tuple((x + dx, y + dy) for x, y in self.points),
+                           self.label.moved(dx, dy),
+                           tuple(ln.moved(dx, dy) for ln in self.label_lines))
 
 
 @dataclass(frozen=True)

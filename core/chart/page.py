@@ -312,17 +312,20 @@ def plan_page(text: ChartText, options: ChartOptions, measure: Measure,
     A layout is exactly proportional to its text size (every length is a multiple of it,
     wrap widths included), so one layout at the minimum tells the largest size that fits."""
     floor = options.min_text
+    frames = [frame for landscape, placement in
+              itertools.product(_orientations(options), ("bottom", "side"))
+              if not (frame := _Frame(text, options, landscape, placement, measure)).panel_overflows]
     best, best_key = None, None
-    for landscape, placement in itertools.product(_orientations(options), ("bottom", "side")):
-        frame = _Frame(text, options, landscape, placement, measure)
-        if frame.panel_overflows:
+    for direction, wraps in itertools.product(_directions(options), WRAPS):
+        # The tree's layout does not depend on the page around it: one per direction and wrap.
+        fitting = [f for f in frames if not _too_deep(text.tree, direction, floor, measure,
+                                                       f.tree_area)]
+        if not fitting:
             continue
-        area = frame.tree_area
-        for direction, wraps in itertools.product(_directions(options), WRAPS):
-            if _too_deep(text.tree, direction, floor, measure, area):
-                continue
-            style = LayoutStyle(floor, direction, *wraps)
-            layout = layout_tree(text.tree, style, measure)
+        style = LayoutStyle(floor, direction, *wraps)
+        layout = layout_tree(text.tree, style, measure)
+        for frame in fitting:
+            area = frame.tree_area
             room = min(area.w / layout.width, area.h / layout.height)
             if room < 1 - 1e-9:
                 continue
@@ -336,7 +339,8 @@ def plan_page(text: ChartText, options: ChartOptions, measure: Measure,
             used = (grown.width * grown.height) / (area.w * area.h)
             # Largest text first; then top-down (how flowcharts are read), then the
             # arrangement the tree fills best.
-            key = (round(grown.size, 2), direction == "down", round(used, 3), not landscape)
+            key = (round(grown.size, 2), direction == "down", round(used, 3),
+                   frame.width < frame.height)
             if best_key is None or key > best_key:
                 best_key, best = key, (frame, grown)
     if best is None:

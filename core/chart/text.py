@@ -7,7 +7,7 @@ own. Coordinates are points, origin top-left, y downwards.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, replace
+from dataclasses import dataclass
 from functools import lru_cache
 from typing import Callable
 
@@ -124,4 +124,4 @@ class Line:
     centred: bool = True
 
     def moved(self, dx: float, dy: float) -> "Line":
-        return replace(self, x=self.x + dx, baseline=self.baseline + dy)
+        return Line(self.text, self.bold, self.size, self.x + dx, self.baseline + dy, self.centred)
