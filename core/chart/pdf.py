@@ -190,21 +190,12 @@ def _qr(canvas: pdfcanvas.Canvas, plan: ChartPlan) -> None:
     canvas.restoreState()
 
 
-def draw(plan: ChartPlan) -> tuple[bytes, set[tuple[str, str]]]:
-    """The PDF of ``plan``, and every (text colour, fill) pair it drew."""
-    regular, _ = style.register_fonts()
-    out = io.BytesIO()
-    c = pdfcanvas.Canvas(out, pagesize=(plan.width, plan.height), invariant=1,
-                         initialFontName=regular, initialFontSize=plan.scale.body,
-                         pageCompression=1)
-    c.setTitle(plan.text.title)
-    c.setAuthor("Prunella")
-    c.setCreator(f"Prunella {__version__}")
-    c.setSubject(plan.text.subtitle)
-    c.setKeywords(f"model sha256 {plan.text.fingerprint}")
+def paint(c: pdfcanvas.Canvas, plan: ChartPlan) -> set[tuple[str, str]]:
+    """Draw the whole chart of ``plan`` onto canvas ``c`` in page coordinates (the caller may
+    translate or scale first, as the methods report does); returns the (ink, fill) pairs."""
     p = _Painter(c, plan.height)
     b, s = plan.scale.body, plan.tree.size
-    for k, line in enumerate(plan.header):
+    for line in plan.header:
         p.text(line, style.INK if line.bold else style.SOFT_INK, style.WHITE)
     if plan.banner is not None:
         p.rect(plan.banner, style.UNCHECKED_FILL, style.UNCHECKED_EDGE, 2.0, radius=0.4 * b)
@@ -231,9 +222,25 @@ def draw(plan: ChartPlan) -> tuple[bytes, set[tuple[str, str]]]:
     for k, line in enumerate(plan.footer):
         p.text(line, style.INK if k == 0 else style.SOFT_INK, style.WHITE)
     _qr(c, plan)
+    return p.pairs
+
+
+def draw(plan: ChartPlan) -> tuple[bytes, set[tuple[str, str]]]:
+    """The PDF of ``plan``, and every (text colour, fill) pair it drew."""
+    regular, _ = style.register_fonts()
+    out = io.BytesIO()
+    c = pdfcanvas.Canvas(out, pagesize=(plan.width, plan.height), invariant=1,
+                         initialFontName=regular, initialFontSize=plan.scale.body,
+                         pageCompression=1)
+    c.setTitle(plan.text.title)
+    c.setAuthor("Prunella")
+    c.setCreator(f"Prunella {__version__}")
+    c.setSubject(plan.text.subtitle)
+    c.setKeywords(f"model sha256 {plan.text.fingerprint}")
+    pairs = paint(c, plan)
     c.showPage()
     c.save()
-    return out.getvalue(), p.pairs
+    return out.getvalue(), pairs
 
 
 def render_chart(model: TreeModel, options: ChartOptions | None = None) -> bytes:
