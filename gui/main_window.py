@@ -80,6 +80,7 @@ class MainWindow(QMainWindow):
             self.stack.addWidget(panel)
         self.panels["data"].opened.connect(self._remember)
         self.panels["data"].demo_button.clicked.connect(self.open_demo)
+        self.panels["chart"].choose_size.connect(self.panels["size"].choose_size)
 
         # The steps down the side.
         self.steps = QListWidget()

@@ -4,9 +4,10 @@ and the model, its rules and a scored spreadsheet as files. The cautions stand b
 
 from __future__ import annotations
 
+from dataclasses import dataclass
 from pathlib import Path
 
-from PySide6.QtCore import QPointF, QSize, Qt, QTemporaryDir, QTimer
+from PySide6.QtCore import QPointF, QSize, Qt, QTemporaryDir, QTimer, Signal
 from PySide6.QtGui import QPainter
 from PySide6.QtPdf import QPdfDocument
 from PySide6.QtPdfWidgets import QPdfView
@@ -18,6 +19,7 @@ from PySide6.QtWidgets import (
 )
 
 from core.cautions import CAUTION_TITLE, CAUTIONS
+from core.chart import ChartOptions, ChartTooLarge, write_chart
 from core.errors import InputError
 from core.safe_files import write_bytes_atomic, write_csv_safely, write_text_atomic
 from core.scoring import scored_table
@@ -29,11 +31,31 @@ ORIENTATIONS = (("Best fit for the tree", "auto"), ("Portrait (upright)", "portr
                 ("Landscape (sideways)", "landscape"))
 
 
-def write_chart(derivation, options: dict, path: str, progress=None, cancel=None) -> str:
-    """Write the one-page chart PDF for the chosen tree (core.chart). Runs in a worker."""
-    from core.chart.pdf import write_chart_pdf  # noqa: F401  (wired when the chart lands)
+def chart_options(chart: dict) -> ChartOptions:
+    """The session's chart settings as core's ChartOptions (None: the chart's own default)."""
+    return ChartOptions(paper=chart.get("paper") or "a4",
+                        orientation=chart.get("orientation") or "auto",
+                        title=chart.get("title") or None, subtitle=chart.get("subtitle") or None,
+                        min_text=chart.get("min_text"))
 
-    raise InputError("The chart module is not available in this build.")
+
+@dataclass(frozen=True)
+class ChartResult:
+    """A drawn chart (its file), or why it could not be drawn and the size that would fit."""
+
+    path: str | None
+    message: str = ""
+    largest_fitting: int | None = None
+    target: str = ""  # the file it was asked to write (names the request it answers)
+
+
+def draw_chart(model, chart: dict, path: str) -> ChartResult:
+    """Write the one-page chart PDF of ``model`` with core.chart. Runs in a worker."""
+    try:
+        write_chart(model, path, chart_options(chart))
+    except ChartTooLarge as exc:
+        return ChartResult(None, str(exc), exc.largest_fitting, target=path)
+    return ChartResult(path, target=path)
 
 
 def cautions_widget(parent=None) -> QWidget:
@@ -51,6 +73,7 @@ def cautions_widget(parent=None) -> QWidget:
 
 class ChartPanel(Panel):
     step = "chart"
+    choose_size = Signal(int)  # the largest size that fits, for step 3 to take
     intro = ("The one-page chart to print and pin up. The preview is the PDF itself, exactly "
              "as it will print.")
 
@@ -82,7 +105,7 @@ class ChartPanel(Panel):
             self.orientation_combo.addItem(words, code)
         self.min_text = explain(QDoubleSpinBox(), "No text on the chart is smaller than this "
                                 "(in points); a tree too big to fit at this size is refused.")
-        self.min_text.setRange(5.0, 40.0)
+        self.min_text.setRange(5.5, 40.0)  # 5.5 stands for "usual": core refuses below 6
         self.min_text.setSingleStep(0.5)
         self.min_text.setDecimals(1)
         self.min_text.setSuffix(" pt")
@@ -149,8 +172,19 @@ class ChartPanel(Panel):
         self.preview_note.setAlignment(Qt.AlignCenter)
         self.preview_note.setWordWrap(True)
         self.preview_note.setFont(heading_font(self, 1.05))
+        self.fit_button = explain(QPushButton(), "Take the largest tree of the pruning "
+                                  "sequence that fits on this paper at this text size.")
+        self.fit_button.hide()
+        self.fit_button.clicked.connect(self._choose_fitting)
+        self._fitting: int | None = None
+        note_page = QWidget()
+        note_layout = QVBoxLayout(note_page)
+        note_layout.addStretch(1)
+        note_layout.addWidget(self.preview_note)
+        note_layout.addWidget(self.fit_button, 0, Qt.AlignHCenter)
+        note_layout.addStretch(1)
         self.preview_stack = QStackedWidget()
-        self.preview_stack.addWidget(self.preview_note)
+        self.preview_stack.addWidget(note_page)
         self.preview_stack.addWidget(self.pdf_view)
 
         splitter = QSplitter(Qt.Horizontal)
@@ -251,20 +285,38 @@ class ChartPanel(Panel):
         self._outdated = False
         path = str(Path(self._temp.path()) / f"preview-{self._serial}.pdf")
         self.preview_note.setText("Drawing the chart…")
-        self.job = workers.Job(write_chart, self.session.chart_derivation().model,
-                               dict(self.session.chart), path)
+        self.job = workers.Job(draw_chart, self.session.chart_derivation().model,
+                               dict(self.session.chart), path, takes_progress=False)
         self.job.signals.done.connect(self._preview_ready)
         self.job.signals.failed.connect(self._preview_failed)
         self.job.signals.finished.connect(self._render_over)
         workers.start(self.job)
 
-    def _preview_ready(self, path: str) -> None:
+    def _preview_ready(self, result: ChartResult) -> None:
+        if Path(result.target).name != f"preview-{self._serial}.pdf":
+            if result.path:  # an older request, overtaken by a newer one
+                Path(result.path).unlink(missing_ok=True)
+            return
+        if result.path is None:  # too big for the page at this text size
+            self._preview_failed(result.message)
+            self._fitting = result.largest_fitting
+            if result.largest_fitting is not None:
+                self.fit_button.setText(f"Choose {result.largest_fitting} outcome boxes")
+                self.fit_button.show()
+            return
+        self.fit_button.hide()
         self.document.close()
-        self.document.load(path)
-        self.pdf_path = path
+        self.document.load(result.path)
+        previous, self.pdf_path = self.pdf_path, result.path
+        if previous and previous != result.path:
+            Path(previous).unlink(missing_ok=True)  # only the shown preview is kept
         self.preview_error = None
         self.preview_stack.setCurrentIndex(1)
         self.message.setText("")
+
+    def _choose_fitting(self) -> None:
+        if self._fitting is not None:
+            self.choose_size.emit(self._fitting)
 
     def _preview_failed(self, message: str) -> None:
         self.document.close()

@@ -13,6 +13,8 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
+from core.chart import sizes_that_fit
+from core.chart.options import PAPER_NAMES, default_min_text
 from core.derive import choose_model, derive
 from core.errors import InputError
 from core.grow import TreeSettings
@@ -57,6 +59,10 @@ class SizePanel(Panel):
         self.stale_banner.button.hide()  # this is step 3: Run is right here
         self.job: workers.Job | None = None
         self._busy = False  # from Run until the result (or the stop) has been shown
+        self._fit_job: workers.Job | None = None
+        self._fit_waiting = False
+        self._fit_sizes = None  # (key, sizes, label) for the shading of the curve
+        self.fit_sizes: tuple[int, ...] | None = None
         self._writing = False
         self._started = 0.0
 
@@ -436,29 +442,70 @@ class SizePanel(Panel):
         self.refresh_chosen()
 
     def refresh_fits(self) -> None:
-        if self.session.model is not None:
-            self.refresh_result()
+        if self.session.derivation is not None and (
+                self._fit_sizes is None or self._fit_sizes[0] != self._fit_key()):
+            self._start_fits()
 
     def _fits(self) -> tuple[tuple[int, ...] | None, str]:
-        """Sizes of the path that print legibly on the chosen paper (from the chart module)."""
-        try:
-            from core.chart import sizes_that_fit  # the chart step's own measure of fit
-        except ImportError:
-            self.fit_note.setText("")
+        """The shading last computed for this run and paper (see _start_fits)."""
+        if self._fit_sizes is None or self._fit_sizes[0] != self._fit_key():
+            self._start_fits()
             return None, ""
+        return self._fit_sizes[1], self._fit_sizes[2]
+
+    def _fit_key(self):
         chart = self.session.chart
-        try:
-            fits = tuple(int(n) for n in sizes_that_fit(
-                self.session.derivation, chart.get("paper", "a4"),
-                chart.get("orientation", "auto"), float(chart.get("min_text", 9.0))))
-        except InputError as exc:
-            self.fit_note.setText(str(exc))
-            return None, ""
-        label = f"Fits on {str(chart.get('paper', 'a4')).upper()} at {chart.get('min_text', 9):g} pt"
-        self.fit_note.setText(f"Shaded: sizes that print legibly on {str(chart.get('paper', 'a4')).upper()} "
-                              f"with text of at least {chart.get('min_text', 9):g} pt (paper and text "
-                              "size are set on step 6).")
-        return fits, label
+        return (id(self.session.derivation), chart.get("paper"), chart.get("orientation"),
+                chart.get("min_text"))
+
+    def _start_fits(self) -> None:
+        """Ask the chart module, in the background, which sizes print legibly on the paper."""
+        derivation = self.session.derivation
+        if derivation is None:
+            return
+        chart = self.session.chart
+        key = self._fit_key()
+        if self._fit_job is not None and self._fit_job.running:
+            self._fit_waiting = True  # ask again when this one is done
+            return
+        self._fit_waiting = False
+        job = workers.Job(sizes_that_fit, derivation, chart.get("paper") or "a4",
+                          chart.get("orientation") or "auto", chart.get("min_text"),
+                          takes_progress=False)
+        job.key = key
+        job.signals.done.connect(self._fits_done)
+        job.signals.failed.connect(self._fits_failed)
+        job.signals.finished.connect(self._fits_over)
+        self._fit_job = job
+        self.fit_note.setText("Finding the sizes that fit on the paper…")
+        workers.start(job)
+
+    def _fits_done(self, sizes) -> None:
+        job = self._fit_job
+        if job.key != self._fit_key():
+            return  # the run or the paper changed meanwhile
+        chart = self.session.chart
+        paper = str(chart.get("paper") or "a4")
+        text = chart.get("min_text") or default_min_text(paper)
+        name = PAPER_NAMES.get(paper, paper.upper())
+        label = f"Fits on {name} at {text:g} pt"
+        self._fit_sizes = (job.key, tuple(int(n) for n in sizes), label)
+        self.fit_sizes = self._fit_sizes[1]
+        self.fit_note.setText(f"Shaded: sizes that print legibly on one {name} page with text of "
+                              f"at least {text:g} pt (paper and text size are set on step 6)."
+                              + ("" if sizes else " None does: choose larger paper or smaller "
+                                 "text on step 6."))
+        model = self.session.model
+        if model is not None:
+            self.curve.show_curve(CurveData.from_path(model.path), int(model.chosen["leaves"]),
+                                  self._fit_sizes[1], label)
+
+    def _fits_failed(self, message: str) -> None:
+        self.fit_note.setText(message)
+
+    def _fits_over(self) -> None:
+        if self._fit_waiting:
+            self._start_fits()
 
     def refresh_chosen(self) -> None:
         model = self.session.model

@@ -10,6 +10,7 @@ os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 import json  # noqa: E402
 
 import pandas as pd  # noqa: E402
+from pypdf import PdfReader  # noqa: E402
 from PySide6.QtCore import Qt  # noqa: E402
 
 from core.derive import choose_model  # noqa: E402
@@ -55,9 +56,16 @@ def test_open_choose_run_pick_size_and_export(demo, qtbot, run, dialogs, tmp_pat
     # Back to the 1-SE choice with its button.
     qtbot.mouseClick(size.one_se_button, Qt.LeftButton)
     assert session.model.chosen["rule"] == "1se"
-    # Step 6: the other exports.
+    # Step 6: the chart, exported as a one-page PDF, and the other exports.
     window.go_to("chart")
     chart = window.panels["chart"]
+    qtbot.waitUntil(lambda: not chart.preview_busy and chart.pdf_path is not None, timeout=30000)
+    dialogs.save_name = str(tmp_path / "admitted-chart.pdf")
+    qtbot.mouseClick(chart.export_button, Qt.LeftButton)
+    pdf = PdfReader(tmp_path / "admitted-chart.pdf")
+    assert len(pdf.pages) == 1
+    text = " ".join(pdf.pages[0].extract_text().split())
+    assert session.model.fingerprint[:12] in text and "Decision support only" in text
     dialogs.save_name = str(tmp_path / "admitted-model.json")
     qtbot.mouseClick(chart.model_button, Qt.LeftButton)
     saved = TreeModel.load(tmp_path / "admitted-model.json")
