@@ -10,7 +10,6 @@ from pathlib import Path
 from PySide6.QtCore import QPointF, QSize, Qt, QTemporaryDir, QTimer, Signal
 from PySide6.QtGui import QPainter
 from PySide6.QtPdf import QPdfDocument
-from PySide6.QtPdfWidgets import QPdfView
 from PySide6.QtPrintSupport import QPrintDialog, QPrinter
 from PySide6.QtWidgets import (
     QComboBox, QDialog, QDoubleSpinBox, QFileDialog, QFormLayout, QFrame, QGroupBox,
@@ -25,6 +24,7 @@ from core.safe_files import write_bytes_atomic, write_csv_safely, write_text_ato
 from core.scoring import scored_table
 from gui import workers
 from gui.panels.base import Banner, Panel, explain, heading_font
+from gui.widgets.pdf_preview import PdfPreview
 
 PAPERS = (("A4", "a4"), ("US Letter", "letter"), ("A3", "a3"), ("Tabloid", "tabloid"))
 ORIENTATIONS = (("Best fit for the tree", "auto"), ("Portrait (upright)", "portrait"),
@@ -163,11 +163,9 @@ class ChartPanel(Panel):
         scroll.setMinimumWidth(330)
 
         self.document = QPdfDocument(self)
-        self.pdf_view = QPdfView()
-        self.pdf_view.setDocument(self.document)
-        self.pdf_view.setPageMode(QPdfView.PageMode.SinglePage)
-        self.pdf_view.setZoomMode(QPdfView.ZoomMode.FitInView)
+        self.pdf_view = PdfPreview(self.document)
         self.pdf_view.setAccessibleName("Chart preview")
+        self.pdf_view.setToolTip("The chart exactly as it will print (the PDF file itself).")
         self.preview_note = QLabel("")
         self.preview_note.setAlignment(Qt.AlignCenter)
         self.preview_note.setWordWrap(True)

@@ -57,7 +57,8 @@ def main(argv: list[str]) -> int:
         for number, step in enumerate(("data", "outcome", "size", "tree", "checking", "chart"), 1):
             window.go_to(step)
             chart = window.panels["chart"]
-            settle(0.6, until=(lambda: not chart.preview_busy) if step == "chart" else None)
+            settle(1.5 if step == "chart" else 0.6,
+                   until=(lambda: not chart.preview_busy) if step == "chart" else None)
             window.grab().save(str(out / f"{number}-{step}-{width}x{height}.png"))
     window.session.dirty = False
     window.close()
