@@ -91,6 +91,7 @@ class ChartPanel(Panel):
         self._timer.timeout.connect(self.render_preview)
         self._outdated = True  # the preview does not show the current tree and options yet
         self._after_render = None  # (action, title) waiting for the chart to be drawn
+        self._rendering = False  # a drawing job was started and its result not yet shown
 
         self.title_edit = explain(QLineEdit(), "The chart's heading; leave blank for one made "
                                   "from the outcome.")
@@ -275,10 +276,11 @@ class ChartPanel(Panel):
         """Write the chart to a fresh temporary PDF in the background, then show that file."""
         if self.session.chosen is None:
             return
-        if self.job is not None and self.job.running:
+        if self._rendering:
             self._timer.start()  # one at a time; try again shortly
             self._outdated = True
             return
+        self._rendering = True
         self._serial += 1
         self._outdated = False
         path = str(Path(self._temp.path()) / f"preview-{self._serial}.pdf")
@@ -324,6 +326,7 @@ class ChartPanel(Panel):
         self.preview_stack.setCurrentIndex(0)
 
     def _render_over(self) -> None:
+        self._rendering = False
         waiting, self._after_render = self._after_render, None
         if waiting is None:
             return
@@ -339,7 +342,8 @@ class ChartPanel(Panel):
 
     @property
     def preview_busy(self) -> bool:
-        return self._timer.isActive() or (self.job is not None and self.job.running)
+        """Drawing is due or under way (until its result has been shown, on this thread)."""
+        return self._timer.isActive() or self._rendering
 
     # --- files ------------------------------------------------------------------------------
 
