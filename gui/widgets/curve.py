@@ -15,6 +15,8 @@ from matplotlib.ticker import FuncFormatter, LogLocator, NullFormatter
 from PySide6.QtCore import Signal
 from PySide6.QtWidgets import QSizePolicy
 
+from gui import none_guard
+
 # Okabe & Ito (2008) colour-blind-safe colours; every series also differs by marker/line.
 CV_COLOUR = "#0072B2"
 TRAIN_COLOUR = "#D55E00"
@@ -68,6 +70,10 @@ class CurveCanvas(FigureCanvasQTAgg):
     def set_chosen(self, chosen: int | None) -> None:
         self._chosen = chosen
         self._redraw()
+
+    def paintEvent(self, event) -> None:  # noqa: N802
+        none_guard.top_up()  # see gui/none_guard.py
+        super().paintEvent(event)
 
     def legend_texts(self) -> list[str]:
         return [t.get_text() for legend in self.figure.legends for t in legend.get_texts()]

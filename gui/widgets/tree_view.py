@@ -17,6 +17,7 @@ from core.chart.layout import LayoutStyle, layout_tree
 from core.chart.options import ChartOptions
 from core.chart.style import ARROW, BADGE_FILL, DECISION_EDGE, INK, WHITE, font_directory, ink_for
 from core.model import TreeModel
+from gui import none_guard
 
 VIEW_TEXT_SIZE = 10.0  # points: the view's own zoom does the rest
 LIT = QColor("#000000")  # the lit path: thick black over a yellow halo (Okabe–Ito yellow)
@@ -40,11 +41,16 @@ def chart_family() -> str:
     return _FAMILY[0]
 
 
+_FONTS: dict[bool, QFont] = {}
+
+
 def _font(bold: bool) -> QFont:
-    font = QFont(chart_family())
-    font.setPixelSize(_BASE_PIXELS)
-    font.setBold(bold)
-    return font
+    if bold not in _FONTS:
+        font = QFont(chart_family())
+        font.setPixelSize(_BASE_PIXELS)
+        font.setBold(bold)
+        _FONTS[bold] = font
+    return _FONTS[bold]
 
 
 def draw_line(painter: QPainter, line, colour: str) -> None:
@@ -285,3 +291,7 @@ class TreeView(QGraphicsView):
         super().resizeEvent(event)
         if self.model is not None and not self._user_zoomed:
             self.fit()
+
+    def paintEvent(self, event) -> None:  # noqa: N802
+        none_guard.top_up()  # a repaint makes thousands of calls (see gui/none_guard.py)
+        super().paintEvent(event)
