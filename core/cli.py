@@ -237,15 +237,11 @@ def _score(args) -> int:
     _refuse_overwrite(args.out, args.data, args.model)
     model = TreeModel.load(args.model)
     table = read_table(args.data, sheet=args.sheet)
-    scored = model.apply(table.frame)
-    out = table.frame.copy()
-    out["prunella_box"] = scored.leaf
-    out["prunella_prediction"] = scored.prediction
-    if model.positive is not None:
-        share = {n.id: n.counts[1] / max(n.n, 1) for n in model.leaves}
-        out[f"prunella_share_{model.positive}"] = [round(share[i], 4) for i in scored.leaf]
+    from .scoring import scored_table
+
+    out, notes = scored_table(model, table.frame)
     write_csv_safely(out, args.out)
-    for warning in list(table.provenance.warnings) + list(scored.warnings):
+    for warning in list(table.provenance.warnings) + list(notes):
         print(f"note: {warning}", file=sys.stderr)
     print(f"Scored {len(out)} rows into {args.out}.")
     return 0

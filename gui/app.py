@@ -1,0 +1,65 @@
+"""Starting the desktop app: ``prunella`` opens it, ``prunella --demo`` opens it on the
+invented demo cohort, ``prunella FILE`` opens a spreadsheet or a project."""
+
+from __future__ import annotations
+
+import argparse
+import sys
+
+ORGANISATION = "Prunella Tree Charts"  # our own names, for the settings' location
+APPLICATION = "Prunella"
+
+
+def parse_arguments(argv: list[str]) -> tuple[argparse.Namespace, list[str]]:
+    parser = argparse.ArgumentParser(prog="prunella", description="Open the Prunella app.")
+    parser.add_argument("--demo", action="store_true",
+                        help="open with the invented demo cohort loaded")
+    parser.add_argument("file", nargs="?", help="a spreadsheet or a Prunella project to open")
+    return parser.parse_known_args(argv)  # the rest goes to Qt (e.g. -platform)
+
+
+def make_application(qt_args: list[str] | None = None):
+    """The QApplication with our names, icon and high-DPI policy (reuses one that exists)."""
+    from PySide6.QtCore import QSettings, Qt
+    from PySide6.QtGui import QGuiApplication, QIcon
+    from PySide6.QtWidgets import QApplication
+
+    from gui.resources import ICON
+
+    app = QApplication.instance()
+    if app is None:
+        # Fractional scale factors (125 %, 150 %) are used as they are, so text stays crisp.
+        QGuiApplication.setHighDpiScaleFactorRoundingPolicy(
+            Qt.HighDpiScaleFactorRoundingPolicy.PassThrough)
+        app = QApplication([sys.argv[0]] + list(qt_args or []))
+    app.setOrganizationName(ORGANISATION)
+    app.setApplicationName(APPLICATION)
+    app.setApplicationDisplayName("Prunella")
+    QSettings.setDefaultFormat(QSettings.IniFormat)
+    # Group titles read as section headings; what is inside keeps the normal weight.
+    app.setStyleSheet("QGroupBox { font-weight: bold; } "
+                      "QGroupBox QWidget { font-weight: normal; }")
+    if ICON.is_file():
+        app.setWindowIcon(QIcon(str(ICON)))
+    from gui import none_guard
+
+    none_guard.install(app)  # PySide6 6.12 on Python < 3.12 drops references to None
+    return app
+
+
+def run_app(argv: list[str]) -> int:
+    """Open the main window; returns the exit status when it closes."""
+    args, qt_args = parse_arguments(list(argv))
+    from PySide6.QtCore import QTimer
+
+    app = make_application(qt_args)
+    from gui.main_window import MainWindow
+
+    window = MainWindow()
+    window.show()
+    if args.demo:
+        window.open_demo()
+    elif args.file:
+        window.open_any(args.file)
+    QTimer.singleShot(0, window.first_start)
+    return app.exec()

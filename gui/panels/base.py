@@ -1,0 +1,100 @@
+"""What every step's panel has: a title, one line saying what the step is for, a banner when
+its content is out of date, and a way to ask the window to go to another step."""
+
+from __future__ import annotations
+
+from PySide6.QtCore import Qt, Signal
+from PySide6.QtGui import QFont
+from PySide6.QtWidgets import (
+    QFrame, QHBoxLayout, QLabel, QMessageBox, QPushButton, QVBoxLayout, QWidget,
+)
+
+from gui.session import STEP_TITLES, STEPS, Session
+
+
+def heading_font(widget: QWidget, factor: float = 1.45) -> QFont:
+    font = QFont(widget.font())
+    font.setPointSizeF(font.pointSizeF() * factor)
+    font.setBold(True)
+    return font
+
+
+def explain(widget: QWidget, text: str) -> QWidget:
+    """Attach a one-sentence explanation to a control (tooltip and What's This)."""
+    widget.setToolTip(text)
+    widget.setWhatsThis(text)
+    return widget
+
+
+class Banner(QFrame):
+    """A notice across the top of a panel: text (with a symbol, never colour alone) and a button."""
+
+    def __init__(self, symbol: str, button_text: str = "", parent=None) -> None:
+        super().__init__(parent)
+        self.setObjectName("banner")
+        self.setFrameShape(QFrame.StyledPanel)
+        self.setStyleSheet("#banner { background: #fff4d6; border: 1px solid #b88a00; "
+                           "border-radius: 4px; } #banner QLabel { color: #3d2e00; }")
+        self.symbol = QLabel(symbol)
+        self.symbol.setFont(heading_font(self, 1.2))
+        self.text = QLabel()
+        self.text.setWordWrap(True)
+        self.text.setTextInteractionFlags(Qt.TextSelectableByMouse)
+        self.button = QPushButton(button_text)
+        self.button.setVisible(bool(button_text))
+        layout = QHBoxLayout(self)
+        layout.setContentsMargins(10, 6, 10, 6)
+        layout.addWidget(self.symbol)
+        layout.addWidget(self.text, 1)
+        layout.addWidget(self.button)
+        self.hide()
+
+    def show_text(self, text: str) -> None:
+        self.text.setText(text)
+        self.show()
+
+
+class Panel(QWidget):
+    """Base of the six step panels."""
+
+    step = "data"
+    intro = ""
+    go_to = Signal(str)  # ask the window to show another step
+
+    def __init__(self, session: Session, parent=None) -> None:
+        super().__init__(parent)
+        self.session = session
+        self._layout = QVBoxLayout(self)
+        self._layout.setContentsMargins(16, 12, 16, 12)
+        self._layout.setSpacing(8)
+        number = STEPS.index(self.step) + 1
+        self.title = QLabel(f"{number}. {STEP_TITLES[self.step]}")
+        self.title.setFont(heading_font(self))
+        self.title.setAccessibleName(STEP_TITLES[self.step])
+        self.intro_label = QLabel(self.intro)
+        self.intro_label.setWordWrap(True)
+        self.stale_banner = Banner("⚠", "Go to step 3")
+        self.stale_banner.button.clicked.connect(self._go_to_size)
+        self._layout.addWidget(self.title)
+        self._layout.addWidget(self.intro_label)
+        self._layout.addWidget(self.stale_banner)
+        session.state_changed.connect(self.update_stale)
+
+    @property
+    def body(self) -> QVBoxLayout:
+        return self._layout
+
+    def update_stale(self) -> None:
+        if self.step in self.session.stale_steps():
+            self.stale_banner.show_text(
+                "Out of date: the data or the choices changed after this tree was grown. "
+                "What you see is the earlier tree; run again on step 3 to update it.")
+        else:
+            self.stale_banner.hide()
+
+    def _go_to_size(self) -> None:
+        self.go_to.emit("size")
+
+    def warn(self, text: str, title: str = "Prunella") -> None:
+        """One clear message for the user (never a crash)."""
+        QMessageBox.warning(self, title, text)

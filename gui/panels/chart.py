@@ -1,0 +1,468 @@
+"""Step 6, the chart: title, subtitle, paper, orientation and smallest text; a preview that is
+the real PDF page (rendered by QtPdf from the file that will be printed); Export PDF, Print,
+and the model, its rules and a scored spreadsheet as files. The cautions stand beside it."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from pathlib import Path
+
+from PySide6.QtCore import QPointF, QSize, Qt, QTemporaryDir, QTimer, Signal
+from PySide6.QtGui import QPainter
+from PySide6.QtPdf import QPdfDocument
+from PySide6.QtPrintSupport import QPrintDialog, QPrinter
+from PySide6.QtWidgets import (
+    QComboBox, QDialog, QDoubleSpinBox, QFileDialog, QFormLayout, QFrame, QGroupBox,
+    QHBoxLayout, QLabel, QLineEdit, QPushButton, QScrollArea, QSplitter, QStackedWidget,
+    QVBoxLayout, QWidget,
+)
+
+from core.cautions import CAUTION_TITLE, CAUTIONS
+from core.chart import ChartOptions, ChartTooLarge, write_chart
+from core.errors import InputError
+from core.safe_files import write_bytes_atomic, write_csv_safely, write_text_atomic
+from core.scoring import scored_table
+from gui import workers
+from gui.panels.base import Banner, Panel, explain, heading_font
+from gui.widgets.pdf_preview import PdfPreview
+
+PAPERS = (("A4", "a4"), ("US Letter", "letter"), ("A3", "a3"), ("Tabloid", "tabloid"))
+ORIENTATIONS = (("Best fit for the tree", "auto"), ("Portrait (upright)", "portrait"),
+                ("Landscape (sideways)", "landscape"))
+
+
+def chart_options(chart: dict) -> ChartOptions:
+    """The session's chart settings as core's ChartOptions (None: the chart's own default)."""
+    return ChartOptions(paper=chart.get("paper") or "a4",
+                        orientation=chart.get("orientation") or "auto",
+                        title=chart.get("title") or None, subtitle=chart.get("subtitle") or None,
+                        min_text=chart.get("min_text"))
+
+
+@dataclass(frozen=True)
+class ChartResult:
+    """A drawn chart (its file), or why it could not be drawn and the size that would fit."""
+
+    path: str | None
+    message: str = ""
+    largest_fitting: int | None = None
+    target: str = ""  # the file it was asked to write (names the request it answers)
+
+
+def draw_chart(model, chart: dict, path: str) -> ChartResult:
+    """Write the one-page chart PDF of ``model`` with core.chart. Runs in a worker."""
+    try:
+        write_chart(model, path, chart_options(chart))
+    except ChartTooLarge as exc:
+        return ChartResult(None, str(exc), exc.largest_fitting, target=path)
+    return ChartResult(path, target=path)
+
+
+def cautions_widget(parent=None) -> QWidget:
+    box = QGroupBox(CAUTION_TITLE, parent)
+    box.setObjectName("cautions")
+    box.setStyleSheet("#cautions { font-weight: bold; }")
+    layout = QVBoxLayout(box)
+    for sentence in CAUTIONS:
+        label = QLabel("•  " + sentence)
+        label.setWordWrap(True)
+        label.setStyleSheet("font-weight: normal;")
+        layout.addWidget(label)
+    return box
+
+
+class ChartPanel(Panel):
+    step = "chart"
+    choose_size = Signal(int)  # the largest size that fits, for step 3 to take
+    intro = ("The one-page chart to print and pin up. The preview is the PDF itself, exactly "
+             "as it will print.")
+
+    def __init__(self, session, parent=None) -> None:
+        super().__init__(session, parent)
+        self._writing = False
+        self.job: workers.Job | None = None
+        self._temp = QTemporaryDir()
+        self._serial = 0
+        self.pdf_path: str | None = None  # the file the preview shows
+        self.preview_error: str | None = None
+        self._timer = QTimer(self)
+        self._timer.setSingleShot(True)
+        self._timer.setInterval(350)  # wait for typing to pause
+        self._timer.timeout.connect(self.render_preview)
+        self._outdated = True  # the preview does not show the current tree and options yet
+        self._after_render = None  # (action, title) waiting for the chart to be drawn
+        self._rendering = False  # a drawing job was started and its result not yet shown
+
+        self.title_edit = explain(QLineEdit(), "The chart's heading; leave blank for one made "
+                                  "from the outcome.")
+        self.subtitle_edit = explain(QLineEdit(), "A second line, such as the population and "
+                                     "where the chart applies; leave blank for the default.")
+        self.paper_combo = explain(QComboBox(), "The sheet the chart is printed on.")
+        for words, code in PAPERS:
+            self.paper_combo.addItem(words, code)
+        self.orientation_combo = explain(QComboBox(), "Upright or sideways; 'best fit' chooses "
+                                         "whichever suits the tree's shape.")
+        for words, code in ORIENTATIONS:
+            self.orientation_combo.addItem(words, code)
+        self.min_text = explain(QDoubleSpinBox(), "No text on the chart is smaller than this "
+                                "(in points); a tree too big to fit at this size is refused.")
+        self.min_text.setRange(5.5, 40.0)  # 5.5 stands for "usual": core refuses below 6
+        self.min_text.setSingleStep(0.5)
+        self.min_text.setDecimals(1)
+        self.min_text.setSuffix(" pt")
+        self.min_text.setSpecialValueText("usual for the paper")
+        form = QFormLayout()
+        form.setFieldGrowthPolicy(QFormLayout.AllNonFixedFieldsGrow)
+        form.addRow("Title:", self.title_edit)
+        form.addRow("Subtitle:", self.subtitle_edit)
+        form.addRow("Paper:", self.paper_combo)
+        form.addRow("Orientation:", self.orientation_combo)
+        form.addRow("Smallest text:", self.min_text)
+
+        self.export_button = explain(QPushButton("Export PDF…"), "Save the chart as a PDF file.")
+        self.print_button = explain(QPushButton("Print…"), "Print the chart through the "
+                                    "system's print dialog.")
+        self.model_button = explain(QPushButton("Model (JSON)…"), "Save the tree as a model "
+                                    "file that Prunella's command line can score patients with.")
+        self.rules_button = explain(QPushButton("Rules (text)…"), "Save the tree as numbered "
+                                    "IF … THEN rules in plain text.")
+        self.scored_button = explain(QPushButton("Scored spreadsheet…"), "Save the data with "
+                                     "each row's outcome box and prediction added (CSV).")
+        self.export_button.clicked.connect(self.export_pdf)
+        self.print_button.clicked.connect(self.print_chart)
+        self.model_button.clicked.connect(self.export_model)
+        self.rules_button.clicked.connect(self.export_rules)
+        self.scored_button.clicked.connect(self.export_scored)
+        main_buttons = QHBoxLayout()
+        main_buttons.addWidget(self.export_button)
+        main_buttons.addWidget(self.print_button)
+        other = QGroupBox("Other files")
+        other_layout = QVBoxLayout(other)
+        for button in (self.model_button, self.rules_button, self.scored_button):
+            other_layout.addWidget(button)
+        self.message = QLabel("")
+        self.message.setWordWrap(True)
+        self.message.setTextInteractionFlags(Qt.TextSelectableByMouse)
+
+        left = QWidget()
+        left_layout = QVBoxLayout(left)
+        left_layout.setContentsMargins(0, 0, 6, 0)
+        options = QGroupBox("The chart")
+        options.setLayout(form)
+        left_layout.addWidget(options)
+        left_layout.addLayout(main_buttons)
+        left_layout.addWidget(self.message)
+        left_layout.addWidget(cautions_widget())
+        left_layout.addWidget(other)
+        left_layout.addStretch(1)
+        scroll = QScrollArea()
+        scroll.setWidget(left)
+        scroll.setWidgetResizable(True)
+        scroll.setFocusPolicy(Qt.NoFocus)  # tab goes to the controls inside, not the frame
+        scroll.setFrameShape(QFrame.NoFrame)
+        scroll.setHorizontalScrollBarPolicy(Qt.ScrollBarAlwaysOff)
+        scroll.setMinimumWidth(330)
+
+        self.document = QPdfDocument(self)
+        self.pdf_view = PdfPreview(self.document)
+        self.pdf_view.setAccessibleName("Chart preview")
+        self.pdf_view.setToolTip("The chart exactly as it will print (the PDF file itself).")
+        self.preview_note = QLabel("")
+        self.preview_note.setAlignment(Qt.AlignCenter)
+        self.preview_note.setWordWrap(True)
+        self.preview_note.setFont(heading_font(self, 1.05))
+        self.fit_button = explain(QPushButton(), "Take the largest tree of the pruning "
+                                  "sequence that fits on this paper at this text size.")
+        self.fit_button.hide()
+        self.fit_button.clicked.connect(self._choose_fitting)
+        self._fitting: int | None = None
+        note_page = QWidget()
+        note_layout = QVBoxLayout(note_page)
+        note_layout.addStretch(1)
+        note_layout.addWidget(self.preview_note)
+        note_layout.addWidget(self.fit_button, 0, Qt.AlignHCenter)
+        note_layout.addStretch(1)
+        self.preview_stack = QStackedWidget()
+        self.preview_stack.addWidget(note_page)
+        self.preview_stack.addWidget(self.pdf_view)
+
+        splitter = QSplitter(Qt.Horizontal)
+        splitter.addWidget(scroll)
+        splitter.addWidget(self.preview_stack)
+        splitter.setStretchFactor(0, 0)
+        splitter.setStretchFactor(1, 1)
+        splitter.setSizes([360, 800])
+        splitter.setChildrenCollapsible(False)
+        self.empty = Banner("ℹ", "Go to step 3")
+        self.empty.button.clicked.connect(lambda: self.go_to.emit("size"))
+        self.body.addWidget(self.empty)
+        self.body.addWidget(splitter, 1)
+        self.content = splitter
+
+        self.title_edit.textEdited.connect(self._write_back)
+        self.subtitle_edit.textEdited.connect(self._write_back)
+        self.paper_combo.currentIndexChanged.connect(self._write_back)
+        self.orientation_combo.currentIndexChanged.connect(self._write_back)
+        self.min_text.valueChanged.connect(self._write_back)
+        session.chart_changed.connect(self.refresh_options)
+        session.chart_changed.connect(self.schedule_preview)
+        session.check_changed.connect(self.schedule_preview)
+        session.result_changed.connect(self.refresh)
+        session.chosen_changed.connect(self.refresh)
+        self.refresh_options()
+        self.refresh()
+
+    # --- options ----------------------------------------------------------------------------
+
+    def refresh_options(self) -> None:
+        if self._writing:
+            return
+        chart = self.session.chart
+        widgets = (self.title_edit, self.subtitle_edit, self.paper_combo,
+                   self.orientation_combo, self.min_text)
+        for widget in widgets:
+            widget.blockSignals(True)
+        self.title_edit.setText(chart.get("title") or "")
+        self.subtitle_edit.setText(chart.get("subtitle") or "")
+        self.paper_combo.setCurrentIndex(max(0, self.paper_combo.findData(chart.get("paper"))))
+        self.orientation_combo.setCurrentIndex(
+            max(0, self.orientation_combo.findData(chart.get("orientation"))))
+        self.min_text.setValue(chart.get("min_text") or self.min_text.minimum())
+        for widget in widgets:
+            widget.blockSignals(False)
+
+    def _write_back(self, *_args) -> None:
+        if self._writing:
+            return
+        text_size = self.min_text.value()
+        self._writing = True
+        self.session.set_chart(
+            title=self.title_edit.text().strip() or None,
+            subtitle=self.subtitle_edit.text().strip() or None,
+            paper=self.paper_combo.currentData(),
+            orientation=self.orientation_combo.currentData(),
+            min_text=None if text_size == self.min_text.minimum() else float(text_size))
+        self._writing = False
+
+    # --- the preview ------------------------------------------------------------------------
+
+    def refresh(self) -> None:
+        has_tree = self.session.model is not None
+        self.content.setVisible(has_tree)
+        for button in (self.export_button, self.print_button, self.model_button,
+                       self.rules_button, self.scored_button):
+            button.setEnabled(has_tree)
+        if not has_tree:
+            self.empty.show_text("No tree yet: run step 3 to grow one.")
+            self.document.close()
+            self.pdf_path = None
+            return
+        self.empty.hide()
+        self.schedule_preview()
+
+    def schedule_preview(self) -> None:
+        """Draw the preview soon, but only while the step is on screen (drawing takes a
+        moment; export and print draw it if it is missing)."""
+        self._outdated = True
+        if self.session.model is not None and self.isVisible():
+            self._timer.start()
+
+    def showEvent(self, event) -> None:  # noqa: N802
+        super().showEvent(event)
+        if self._outdated and self.session.model is not None:
+            self._timer.start()
+
+    def render_preview(self) -> None:
+        """Write the chart to a fresh temporary PDF in the background, then show that file."""
+        if self.session.chosen is None:
+            return
+        if self._rendering:
+            self._timer.start()  # one at a time; try again shortly
+            self._outdated = True
+            return
+        self._rendering = True
+        self._serial += 1
+        self._outdated = False
+        path = str(Path(self._temp.path()) / f"preview-{self._serial}.pdf")
+        self.preview_note.setText("Drawing the chart…")
+        self.job = workers.Job(draw_chart, self.session.chart_derivation().model,
+                               dict(self.session.chart), path, takes_progress=False)
+        self.job.signals.done.connect(self._preview_ready)
+        self.job.signals.failed.connect(self._preview_failed)
+        self.job.signals.finished.connect(self._render_over)
+        workers.start(self.job)
+
+    def _preview_ready(self, result: ChartResult) -> None:
+        if Path(result.target).name != f"preview-{self._serial}.pdf":
+            if result.path:  # an older request, overtaken by a newer one
+                Path(result.path).unlink(missing_ok=True)
+            return
+        if result.path is None:  # too big for the page at this text size
+            self._preview_failed(result.message)
+            self._fitting = result.largest_fitting
+            if result.largest_fitting is not None:
+                self.fit_button.setText(f"Choose {result.largest_fitting} outcome boxes")
+                self.fit_button.show()
+            return
+        self.fit_button.hide()
+        self.document.close()
+        self.document.load(result.path)
+        previous, self.pdf_path = self.pdf_path, result.path
+        if previous and previous != result.path:
+            Path(previous).unlink(missing_ok=True)  # only the shown preview is kept
+        self.preview_error = None
+        self.preview_stack.setCurrentIndex(1)
+        self.message.setText("")
+
+    def _choose_fitting(self) -> None:
+        if self._fitting is not None:
+            self.choose_size.emit(self._fitting)
+
+    def _preview_failed(self, message: str) -> None:
+        self.document.close()
+        self.pdf_path = None
+        self.preview_error = message
+        self.preview_note.setText(message)
+        self.preview_stack.setCurrentIndex(0)
+
+    def _render_over(self) -> None:
+        self._rendering = False
+        waiting, self._after_render = self._after_render, None
+        if waiting is None:
+            return
+        if self._outdated:  # options changed while drawing: draw again, then act
+            self._after_render = waiting
+            self._timer.start()
+            return
+        action, title = waiting
+        if self.pdf_path is not None:
+            action()
+        else:
+            self.warn(self.preview_error or "The chart could not be drawn.", title)
+
+    @property
+    def preview_busy(self) -> bool:
+        """Drawing is due or under way (until its result has been shown, on this thread)."""
+        return self._timer.isActive() or self._rendering
+
+    # --- files ------------------------------------------------------------------------------
+
+    def _save_name(self, caption: str, suffix: str, filter_text: str) -> str | None:
+        start = ""
+        if self.session.table is not None:
+            data = Path(self.session.table.provenance.path)
+            start = str(data.with_name(f"{data.stem}-{self.session.model.outcome.name}{suffix}"))
+        path, _ = QFileDialog.getSaveFileName(self, caption, start, filter_text)
+        if not path:
+            return None
+        if not path.lower().endswith(suffix):
+            path += suffix
+        inputs = [self.session.table.provenance.path] if self.session.table else []
+        if self.session.project_path:
+            inputs.append(self.session.project_path)
+        if any(Path(path).resolve() == Path(p).resolve() for p in inputs):
+            self.warn("That is one of your input files; choose another name so it stays "
+                      "unchanged.")
+            return None
+        return path
+
+    def _with_pdf(self, action, title: str) -> None:
+        """Run ``action`` on the current chart, drawing it first if it is not drawn yet."""
+        if self.session.model is None:
+            return
+        if self.pdf_path is not None and not self._outdated and not self.preview_busy:
+            action()
+            return
+        if not self._outdated and not self.preview_busy and self.preview_error:
+            self.warn(self.preview_error, title)  # it was drawn, and it cannot be
+            return
+        self._after_render = (action, title)
+        self._timer.stop()
+        self.render_preview()
+
+    def export_pdf(self) -> None:
+        self._with_pdf(self._export_pdf, "No chart to save")
+
+    def _export_pdf(self) -> None:
+        target = self._save_name("Save the chart", ".pdf", "PDF (*.pdf)")
+        if target:
+            self._copy_pdf(target)
+
+    def _copy_pdf(self, target: str) -> None:
+        try:  # the preview file is complete: its bytes are the chart
+            write_bytes_atomic(target, Path(self.pdf_path).read_bytes())
+        except OSError as exc:
+            self.warn(f"The chart could not be saved ({exc.strerror}); choose another folder.")
+            return
+        self.message.setText(f"Saved {Path(target).name}.")
+
+    def print_chart(self) -> None:
+        self._with_pdf(self._print_chart, "No chart to print")
+
+    def _print_chart(self) -> None:
+        printer = QPrinter(QPrinter.HighResolution)
+        dialog = QPrintDialog(printer, self)
+        dialog.setWindowTitle("Print the chart")
+        if dialog.exec() != QDialog.Accepted:
+            return
+        self.print_to(printer)
+
+    def print_to(self, printer: QPrinter) -> None:
+        """Draw the preview's PDF page onto a printer (300 dpi is sharp for text at arm's length)."""
+        painter = QPainter()
+        if not painter.begin(printer):
+            self.warn("The printer could not be started; check it in the system settings.")
+            return
+        try:
+            area = printer.pageRect(QPrinter.DevicePixel)
+            for page in range(self.document.pageCount()):
+                if page:
+                    printer.newPage()
+                points = self.document.pagePointSize(page)
+                dpi = min(300, printer.resolution())
+                pixels = QSize(round(points.width() / 72 * dpi), round(points.height() / 72 * dpi))
+                image = self.document.render(page, pixels)
+                scale = min(area.width() / image.width(), area.height() / image.height())
+                size = QSize(round(image.width() * scale), round(image.height() * scale))
+                painter.drawImage(QPointF(0, 0), image.scaled(size, Qt.KeepAspectRatio,
+                                                               Qt.SmoothTransformation))
+        finally:
+            painter.end()
+        self.message.setText("Sent to the printer.")
+
+    def export_model(self) -> None:
+        target = self._save_name("Save the model", ".json", "Prunella model (*.json)")
+        if target:
+            model = self.session.chart_derivation().model  # with the check it records
+            self._write(lambda: model.save(target), target)
+
+    def export_rules(self) -> None:
+        target = self._save_name("Save the rules", ".txt", "Text (*.txt)")
+        if target:
+            self._write(lambda: write_text_atomic(target, self.session.model.rules()), target)
+
+    def export_scored(self) -> None:
+        if self.session.table is None:
+            return
+        target = self._save_name("Save the scored spreadsheet", ".csv", "CSV (*.csv)")
+        if not target:
+            return
+
+        def write() -> None:
+            table, notes = scored_table(self.session.model, self.session.table.frame)
+            write_csv_safely(table, target)
+
+        self._write(write, target)
+
+    def _write(self, action, target: str) -> None:
+        try:
+            action()
+        except InputError as exc:
+            self.warn(str(exc))
+            return
+        except OSError as exc:
+            self.warn(f"{Path(target).name} could not be saved ({exc.strerror}); choose another "
+                      "folder.")
+            return
+        self.message.setText(f"Saved {Path(target).name}.")
+

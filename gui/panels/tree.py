@@ -1,0 +1,245 @@
+"""Step 4, the tree: the chosen tree as a diagram (zoom, pan, fit), the details of a clicked
+box, and a lookup that lights up one patient's way to an outcome box."""
+
+from __future__ import annotations
+
+from html import escape
+
+from PySide6.QtCore import Qt
+from PySide6.QtWidgets import (
+    QComboBox, QFormLayout, QGroupBox, QHBoxLayout, QLabel, QLineEdit, QPushButton, QScrollArea,
+    QSizePolicy, QSplitter, QTextBrowser, QToolButton, QVBoxLayout, QWidget,
+)
+
+from core.explain import box_details, route_patient
+from core.thresholds import format_number
+from gui.panels.base import Banner, Panel, explain
+from gui.widgets.tree_view import TreeView
+
+NOT_RECORDED = "(not recorded)"
+
+
+def details_html(model, box: int) -> str:
+    """The details of a box as a short HTML page (numbers from core.explain)."""
+    d = box_details(model, box)
+    kind = "Outcome box" if d.leaf else "Question"
+    rows = [f"<h3>Box {d.box}: {kind}</h3>", f"<p><b>{escape(d.text)}</b></p>",
+            f"<p>{d.n:,} patients reach this box ({d.share_of_all:.0%} of the "
+            f"{model.n_rows:,} it was grown on).</p>"]
+    if d.classes:
+        rows.append("<table cellspacing='0' cellpadding='3' border='1' style='border-collapse:"
+                    "collapse'><tr><th align='left'>Outcome</th><th align='right'>Patients</th>"
+                    "<th align='right'>Share</th><th align='left'>95% interval</th></tr>")
+        for c in d.classes:
+            rows.append(f"<tr><td>{escape(c.label)}</td><td align='right'>{c.count:,}</td>"
+                        f"<td align='right'>{c.share:.0%}</td>"
+                        f"<td>{c.low:.0%} to {c.high:.0%}</td></tr>")
+        rows.append("</table><p style='color:#444'>The interval is the Wilson 95% interval: "
+                    "where the true rate plausibly lies, given this many patients.</p>")
+    elif d.mean is not None:
+        unit = f" {model.outcome.unit}" if model.outcome.unit else ""
+        rows.append(f"<p>Mean {format_number(round(d.mean, 3))}{unit} (SD "
+                    f"{format_number(round(d.sd, 3))}); 95% interval "
+                    f"{format_number(round(d.mean_low, 3))} to {format_number(round(d.mean_high, 3))}"
+                    f"{unit}.</p>")
+    if d.steps:
+        rows.append("<p><b>How patients get here</b></p><ol>")
+        rows.extend(f"<li>{escape(s.text())}</li>" for s in d.steps)
+        rows.append("</ol>")
+    else:
+        rows.append("<p>Every patient starts here.</p>")
+    return "\n".join(rows)
+
+
+class TreePanel(Panel):
+    step = "tree"
+    intro = ("The chosen tree. Click a box to see its patients and how they get there; enter "
+             "one patient's values on the right to see which outcome box they reach.")
+
+    def __init__(self, session, parent=None) -> None:
+        super().__init__(session, parent)
+        self._fields: dict[str, QWidget] = {}
+        self._writing = False
+
+        self.view = TreeView()
+        self.view.setAccessibleName("The tree")
+        self.view.box_clicked.connect(self.show_box)
+        tools = QHBoxLayout()
+        for text, tip, slot in (("Zoom in", "Make the diagram larger (Ctrl +).", self.view.zoom_in),
+                                ("Zoom out", "Make the diagram smaller (Ctrl −).", self.view.zoom_out),
+                                ("Fit to window", "Show the whole tree (Ctrl 0).", self.view.fit)):
+            button = explain(QToolButton(), tip)
+            button.setText(text)
+            button.clicked.connect(slot)
+            tools.addWidget(button)
+        self.size_label = QLabel()
+        tools.addStretch(1)
+        tools.addWidget(self.size_label)
+        left = QWidget()
+        left_layout = QVBoxLayout(left)
+        left_layout.setContentsMargins(0, 0, 0, 0)
+        left_layout.addLayout(tools)
+        left_layout.addWidget(self.view, 1)
+
+        self.details = QTextBrowser()
+        self.details.setOpenLinks(False)
+        self.details.setAccessibleName("Details of the chosen box")
+        details_box = QGroupBox("The box you clicked")
+        box_layout = QVBoxLayout(details_box)
+        box_layout.addWidget(self.details)
+
+        self.lookup_form = QFormLayout()
+        self.lookup_form.setFieldGrowthPolicy(QFormLayout.AllNonFixedFieldsGrow)
+        self.lookup_form.setRowWrapPolicy(QFormLayout.WrapLongRows)
+        self.clear_button = explain(QPushButton("Clear"), "Forget the values entered for this "
+                                    "patient.")
+        self.clear_button.clicked.connect(self.clear_lookup)
+        self.result = QLabel("Enter values to see where this patient goes.")
+        self.result.setWordWrap(True)
+        self.result.setTextFormat(Qt.RichText)
+        lookup_inner = QWidget()
+        lookup_layout = QVBoxLayout(lookup_inner)
+        lookup_layout.setContentsMargins(0, 0, 0, 0)
+        lookup_layout.addLayout(self.lookup_form)
+        lookup_layout.addWidget(self.result)
+        lookup_layout.addWidget(self.clear_button, 0, Qt.AlignLeft)
+        lookup_layout.addStretch(1)
+        scroll = QScrollArea()
+        scroll.setWidget(lookup_inner)
+        scroll.setWidgetResizable(True)
+        scroll.setHorizontalScrollBarPolicy(Qt.ScrollBarAlwaysOff)
+        scroll.setFrameShape(QScrollArea.NoFrame)
+        scroll.setFocusPolicy(Qt.NoFocus)
+        self.result.setSizePolicy(QSizePolicy.Ignored, QSizePolicy.Preferred)
+        lookup_box = QGroupBox("Look up one patient")
+        lookup_box.setToolTip("Only the questions this tree asks are needed; leave a value "
+                              "blank if it was not recorded.")
+        lookup_box_layout = QVBoxLayout(lookup_box)
+        lookup_box_layout.addWidget(scroll)
+
+        side = QSplitter(Qt.Vertical)
+        side.addWidget(details_box)
+        side.addWidget(lookup_box)
+        side.setChildrenCollapsible(False)
+        side.setStretchFactor(0, 1)
+        side.setStretchFactor(1, 1)
+        side.setMinimumWidth(340)
+        splitter = QSplitter(Qt.Horizontal)
+        splitter.addWidget(left)
+        splitter.addWidget(side)
+        splitter.setStretchFactor(0, 3)
+        splitter.setStretchFactor(1, 1)
+        splitter.setSizes([900, 420])
+        splitter.setChildrenCollapsible(False)
+        self.empty = Banner("ℹ", "Go to step 3")
+        self.empty.button.clicked.connect(lambda: self.go_to.emit("size"))
+        self.body.addWidget(self.empty)
+        self.body.addWidget(splitter, 1)
+        self.content = splitter
+
+        session.result_changed.connect(self.refresh)
+        session.chosen_changed.connect(self.refresh)
+        self.refresh()
+
+    def refresh(self) -> None:
+        model = self.session.model
+        self.content.setVisible(model is not None)
+        if model is None:
+            self.empty.show_text("No tree yet: run step 3 to grow one.")
+            self.view.show_model(None)
+            self._build_lookup(None)
+            self.details.setHtml("")
+            return
+        self.empty.hide()
+        self.view.show_model(model)
+        leaves = len(model.leaves)
+        self.size_label.setText(f"{len(model.nodes)} boxes: {len(model.nodes) - leaves} questions, "
+                                f"{leaves} outcomes")
+        self._build_lookup(model)
+        self.show_box(1)
+        self.view.select_box(None)
+
+    def show_box(self, box: int) -> None:
+        model = self.session.model
+        if model is not None and 1 <= box <= len(model.nodes):
+            self.details.setHtml(details_html(model, box))
+
+    # --- the lookup -------------------------------------------------------------------------
+
+    def _build_lookup(self, model) -> None:
+        previous = self.values()
+        while self.lookup_form.rowCount():
+            self.lookup_form.removeRow(0)
+        self._fields.clear()
+        if model is None:
+            return
+        for column in model.columns_asked():
+            spec = model.spec(column)
+            label = spec.display + (f" ({spec.unit})" if spec.unit else "") + ":"
+            if spec.kind == "numeric":
+                field = QLineEdit()
+                field.setPlaceholderText("not recorded")
+                field.setToolTip(f"{spec.display}, as a number" +
+                                 (f" in {spec.unit}" if spec.unit else "") + "; leave blank if "
+                                 "not recorded.")
+                field.setText(previous.get(column) or "")
+                field.textChanged.connect(self.look_up)
+            else:
+                field = QComboBox()
+                field.addItem(NOT_RECORDED, None)
+                for level in spec.levels:
+                    field.addItem(level, level)
+                field.setToolTip(f"{spec.display}: choose the patient's category.")
+                index = field.findData(previous.get(column))
+                field.setCurrentIndex(max(0, index))
+                field.currentIndexChanged.connect(self.look_up)
+            self._fields[column] = field
+            self.lookup_form.addRow(label, field)
+        # Keyboard order: the details, then the patient's values top to bottom, then Clear.
+        chain = [self.details] + list(self._fields.values()) + [self.clear_button]
+        for first, second in zip(chain, chain[1:]):
+            QWidget.setTabOrder(first, second)
+        self.look_up()
+
+    def values(self) -> dict[str, str | None]:
+        out: dict[str, str | None] = {}
+        for column, field in self._fields.items():
+            if isinstance(field, QLineEdit):
+                out[column] = field.text().strip() or None
+            else:
+                out[column] = field.currentData()
+        return out
+
+    def set_values(self, values: dict[str, str | None]) -> None:
+        for column, value in values.items():
+            field = self._fields.get(column)
+            if isinstance(field, QLineEdit):
+                field.blockSignals(True)
+                field.setText("" if value is None else str(value))
+                field.blockSignals(False)
+            elif isinstance(field, QComboBox):
+                field.blockSignals(True)
+                field.setCurrentIndex(max(0, field.findData(value)))
+                field.blockSignals(False)
+        self.look_up()
+
+    def clear_lookup(self) -> None:
+        self.set_values({c: None for c in self._fields})
+
+    def look_up(self, *_args) -> None:
+        model = self.session.model
+        values = self.values()
+        if model is None or not any(v is not None for v in values.values()):
+            self.view.light_path(())
+            self.result.setText("Enter values to see where this patient goes.")
+            self.last_route = None
+            return
+        route = route_patient(model, values)
+        self.last_route = route
+        self.view.light_path(route.boxes)
+        leaf = model.node(route.outcome_box)
+        warn = "".join(f"<p>⚠ {escape(w)}</p>" for w in route.warnings)
+        # The way there is lit in the diagram and listed in the box details above.
+        self.result.setText(f"<p><b>Reaches box {route.outcome_box}:</b> {escape(leaf.text)}</p>"
+                            f"{warn}")
+        self.show_box(route.outcome_box)

@@ -1,0 +1,70 @@
+"""Screenshots of every step on the demo cohort, for looking at (not a test).
+
+Run under a display, e.g.
+    Xvfb :99 -screen 0 1920x1080x24 &
+    DISPLAY=:99 .venv/bin/python tests/gui/make_screenshots.py OUT_DIR 1366x768 1920x1080
+"""
+
+from __future__ import annotations
+
+import sys
+import tempfile
+import time
+from pathlib import Path
+
+sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
+
+from PySide6.QtCore import QSettings  # noqa: E402
+
+from gui.app import make_application  # noqa: E402
+
+
+def main(argv: list[str]) -> int:
+    out = Path(argv[0] if argv else "screenshots")
+    sizes = [tuple(int(v) for v in s.split("x")) for s in (argv[1:] or ["1366x768", "1920x1080"])]
+    out.mkdir(parents=True, exist_ok=True)
+    app = make_application()
+    QSettings.setPath(QSettings.IniFormat, QSettings.UserScope, tempfile.mkdtemp())
+    from gui.main_window import MainWindow
+
+    window = MainWindow()
+    window.settings.setValue("cautions_seen", True)
+    window.show()
+
+    def settle(seconds: float = 0.4, until=None) -> None:
+        end = time.monotonic() + 60
+        while until is not None and not until() and time.monotonic() < end:
+            app.processEvents()
+            time.sleep(0.01)
+        stop = time.monotonic() + seconds
+        while time.monotonic() < stop:
+            app.processEvents()
+            time.sleep(0.01)
+
+    for width, height in sizes:
+        window.resize(width, height)
+        settle()
+        if width == sizes[0][0]:
+            window.go_to("data")
+            window.grab().save(str(out / f"0-empty-{width}x{height}.png"))
+            window.open_demo()
+            settle(until=lambda: window.session.table is not None)
+            window.panels["size"].holdout.setValue(25)  # so step 5 has a check to show
+            window.panels["size"].run()
+            settle(until=lambda: window.session.model is not None and not window.panels["size"].running)
+            tree = window.panels["tree"]
+            tree.set_values({"spo2": "95", "resp_rate": "28", "arrival_mode": "ambulance"})
+        for number, step in enumerate(("data", "outcome", "size", "tree", "checking", "chart"), 1):
+            window.go_to(step)
+            chart = window.panels["chart"]
+            settle(1.5 if step == "chart" else 0.6,
+                   until=(lambda: not chart.preview_busy) if step == "chart" else None)
+            window.grab().save(str(out / f"{number}-{step}-{width}x{height}.png"))
+    window.session.dirty = False
+    window.close()
+    print(f"screenshots in {out}")
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main(sys.argv[1:]))

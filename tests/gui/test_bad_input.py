@@ -1,0 +1,80 @@
+"""Broken files give one clear message in the app, never a crash, and the app stays usable."""
+
+from __future__ import annotations
+
+import os
+
+os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
+
+import pytest  # noqa: E402
+
+
+@pytest.mark.parametrize("name, content, words", [
+    ("empty.csv", b"", "empty"),
+    ("header.csv", b"a,b,c\n", "no rows"),
+    ("binary.csv", bytes(range(256)) * 40, "binary"),
+    ("book.xlsx", b"this is not a workbook at all", "could not be opened"),
+    ("zipped.csv", b"PK\x03\x04" + b"\x00" * 200, "Excel workbook"),
+])
+def test_broken_spreadsheet_shows_a_message(window, qtbot, dialogs, tmp_path, name, content, words):
+    path = tmp_path / name
+    path.write_bytes(content)
+    window.open_any(str(path))
+    qtbot.waitUntil(lambda: bool(dialogs.texts("warning")), timeout=10000)
+    assert any(words in t for t in dialogs.texts("warning")), dialogs.texts("warning")
+    assert path.read_bytes() == content  # never modified
+    assert window.session.table is None
+    panel = window.panels["data"]
+    qtbot.waitUntil(lambda: panel.open_button.isEnabled(), timeout=5000)  # ready for another
+
+
+def test_after_a_broken_file_the_next_one_opens(window, qtbot, dialogs, tmp_path):
+    path = tmp_path / "empty.csv"
+    path.write_bytes(b"")
+    window.open_any(str(path))
+    qtbot.waitUntil(lambda: bool(dialogs.texts("warning")), timeout=10000)
+    window.demo_action.trigger()
+    qtbot.waitUntil(lambda: window.session.table is not None, timeout=15000)
+    assert window.session.table.provenance.n_rows == 3950
+
+
+@pytest.mark.parametrize("content, words", [
+    ("{{{", "not valid JSON"),
+    ('{"format": "prunella-project/7"}', "newer Prunella"),
+    ('{"format": "something-else/1"}', "not a Prunella project"),
+    ('{"format": "prunella-project/1", "data": {"path": ""}}', "damaged"),
+])
+def test_broken_project_shows_a_message(window, dialogs, tmp_path, content, words):
+    path = tmp_path / "bad.prunella"
+    path.write_text(content, encoding="utf-8")
+    window.open_any(str(path))
+    assert any(words in t for t in dialogs.texts("warning")), dialogs.texts("warning")
+    assert window.session.table is None and window.isVisible()
+
+
+def test_broken_dictionary_shows_a_message(demo, dialogs, tmp_path):
+    window = demo
+    before = window.session.dictionary
+    bad = tmp_path / "bad.dictionary.json"
+    bad.write_text('{"format": "prunella-dictionary/1", "columns": [{"role": "x"}]}',
+                   encoding="utf-8")
+    window.panels["data"].load_dictionary_file(str(bad))
+    assert any("no 'name'" in t for t in dialogs.texts("warning"))
+    assert window.session.dictionary == before
+
+
+def test_refused_dictionary_edit_shows_core_message(demo, dialogs):
+    window = demo
+    model = window.panels["data"].dictionary_model
+    index = model.index(4, 1)  # the 'age' row, its use
+    assert not model.setData(index, "wizard")
+    assert any("role 'wizard'" in t for t in dialogs.texts("warning"))
+
+
+def test_run_that_core_refuses_shows_its_message(demo, qtbot, run, dialogs):
+    window = demo
+    window.panels["size"].min_leaf.setValue(3000)  # more than half the rows
+    run(window)
+    assert any("too few" in t for t in dialogs.texts("warning")), dialogs.texts("warning")
+    assert window.session.model is None
+    assert window.panels["size"].run_button.isEnabled()

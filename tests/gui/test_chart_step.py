@@ -1,0 +1,119 @@
+"""Step 6 in the app: the preview is the real PDF page, exported and printed as is; paper and
+text size change it; a tree too big for the page is refused with the size that fits; the
+sizes that fit are shaded on the pruning curve."""
+
+from __future__ import annotations
+
+import os
+
+os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
+
+import pytest  # noqa: E402
+from pypdf import PdfReader  # noqa: E402
+from PySide6.QtCore import Qt  # noqa: E402
+from PySide6.QtPrintSupport import QPrintDialog, QPrinter  # noqa: E402
+from PySide6.QtWidgets import QDialog  # noqa: E402
+
+from core.cautions import CAUTIONS  # noqa: E402
+from core.chart import sizes_that_fit  # noqa: E402
+
+A4 = (595.28, 841.89)  # ISO 216, in points (REFERENCES.md)
+LETTER = (612.0, 792.0)  # ANSI/ASME Y14.1
+
+
+def _page_size(path) -> tuple[float, float]:
+    box = PdfReader(path).pages[0].mediabox
+    return tuple(sorted((round(float(box.width), 2), round(float(box.height), 2))))
+
+
+@pytest.fixture
+def charted(demo, run, qtbot):
+    window = demo
+    window.panels["size"].folds.setValue(5)
+    run(window)
+    window.go_to("chart")
+    chart = window.panels["chart"]
+    qtbot.waitUntil(lambda: not chart.preview_busy and chart.pdf_path is not None, timeout=30000)
+    return window
+
+
+def test_preview_is_the_pdf_that_is_exported(charted, qtbot, dialogs, tmp_path):
+    window = charted
+    chart = window.panels["chart"]
+    assert chart.document.pageCount() == 1
+    assert chart.preview_stack.currentWidget() is chart.pdf_view
+    dialogs.save_name = str(tmp_path / "chart")
+    qtbot.mouseClick(chart.export_button, Qt.LeftButton)
+    exported = tmp_path / "chart.pdf"
+    assert exported.read_bytes() == open(chart.pdf_path, "rb").read()  # exactly the preview
+    reader = PdfReader(exported)
+    assert len(reader.pages) == 1
+    assert _page_size(exported) == tuple(sorted(A4))
+    text = " ".join(reader.pages[0].extract_text().split())
+    model = window.session.model
+    assert model.fingerprint[:12] in text
+    assert CAUTIONS[2] in text
+    for node in model.nodes:
+        if not node.leaf:
+            assert node.text.split()[0] in text
+
+
+def test_paper_and_title_change_the_preview(charted, qtbot):
+    window = charted
+    chart = window.panels["chart"]
+    first = chart.pdf_path
+    chart.paper_combo.setCurrentIndex(chart.paper_combo.findData("letter"))
+    chart.title_edit.setText("Who is admitted? (invented demo)")
+    chart.title_edit.textEdited.emit(chart.title_edit.text())
+    assert window.session.chart["paper"] == "letter"
+    qtbot.waitUntil(lambda: not chart.preview_busy and chart.pdf_path not in (None, first),
+                    timeout=30000)
+    assert _page_size(chart.pdf_path) == tuple(sorted(LETTER))
+    assert "Who is admitted?" in PdfReader(chart.pdf_path).pages[0].extract_text()
+
+
+def test_print_goes_through_the_dialog(charted, qtbot, monkeypatch, tmp_path):
+    window = charted
+    chart = window.panels["chart"]
+    target = tmp_path / "printed.pdf"
+
+    def accept(dialog):
+        printer = dialog.printer()
+        printer.setOutputFormat(QPrinter.PdfFormat)
+        printer.setOutputFileName(str(target))
+        return QDialog.Accepted
+
+    monkeypatch.setattr(QPrintDialog, "exec", accept)
+    window.print_action.trigger()
+    assert window.current_step() == "chart"
+    assert target.exists() and len(PdfReader(target).pages) == 1
+    assert "printer" in chart.message.text()
+
+
+def test_a_tree_too_big_for_the_page_is_refused_with_the_size_that_fits(charted, qtbot):
+    window = charted
+    chart = window.panels["chart"]
+    size = window.panels["size"]
+    size.choose_size(max(window.session.model.path["leaves"]))  # the whole grown tree
+    qtbot.waitUntil(lambda: not chart.preview_busy, timeout=60000)
+    assert chart.pdf_path is None
+    assert "does not fit" in chart.preview_note.text()
+    assert chart.fit_button.isVisible()
+    fitting = chart._fitting
+    qtbot.mouseClick(chart.fit_button, Qt.LeftButton)
+    assert window.session.model.chosen["leaves"] == fitting
+    qtbot.waitUntil(lambda: not chart.preview_busy and chart.pdf_path is not None, timeout=30000)
+    assert chart.document.pageCount() == 1
+
+
+def test_sizes_that_fit_are_shaded_on_the_curve(charted, qtbot):
+    window = charted
+    size = window.panels["size"]
+    qtbot.waitUntil(lambda: size.fit_sizes is not None, timeout=60000)
+    expected = sizes_that_fit(window.session.derivation, "a4", "auto", None)
+    assert size.fit_sizes == tuple(expected)
+    assert any(t.startswith("Fits on A4") for t in size.curve.legend_texts())
+    window.session.set_chart(paper="a3")
+    qtbot.waitUntil(lambda: size.fit_sizes != tuple(expected), timeout=60000)
+    assert set(size.fit_sizes) >= set(expected)  # bigger paper holds at least as much
+    assert "A3" in size.fit_note.text()

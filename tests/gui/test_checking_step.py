@@ -1,0 +1,115 @@
+"""Step 5 in the app: cross-validated error beside training error, the held-out check, a
+check on another file (printed on the chart), nested cross-validation, stability, the report."""
+
+from __future__ import annotations
+
+import os
+
+os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
+
+import pandas as pd  # noqa: E402
+from matplotlib.backends.backend_qtagg import FigureCanvasQTAgg  # noqa: E402
+import pytest  # noqa: E402
+from pypdf import PdfReader  # noqa: E402
+from PySide6.QtCore import Qt  # noqa: E402
+
+from conftest import DEMO  # noqa: E402
+from core.validate import check_heldout  # noqa: E402
+
+
+def _labels(panel) -> str:
+    from PySide6.QtWidgets import QLabel
+
+    return "\n".join(label.text() for label in panel.findChildren(QLabel) if label.isVisible())
+
+
+@pytest.fixture
+def grown(demo, run):
+    window = demo
+    size = window.panels["size"]
+    size.folds.setValue(5)
+    size.holdout.setValue(25)
+    assert window.session.holdout == 0.25
+    run(window)
+    window.go_to("checking")
+    return window
+
+
+def test_cv_beside_training_and_the_heldout_check(grown):
+    window = grown
+    checking = window.panels["checking"]
+    chosen = window.session.model.chosen
+    text = checking.cv_label.text()
+    assert f"{chosen['cv_risk']:.3f}" in text and f"{chosen['train_risk']:.3f}" in text
+    expected = check_heldout(window.session.chosen)  # the numbers come from core
+    assert checking.unchecked.isHidden()
+    shown = _labels(checking)
+    assert f"{expected.n:,} visits checked" in shown
+    assert expected.measures.headline.sensitivity.text() in shown
+    assert "Calibration by outcome box" in shown
+    assert len(checking.findChildren(FigureCanvasQTAgg)) >= 2  # calibration and ROC plots
+
+
+def test_check_on_another_file_is_printed_on_the_chart(grown, qtbot, dialogs, tmp_path):
+    window = grown
+    checking = window.panels["checking"]
+    frame = pd.read_csv(DEMO)
+    riverside = frame[frame["campus"] == "Riverside"]
+    path = tmp_path / "riverside.csv"
+    riverside.to_csv(path, index=False)
+    dialogs.open_name = str(path)
+    qtbot.mouseClick(checking.external_button, Qt.LeftButton)
+    qtbot.waitUntil(lambda: not checking.running and len(checking.checks) == 2, timeout=20000)
+    external = checking.checks[-1]
+    assert external.kind == "external" and external.n == len(riverside)
+    assert "external file riverside.csv" in _labels(checking).lower()
+    assert checking.on_chart.isVisible() and checking.on_chart.isChecked()
+    record = window.session.chart_derivation().model.extra["validation"]
+    assert record["kind"] == "external" and record["n"] == len(riverside)
+    checking.on_chart.setChecked(False)  # back to the held-out record
+    assert window.session.chart_derivation().model.extra["validation"]["kind"] == "held-out"
+    checking.on_chart.setChecked(True)
+    # Another size: the file is checked again for the new tree.
+    path_sizes = window.session.model.path["leaves"]
+    other = next(n for n in path_sizes if n != window.session.model.chosen["leaves"] and n < 15)
+    window.panels["size"].choose_size(other)
+    qtbot.waitUntil(lambda: not checking.running and len(checking.checks) == 2, timeout=20000)
+    assert checking.checks[-1].model_fingerprint != external.model_fingerprint
+    assert window.session.check is checking.checks[-1]
+    assert not dialogs.texts("warning")
+
+
+def test_nested_cv_stability_and_report(grown, qtbot, dialogs, tmp_path):
+    window = grown
+    checking = window.panels["checking"]
+    checking.outer_folds.setValue(3)
+    qtbot.mouseClick(checking.nested_button, Qt.LeftButton)
+    qtbot.waitUntil(lambda: not checking.running, timeout=60000)
+    assert checking.nested is not None and len(checking.nested.folds) == 3
+    assert "Nested risk" in checking.nested_label.text()
+    assert "Beside it: cross-validated error" in checking.nested_label.text()
+    checking.resamples.setValue(10)
+    qtbot.mouseClick(checking.stability_button, Qt.LeftButton)
+    qtbot.waitUntil(lambda: not checking.running, timeout=60000)
+    assert checking.stability is not None and checking.stability.resamples == 10
+    assert "bootstrap resamples" in checking.stability_label.text()
+    dialogs.save_name = str(tmp_path / "report")
+    qtbot.mouseClick(checking.report_button, Qt.LeftButton)
+    qtbot.waitUntil(lambda: not checking.running, timeout=60000)
+    report = PdfReader(tmp_path / "report.pdf")
+    assert len(report.pages) > 2
+    text = " ".join(page.extract_text() for page in report.pages)
+    assert "Nested" in text or "nested" in text
+    assert not dialogs.texts("warning")
+
+
+def test_stability_can_be_cancelled(grown, qtbot):
+    window = grown
+    checking = window.panels["checking"]
+    checking.resamples.setValue(500)
+    qtbot.mouseClick(checking.stability_button, Qt.LeftButton)
+    qtbot.waitUntil(lambda: checking.progress.value() >= 1, timeout=30000)
+    qtbot.mouseClick(checking.cancel_button, Qt.LeftButton)
+    qtbot.waitUntil(lambda: not checking.running, timeout=30000)
+    assert checking.stability is None and "Cancelled" in checking.status.text()
+    assert checking.stability_button.isEnabled()

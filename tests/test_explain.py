@@ -1,0 +1,91 @@
+"""Explaining a box and routing one patient (used by the app's tree view), and the scored
+table shared by `prunella score` and the app's export."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+from core.derive import DerivationRequest, derive
+from core.design import DesignSpec
+from core.explain import box_details, route_patient, steps_to
+from core.intervals import wilson_interval
+from core.scoring import scored_table
+from core.table import read_table
+from core.variables import DataDictionary
+
+ROOT = Path(__file__).resolve().parents[1]
+
+
+@pytest.fixture(scope="module")
+def demo():
+    table = read_table(ROOT / "sample_data" / "breathless_ed.csv")
+    dictionary = DataDictionary.load(ROOT / "sample_data" / "breathless_ed.dictionary.json")
+    preds = tuple(c.name for c in dictionary.columns if c.role == "predictor")
+    derivation = derive(table, dictionary,
+                        DerivationRequest(DesignSpec("admitted", preds, patient_id="patient_id")))
+    return table, derivation.model
+
+
+def test_steps_lead_from_box_one_to_every_box(demo):
+    _, model = demo
+    assert steps_to(model, 1) == ()
+    for node in model.nodes[1:]:
+        steps = steps_to(model, node.id)
+        assert steps[0].box == 1 and steps[-1].to == node.id
+        for before, after in zip(steps, steps[1:]):
+            assert before.to == after.box  # a connected path
+        for step in steps:
+            parent = model.node(step.box)
+            assert step.to == parent.children[0 if step.answer == "YES" else 1]
+
+
+def test_box_details_counts_and_wilson_intervals(demo):
+    _, model = demo
+    for node in model.nodes:
+        details = box_details(model, node.id)
+        assert details.n == node.n
+        assert sum(c.count for c in details.classes) == node.n
+        for share in details.classes:
+            assert (share.low, share.high) == wilson_interval(share.count, node.n)
+            assert share.low <= share.share <= share.high
+    assert box_details(model, 1).share_of_all == 1.0
+
+
+def test_route_patient_agrees_with_scoring_the_file(demo):
+    """One patient entered by hand reaches the box the whole file's scoring gives that row."""
+    table, model = demo
+    frame = table.frame
+    scored, _ = scored_table(model, frame)
+    for row in (0, 3, 10, 250, 1999):
+        values = {c: frame[c].iloc[row] for c in model.columns_asked()}
+        values = {c: (None if isinstance(v, float) and np.isnan(v) else str(v))
+                  for c, v in values.items()}
+        route = route_patient(model, values)
+        assert route.outcome_box == scored["prunella_box"].iloc[row]
+        assert route.boxes[0] == 1 and route.boxes[-1] == route.outcome_box
+        assert model.node(route.outcome_box).leaf
+        assert route.prediction == scored["prunella_prediction"].iloc[row]
+
+
+def test_route_patient_missing_and_unreadable_values(demo):
+    _, model = demo
+    nothing = route_patient(model, {})
+    assert model.node(nothing.outcome_box).leaf  # every question has a branch for "not recorded"
+    odd = route_patient(model, {"spo2": "very low"})
+    assert odd.outcome_box == nothing.outcome_box
+    assert any("not numbers" in w for w in odd.warnings)
+
+
+def test_scored_table_columns(demo):
+    table, model = demo
+    scored, _ = scored_table(model, table.frame)
+    assert list(scored.columns[-3:]) == ["prunella_box", "prunella_prediction",
+                                         "prunella_share_yes"]
+    assert len(scored) == len(table.frame)
+    assert "prunella_box" not in table.frame.columns  # the input is not touched
+    leaf = model.leaves[0]
+    share = scored.loc[scored["prunella_box"] == leaf.id, "prunella_share_yes"].iloc[0]
+    assert share == round(leaf.counts[1] / leaf.n, 4)
