@@ -41,9 +41,7 @@ def make_application(qt_args: list[str] | None = None):
                       "QGroupBox QWidget { font-weight: normal; }")
     if ICON.is_file():
         app.setWindowIcon(QIcon(str(ICON)))
-    from gui import none_guard
 
-    none_guard.install(app)  # PySide6 6.12 on Python < 3.12 drops references to None
     return app
 
 

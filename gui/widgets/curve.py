@@ -15,7 +15,6 @@ from matplotlib.ticker import FuncFormatter, LogLocator, NullFormatter
 from PySide6.QtCore import Signal
 from PySide6.QtWidgets import QSizePolicy
 
-from gui import none_guard
 
 # Okabe & Ito (2008) colour-blind-safe colours; every series also differs by marker/line.
 CV_COLOUR = "#0072B2"
@@ -72,7 +71,6 @@ class CurveCanvas(FigureCanvasQTAgg):
         self._redraw()
 
     def paintEvent(self, event) -> None:  # noqa: N802
-        none_guard.top_up()  # see gui/none_guard.py
         super().paintEvent(event)
 
     def legend_texts(self) -> list[str]:

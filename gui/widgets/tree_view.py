@@ -17,7 +17,6 @@ from core.chart.layout import LayoutStyle, layout_tree
 from core.chart.options import ChartOptions
 from core.chart.style import ARROW, BADGE_FILL, DECISION_EDGE, INK, WHITE, font_directory, ink_for
 from core.model import TreeModel
-from gui import none_guard
 
 VIEW_TEXT_SIZE = 10.0  # points: the view's own zoom does the rest
 LIT = QColor("#000000")  # the lit path: thick black over a yellow halo (Okabe–Ito yellow)
@@ -293,5 +292,4 @@ class TreeView(QGraphicsView):
             self.fit()
 
     def paintEvent(self, event) -> None:  # noqa: N802
-        none_guard.top_up()  # a repaint makes thousands of calls (see gui/none_guard.py)
         super().paintEvent(event)
