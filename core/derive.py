@@ -122,8 +122,8 @@ def build_model(path: CrossValidatedPath, index: int, rule: str, table: LoadedTa
     grown = path.grown
     data, tree, encoding = grown.data, grown.tree, grown.encoding
     internal = grown.sequence.internal_at(path.grid[index])
-    X = encoding.matrix(data)
-    membership = tree.estimator.decision_path(X).tocsc()
+    X = grown.matrix
+    membership = grown.membership
     order = _breadth_first(tree, internal)  # (sklearn node id, depth) in box order
     box_of = {node: i + 1 for i, (node, _) in enumerate(order)}
     nodes = []

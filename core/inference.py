@@ -110,7 +110,9 @@ def _infer(name: str, values: pd.Series, rows) -> tuple[ColumnSpec, list[str]]:
                 notes.append(say("infer.yes_no_spellings", column=name,
                                  spellings=", ".join(repr(s) for s in spellings[:6])))
             return ColumnSpec(kind="binary", levels=("no", "yes"), positive=None, **base), notes
-        return ColumnSpec(kind="binary", levels=tuple(_canonical_levels(text)), **base), notes
+        role = "site" if _SITE_HINT.search(name) else "predictor"
+        return ColumnSpec(kind="binary", levels=tuple(_canonical_levels(text)), role=role,
+                          **base), notes
     if n_unique >= 0.95 * n_present and n_present >= 20:
         if _mostly_dates(text):
             return _date(name, base, text, notes)
@@ -173,11 +175,10 @@ def _numeric(name: str, base: dict, numbers, n_present: int, notes: list[str], r
     if len(distinct) == 2 and set(distinct.tolist()) <= {0.0, 1.0}:
         return ColumnSpec(kind="binary", levels=("0", "1"), **base), notes
     whole = bool(np.all(distinct == np.round(distinct)))
+    # A negative code such as -99 in a column whose other values are all >= 0.
     sentinels = tuple(str(int(v)) for v in distinct if v in _SENTINELS
-                      and finite.min() == v and (finite > v).mean() > 0.9
+                      and not (finite[finite != v] < 0).any()
                       and np.sum(finite == v) < 0.5 * len(finite))
-    if sentinels and (finite[finite > float(sentinels[-1])] < 0).any():
-        sentinels = ()
     if sentinels:
         code = float(sentinels[0])
         where = None if rows is None else rows[np.flatnonzero(numbers.values == code)]

@@ -222,7 +222,8 @@ _FILES = [
     ("file.wrong_kind", "refused", "{file} is a Prunella {found} file, not a {what} file; "
      "choose the {what} file.", "Models, dictionaries and projects are separate files."),
     ("file.newer_version", "refused", "{file} was saved by a newer Prunella (format version "
-     "{version}); this version reads {readable}. Update Prunella to open it.",
+     "{version}), which this version cannot read (it reads {readable}); update Prunella to "
+     "open it.",
      "Install the newer Prunella, or save the file again from it in the older format."),
     ("file.old_version", "refused", "{file} uses format version {version}, which this "
      "Prunella no longer reads (it reads {readable}); save it again with the Prunella that "

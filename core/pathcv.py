@@ -10,6 +10,7 @@ case, how many path nodes are still internal at each α′ gives every predictio
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from functools import cached_property
 from typing import Callable
 
 import numpy as np
@@ -37,6 +38,16 @@ class GrownModel:
     encoding: Encoding = field(repr=False)
     tree: GrownTree = field(repr=False)
     sequence: PruningSequence = field(repr=False)
+
+    @cached_property
+    def matrix(self) -> np.ndarray:
+        """The derivation rows as the grower saw them (computed once)."""
+        return self.encoding.matrix(self.data)
+
+    @cached_property
+    def membership(self):
+        """Which derivation rows pass through each node (CSC: column = node), computed once."""
+        return self.tree.estimator.decision_path(self.matrix).tocsc()
 
 
 @dataclass(frozen=True)
@@ -151,7 +162,7 @@ def _fold_losses(data: AnalysisData, settings: TreeSettings, costs: ClassCosts |
 
 
 def cross_validate_path(data: AnalysisData, settings: TreeSettings, cv: CVSettings,
-                        jobs: int = 1, progress: Progress | None = None,
+                        jobs: int | None = 1, progress: Progress | None = None,
                         cancel: CancelFlag | None = None,
                         grown: GrownModel | None = None) -> CrossValidatedPath:
     """Grow, prune and cross-validate the whole pruning path; returns CV risk and SE per size.
@@ -177,10 +188,9 @@ def cross_validate_path(data: AnalysisData, settings: TreeSettings, cv: CVSettin
     costs = grown.costs
     tasks = (delayed(_fold_losses)(data, settings, costs, f.train, f.test, grid) for f in folds)
     done = 1
-    if jobs == 1:
-        results = (_fold_losses(data, settings, costs, f.train, f.test, grid) for f in folds)
-    else:
-        results = Parallel(n_jobs=jobs, return_as="generator_unordered")(tasks)
+    # Always through joblib, so a joblib backend set by the caller (a cluster, say) spreads the
+    # folds without code changes; jobs=None defers to that backend's own default.
+    results = Parallel(n_jobs=jobs, return_as="generator_unordered")(tasks)
     for test, losses in results:
         check_cancel()
         sums[test] += losses

@@ -20,14 +20,16 @@ def round_threshold(lo: float, hi: float) -> float:
         raise ValueError(f"need finite lo < hi, got {lo!r}, {hi!r}")
     if lo <= 0 < hi:
         return 0.0
-    low, high = Decimal(lo), Decimal(hi)  # exact binary values
+    # Candidates are built from lo's shortest decimal form (37.2, not 37.2000000000000028...)
+    # and accepted by float comparison, so t may equal lo itself.
+    low = Decimal(repr(float(lo)))
     top = math.floor(math.log10(max(abs(lo), abs(hi)))) + 1
     for exponent in range(top, top - 20, -1):
         for multiplier in _MULTIPLIERS:
             step = multiplier * Decimal(10) ** (exponent - 1)
             candidate = (low / step).to_integral_value(rounding=ROUND_CEILING) * step
             value = float(candidate)
-            if low <= candidate < high and lo <= value < hi:
+            if lo <= value < hi:
                 return value
     return lo
 
