@@ -366,8 +366,10 @@ _ELSEWHERE = [
      "site column has one.", "Use k-fold cross-validation instead.", "core/resample.py"),
     ("grow.min_leaf", "refused", "The minimum number of patients per leaf must be at least 1.",
      "Give a whole number of at least 1.", "core/grow.py"),
-    ("grow.criterion", "refused", "The split criterion for {task} must be one of {choices}, "
-     "not {given!r}.", "Use one of the listed criteria.", "core/grow.py"),
+    ("grow.criterion_classification", "refused", "The split criterion for classification must "
+     "be one of {choices}, not {given!r}.", "Use gini or entropy.", "core/grow.py"),
+    ("grow.criterion_regression", "refused", "The split criterion for regression must be one "
+     "of {choices}, not {given!r}.", "Use squared_error or friedman_mse.", "core/grow.py"),
     ("grow.risk", "refused", "The pruning risk must be 'cost' or 'impurity', not {given!r}.",
      "Use cost or impurity.", "core/grow.py"),
     ("grow.priors_count", "refused", "Give {n} non-negative class priors (one per class).",

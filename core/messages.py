@@ -108,15 +108,33 @@ def distinct_messages(messages) -> list[str]:
     return list(kept.values())
 
 
+# The step of the work where each family of messages comes up, in the user's order.
+STEPS = (("read", "reading the file"), ("xlsx", "reading a workbook"),
+         ("values", "reading cells"), ("infer", "suggesting the data dictionary"),
+         ("dictionary", "data dictionary"), ("variables", "data dictionary"),
+         ("design", "choosing outcome and predictors"), ("cli", "command line"),
+         ("guard", "guards before growing"), ("grow", "growing settings"),
+         ("resample", "cross-validation settings"), ("pathcv", "choosing the size"),
+         ("derive", "held-out check"), ("file", "opening saved files"),
+         ("model", "model files and scoring"))
+
+
 def markdown_table() -> str:
-    """The README's table of messages: what the user sees, and what to do."""
+    """The README's table of messages: the step, what the user sees, and what to do."""
+    step_of = dict(STEPS)
+    position = {prefix: i for i, (prefix, _) in enumerate(STEPS)}
     order = {s: i for i, s in enumerate(SEVERITIES)}
-    lines = ["| message | kind | what to do |", "| --- | --- | --- |"]
-    for kind in sorted(catalogue().values(), key=lambda k: (k.code.split(".")[0],
-                                                           order[k.severity], k.code)):
-        cells = [kind.readable(), kind.severity, kind.advice]
+
+    def key(kind: MessageKind):
+        prefix = kind.code.split(".")[0]
+        return (position.get(prefix, len(position)), order[kind.severity], kind.code)
+
+    lines = ["| step | message | kind | what to do |", "| --- | --- | --- | --- |"]
+    for kind in sorted(catalogue().values(), key=key):
+        step = step_of.get(kind.code.split(".")[0], "other")
+        cells = [step, kind.readable(), kind.severity, kind.advice]
         cells = [c.replace("|", "\\|").replace("\n", " ") for c in cells]
-        lines.append(f"| {cells[0]} | {cells[1]} | {cells[2]} |")
+        lines.append("| " + " | ".join(cells) + " |")
     return "\n".join(lines) + "\n"
 
 
