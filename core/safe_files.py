@@ -74,20 +74,29 @@ def neutralise_cell(value):
     return value
 
 
+def _export_cell(value):
+    value = neutralise_cell(value)
+    if isinstance(value, str) and "\r" in value:
+        value = value.replace("\r\n", "\n").replace("\r", "\n")
+    return value
+
+
 def write_csv_safely(frame: pd.DataFrame, path: str | Path) -> None:
     """Write a table as UTF-8 CSV with formula-like text cells neutralised, atomically.
 
     Header cells and every text cell are checked (OWASP, "CSV Injection"); numbers stay
-    numbers, so a negative value is written as a number, not as text.
+    numbers, so a negative value is written as a number, not as text. A carriage return inside
+    a cell becomes a line feed: the cell is then quoted, so no reader can take what follows
+    for the start of a new (formula) cell.
     """
     safe = frame.copy()
-    safe.columns = [neutralise_cell(str(c)) for c in safe.columns]
+    safe.columns = [_export_cell(str(c)) for c in safe.columns]
     for position in range(safe.shape[1]):
         column = safe.iloc[:, position]
         dtype = column.dtype
         if dtype == object or pd.api.types.is_string_dtype(dtype) or \
                 isinstance(dtype, pd.CategoricalDtype):
-            safe.isetitem(position, column.astype(object).map(neutralise_cell))
+            safe.isetitem(position, column.astype(object).map(_export_cell))
     write_text_atomic(path, safe.to_csv(index=False, lineterminator="\n"))
 
 
