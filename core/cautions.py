@@ -5,7 +5,7 @@ from __future__ import annotations
 CAUTION_TITLE = "Decision support only"
 
 CAUTIONS: tuple[str, ...] = (
-    "This chart supports and does not replace clinical judgment.",
+    "This decision tree supports and does not replace clinical judgment.",
     "It was derived from one cohort and is valid only for patients like those it was derived from.",
     "It must be validated locally before use.",
     "Follow local protocols, policies and regulations and licensed clinical practice.",

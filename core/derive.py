@@ -287,28 +287,7 @@ def _cohort(frame: pd.DataFrame, dictionary: DataDictionary, data: AnalysisData,
 
 
 def _with_heldout_check(derivation: Derivation) -> TreeModel:
-    """Record how the chosen tree does on the rows set aside before growing."""
-    model, heldout = derivation.model, derivation.heldout
-    values = {t.spec.name: column_values(t.numbers, t.codes, t.spec) for t in heldout.predictors
-              if t.spec.name in model.columns_asked()}
-    leaves = model.route(values, heldout.n)
-    predicted = model.predictions(leaves)
-    check = {"source": f"held-out part of the derivation file ({derivation.request.holdout:.0%} "
-                       "set aside before growing)", "n": heldout.n}
-    if model.task == "regression":
-        errors = predicted.astype(float) - heldout.y
-        check["mean_squared_error"] = float(np.mean(errors ** 2))
-    else:
-        truth = np.array(model.classes, dtype=object)[heldout.y]
-        check["accuracy"] = float(np.mean(predicted == truth))
-        costs = model.extra.get("costs")
-        if costs:
-            loss = np.asarray(costs["loss"])
-            pred_index = np.array([model.classes.index(p) for p in predicted])
-            counts = np.bincount(derivation.data.y, minlength=len(model.classes))
-            weight = np.asarray(costs["priors"]) * counts.sum() / np.maximum(counts, 1)
-            check["risk"] = float(np.mean(loss[heldout.y, pred_index] * weight[heldout.y]))
-    extra = dict(model.extra)
-    extra["validation"] = check
-    return TreeModel(model.task, model.outcome, model.classes, model.predictors, model.nodes,
-                     model.n_rows, model.path, model.chosen, extra)
+    """The chosen tree with its check on the rows set aside before growing recorded."""
+    from .validate import check_heldout, with_validation  # validate reads Derivation objects
+
+    return with_validation(derivation.model, check_heldout(derivation))

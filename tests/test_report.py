@@ -1,0 +1,106 @@
+"""The methods and validation report (core/report.py) and its figures."""
+
+from __future__ import annotations
+
+import io
+import re
+from pathlib import Path
+
+import pytest
+from matplotlib.figure import Figure
+from pypdf import PdfReader
+
+from core.cautions import CAUTIONS, UNCHECKED_BANNER
+from core.derive import DerivationRequest, derive
+from core.design import DesignSpec
+from core.report import SECTIONS, ReportContents, prepare_report, render_report, write_report
+from core.report_figures import (
+    calibration_figure, figure_png, pruning_curve_figure, roc_figure, stability_figure,
+)
+from core.resample import CVSettings
+from core.table import LoadedTable, read_table
+from core.validate import check_table
+from core.variables import DataDictionary
+
+SAMPLE = Path(__file__).resolve().parents[1] / "sample_data"
+
+
+@pytest.fixture(scope="module")
+def contents():
+    table = read_table(SAMPLE / "breathless_ed.csv")
+    dictionary = DataDictionary.load(SAMPLE / "breathless_ed.dictionary.json")
+    predictors = tuple(c.name for c in dictionary.columns if c.role == "predictor")
+    frame = table.frame
+    north = LoadedTable(frame[frame["campus"] == "North"].reset_index(drop=True), table.provenance)
+    riverside = LoadedTable(frame[frame["campus"] == "Riverside"].reset_index(drop=True),
+                            table.provenance)
+    request = DerivationRequest(DesignSpec("admitted", predictors, patient_id="patient_id"),
+                                cv=CVSettings(folds=5), holdout=0.2, size="min")
+    derivation = derive(north, dictionary, request)
+    external = check_table(derivation.model, riverside, source="Riverside campus visits")
+    steps = []
+    result = prepare_report(derivation, external=(external,), outer_folds=3, bootstrap=3,
+                            progress=lambda d, t: steps.append((d, t)), printed="2026-01-31")
+    assert steps[-1] == (6, 6)
+    return result
+
+
+def _text(pdf: bytes) -> str:
+    reader = PdfReader(io.BytesIO(pdf))
+    return "\n".join(page.extract_text() for page in reader.pages)
+
+
+@pytest.fixture(scope="module")
+def written(contents, tmp_path_factory):
+    path = tmp_path_factory.mktemp("report") / "report.pdf"
+    write_report(contents, path)
+    return path.read_bytes()
+
+
+def test_report_has_every_section_and_the_cautions(contents, written):
+    pdf = written
+    assert pdf.startswith(b"%PDF")
+    words = re.sub(r"\s+", " ", _text(pdf))
+    for number, name in enumerate(SECTIONS, 1):
+        assert f"{number}. {name}" in words, name
+    for heading in ("8.1 Overview", "8.2 Nested cross-validation", "Held-out check",
+                    "External check: Riverside campus visits"):
+        assert heading in words
+    for caution in CAUTIONS:
+        assert caution in words
+    assert UNCHECKED_BANNER not in words  # it was checked
+    model = contents.model
+    assert model.fingerprint[:16] in words
+    assert contents.derivation.table.provenance.sha256 in words.replace(" ", "")
+    for piece in ("Training (optimistic)", "Cross-validated", "Nested cross-validation (honest)",
+                  "Sensitivity", "Specificity", "ROC area", "DeLong", "Wilson", "Calibration by "
+                  "outcome box", "NO: outside", "first question", "Recurs in place", "TRIPOD",
+                  "Collins, Reitsma, Altman & Moons 2015", "Missing codes", "C-reactive protein",
+                  "Page 1 of", "printed 2026-01-31", "Figure 1.", "Oxygen saturation"):
+        assert piece in words, piece
+
+
+def test_report_is_reproducible(contents, written):
+    assert render_report(contents) == written  # invariant mode, no dates in the figures
+
+
+def test_unchecked_report_says_so(contents):
+    bare = ReportContents(contents.derivation)  # no checks, no nested, no stability
+    words = re.sub(r"\s+", " ", _text(render_report(bare)))
+    assert UNCHECKED_BANNER in words
+    assert "Nested cross-validation was not run" in words
+    assert "not applicable: no held-out or external check" in words
+
+
+def test_figures_are_plain_matplotlib_figures(contents):
+    external = contents.checks[-1]
+    figures = [pruning_curve_figure(contents.model.path), roc_figure(external.measures),
+               calibration_figure(external.measures), stability_figure(contents.stability)]
+    for fig in figures:
+        assert isinstance(fig, Figure) and fig.axes
+        assert figure_png(fig, dpi=50).startswith(b"\x89PNG")
+    again = pruning_curve_figure(contents.model.path)
+    assert figure_png(again, dpi=50) == figure_png(pruning_curve_figure(contents.model.path), dpi=50)
+    legend = [t.get_text() for t in figures[0].legends[0].get_texts()]
+    assert any("1-SE choice" in t for t in legend) and any("minimum risk" in t for t in legend)
+    assert any("training risk" in t for t in legend)
