@@ -397,6 +397,43 @@ _ELSEWHERE = [
      "commas (one per class).", "For example --priors 0.7,0.3.", "core/cli.py"),
     ("cli.size", "refused", "--size must be 1se, min or a number of leaves.",
      "For example --size 1se or --size 4.", "core/cli.py"),
+    ("cli.report_needs_pdf", "refused", "--out must name a PDF file (ending in .pdf).",
+     "Give an output name ending in .pdf.", "core/cli.py"),
+    ("cli.bootstrap", "refused", "--bootstrap must be 0 (none) or a positive number of "
+     "resamples.", "200 is usual.", "core/cli.py"),
+    ("cli.report_data_differs", "warning", "The data file's SHA-256 ({found}...) differs from "
+     "the one the model was fitted on ({expected}...): this report re-derives the tree from the "
+     "data given, which is not the model's data.",
+     "Give the report the data file the model was fitted on.", "core/cli.py"),
+    ("cli.report_no_settings", "refused", "The model file holds no derivation settings, so "
+     "the derivation cannot be rerun for the report; fit the model again with Prunella.",
+     "Fit the model again.", "core/cli.py"),
+    ("cli.report_tree_differs", "warning", "The tree re-derived from the data differs from the "
+     "tree in the model file; the report describes the re-derived tree.",
+     "Check that the data and the Prunella version are those the model was fitted with.",
+     "core/cli.py"),
+    ("validate.no_heldout", "refused", "No patients were set aside before growing; set a "
+     "held-out share (for example 0.25) and run the derivation again.",
+     "Set a held-out share, or check the tree on another file.", "core/validate.py"),
+    ("validate.no_outcome", "refused", "The file has no column {name!r} ({label}), the outcome "
+     "the tree predicts; add it or rename the outcome column.",
+     "Name the outcome column as in the derivation data.", "core/validate.py"),
+    ("validate.columns_absent", "refused", "The file lacks column(s) the tree asks about: "
+     "{columns}; add them, named as in the derivation data.",
+     "Every column the tree asks about must be in the file.", "core/validate.py"),
+    ("validate.no_outcome_rows", "refused", "No row of the file has a recorded {label} that "
+     "the tree can be checked against; check the outcome column.",
+     "Check the outcome column and its spellings.", "core/validate.py"),
+    ("validate.other_tree", "refused", "This check was made on another tree than the one "
+     "given; check the tree again before recording the result.",
+     "Run the check again on this tree.", "core/validate.py"),
+    ("validate.unknown_classes", "warning", "{n} row(s) have an outcome that is not one of the "
+     "tree's classes ({classes}), e.g. {examples}; they were left out.",
+     "Check the outcome's spellings in the new file.", "core/validate.py"),
+    ("nested.outer_folds", "refused", "Nested cross-validation needs at least 2 outer folds.",
+     "Use 2 or more outer folds (5 is usual).", "core/nested.py"),
+    ("stability.resamples", "refused", "The number of bootstrap resamples must be at least 1 "
+     "(200 is usual).", "Give a positive number of resamples.", "core/stability.py"),
     ("model.no_model", "refused", "No model file at {path}; check the path.", "Check the path.",
      "core/model.py"),
     ("model.damaged_detail", "refused", "The model file is damaged ({kind}: {detail}); save the "

@@ -84,8 +84,9 @@ def say(code: str, /, **fields) -> str:
 def explain(message: str) -> MessageKind | None:
     """The catalogue entry a message text belongs to (None if it is not in the catalogue)."""
     text = message.strip()
-    if text.startswith("prunella: "):
-        text = text[len("prunella: "):]
+    for prefix in ("prunella: ", "warning: ", "note: "):
+        if text.startswith(prefix):
+            text = text[len(prefix):]
     best = None
     for kind in catalogue().values():
         if kind.pattern().match(text):
@@ -115,8 +116,9 @@ STEPS = (("read", "reading the file"), ("xlsx", "reading a workbook"),
          ("design", "choosing outcome and predictors"), ("cli", "command line"),
          ("guard", "guards before growing"), ("grow", "growing settings"),
          ("resample", "cross-validation settings"), ("pathcv", "choosing the size"),
-         ("derive", "held-out check"), ("file", "opening saved files"),
-         ("model", "model files and scoring"))
+         ("derive", "held-out check"), ("validate", "checking a tree"),
+         ("nested", "methods report"), ("stability", "methods report"),
+         ("file", "opening saved files"), ("model", "model files and scoring"))
 
 
 def markdown_table() -> str:

@@ -15,7 +15,7 @@ ROOT = Path(__file__).resolve().parents[1]
 CORE = ROOT / "core"
 # Modules whose own wording is listed in the catalogue (entries with a source).
 WORDED_ELSEWHERE = ("design.py", "derive.py", "resample.py", "grow.py", "pathcv.py", "cli.py",
-                    "model.py", "variables.py")
+                    "model.py", "variables.py", "validate.py", "nested.py", "stability.py")
 
 
 def _shape(node) -> str:
