@@ -42,6 +42,8 @@ _STREET = re.compile(r"^\d+[A-Za-z]?,?\s+.*\b(street|st|road|rd|avenue|ave|lane|
                      r"close|way|place|pl|court|ct|crescent|terrace|boulevard|blvd|square|"
                      r"grove|gardens|hill|row|parade|highway|hwy)\b\.?", re.IGNORECASE)
 _POSTCODE = re.compile(r"^[A-Z]{1,2}\d[A-Z\d]?\s*\d[A-Z]{2}$")  # UK style
+_PHONE_PUNCTUATION = re.compile(r".*[\s\-()+/.]")
+_DATE_LIKE = re.compile(r".*\d{1,4}[-/.]\d{1,2}[-/.]\d{1,4}")
 
 
 @dataclass(frozen=True)
@@ -73,8 +75,8 @@ def identity_by_header(name: str) -> IdentityHint | None:
     return None
 
 
-def _share(texts: pd.Series, rule: re.Pattern) -> float:
-    return float(texts.str.match(rule).fillna(False).mean()) if len(texts) else 0.0
+def _share(texts: list[str], rule: re.Pattern) -> float:
+    return sum(1 for t in texts if rule.match(t)) / len(texts) if texts else 0.0
 
 
 def identity_by_contents(values: pd.Series) -> IdentityHint | None:
@@ -86,39 +88,39 @@ def identity_by_contents(values: pd.Series) -> IdentityHint | None:
         return _birth_dates(present)
     if pd.api.types.is_numeric_dtype(present.dtype) or pd.api.types.is_bool_dtype(present.dtype):
         return None
-    sample = present.iloc[:: max(1, len(present) // _SAMPLE)].iloc[:_SAMPLE]
-    distinct_cells = pd.unique(sample.to_numpy(dtype=object))
+    sample = present.to_numpy(dtype=object)[:: max(1, len(present) // _SAMPLE)][:_SAMPLE]
+    distinct_cells = pd.unique(sample)
     distinct = len(distinct_cells) / len(sample)
     # Patterns are judged on distinct texts: a few hundred at most, however long the column.
-    texts = pd.Series([v.strip() for v in distinct_cells[:500] if isinstance(v, str)],
-                      dtype=object)
-    texts = texts[texts != ""]
+    texts = [v.strip() for v in distinct_cells[:500] if isinstance(v, str) and v.strip()]
     if len(texts) < 5:
         return None
     if _share(texts, _EMAIL) >= 0.5:
         return IdentityHint("e-mail addresses", "contents")
     if distinct >= 0.5 and _share(texts, _PHONE) >= 0.8 and \
-            texts.str.count(r"\d").median() >= 7 and \
-            (texts.str.contains(r"[\s\-()+/.]").mean() >= 0.5 or texts.str.startswith("0").mean() >= 0.5):
+            float(np.median([sum(ch.isdigit() for ch in t) for t in texts])) >= 7 and \
+            (_share(texts, _PHONE_PUNCTUATION) >= 0.5 or
+             sum(t.startswith("0") for t in texts) >= 0.5 * len(texts)):
         return IdentityHint("phone numbers", "contents")
-    if _share(texts, _STREET) >= 0.5 or _share(texts.str.upper(), _POSTCODE) >= 0.8:
+    if _share(texts, _STREET) >= 0.5 or _share([t.upper() for t in texts], _POSTCODE) >= 0.8:
         return IdentityHint("addresses", "contents")
     if distinct >= 0.5 and len(texts) >= 10 and _person_names(texts) >= 0.8:
         return IdentityHint("names", "contents")
-    dates = pd.to_datetime(texts, errors="coerce", format="mixed", dayfirst=True) \
-        if texts.str.contains(r"\d{1,4}[-/.]\d{1,2}[-/.]\d{1,4}").mean() >= 0.9 else None
-    if dates is not None and dates.notna().mean() >= 0.9:
-        return _birth_dates(dates.dropna())
+    if _share(texts, _DATE_LIKE) >= 0.9:
+        dates = pd.to_datetime(pd.Series(texts, dtype=object), errors="coerce", format="mixed",
+                               dayfirst=True)
+        if dates.notna().mean() >= 0.9:
+            return _birth_dates(dates.dropna())
     return None
 
 
-def _person_names(texts: pd.Series) -> float:
+def _person_names(texts: list[str]) -> float:
     """Share of cells written like a person's name: 2–4 capitalised words, e.g. 'Ada Lovelace'."""
     def looks(text: str) -> bool:
         tokens = text.replace(",", ", ").split()
         return 2 <= len(tokens) <= 4 and all(_NAME_TOKEN.match(t) for t in tokens) and \
             sum(len(t.strip(".,")) >= 2 for t in tokens) >= 2
-    return float(texts.map(looks).mean())
+    return sum(map(looks, texts)) / len(texts)
 
 
 def _birth_dates(dates: pd.Series) -> IdentityHint | None:

@@ -19,7 +19,7 @@ import pandas as pd
 from .identity import identity_hint, looks_like_record_numbers
 from .messages import say
 from .values import (
-    is_missing_text, level_text, parse_dates, parse_numbers, rows_phrase, yes_no_levels,
+    counted, is_missing_text, level_text, parse_dates, parse_numbers, rows_phrase, yes_no_levels,
 )
 from .variables import (
     MAX_NOMINAL_LEVELS, ColumnSpec, DataDictionary, _canonical_levels,
@@ -96,8 +96,7 @@ def _infer(name: str, values: pd.Series, rows) -> tuple[ColumnSpec, list[str]]:
 
     text = level_text(present)
     folded = text.str.casefold()
-    counts = folded.value_counts()
-    levels_seen = [str(v) for v in counts.index]
+    levels_seen = [str(v) for v in counted(folded)[0]]
     n_unique = len(levels_seen)
     if n_unique == 1:
         notes.append(say("infer.constant", column=name))
@@ -134,7 +133,7 @@ def _infer(name: str, values: pd.Series, rows) -> tuple[ColumnSpec, list[str]]:
             word_rows = rows_phrase(numbers.unreadable_rows)
         notes.append(say("infer.mixed_categories", column=name, rows=word_rows or ""))
     role = "site" if _SITE_HINT.search(name) and len(levels) >= 2 else "predictor"
-    if len(levels) < text.nunique():
+    if len(levels) < len(counted(text)[0]):
         notes.append(say("infer.capitals", column=name))
     return ColumnSpec(kind="nominal", levels=tuple(levels), role=role, **base), notes
 

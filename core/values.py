@@ -55,6 +55,16 @@ class ParsedNumbers:
     unreadable_rows: tuple[int, ...] = ()  # spreadsheet rows of unreadable cells (≤ 20)
 
 
+def counted(values: pd.Series) -> tuple[list, np.ndarray]:
+    """Distinct non-missing values, commonest first (ties in order of first appearance), and
+    their counts; hashing once, without value_counts' overhead on small columns."""
+    codes, uniques = pd.factorize(values, use_na_sentinel=True)
+    codes = np.asarray(codes)
+    counts = np.bincount(codes[codes >= 0], minlength=len(uniques))
+    order = np.argsort(-counts, kind="stable")
+    return [uniques[i] for i in order], counts[order]
+
+
 def rows_phrase(rows: Sequence[int] | np.ndarray | None, limit: int = 5) -> str:
     """' (row 4)', ' (rows 4, 9 and 22)' or ' (rows 4, 9, 22, 31, 40 and 12 more)'; '' if none."""
     if rows is None:
@@ -87,9 +97,9 @@ def _is_numeric(values: pd.Series) -> bool:
         not pd.api.types.is_bool_dtype(values.dtype)
 
 
-def _factorize(values: pd.Series) -> tuple[np.ndarray, pd.Index]:
+def _factorize(values: pd.Series) -> tuple[np.ndarray, np.ndarray]:
     codes, uniques = pd.factorize(values, use_na_sentinel=True)
-    return np.asarray(codes), pd.Index(uniques, dtype=object)
+    return np.asarray(codes), np.asarray(uniques, dtype=object)
 
 
 def _cell_text(cell):
@@ -104,7 +114,7 @@ def _cell_text(cell):
     return str(cell)
 
 
-def _unique_texts(uniques: pd.Index) -> np.ndarray:
+def _unique_texts(uniques: np.ndarray) -> np.ndarray:
     """Trimmed text of each distinct cell (object array of str)."""
     return np.array([_cell_text(u).strip() for u in uniques], dtype=object)
 

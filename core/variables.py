@@ -20,7 +20,9 @@ import pandas as pd
 
 from .errors import InputError
 from .messages import say
-from .values import YES_WORDS, is_missing_text, level_text, parse_levels, parse_numbers
+from .values import (
+    YES_WORDS, counted, is_missing_text, level_text, parse_levels, parse_numbers,
+)
 
 ROLES = ("outcome", "predictor", "patient_id", "site", "ignore")
 KINDS = ("numeric", "binary", "ordinal", "nominal", "identifier", "date", "text")
@@ -201,9 +203,8 @@ class DataDictionary:
 
 def _canonical_levels(text: pd.Series) -> list[str]:
     """Distinct levels, merging case variants under their most frequent spelling."""
-    counts = text.value_counts()
     chosen: dict[str, str] = {}
-    for spelling in counts.index:  # most frequent first
+    for spelling in counted(text)[0]:  # most frequent first
         chosen.setdefault(str(spelling).casefold(), str(spelling))
     return sorted(chosen.values(), key=_natural_key)
 
