@@ -19,11 +19,9 @@ import pandas as pd
 from .identity import identity_hint, looks_like_record_numbers
 from .messages import say
 from .values import (
-    counted, is_missing_text, level_text, parse_dates, parse_numbers, rows_phrase, yes_no_levels,
+    missing_texts, parse_dates, parse_numbers, profile_cells, rows_phrase, yes_no_levels,
 )
-from .variables import (
-    MAX_NOMINAL_LEVELS, ColumnSpec, DataDictionary, _canonical_levels,
-)
+from .variables import MAX_NOMINAL_LEVELS, ColumnSpec, DataDictionary, _natural_key
 
 _ORDINAL_HINT = re.compile(r"(level|grade|score|stage|class|category|triage|scale|rank)", re.I)
 _SITE_HINT = re.compile(r"(site|campus|hospital|centre|center|clinic|facility)", re.I)
@@ -69,16 +67,24 @@ def _infer(name: str, values: pd.Series, rows) -> tuple[ColumnSpec, list[str]]:
     notes: list[str] = []
     label, unit = _label_and_unit(name)
     base = dict(name=name, label=label, unit=unit)
-    missing = is_missing_text(values)
-    n_present = int((~missing).sum())
+    if pd.api.types.is_datetime64_any_dtype(values.dtype):
+        if values.notna().any():
+            return ColumnSpec(kind="date", role="ignore", note="date", **base), notes
+        notes.append(say("infer.all_missing", column=name))
+        return ColumnSpec(kind="numeric", role="ignore", note="no recorded values", **base), notes
+    numeric_dtype = pd.api.types.is_numeric_dtype(values.dtype) and \
+        not pd.api.types.is_bool_dtype(values.dtype)
+    profile = None if numeric_dtype else profile_cells(values)
+    numbers = parse_numbers(values, label=name, rows=rows, profile=profile)
+    if numeric_dtype:
+        n_present = int(np.isfinite(values.to_numpy(dtype="float64", na_value=np.nan)).sum() +
+                        np.isinf(values.to_numpy(dtype="float64", na_value=np.nan)).sum())
+    else:
+        missing_u = missing_texts(profile.texts)
+        n_present = int(profile.counts[~missing_u].sum())
     if n_present == 0:
         notes.append(say("infer.all_missing", column=name))
         return ColumnSpec(kind="numeric", role="ignore", note="no recorded values", **base), notes
-    if pd.api.types.is_datetime64_any_dtype(values.dtype):
-        return ColumnSpec(kind="date", role="ignore", note="date", **base), notes
-    present = values[~missing]
-    present_rows = None if rows is None else rows[~missing]
-    numbers = parse_numbers(values, label=name, rows=rows)
     readable_share = 1.0 - numbers.n_unreadable / n_present
     finite = numbers.values[np.isfinite(numbers.values)]
     few_words = 0 < numbers.n_unreadable_texts <= _FEW_WORDS and pd.unique(finite).size > 10
@@ -94,48 +100,61 @@ def _infer(name: str, values: pd.Series, rows) -> tuple[ColumnSpec, list[str]]:
         notes.extend(kept)
         return ColumnSpec(kind="numeric", missing_codes=words, **base), notes
 
-    text = level_text(present)
-    folded = text.str.casefold()
-    levels_seen = [str(v) for v in counted(folded)[0]]
-    n_unique = len(levels_seen)
-    if n_unique == 1:
+    # Texts: counted per distinct trimmed text, and per spelling regardless of capitals.
+    by_text: dict[str, int] = {}
+    for text, count, gone in zip(profile.texts, profile.counts, missing_u):
+        if not gone and count:
+            by_text[text] = by_text.get(text, 0) + int(count)
+    by_folded: dict[str, int] = {}
+    for text, count in by_text.items():
+        key = text.casefold()
+        by_folded[key] = by_folded.get(key, 0) + count
+    levels_seen = sorted(by_folded, key=lambda k: -by_folded[k])
+    n_unique = len(by_text)
+    distinct = pd.Series(list(by_text), dtype=object)
+    if len(levels_seen) == 1:
         notes.append(say("infer.constant", column=name))
         return ColumnSpec(kind="nominal", role="ignore", note="constant",
-                          levels=tuple(_canonical_levels(text)), **base), notes
-    if len(levels_seen) == 2 or yes_no_levels(levels_seen):
+                          levels=tuple(_levels(by_text)), **base), notes
+    if len(levels_seen) == 2 or (len(levels_seen) <= 20 and yes_no_levels(levels_seen)):
         if yes_no_levels(levels_seen):
-            spellings = pd.unique(text)
-            if len(spellings) > 2:
+            if len(by_text) > 2:
                 notes.append(say("infer.yes_no_spellings", column=name,
-                                 spellings=", ".join(repr(s) for s in spellings[:6])))
+                                 spellings=", ".join(repr(s) for s in list(by_text)[:6])))
             return ColumnSpec(kind="binary", levels=("no", "yes"), positive=None, **base), notes
         role = "site" if _SITE_HINT.search(name) else "predictor"
-        return ColumnSpec(kind="binary", levels=tuple(_canonical_levels(text)), role=role,
+        return ColumnSpec(kind="binary", levels=tuple(_levels(by_text)), role=role,
                           **base), notes
     if n_unique >= 0.95 * n_present and n_present >= 20:
-        if _mostly_dates(text):
-            return _date(name, base, text, notes)
+        if _mostly_dates(distinct):
+            return _date(name, base, distinct, notes)
         notes.append(say("infer.identifier", column=name))
         return ColumnSpec(kind="identifier", role="ignore", **base), notes
-    if _mostly_dates(text):
-        return _date(name, base, text, notes)
+    if _mostly_dates(distinct):
+        return _date(name, base, distinct, notes)
     if _PATIENT_HINT.search(name) and n_unique < n_present:
         notes.append(say("infer.patient_id", column=name))
         return ColumnSpec(kind="identifier", role="patient_id", **base), notes
-    levels = _canonical_levels(text)
-    if len(levels) > MAX_NOMINAL_LEVELS:
-        notes.append(say("infer.too_many_levels", column=name, n=len(levels),
+    if len(by_folded) > MAX_NOMINAL_LEVELS:
+        notes.append(say("infer.too_many_levels", column=name, n=len(by_folded),
                          limit=MAX_NOMINAL_LEVELS))
         return ColumnSpec(kind="text", role="ignore", **base), notes
+    levels = _levels(by_text)
     if 0.5 < readable_share < 0.95 and numbers.n_unreadable < n_present:
-        word_rows = None
-        if present_rows is not None:
-            word_rows = rows_phrase(numbers.unreadable_rows)
-        notes.append(say("infer.mixed_categories", column=name, rows=word_rows or ""))
+        word_rows = rows_phrase(numbers.unreadable_rows) if rows is not None else ""
+        notes.append(say("infer.mixed_categories", column=name, rows=word_rows))
     role = "site" if _SITE_HINT.search(name) and len(levels) >= 2 else "predictor"
-    if len(levels) < len(counted(text)[0]):
+    if len(levels) < len(by_text):
         notes.append(say("infer.capitals", column=name))
     return ColumnSpec(kind="nominal", levels=tuple(levels), role=role, **base), notes
+
+
+def _levels(by_text: dict[str, int]) -> list[str]:
+    """Levels from counted texts: case variants merged under their commonest spelling."""
+    chosen: dict[str, str] = {}
+    for spelling in sorted(by_text, key=lambda t: -by_text[t]):  # commonest first
+        chosen.setdefault(spelling.casefold(), spelling)
+    return sorted(chosen.values(), key=_natural_key)
 
 
 _DATE_STYLES = (("year first", r"^\d{4}[-/.]\d{1,2}[-/.]\d{1,2}"),

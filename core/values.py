@@ -41,6 +41,8 @@ _CENSORED = re.compile(r"^([<>]=?|≤|≥)\s*([+-]?(\d+\.?\d*|\.\d+))$")
 _THOUSANDS = re.compile(r"^[+-]?\d{1,3}(,\d{3})+(\.\d+)?$")
 _DECIMAL_COMMA = re.compile(r"^[+-]?\d+,\d+$")
 _PERCENT = re.compile(r"^([+-]?(\d+\.?\d*|\.\d+))\s*%$")
+# Everything _text_number can read starts like this; one test spares the others.
+_MAYBE_NUMBER = re.compile(r"^([<>]=?|≤|≥)?\s*[+-]?[\d.,]|^[+-]?inf", re.IGNORECASE)
 
 
 @dataclass(frozen=True)
@@ -55,6 +57,24 @@ class ParsedNumbers:
     unreadable_rows: tuple[int, ...] = ()  # spreadsheet rows of unreadable cells (≤ 20)
 
 
+@dataclass(frozen=True)
+class CellProfile:
+    """A text column's distinct cells, hashed once, so every later question about the column
+    (missing? a number? which levels?) is asked once per distinct cell."""
+
+    index: np.ndarray  # per cell: position among the distinct cells, -1 for an empty cell
+    raw: np.ndarray  # the distinct cells as read (object)
+    texts: np.ndarray  # their trimmed text (object array of str)
+    counts: np.ndarray  # how many cells hold each
+
+
+def profile_cells(values: pd.Series) -> CellProfile:
+    """The distinct cells of a column and how often each occurs (one hashing pass)."""
+    index, uniques = _factorize(values)
+    counts = np.bincount(index[index >= 0], minlength=len(uniques))
+    return CellProfile(index, uniques, _unique_texts(uniques), counts)
+
+
 def counted(values: pd.Series) -> tuple[list, np.ndarray]:
     """Distinct non-missing values, commonest first (ties in order of first appearance), and
     their counts; hashing once, without value_counts' overhead on small columns."""
@@ -62,7 +82,7 @@ def counted(values: pd.Series) -> tuple[list, np.ndarray]:
     codes = np.asarray(codes)
     counts = np.bincount(codes[codes >= 0], minlength=len(uniques))
     order = np.argsort(-counts, kind="stable")
-    return [uniques[i] for i in order], counts[order]
+    return np.asarray(uniques, dtype=object)[order].tolist(), counts[order]
 
 
 def rows_phrase(rows: Sequence[int] | np.ndarray | None, limit: int = 5) -> str:
@@ -116,7 +136,10 @@ def _cell_text(cell):
 
 def _unique_texts(uniques: np.ndarray) -> np.ndarray:
     """Trimmed text of each distinct cell (object array of str)."""
-    return np.array([_cell_text(u).strip() for u in uniques], dtype=object)
+    try:  # the common case, a text column: every distinct cell is already a str
+        return np.array([u.strip() for u in uniques], dtype=object)
+    except AttributeError:
+        return np.array([_cell_text(u).strip() for u in uniques], dtype=object)
 
 
 def _numeric_codes(codes: tuple[str, ...]) -> list[float]:
@@ -127,6 +150,12 @@ def _numeric_codes(codes: tuple[str, ...]) -> list[float]:
         except ValueError:
             continue
     return found
+
+
+def missing_texts(texts: np.ndarray, extra_codes: tuple[str, ...] = ()) -> np.ndarray:
+    """For trimmed texts, True where the text is a missing-value code."""
+    codes = _DEFAULT_MISSING | {c.strip().casefold() for c in extra_codes}
+    return np.array([t.casefold() in codes for t in texts], dtype=bool)
 
 
 def is_missing_text(values: pd.Series, extra_codes: tuple[str, ...] = ()) -> np.ndarray:
@@ -155,30 +184,34 @@ def level_text(values: pd.Series) -> pd.Series:
 
 
 def parse_numbers(values: pd.Series, extra_codes: tuple[str, ...] = (), label: str = "",
-                  rows: Sequence[int] | np.ndarray | None = None) -> ParsedNumbers:
+                  rows: Sequence[int] | np.ndarray | None = None,
+                  profile: CellProfile | None = None) -> ParsedNumbers:
     """Numbers from a column, with missing codes, censored lab values and thousands commas.
 
-    ``rows`` (optional) are the spreadsheet row numbers of the cells, for the notes.
+    ``rows`` (optional) are the spreadsheet row numbers of the cells, for the notes;
+    ``profile`` (optional) is the column's :func:`profile_cells`, if the caller has it.
     """
     label = label or "this column"
     rows = None if rows is None else np.asarray(rows)
     if rows is not None and len(rows) != len(values):
         rows = None
-    missing = is_missing_text(values, extra_codes)
     notes: list[str] = []
     if _is_numeric(values):
+        missing = is_missing_text(values, extra_codes)
         out = values.to_numpy(dtype="float64", na_value=np.nan).copy()
         out[missing] = np.nan
         return _finish(out, missing, np.zeros(len(out), bool), None, notes, label, rows)
-    index, uniques = _factorize(values)
-    texts = _unique_texts(uniques)
+    profile = profile or profile_cells(values)
+    index, texts = profile.index, profile.texts
+    all_codes = _DEFAULT_MISSING | {c.strip().casefold() for c in extra_codes}
+    code_missing = np.array([t.casefold() in all_codes for t in texts], dtype=bool)
+    missing = (index < 0) | np.append(code_missing, True)[index]
     parsed = pd.to_numeric(pd.Series(texts, dtype=object), errors="coerce").to_numpy(
         dtype="float64", na_value=np.nan).copy() if len(texts) else np.zeros(0)
     kind = np.zeros(len(texts), dtype=np.int8)  # 0 plain, 1 thousands, 2 comma, 3 limit, 4 %
     for i in np.flatnonzero(np.isnan(parsed)):  # only the texts pandas could not read
-        parsed[i], kind[i] = _text_number(texts[i])
-    all_codes = _DEFAULT_MISSING | {c.strip().casefold() for c in extra_codes}
-    code_missing = np.array([t.casefold() in all_codes for t in texts], dtype=bool)
+        if _MAYBE_NUMBER.match(texts[i]):
+            parsed[i], kind[i] = _text_number(texts[i])
     parsed[code_missing] = np.nan
     lookup = np.append(parsed, np.nan)
     out = lookup[index]
