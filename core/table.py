@@ -4,17 +4,14 @@ The source file is only ever opened for reading. Cells keep their raw form here 
 pandas recognises become numbers, everything else stays text); turning text into values is
 the data dictionary's job (core/variables.py), so one parser serves every file type.
 
-Text files are read by pandas' C parser in one pass; the layout (delimiter, decimal mark,
-where the header is) is worked out from the first 256 KB with the standard ``csv`` module.
-Every kept row remembers its row number in the spreadsheet, so messages can say where.
+Text files are read by core/text_table.py, workbooks by core/xlsx.py; both share the rules
+here for where the header is and for tidying headers and empty rows. Every kept row remembers
+its row number in the spreadsheet, so messages can say where.
 """
 
 from __future__ import annotations
 
-import codecs
-import csv
 import hashlib
-import io
 import re
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -29,8 +26,6 @@ from .values import rows_phrase
 TEXT_SUFFIXES = {".csv", ".tsv", ".txt", ".tab"}
 EXCEL_SUFFIXES = {".xlsx", ".xlsm"}
 _SNIFF_BYTES = 256 * 1024
-_DELIMITERS = (",", ";", "\t", "|")
-_DELIMITER_NAMES = {",": "commas", ";": "semicolons", "\t": "tabs", "|": "bars (|)"}
 _OLE = b"\xd0\xcf\x11\xe0\xa1\xb1\x1a\xe1"
 _OTHER_FILES = ((b"%PDF", "a PDF document"), (b"\x89PNG", "a PNG image"),
                 (b"\xff\xd8\xff", "a JPEG image"), (b"GIF8", "a GIF image"),
@@ -142,7 +137,9 @@ def read_table(path: str | Path, sheet: str | None = None) -> LoadedTable:
         return LoadedTable(frame, provenance)
     if sheet is not None:
         raise InputError(say("read.text_has_no_sheets", file=path.name))
-    frame, rows, layout, warnings = _read_text(path, head)
+    from .text_table import read_text
+
+    frame, rows, layout, warnings = read_text(path, head)
     provenance = Provenance(
         path=str(path), sheet=None, sha256=sha, n_rows=len(frame), n_columns=frame.shape[1],
         encoding=layout["encoding"], delimiter=layout["delimiter"], decimal=layout["decimal"],
@@ -224,91 +221,21 @@ def _is_utf8(chunk: bytes) -> bool:
         return exc.start >= len(chunk) - 3  # a character cut at the sample's end is fine
 
 
-# --- text files -----------------------------------------------------------------------------
-
-
-def _detect_encoding(head: bytes, path: Path) -> tuple[str, list[str]]:
-    if head.startswith(b"\xef\xbb\xbf"):
-        return "utf-8-sig", []
-    if head.startswith((b"\xff\xfe", b"\xfe\xff")):
-        return "utf-16", [say("read.utf16", file=path.name)]
-    bad = _first_bad_byte(path, "utf-8")
-    if bad is None:
-        return "utf-8", []
-    line = _line_of_offset(path, bad)
-    if _first_bad_byte(path, "cp1252") is None:
-        return "cp1252", [say("read.cp1252", file=path.name, line=line)]
-    return "latin-1", [say("read.latin1", file=path.name, line=line)]
-
-
-def _first_bad_byte(path: Path, encoding: str) -> int | None:
-    """Offset of the first byte that does not decode, or None if the whole file decodes."""
-    decoder = codecs.getincrementaldecoder(encoding)()
-    offset = 0
-    with open(path, "rb") as handle:
-        for block in iter(lambda: handle.read(1 << 22), b""):
-            try:
-                decoder.decode(block)
-            except UnicodeDecodeError as exc:
-                return offset + max(exc.start, 0)
-            offset += len(block)
-    try:
-        decoder.decode(b"", final=True)
-    except UnicodeDecodeError:
-        return offset
-    return None
-
-
-def _line_of_offset(path: Path, offset: int) -> int:
-    with open(path, "rb") as handle:
-        return handle.read(offset).count(b"\n") + 1
-
-
-def _layout(sample: str, truncated: bool, path: Path) -> dict:
-    """Delimiter, header position and decimal mark of a text table, from its first records."""
-    best = None
-    for delimiter in _DELIMITERS:
-        try:
-            records = list(csv.reader(io.StringIO(sample, newline=""), delimiter=delimiter))
-        except csv.Error:
-            continue
-        if truncated and len(records) > 1:
-            records = records[:-1]  # the sample may end inside the last record
-        filled = [r for r in records if any(c.strip() for c in r)]
-        if not filled:
-            raise InputError(say("read.zero_bytes", file=path.name))
-        widths = pd.Series([len(r) for r in filled[:200]])
-        width = int(widths.mode().max())
-        share = float((widths == width).mean())
-        score = (share if width > 1 else 0.0, width)
-        if best is None or score > best[0]:
-            best = (score, delimiter, records, width)
-    if best is None:
-        raise InputError(say("read.unparseable", file=path.name, detail="no delimiter fits"))
-    _, delimiter, records, width = best
-    header_index = _header_index(records, width, path)
-    header = records[header_index]
-    data = [r for r in records[header_index + 1:] if any(c.strip() for c in r)][:200]
-    decimal = "."
-    if delimiter != ",":
-        cells = [c.strip() for r in data for c in r]
-        commas = sum(1 for c in cells if re.fullmatch(r"[+-]?\d+,\d+", c))
-        points = sum(1 for c in cells if re.fullmatch(r"[+-]?\d+\.\d+", c))
-        if commas and commas >= points:
-            decimal = ","
-    return {"delimiter": delimiter, "header_index": header_index, "header": header,
-            "decimal": decimal, "header_row": header_index + 1,
-            "titles": [r for r in records[:header_index] if any(c.strip() for c in r)]}
+# --- where the header is -------------------------------------------------------------------
 
 
 def _header_index(records: list[list], width: int, path: Path, where: str = "") -> int:
     """The first record that looks like column names: filled enough, and mostly words."""
     where = where or path.name
     need = max(1, int(np.ceil(0.5 * width)))
-    for index, record in enumerate(records[:30]):
-        cells = [str(c).strip() for c in record if c is not None and str(c).strip()]
+    filled = [[str(c).strip() for c in r if c is not None and str(c).strip()]
+              for r in records[:31]]
+    for index, cells in enumerate(filled[:30]):
         if len(cells) < need:
             continue
+        later = next((f for f in filled[index + 1:] if f), [])
+        if width > 1 and len(cells) == 1 and len(later) >= 2:
+            continue  # a title above a wider table
         words = [c for c in cells if not _NUMBERISH.match(c)]
         if not words:
             raise InputError(say("read.no_header", where=where, row=index + 1,
@@ -319,69 +246,6 @@ def _header_index(records: list[list], width: int, path: Path, where: str = "") 
         if any(str(c).strip() for c in record if c is not None):
             return index
     raise InputError(say("read.zero_bytes", file=path.name))
-
-
-def _read_text(path: Path, head: bytes):
-    if head.strip(b" \t\r\n\x00\xef\xbb\xbf") == b"":
-        raise InputError(say("read.blank", file=path.name))
-    if not head.startswith((b"\xff\xfe", b"\xfe\xff")) and (b"\x00" in head[:8192]):
-        raise InputError(say("read.binary", file=path.name))
-    if _binary_share(head) > 0.01:
-        raise InputError(say("read.binary", file=path.name))
-    lowered = head[:512].lstrip().lower()
-    if lowered.startswith((b"<!doctype html", b"<html", b"<table", b"<?xml")):
-        raise InputError(say("read.html", file=path.name))
-    encoding, warnings = _detect_encoding(head, path)
-    sample = head.decode("utf-16" if encoding == "utf-16" else encoding, errors="ignore")
-    sample = sample.lstrip("\ufeff")
-    truncated = path.stat().st_size > len(head)
-    layout = _layout(sample, truncated, path)
-    layout["encoding"] = encoding
-    if path.suffix.lower() == ".xls":
-        warnings.append(say("read.xls_text", file=path.name))
-    if layout["titles"]:
-        warnings.append(say("read.title_rows", where=path.name,
-                            lines=_span(1, layout["header_index"]),
-                            title=" ".join(c.strip() for c in layout["titles"][0] if c.strip())[:60],
-                            header_row=layout["header_row"]))
-    delimiter, decimal = layout["delimiter"], layout["decimal"]
-    if delimiter != "," or decimal != ".":
-        warnings.append(say("read.layout", file=path.name,
-                            delimiter=_DELIMITER_NAMES[delimiter],
-                            decimal="a comma" if decimal == "," else "a point"))
-    try:
-        frame = pd.read_csv(
-            path, sep=delimiter, decimal=decimal, encoding=encoding, header=layout["header_index"],
-            index_col=False, keep_default_na=False, na_values=[""], skip_blank_lines=False,
-            engine="c", low_memory=False, encoding_errors="replace",
-        )
-    except pd.errors.EmptyDataError:
-        raise InputError(say("read.blank", file=path.name)) from None
-    except pd.errors.ParserError as exc:
-        raise InputError(_parser_message(path, exc, delimiter)) from None
-    except MemoryError:
-        raise InputError(say("read.too_big", file=path.name)) from None
-    except (UnicodeDecodeError, ValueError, OverflowError) as exc:
-        raise InputError(say("read.unparseable", file=path.name, detail=_first_line(exc))) from None
-    header = list(layout["header"])
-    if len(header) != frame.shape[1]:
-        header = ["" if str(c).startswith("Unnamed:") else str(c) for c in frame.columns]
-    rows = np.arange(len(frame)) + layout["header_row"] + 1
-    frame, rows, tidy = _tidy(frame, header, rows, path.name)
-    return frame, rows, layout, warnings + tidy
-
-
-def _parser_message(path: Path, exc: Exception, delimiter: str) -> str:
-    text = str(exc)
-    match = re.search(r"Expected (\d+) fields in line (\d+), saw (\d+)", text)
-    if match:
-        expected, line, saw = match.groups()
-        return say("read.ragged", file=path.name, line=line, saw=saw, expected=expected,
-                   delimiter=_DELIMITER_NAMES[delimiter])
-    match = re.search(r"EOF inside string starting at row (\d+)", text)
-    if match:
-        return say("read.open_quote", file=path.name, line=int(match.group(1)) + 1)
-    return say("read.unparseable", file=path.name, detail=_first_line(exc))
 
 
 # --- common tidying -------------------------------------------------------------------------

@@ -201,6 +201,12 @@ def _ragged(p):
     write_text(p, csv_text(HEADER, rows))
 
 
+@case("rows_wider_than_header", "wide.csv", True, ["line 2 has 6 cells but the header has 5"])
+def _wide(p):
+    rows = [r + ["stray"] for r in base_rows()]  # every row one cell wider than the header
+    write_text(p, csv_text(HEADER, rows))
+
+
 @case("unclosed_quote", "quote.csv", True, ["double quote opened on line 4 is never closed"])
 def _quote(p):
     lines = csv_text(HEADER, base_rows()).splitlines()

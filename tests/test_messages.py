@@ -62,7 +62,7 @@ def test_every_code_used_in_core_is_in_the_catalogue_and_every_entry_is_used():
     kinds = catalogue()
     said, mentioned = set(), set()
     for path in CORE.glob("*.py"):
-        if path.name == "message_catalogue.py":
+        if path.name.startswith("message_catalogue"):
             continue
         tree = ast.parse(path.read_text(encoding="utf-8"))
         for kind, arg in _calls(path):
