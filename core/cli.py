@@ -17,7 +17,7 @@ import pandas as pd
 from . import __version__
 from .design import DesignSpec
 from .errors import Cancelled, InputError
-from .messages import distinct_messages
+from .messages import distinct_messages, explain
 from .model import TreeModel
 from .safe_files import write_csv_safely, write_text_atomic
 from .table import read_table
@@ -209,11 +209,14 @@ def _fit(args) -> int:
     return 0
 
 
-def _print_notes(notes: list[str], already: list[str] | None = None, prefix: str = "note") -> list[str]:
-    """Print each note once on stderr (a finding already shown with its rows is not repeated)."""
+def _print_notes(notes: list[str], already: list[str] | None = None) -> list[str]:
+    """Print each note once on stderr as 'warning:' or 'note:' (core/message_catalogue.py);
+    a finding already shown with its rows is not repeated."""
     already = list(already or [])
     fresh = [n for n in distinct_messages(already + notes) if n not in already]
     for note in fresh:
+        kind = explain(note)
+        prefix = "warning" if kind is not None and kind.severity == "warning" else "note"
         print(f"{prefix}: {note}", file=sys.stderr)
     return already + fresh
 

@@ -77,8 +77,7 @@ def _infer(name: str, values: pd.Series, rows) -> tuple[ColumnSpec, list[str]]:
     profile = None if numeric_dtype else profile_cells(values)
     numbers = parse_numbers(values, label=name, rows=rows, profile=profile)
     if numeric_dtype:
-        n_present = int(np.isfinite(values.to_numpy(dtype="float64", na_value=np.nan)).sum() +
-                        np.isinf(values.to_numpy(dtype="float64", na_value=np.nan)).sum())
+        n_present = int(values.notna().sum())
     else:
         missing_u = missing_texts(profile.texts)
         n_present = int(profile.counts[~missing_u].sum())
