@@ -23,6 +23,7 @@ line show as they are:
 
 from __future__ import annotations
 
+from collections.abc import Iterable
 from dataclasses import dataclass, field, replace
 
 import numpy as np
@@ -113,7 +114,7 @@ def identity_of(frame: pd.DataFrame, dictionary: DataDictionary, name: str) -> I
 
 
 def identity_findings(frame: pd.DataFrame, dictionary: DataDictionary,
-                      columns) -> tuple[GuardFinding, ...]:
+                      columns: Iterable[str]) -> tuple[GuardFinding, ...]:
     """A finding for every column among ``columns`` that identifies patients."""
     found = []
     for name in columns:
@@ -128,7 +129,8 @@ def identity_findings(frame: pd.DataFrame, dictionary: DataDictionary,
     return tuple(found)
 
 
-def leave_out_identity(design: DesignSpec, findings, keep=()) -> tuple[DesignSpec, tuple[str, ...]]:
+def leave_out_identity(design: DesignSpec, findings: Iterable[GuardFinding],
+                       keep: Iterable[str] = ()) -> tuple[DesignSpec, tuple[str, ...]]:
     """The design without the identity columns the user did not name in ``keep``."""
     drop = {f.column for f in findings if f.leave_out} - set(keep)
     left_out = tuple(p for p in design.predictors if p in drop)
@@ -261,7 +263,7 @@ def outcome_findings(data: AnalysisData) -> tuple[GuardFinding, ...]:
 
 
 def guard_design(frame: pd.DataFrame, dictionary: DataDictionary, design: DesignSpec,
-                 keep=(), grouped: bool = True, seed: int = 0, min_leaf: int = 5,
+                 keep: Iterable[str] = (), grouped: bool = True, seed: int = 0, min_leaf: int = 5,
                  leakage: bool = True) -> GuardReport:
     """Run every guard on a design. Identity columns not named in ``keep`` are left out.
 

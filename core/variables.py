@@ -12,6 +12,7 @@ from __future__ import annotations
 import csv
 import io
 import json
+from collections.abc import Sequence
 from dataclasses import asdict, dataclass, field, replace
 from pathlib import Path
 
@@ -216,14 +217,16 @@ def _natural_key(level: str):
         return (1, 0.0, level.casefold())
 
 
-def infer_column(name: str, values: pd.Series, rows=None) -> tuple[ColumnSpec, list[str]]:
+def infer_column(name: str, values: pd.Series,
+                 rows: Sequence[int] | np.ndarray | None = None) -> tuple[ColumnSpec, list[str]]:
     """A sensible dictionary entry for one column, and notes (see core/inference.py)."""
     from .inference import infer_column as infer
 
     return infer(name, values, rows)
 
 
-def infer_dictionary(frame: pd.DataFrame, row_numbers=None) -> tuple[DataDictionary, list[str]]:
+def infer_dictionary(frame: pd.DataFrame, row_numbers: Sequence[int] | np.ndarray | None = None,
+                     ) -> tuple[DataDictionary, list[str]]:
     """Infer a dictionary entry for every column; returns the dictionary and notes.
 
     ``row_numbers`` (e.g. ``LoadedTable.row_numbers``) lets the notes say which rows.
@@ -268,8 +271,9 @@ class TypedColumn:
 
 def typed_column(values: pd.Series, spec: ColumnSpec) -> TypedColumn:
     """Parse one column according to its dictionary entry."""
+    # Notes name the column by its header, as the user finds it in the spreadsheet.
     if spec.kind == "numeric":
-        parsed = parse_numbers(values, spec.missing_codes, spec.display)
+        parsed = parse_numbers(values, spec.missing_codes, spec.name)
         return TypedColumn(spec, numbers=parsed.values, notes=parsed.notes)
     if spec.kind in CATEGORY_KINDS:
         levels = spec.levels
@@ -277,7 +281,7 @@ def typed_column(values: pd.Series, spec: ColumnSpec) -> TypedColumn:
             present = level_text(values[~is_missing_text(values, spec.missing_codes)])
             levels = tuple(_canonical_levels(present))
             spec = replace(spec, levels=levels)
-        cat, notes = parse_levels(values, levels, spec.missing_codes, spec.display)
+        cat, notes = parse_levels(values, levels, spec.missing_codes, spec.name)
         return TypedColumn(spec, codes=np.asarray(cat.codes, dtype=np.int32), notes=notes)
     raise InputError(f"Column {spec.display!r} is of kind {spec.kind!r}, which cannot be used "
                      "in a tree; set its kind to numeric, binary, ordinal or nominal.")
