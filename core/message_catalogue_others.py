@@ -139,6 +139,32 @@ ELSEWHERE = [
      "tree in the model file; the report describes the re-derived tree.",
      "Check that the data and the Prunella version are those the model was fitted with.",
      "core/cli.py"),
+    ("cli.chart_date", "refused", "--date must be a date written YYYY-MM-DD, not {given!r}.",
+     "For example --date 2025-03-01.", "core/cli.py"),
+    ("cli.chart_bands", "refused", "--bands must be one or two numbers separated by a comma, "
+     "e.g. 10,30.", "For example --bands 10,30.", "core/cli.py"),
+    ("cli.chart_not_printed", "refused", "The model was saved to {model}, but no chart was "
+     "printed. {reason}", "Choose the size the message names, or larger paper, and print the "
+     "chart with 'prunella chart'.", "core/cli.py"),
+    ("chart.paper", "refused", "Paper {paper!r} is not one Prunella prints on; choose a4, "
+     "letter, a3 or tabloid.", "Use one of the four papers.", "core/chart/options.py"),
+    ("chart.orientation", "refused", "Orientation {given!r} is not one of {choices}.",
+     "Use auto, portrait or landscape.", "core/chart/options.py"),
+    ("chart.direction", "refused", "Direction {given!r} is not one of {choices}.",
+     "Use one of the listed directions.", "core/chart/options.py"),
+    ("chart.min_text", "refused", "The minimum text size must lie between 6 and 40 points, not "
+     "{given}; {default} pt is the default on {paper}.", "Give a size in points, e.g. 9.",
+     "core/chart/options.py"),
+    ("chart.small_cell", "refused", "The small-group threshold must be 0 or more patients.",
+     "Give 0 (never flag) or a number of patients, e.g. 10.", "core/chart/options.py"),
+    ("chart.band_ratio", "refused", "The band ratio must be above 1 (e.g. 1.25: HIGHER at 1.25 "
+     "times the cohort's rate or more).", "Give a ratio above 1.", "core/chart/options.py"),
+    ("chart.band_cuts", "refused", "Give one or two increasing band cut-points, e.g. 10,30 "
+     "(percent for rates, outcome units for means).", "For example --bands 10,30.",
+     "core/chart/options.py"),
+    ("chart.too_large", "refused", "The tree has {leaves} outcome boxes and does not fit on one "
+     "{paper} page ({where}) with text of at least {size} pt. {advice}",
+     "Choose the smaller size the message names, or larger paper.", "core/chart/fitting.py"),
     ("validate.no_heldout", "refused", "No patients were set aside before growing; set a "
      "held-out share (for example 0.25) and run the derivation again.",
      "Set a held-out share, or check the tree on another file.", "core/validate.py"),

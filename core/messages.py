@@ -116,7 +116,8 @@ STEPS = (("read", "reading the file"), ("xlsx", "reading a workbook"),
          ("design", "choosing outcome and predictors"), ("cli", "command line"),
          ("guard", "guards before growing"), ("grow", "growing settings"),
          ("resample", "cross-validation settings"), ("pathcv", "choosing the size"),
-         ("derive", "held-out check"), ("validate", "checking a tree"),
+         ("derive", "held-out check"), ("chart", "printing the chart"),
+         ("validate", "checking a tree"),
          ("nested", "methods report"), ("stability", "methods report"),
          ("file", "opening saved files"), ("model", "model files and scoring"))
 

@@ -16,7 +16,7 @@ from . import __version__
 from .cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER, UNCHECKED_DETAIL
 from .intervals import mean_interval, wilson_interval
 from .report_figures import pruning_curve_figure, stability_figure
-from .report_style import Styles, caution_box, figure, para, table, text
+from .report_style import Styles, caution_box, chart_figure, figure, para, table, text
 from .report_performance import performance_section, risk_text
 from .report_tripod import tripod_rows
 
@@ -313,9 +313,30 @@ def _leaf_paths(model) -> dict[int, list[str]]:
     return paths
 
 
+def _chart(c: ReportContents, s: Styles) -> list:
+    """The wall chart as it prints (A4, else A3), reduced; nothing if it fits neither."""
+    import datetime as dt
+
+    from .chart.fitting import plan_chart
+    from .chart.options import ChartOptions
+    from .errors import InputError
+
+    printed = dt.date.fromisoformat(c.printed) if c.printed else None
+    for paper in ("a4", "a3"):
+        try:
+            plan = plan_chart(c.model, ChartOptions(paper=paper, printed=printed))
+        except InputError:
+            continue
+        return [chart_figure(plan, f"Figure {s.next_figure()}. The one-page wall chart of the "
+                             f"chosen tree as it prints on {paper.upper()} paper (reduced).", s)]
+    return [para("The chosen tree is too large for a legible one-page chart on A4 or A3; it is "
+                 "given as rules only.", s.body)]
+
+
 def _tree(c: ReportContents, s: Styles) -> list:
     model = c.model
-    story = [para("The tree as numbered rules: each outcome box, the answers that lead to it, and "
+    story = _chart(c, s)
+    story += [para("The tree as numbered rules: each outcome box, the answers that lead to it, and "
                   "what the derivation patients in it showed (95% interval). Boxes are numbered "
                   "as on the chart.", s.body)]
     if model.task == "classification":

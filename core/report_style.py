@@ -12,7 +12,6 @@ import io
 from pathlib import Path
 from xml.sax.saxutils import escape
 
-import matplotlib
 from reportlab.lib import colors
 from reportlab.lib.enums import TA_LEFT
 from reportlab.lib.pagesizes import A4
@@ -22,7 +21,7 @@ from reportlab.pdfbase import pdfmetrics
 from reportlab.pdfbase.ttfonts import TTFont
 from reportlab.pdfgen import canvas
 from reportlab.platypus import (
-    BaseDocTemplate, Frame, Image, KeepTogether, PageTemplate, Paragraph, Spacer, Table,
+    BaseDocTemplate, Flowable, Frame, Image, KeepTogether, PageTemplate, Paragraph, Spacer, Table,
     TableStyle,
 )
 
@@ -46,7 +45,9 @@ def register_fonts() -> None:
     global _registered
     if _registered:
         return
-    folder = Path(matplotlib.get_data_path()) / "fonts" / "ttf"
+    from .chart.style import font_directory
+
+    folder = Path(font_directory())
     faces = {"": "DejaVuSans.ttf", "-Bold": "DejaVuSans-Bold.ttf",
              "-Italic": "DejaVuSans-Oblique.ttf", "-BoldItalic": "DejaVuSans-BoldOblique.ttf"}
     for suffix, file in faces.items():
@@ -230,3 +231,37 @@ def build_pdf(story: list, header: str, footer: str, title: str, author: str) ->
     Canvas.header, Canvas.footer_left = header, footer
     doc.build(story, canvasmaker=Canvas)
     return buffer.getvalue()
+
+
+class ChartFigure(Flowable):
+    """The one-page wall chart, drawn as vector graphics at a reduced scale."""
+
+    def __init__(self, plan, max_width: float, max_height: float):
+        super().__init__()
+        self.plan = plan
+        self.scale = min(max_width / plan.width, max_height / plan.height)
+        self.width, self.height = plan.width * self.scale, plan.height * self.scale
+
+    def wrap(self, available_width, available_height):
+        return self.width, self.height
+
+    def draw(self):
+        from .chart.pdf import paint
+        from .chart.style import register_fonts as register_chart_fonts
+
+        register_chart_fonts()
+        canvas = self.canv
+        canvas.saveState()
+        canvas.setStrokeColor(RULE)
+        canvas.setLineWidth(0.5)
+        canvas.rect(0, 0, self.width, self.height)  # the sheet's edge
+        canvas.scale(self.scale, self.scale)
+        paint(canvas, self.plan)
+        canvas.restoreState()
+
+
+def chart_figure(plan, caption: str, styles: Styles, height: float = 0.62 * PAGE[1]) -> KeepTogether:
+    """The chart as printed, reduced to fit the text width and ``height``, with its caption."""
+    drawing = ChartFigure(plan, TEXT_WIDTH, height)
+    drawing.hAlign = "CENTER"
+    return KeepTogether([drawing, Paragraph(caption, styles.caption)])

@@ -80,6 +80,16 @@ def test_report_has_every_section_and_the_cautions(contents, written):
         assert piece in words, piece
 
 
+def test_chosen_tree_section_shows_the_wall_chart_itself(contents, written):
+    words = re.sub(r"\s+", " ", _text(written))
+    assert "one-page wall chart of the chosen tree as it prints on A4 paper" in words
+    # The chart's own words, as vector text inside the report page.
+    assert "How to read: start at box 1" in words
+    for node in contents.model.nodes:
+        if not node.leaf:
+            assert node.text in words
+
+
 def test_report_is_reproducible(contents, written):
     assert render_report(contents) == written  # invariant mode, no dates in the figures
 

@@ -1,0 +1,315 @@
+"""What the chart says, in words: box texts, arrow labels, header, side panel and footer.
+
+Everything here is plain text built from the model; the layout and the PDF only place it.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from dataclasses import dataclass
+from functools import lru_cache
+
+from .. import __version__
+from ..cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER, UNCHECKED_DETAIL
+from ..intervals import mean_interval
+from ..intervals import wilson_interval as _wilson_interval
+from ..model import Node, TreeModel
+from .bands import Band, Banding, banding, box_value, number, percent, rate_phrase
+from .layout import BoxSpec, Para, TreeSpec
+from .options import ChartOptions
+
+HOW_TO_READ = ("How to read: start at box 1. Answer each question; follow YES or NO until "
+               "you reach an outcome box.")
+NOT_RECORDED = "or not recorded"
+wilson_interval = lru_cache(maxsize=4096)(_wilson_interval)  # the planner asks many times
+
+
+@dataclass(frozen=True)
+class PanelItem:
+    """A paragraph of the side panel; ``band`` draws its swatch, ``dashed`` a small-group one."""
+
+    text: str
+    bold: bool = False
+    band: Band | None = None
+    dashed: bool = False
+
+
+@dataclass(frozen=True)
+class PanelSection:
+    title: str
+    items: tuple[PanelItem, ...]
+    kind: str = "plain"  # plain | key | caution | checked
+
+
+@dataclass(frozen=True)
+class ChartText:
+    """All words of one chart."""
+
+    title: str
+    subtitle: str
+    how_to_read: str
+    banner: tuple[str, str] | None  # (headline, detail) when the tree was never checked
+    tree: TreeSpec
+    bands: dict[int, Band]  # outcome box → its band
+    small: frozenset[int]  # outcome boxes resting on fewer patients than the threshold
+    sections: tuple[PanelSection, ...]
+    footer: tuple[str, ...]
+    fingerprint: str  # the full model fingerprint (for the QR code)
+
+
+def count_word(model: TreeModel) -> str:
+    """Rows are visits; when patients came more than once, say visits, not patients."""
+    cohort = model.extra.get("cohort", {})
+    patients, visits = cohort.get("patients"), cohort.get("visits", model.n_rows)
+    return "visits" if patients is not None and patients != visits else "patients"
+
+
+def _plural(n: int, word: str) -> str:
+    return f"{n:,} {word[:-1] if n == 1 else word}"
+
+
+_COUNTS_NOTE = re.compile(r" \([^()]*\)$")
+
+
+def expected_text(model: TreeModel, node: Node) -> str:
+    """The expected outcome in words, as the model file words it (without the counts in
+    brackets at its end, which the box prints its own way)."""
+    if node.leaf and node.text:
+        return _COUNTS_NOTE.sub("", node.text)
+    label = model.outcome.display
+    if model.task == "regression":
+        return f"{label}: mean {node.mean:.3g}" + (f" {model.outcome.unit}" if model.outcome.unit else "")
+    return f"{label}: {node.prediction} expected"
+
+
+def span(low: str, high: str) -> str:
+    """An interval as clinicians print it: 77–83%, or '−2 to 3' when a sign would blur it."""
+    return f"{low} to {high}" if low.startswith(("-", "−")) or high.startswith(("-", "−")) \
+        else f"{low}–{high}"
+
+
+def outcome_paras(model: TreeModel, node: Node, options: ChartOptions) -> tuple[Para, ...]:
+    """Expected outcome, observed rate (or mean) and how many it rests on, its 95% interval."""
+    paras = [Para(expected_text(model, node), bold=True)]
+    count = "" if options.hide_counts else _plural(node.n, count_word(model))
+    if model.task == "regression":
+        low, high = mean_interval(float(node.mean), float(node.sd or 0.0), node.n)
+        if count:
+            paras.append(Para(count))
+        paras.append(Para(f"95% CI {span(number(low), number(high, model.outcome.unit))}"))
+    else:
+        if model.positive is not None:
+            k = node.counts[1]
+        else:
+            k = node.counts[model.classes.index(str(node.prediction))]
+        low, high = wilson_interval(k, node.n)
+        rate = percent(k / max(node.n, 1))
+        paras.append(Para(f"{rate} of {count}" if count else f"Rate {rate}"))
+        paras.append(Para(f"95% CI {span(percent(low)[:-1], percent(high))}"))
+    if node.n < options.small_cell:
+        paras.append(Para("Small group", bold=True))
+    return tuple(paras)
+
+
+def tree_spec(model: TreeModel, options: ChartOptions,
+              bands: Banding) -> tuple[TreeSpec, dict[int, Band]]:
+    """The boxes and arrows of ``model``."""
+    children: dict[int, tuple[int, ...]] = {}
+    boxes: dict[int, BoxSpec] = {}
+    labels: dict[tuple[int, int], tuple[Para, ...]] = {}
+    band_of: dict[int, Band] = {}
+    stack = [model.root.id]
+    while stack:
+        node = model.node(stack.pop())
+        if node.leaf:
+            band = bands.band_of(model, node)
+            band_of[node.id] = band
+            boxes[node.id] = BoxSpec("outcome", str(node.id), outcome_paras(model, node, options),
+                                     heading=Para(band.word, bold=True))
+            continue
+        boxes[node.id] = BoxSpec("question", str(node.id), (Para(node.text, bold=True, scale=1.1),))
+        children[node.id] = node.children
+        question = node.question
+        for k, child in enumerate(node.children):
+            answer = "YES" if k == 0 else "NO"
+            paras = [Para(answer, bold=True)]
+            if question.kind != "missing" and question.missing_goes == ("yes" if k == 0 else "no"):
+                paras.append(Para(NOT_RECORDED))
+            labels[(node.id, child)] = tuple(paras)
+        stack.extend(reversed(node.children))
+    return TreeSpec(model.root.id, children, boxes, labels), band_of
+
+
+# --- header, panel, footer -----------------------------------------------------------
+
+
+def default_title(model: TreeModel) -> str:
+    return f"{model.outcome.display}: decision chart"
+
+
+def default_subtitle(model: TreeModel) -> str:
+    if model.task == "regression":
+        unit = f" ({model.outcome.unit})" if model.outcome.unit else ""
+        outcome = f"Outcome: {model.outcome.display}{unit}, mean per box"
+    elif model.positive is not None:
+        outcome = f"Outcome: {model.outcome.display} ({model.positive} or {model.classes[0]})"
+    else:
+        outcome = f"Outcome: {model.outcome.display} ({', '.join(model.classes)})"
+    cohort = model.extra.get("cohort", {})
+    dates = ""
+    if cohort.get("first_date"):
+        dates = f", {cohort['first_date']} to {cohort['last_date']}"
+    visits = cohort.get("visits", model.n_rows)
+    return f"{outcome}. Derived from {_plural(visits, count_word(model))}{dates}."
+
+
+def _cohort_size(model: TreeModel) -> str:
+    cohort = model.extra.get("cohort", {})
+    visits = cohort.get("visits", model.n_rows)
+    patients = cohort.get("patients")
+    if patients is not None and patients != visits:
+        return f"{visits:,} visits by {patients:,} patients"
+    return _plural(visits, "patients")
+
+
+def _is_error_rate(model: TreeModel) -> bool:
+    """Unit costs and observed priors: the misclassification cost is the error rate."""
+    costs = model.extra.get("costs")
+    if model.task != "classification" or not costs:
+        return model.task == "classification"
+    loss, priors = costs["loss"], costs["priors"]
+    k = len(loss)
+    unit = all(loss[i][j] == (0.0 if i == j else 1.0) for i in range(k) for j in range(k))
+    counts = model.extra.get("cohort", {}).get("outcome_counts", {})
+    total = sum(counts.values()) or 1
+    observed = counts and all(abs(priors[i] - counts.get(c, 0) / total) < 1e-9
+                              for i, c in enumerate(model.classes))
+    return unit and bool(observed)
+
+
+def _risk(model: TreeModel, value: float) -> str:
+    if model.task == "regression":
+        return f"{value:,.4g}"
+    return f"{100 * value:.1f}%" if _is_error_rate(model) else f"{value:.3f}"
+
+
+def _rule(model: TreeModel) -> str:
+    chosen = model.chosen
+    rule = chosen.get("rule")
+    boxes = _plural(int(chosen["leaves"]), "outcome boxes")
+    if rule == "1se":
+        return (f"Size: {boxes} (1-SE rule: the smallest tree within one SE of the lowest "
+                "cross-validated error).")
+    if rule == "min":
+        return f"Size: {boxes} (the lowest cross-validated error)."
+    return f"Size: {boxes}, chosen by the user."
+
+
+def _performance(model: TreeModel) -> PanelSection:
+    chosen, path = model.chosen, model.path
+    measure = path.get("risk_measure", "error")
+    if model.task == "regression":
+        name = "mean squared error"
+        unit = f" {model.outcome.unit}" if model.outcome.unit else ""
+        extra = f" (root {number(math.sqrt(max(chosen['cv_risk'], 0)))}{unit})"
+        about = f"error = {measure}"
+    elif _is_error_rate(model):
+        name, extra = "error rate", ""
+        about = f"error = {measure}, equal costs"
+    else:
+        name, extra = "misclassification cost", ""
+        about = f"error = {measure}, with the costs set at derivation"
+    items = (
+        PanelItem(f"Cross-validated {name}: {_risk(model, chosen['cv_risk'])} "
+                  f"(SE {_risk(model, chosen['cv_se'])}){extra}", bold=True),
+        PanelItem(f"Training {name}: {_risk(model, chosen['train_risk'])} (optimistic: "
+                  "the same patients)"),
+        PanelItem(f"{path.get('cv', 'Cross-validation').capitalize()}; {about}."),
+        PanelItem(_rule(model)),
+    )
+    return PanelSection("How well it predicts", items)
+
+
+def _cohort(model: TreeModel) -> PanelSection:
+    cohort = model.extra.get("cohort", {})
+    size = _cohort_size(model)
+    if cohort.get("first_date"):
+        label = cohort.get("date_column", "dates").lower()
+        size += f"; {label} {cohort['first_date']} to {cohort['last_date']}"
+    items = [PanelItem(size[0].upper() + size[1:] + ".")]
+    sites = cohort.get("sites")
+    if sites:
+        items.append(PanelItem("Sites: " + ", ".join(f"{k} ({v:,})" for k, v in sites.items()) + "."))
+    counts = cohort.get("outcome_counts")
+    if counts:
+        total = sum(counts.values()) or 1
+        items.append(PanelItem(f"{model.outcome.display}: " + ", ".join(
+            f"{c} {percent(k / total)}" for c, k in counts.items()) + "."))
+    elif cohort.get("outcome_mean") is not None:
+        items.append(PanelItem(f"Mean {model.outcome.display.lower()}: "
+                               f"{number(cohort['outcome_mean'], model.outcome.unit)}."))
+    data = model.extra.get("data", {})
+    if data.get("file"):
+        items.append(PanelItem(f"Data file: {data['file']}."))
+    return PanelSection("Derived from", tuple(items))
+
+
+def _validation(model: TreeModel) -> PanelSection | None:
+    check = model.extra.get("validation")
+    if not check:
+        return None
+    summary = check.get("summary")
+    if not summary:
+        summary = "; ".join(f"{k.replace('_', ' ')} {v:.3f}" for k, v in check.items()
+                            if isinstance(v, float))
+    items = (PanelItem(f"On {check.get('n', '?'):,} {count_word(model)} from "
+                       f"{check.get('source', 'separate data')}:"),
+             PanelItem(summary, bold=True))
+    return PanelSection("Checked on separate patients", items, kind="checked")
+
+
+def _key(model: TreeModel, bands: Banding, options: ChartOptions) -> PanelSection:
+    items = [PanelItem(f"{band.word}: {band.meaning}", band=band) for band in bands.bands]
+    if options.small_cell > 0:
+        items.append(PanelItem(f"Dashed: under {options.small_cell} {count_word(model)}, "
+                               "so the rate is uncertain", dashed=True))
+    if model.task == "regression":
+        what = f"Mean: average {model.outcome.display.lower()}; 95% CI: t interval."
+    elif model.positive is not None:
+        what = f"Rate: share {rate_phrase(model)}; 95% CI: Wilson interval."
+    else:
+        what = "Rate: share with the expected outcome; 95% CI: Wilson interval."
+    items.append(PanelItem(f"{what} “{NOT_RECORDED}”: where a missing value goes."))
+    return PanelSection("Key", tuple(items), kind="key")
+
+
+def chart_text(model: TreeModel, options: ChartOptions) -> ChartText:
+    """Every word of the chart for ``model`` (``options`` already checked)."""
+    bands = banding(model, options.band_cuts, options.band_ratio)
+    spec, band_of = tree_spec(model, options, bands)
+    small = frozenset(i for i in band_of if model.node(i).n < options.small_cell)
+    banner = None if model.extra.get("validation") else (UNCHECKED_BANNER, UNCHECKED_DETAIL)
+    sections = [_cohort(model), _performance(model)]
+    checked = _validation(model)
+    if checked:
+        sections.append(checked)
+    sections.append(_key(model, bands, options))
+    sections.append(PanelSection(CAUTION_TITLE, tuple(PanelItem(c) for c in CAUTIONS),
+                                 kind="caution"))
+    data = model.extra.get("data", {})
+    footer = (f"Model {model.fingerprint[:12]}  ·  Data {str(data.get('sha256', ''))[:12] or 'unknown'}"
+              f"  ·  Printed {options.printed.isoformat()}  ·  Prunella {__version__}",
+              "The model fingerprint (SHA-256 of the model file, also in the QR code) names "
+              "the exact tree on this chart.")
+    return ChartText(title=options.title or default_title(model),
+                     subtitle=options.subtitle if options.subtitle is not None
+                     else default_subtitle(model),
+                     how_to_read=HOW_TO_READ, banner=banner, tree=spec, bands=band_of,
+                     small=small, sections=tuple(sections), footer=footer,
+                     fingerprint=model.fingerprint)
+
+
+def outcome_value(model: TreeModel, node: Node) -> float:
+    """The rate or mean an outcome box shows (for tests and the app)."""
+    return box_value(model, node)

@@ -1,0 +1,249 @@
+"""Tidy layout of a decision tree: box sizes from wrapped text, positions without overlaps.
+
+Shared by the PDF chart and the app's tree view, so it draws nothing and imports neither
+reportlab's drawing nor Qt: it takes a text-measuring function ``measure(text, bold, size)``
+(the default uses reportlab's font metrics for the embedded DejaVu fonts; the app can pass
+its own). Coordinates are points, origin top-left, y downwards.
+
+Placement along the breadth axis (x when the tree grows down, y when it grows right) follows
+the tidy drawing of Reingold & Tilford (1981) and Walker (1990), in its non-layered form for
+boxes of any size (van der Ploeg 2014): each subtree is laid out on its own, siblings are
+pushed together until their outlines are one gap apart, a parent is centred over its first
+and last child, and children start one connector length past their parent. A subtree's
+drawing depends only on the subtree, so identical subtrees are drawn identically.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, replace
+from typing import Mapping
+
+from .boxes import BoxSpec, LayoutStyle, Para, TreeSpec, size_boxes, size_label
+from .text import Line, Measure, Rect, balanced_wrap, reportlab_measure, wrap
+
+__all__ = ["BoxSpec", "LayoutStyle", "Line", "Measure", "Para", "PlacedArrow", "PlacedBox",
+           "Rect", "TreeLayout", "TreeSpec", "balanced_wrap", "layout_tree", "reportlab_measure",
+           "wrap"]
+
+
+@dataclass(frozen=True)
+class PlacedBox:
+    id: int
+    kind: str
+    rect: Rect
+    lines: tuple[Line, ...]  # text, including the badge number (first) and the band word
+    badge: tuple[float, float, float]  # centre x, centre y, radius of the number's circle
+    strip: float  # height of the outcome box's band strip (0 for questions)
+    point: float  # depth of a question box's pointed ends (hexagon), 0 for outcomes
+
+    def moved(self, dx: float, dy: float) -> "PlacedBox":
+        bx, by, r = self.badge
+        return PlacedBox(self.id, self.kind, self.rect.moved(dx, dy),
+                         tuple(ln.moved(dx, dy) for ln in self.lines), (bx + dx, by + dy, r),
+                         self.strip, self.point)
+
+
+@dataclass(frozen=True)
+class PlacedArrow:
+    parent: int
+    child: int
+    branch: int  # 0 = YES, 1 = NO
+    points: tuple[tuple[float, float], ...]  # polyline, the last point touches the child
+    label: Rect
+    label_lines: tuple[Line, ...]
+
+    def moved(self, dx: float, dy: float) -> "PlacedArrow":
+        return PlacedArrow(self.parent, self.child, self.branch,
+                           tuple((x + dx, y + dy) for x, y in self.points),
+                           self.label.moved(dx, dy),
+                           tuple(ln.moved(dx, dy) for ln in self.label_lines))
+
+
+@dataclass(frozen=True)
+class TreeLayout:
+    boxes: Mapping[int, PlacedBox]
+    arrows: tuple[PlacedArrow, ...]
+    width: float
+    height: float
+    style: LayoutStyle
+    breadth_stretch: float = 1.0
+    depth_stretch: float = 1.0
+
+    @property
+    def direction(self) -> str:
+        return self.style.direction
+
+    @property
+    def size(self) -> float:
+        return self.style.size
+
+    def moved(self, dx: float, dy: float) -> "TreeLayout":
+        return replace(self, boxes={k: b.moved(dx, dy) for k, b in self.boxes.items()},
+                       arrows=tuple(a.moved(dx, dy) for a in self.arrows))
+
+    def rects(self) -> list[Rect]:
+        """Every box and every arrow label: nothing of these may overlap."""
+        return [b.rect for b in self.boxes.values()] + [a.label for a in self.arrows]
+
+
+# --- tidy placement ----------------------------------------------------------------------
+
+# A profile is one side of a subtree's outline: (start, end, edge) pieces along the depth
+# axis, sorted and disjoint, where ``edge`` is the outermost breadth coordinate there.
+Profile = list[tuple[float, float, float]]
+
+
+def _combine(a: Profile, b: Profile, outer) -> Profile:
+    """The outline of two profiles together: ``outer`` (min or max) wherever both are; a
+    sweep over both sorted piece lists."""
+    cuts = sorted({t for piece in a for t in piece[:2]} | {t for piece in b for t in piece[:2]})
+    out: Profile = []
+    i = j = 0
+    for t0, t1 in zip(cuts, cuts[1:]):
+        while i < len(a) and a[i][1] <= t0:
+            i += 1
+        while j < len(b) and b[j][1] <= t0:
+            j += 1
+        edges = []
+        if i < len(a) and a[i][0] <= t0:
+            edges.append(a[i][2])
+        if j < len(b) and b[j][0] <= t0:
+            edges.append(b[j][2])
+        if not edges:
+            continue
+        edge = outer(edges)
+        if out and out[-1][1] == t0 and out[-1][2] == edge:
+            out[-1] = (out[-1][0], t1, edge)
+        else:
+            out.append((t0, t1, edge))
+    return out
+
+
+def _shifted(profile: Profile, along: float, across: float) -> Profile:
+    return [(lo + along, hi + along, e + across) for lo, hi, e in profile]
+
+
+def _separation(right: Profile, left: Profile, gap: float) -> float:
+    """How far the subtree with ``left`` outline must move across to keep ``gap`` from
+    everything on the ``right`` outline wherever their depth ranges meet."""
+    need = -float("inf")
+    i = j = 0
+    while i < len(right) and j < len(left):
+        lo, hi, edge = right[i]
+        lo2, hi2, edge2 = left[j]
+        if lo < hi2 and lo2 < hi:
+            need = max(need, edge - edge2 + gap)
+        if hi <= hi2:
+            i += 1
+        else:
+            j += 1
+    return need
+
+
+def _tidy(spec: TreeSpec, across: Mapping[int, float], along: Mapping[int, float],
+          connector: float, gap: float, margin: float) -> tuple[dict[int, float], dict[int, float]]:
+    """Breadth centre and depth start of every box, relative to the root.
+
+    Non-layered tidy drawing (van der Ploeg 2014, after Reingold & Tilford 1981 and Walker
+    1990): children start one connector length beyond their parent's far side, so a long box
+    only pushes aside what lies beside it; outlines are compared along the depth axis."""
+
+    def place(node: int):
+        half, size = across[node] / 2, along[node]
+        own_left: Profile = [(-margin, size + margin, -half)]
+        own_right: Profile = [(-margin, size + margin, half)]
+        kids = spec.children.get(node, ())
+        if not kids:
+            return {node: 0.0}, {node: 0.0}, own_left, own_right
+        start = size + connector
+        centres: dict[int, float] = {}
+        depths: dict[int, float] = {}
+        left: Profile = []
+        right: Profile = []
+        offsets = []
+        for child in kids:
+            c, d, cl, cr = place(child)
+            shift = _separation(right, _shifted(cl, start, 0.0), gap) if right else 0.0
+            offsets.append(shift)
+            centres.update({k: v + shift for k, v in c.items()})
+            depths.update({k: v + start for k, v in d.items()})
+            left = _combine(left, _shifted(cl, start, shift), min)
+            right = _combine(right, _shifted(cr, start, shift), max)
+        mid = (offsets[0] + offsets[-1]) / 2
+        centres = {k: v - mid for k, v in centres.items()}
+        centres[node], depths[node] = 0.0, 0.0
+        # The arrows between the parent and its children: nothing else may come into them.
+        reach_lo = min(centres[k] - across[k] / 2 for k in kids)
+        reach_hi = max(centres[k] + across[k] / 2 for k in kids)
+        zone = (size, start)
+        left = _combine(_combine(own_left, [(zone[0], zone[1], reach_lo)], min),
+                        _shifted(left, 0.0, -mid), min)
+        right = _combine(_combine(own_right, [(zone[0], zone[1], reach_hi)], max),
+                         _shifted(right, 0.0, -mid), max)
+        return centres, depths, left, right
+
+    centres, depths, _, _ = place(spec.root)
+    return centres, depths
+
+
+def layout_tree(spec: TreeSpec, style: LayoutStyle, measure: Measure = reportlab_measure,
+                breadth_stretch: float = 1.0, depth_stretch: float = 1.0) -> TreeLayout:
+    """Lay out ``spec``: every box sized to its wrapped text, positions tidy, origin (0, 0).
+
+    ``breadth_stretch`` ≥ 1 spreads the box centres along the breadth axis and
+    ``depth_stretch`` ≥ 1 lengthens the arrows between a box and its children, to use spare
+    page space without changing any of the tidy properties."""
+    if style.direction not in ("down", "right"):
+        raise ValueError("direction must be 'down' or 'right'")
+    s, down = style.size, style.direction == "down"
+    sized = size_boxes(spec, style, measure)
+    labels = {key: size_label(paras, s, measure, down) for key, paras in spec.labels.items()}
+    parent_of = {c: p for p, kids in spec.children.items() for c in kids}
+    across, along = {}, {}
+    for i, box in sized.items():
+        own = box.w if down else box.h
+        if i in parent_of:  # a box's arrow label lies in its breadth, just before it
+            lw, lh, _ = labels[(parent_of[i], i)]
+            own = max(own, lw if down else lh)
+        across[i], along[i] = own, (box.h if down else box.w)
+    stem, arrow, label_pad = 0.6 * s, 0.9 * s, 0.2 * s
+    label_depth = max(((lh if down else lw) for lw, lh, _ in labels.values()), default=0.0)
+    connector = (stem + label_depth + 2 * label_pad + arrow) * depth_stretch
+    centres, depths = _tidy(spec, across, along, connector, 1.25 * s, 0.4 * s)
+    centres = {k: v * breadth_stretch for k, v in centres.items()}
+
+    boxes: dict[int, PlacedBox] = {}
+    for i, box in sized.items():
+        if down:
+            x, y = centres[i] - box.w / 2, depths[i]
+        else:
+            x, y = depths[i], centres[i] - box.h / 2
+        boxes[i] = PlacedBox(i, box.kind, Rect(x, y, box.w, box.h),
+                             tuple(ln.moved(x, y) for ln in box.lines),
+                             (box.badge[0] + x, box.badge[1] + y, box.badge[2]),
+                             box.strip, box.point)
+
+    arrows = []
+    for parent, kids in spec.children.items():
+        pb = boxes[parent]
+        bus = depths[parent] + along[parent] + stem
+        for k, child in enumerate(kids):
+            cb = boxes[child]
+            lw, lh, llines = labels[(parent, child)]
+            if down:
+                points = ((pb.rect.cx, pb.rect.bottom), (pb.rect.cx, bus), (cb.rect.cx, bus),
+                          (cb.rect.cx, cb.rect.y))
+                zone = (bus + cb.rect.y - arrow) / 2
+                lx, ly = cb.rect.cx - lw / 2, zone - lh / 2
+            else:
+                points = ((pb.rect.right, pb.rect.cy), (bus, pb.rect.cy), (bus, cb.rect.cy),
+                          (cb.rect.x, cb.rect.cy))
+                zone = (bus + cb.rect.x - arrow) / 2
+                lx, ly = zone - lw / 2, cb.rect.cy - lh / 2
+            arrows.append(PlacedArrow(parent, child, k, points, Rect(lx, ly, lw, lh),
+                                      tuple(ln.moved(lx, ly) for ln in llines)))
+    rects = [b.rect for b in boxes.values()] + [a.label for a in arrows]
+    x0, y0 = min(r.x for r in rects), min(r.y for r in rects)
+    layout = TreeLayout(boxes, tuple(arrows), max(r.right for r in rects) - x0,
+                        max(r.bottom for r in rects) - y0, style, breadth_stretch, depth_stretch)
+    return layout.moved(-x0, -y0)
