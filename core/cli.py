@@ -7,21 +7,24 @@ from __future__ import annotations
 
 import argparse
 import sys
+from dataclasses import replace
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 import numpy as np
 import pandas as pd
 
 from . import __version__
-from .derive import DerivationRequest, Derivation, derive
 from .design import DesignSpec
 from .errors import Cancelled, InputError
-from .grow import TreeSettings
+from .messages import distinct_messages, explain
 from .model import TreeModel
-from .resample import CVSettings
 from .safe_files import write_csv_safely, write_text_atomic
 from .table import read_table
 from .variables import DataDictionary, infer_dictionary, merge_dictionary
+
+if TYPE_CHECKING:  # scikit-learn loads only when a tree is grown, so bad input is refused fast
+    from .derive import Derivation, DerivationRequest
 
 SUBCOMMANDS = ("fit", "score", "check", "report", "chart")
 EXIT_BAD_INPUT = 2
@@ -130,7 +133,7 @@ def _refuse_overwrite(target: str | None, *sources: str) -> None:
 
 def load_dictionary(table, dictionary_path: str | None) -> tuple[DataDictionary, list[str]]:
     """Inferred dictionary, overridden by the saved one if given."""
-    inferred, notes = infer_dictionary(table.frame)
+    inferred, notes = infer_dictionary(table.frame, table.row_numbers)
     if dictionary_path:
         merged, more = merge_dictionary(inferred, DataDictionary.load(dictionary_path))
         return merged, notes + more
@@ -139,6 +142,10 @@ def load_dictionary(table, dictionary_path: str | None) -> tuple[DataDictionary,
 
 def request_from_args(args, dictionary: DataDictionary) -> DerivationRequest:
     """The derivation request described by ``prunella fit`` options."""
+    from .derive import DerivationRequest
+    from .grow import TreeSettings
+    from .resample import CVSettings
+
     if args.outcome not in dictionary:
         dictionary.get(args.outcome)  # raises the "no such column" message
     patient = args.patient_id or next((c.name for c in dictionary.by_role("patient_id")), None)
@@ -189,7 +196,11 @@ def _fit(args) -> int:
     _refuse_overwrite(args.chart, args.data)
     table = read_table(args.data, sheet=args.sheet)
     dictionary, notes = load_dictionary(table, args.dictionary)
+    shown = _print_notes(list(table.provenance.warnings) + notes)
     request = request_from_args(args, dictionary)
+    request = _guarded(args, table, dictionary, request)
+    from .derive import derive
+
     derivation = derive(table, dictionary, request, jobs=args.jobs)
     model = derivation.model
     model.save(args.model)
@@ -199,11 +210,36 @@ def _fit(args) -> int:
         write_text_atomic(args.rules, model.rules())
     if args.chart:
         _fit_chart(args, derivation)
-    for warning in list(table.provenance.warnings) + notes + list(derivation.notes):
-        print(f"note: {warning}", file=sys.stderr)
+    _print_notes(list(derivation.notes), shown)
     if not args.quiet:
         print(summary_text(derivation))
     return 0
+
+
+def _print_notes(notes: list[str], already: list[str] | None = None) -> list[str]:
+    """Print each note once on stderr as 'warning:' or 'note:' (core/message_catalogue.py);
+    a finding already shown with its rows is not repeated."""
+    already = list(already or [])
+    fresh = [n for n in distinct_messages(already + notes) if n not in already]
+    for note in fresh:
+        kind = explain(note)
+        prefix = "warning" if kind is not None and kind.severity == "warning" else "note"
+        print(f"{prefix}: {note}", file=sys.stderr)
+    return already + fresh
+
+
+def _guarded(args, table, dictionary: DataDictionary, request: DerivationRequest) -> DerivationRequest:
+    """Run the identity, leakage, repeat-visit and rare-class guards; print their findings.
+
+    Identity columns are left out unless named in --predictors."""
+    from .guards import guard_design
+
+    report = guard_design(table.frame, dictionary, request.design,
+                          keep=_csv_list(args.predictors), grouped=request.cv.grouped,
+                          seed=args.seed, min_leaf=args.min_leaf)
+    for finding in report.findings:
+        print(f"{finding.severity}: {finding.message}", file=sys.stderr)
+    return replace(request, design=report.design)
 
 
 def summary_text(derivation: Derivation) -> str:
@@ -311,7 +347,7 @@ def model_dictionary(table, model: TreeModel, dictionary_path: str | None) -> Da
 def _report(args) -> int:
     import datetime as dt
 
-    from .derive import choose_model
+    from .derive import DerivationRequest, choose_model, derive
     from .report import prepare_report, write_report
     from .validate import check_table
 

@@ -16,11 +16,13 @@ import numpy as np
 import pandas as pd
 
 from .errors import InputError
-from .safe_files import write_text_atomic
+from .model_file import validate_model_dict
+from .safe_files import check_format, read_json_document, write_text_atomic
 from .thresholds import format_number
 from .variables import ColumnSpec, typed_column
 
 MODEL_FORMAT = "prunella-model/1"
+MODEL_VERSIONS = (1,)  # format versions this Prunella reads
 _NO_SPACE_UNITS = ("%", "°C", "°F", "°")
 
 
@@ -197,13 +199,10 @@ class TreeModel:
         write_text_atomic(path, self.to_json())
 
     @classmethod
-    def from_dict(cls, data: dict) -> "TreeModel":
-        if not isinstance(data, dict) or "format" not in data:
-            raise InputError("This file is not a Prunella model (it has no 'format'); choose a "
-                             "model saved by Prunella.")
-        if data["format"] != MODEL_FORMAT:
-            raise InputError(f"This model file has format {data['format']!r}, which this version "
-                             f"of Prunella cannot read (it reads {MODEL_FORMAT!r}); update Prunella.")
+    def from_dict(cls, data: dict, name: str = "This file") -> "TreeModel":
+        """A model from parsed JSON; damaged, foreign or newer files are refused (InputError)."""
+        check_format(data, "model", MODEL_VERSIONS, name)
+        validate_model_dict(data)
         try:
             known = {"format", "task", "outcome", "outcome_spec", "classes", "positive", "n_rows",
                      "predictors", "nodes", "path", "chosen"}
@@ -213,7 +212,7 @@ class TreeModel:
                         nodes=tuple(Node.from_dict(n) for n in data["nodes"]),
                         n_rows=int(data["n_rows"]), path=data["path"], chosen=data["chosen"],
                         extra={k: v for k, v in data.items() if k not in known})
-        except (KeyError, TypeError, ValueError) as exc:
+        except (KeyError, TypeError, ValueError, AttributeError) as exc:
             raise InputError(f"The model file is damaged ({type(exc).__name__}: {exc}); save the "
                              "model again from Prunella.") from None
         model._check()
@@ -221,15 +220,11 @@ class TreeModel:
 
     @classmethod
     def load(cls, path: str | Path) -> "TreeModel":
+        """Read a model file written by :meth:`save` (JSON only; nothing in it is executed)."""
         path = Path(path)
         if not path.exists():
             raise InputError(f"No model file at {path}; check the path.")
-        try:
-            data = json.loads(path.read_text(encoding="utf-8"))
-        except (json.JSONDecodeError, UnicodeDecodeError):
-            raise InputError(f"{path.name} is not a Prunella model (not valid JSON); choose the "
-                             "model file saved by Prunella.") from None
-        return cls.from_dict(data)
+        return cls.from_dict(read_json_document(path, "model", MODEL_VERSIONS), path.name)
 
     def _check(self) -> None:
         ids = [n.id for n in self.nodes]

@@ -1,20 +1,31 @@
-"""Writing files so that a crash never leaves a half-written one, and exports stay inert.
+"""Writing files so that a crash never leaves a half-written one, reading Prunella's own files
+without trusting them, and keeping exports inert.
 
 Every file Prunella writes goes through here: the bytes go to a temporary file in the same
 folder, are flushed to disk, and only then replace the target in one rename, so a kill at any
-moment leaves either the old file or the new one.
+moment leaves either the old file or the new one. Prunella's own files (models, dictionaries,
+projects) are JSON with a ``"format": "prunella-<kind>/<version>"`` key; they are parsed as
+data only (no pickle, nothing is evaluated) and refused with a clear message when they are
+damaged, of another kind, or from a newer version.
 """
 
 from __future__ import annotations
 
+import json
 import os
+import re
 import tempfile
 from pathlib import Path
 
 import pandas as pd
 
+from .errors import InputError
+from .messages import say
+
 # OWASP "CSV Injection": a cell starting with one of these is run as a formula by spreadsheets.
 _FORMULA_STARTS = ("=", "+", "-", "@", "\t", "\r")
+MAX_JSON_BYTES = 200 * 1024 * 1024  # far above any real model or project file
+_FORMAT = re.compile(r"^prunella-([a-z][a-z0-9-]*)/(\d+)$")
 
 
 def write_bytes_atomic(path: str | Path, data: bytes) -> None:
@@ -34,6 +45,21 @@ def write_bytes_atomic(path: str | Path, data: bytes) -> None:
         except FileNotFoundError:
             pass
         raise
+    _sync_folder(path.parent)
+
+
+def _sync_folder(folder: Path) -> None:
+    """Make the rename itself durable (POSIX); harmless where folders cannot be opened."""
+    try:
+        descriptor = os.open(folder, os.O_RDONLY)
+    except OSError:
+        return
+    try:
+        os.fsync(descriptor)
+    except OSError:
+        pass
+    finally:
+        os.close(descriptor)
 
 
 def write_text_atomic(path: str | Path, text: str) -> None:
@@ -48,11 +74,99 @@ def neutralise_cell(value):
     return value
 
 
+def _export_cell(value):
+    value = neutralise_cell(value)
+    if isinstance(value, str) and "\r" in value:
+        value = value.replace("\r\n", "\n").replace("\r", "\n")
+    return value
+
+
 def write_csv_safely(frame: pd.DataFrame, path: str | Path) -> None:
-    """Write a table as UTF-8 CSV with formula-like text cells neutralised, atomically."""
+    """Write a table as UTF-8 CSV with formula-like text cells neutralised, atomically.
+
+    Header cells and every text cell are checked (OWASP, "CSV Injection"); numbers stay
+    numbers, so a negative value is written as a number, not as text. A carriage return inside
+    a cell becomes a line feed: the cell is then quoted, so no reader can take what follows
+    for the start of a new (formula) cell.
+    """
     safe = frame.copy()
-    safe.columns = [neutralise_cell(str(c)) for c in safe.columns]
-    for column in safe.columns:
-        if safe[column].dtype == object or pd.api.types.is_string_dtype(safe[column].dtype):
-            safe[column] = safe[column].map(neutralise_cell)
+    safe.columns = [_export_cell(str(c)) for c in safe.columns]
+    for position in range(safe.shape[1]):
+        column = safe.iloc[:, position]
+        dtype = column.dtype
+        if dtype == object or pd.api.types.is_string_dtype(dtype) or \
+                isinstance(dtype, pd.CategoricalDtype):
+            safe.isetitem(position, column.astype(object).map(_export_cell))
     write_text_atomic(path, safe.to_csv(index=False, lineterminator="\n"))
+
+
+# --- reading Prunella's own JSON files ------------------------------------------------------
+
+
+def _refuse_constant(name: str):
+    raise ValueError(f"{name} is not allowed")
+
+
+def parse_format(value) -> tuple[str, int] | None:
+    """('model', 1) from 'prunella-model/1'; None if the value is not a Prunella format."""
+    if not isinstance(value, str):
+        return None
+    match = _FORMAT.match(value)
+    return (match.group(1), int(match.group(2))) if match else None
+
+
+def check_format(data, kind: str, versions: tuple[int, ...], name: str) -> int:
+    """The format version of a parsed Prunella file of ``kind``; refuses anything else."""
+    what = {"model": "model", "dictionary": "data dictionary", "project": "project"}.get(kind, kind)
+    if not isinstance(data, dict):
+        raise InputError(say("file.not_object", file=name, what=what))
+    if "format" not in data:
+        raise InputError(say("file.no_format", file=name, what=what))
+    parsed = parse_format(data["format"])
+    if parsed is None:
+        raise InputError(say("file.bad_format", file=name, what=what,
+                             found=str(data["format"])[:60]))
+    found_kind, version = parsed
+    if found_kind != kind:
+        raise InputError(say("file.wrong_kind", file=name, what=what, found=found_kind))
+    if version not in versions:
+        newest = max(versions)
+        key = "file.newer_version" if version > newest else "file.old_version"
+        raise InputError(say(key, file=name, what=what, version=version,
+                             readable=", ".join(f"prunella-{kind}/{v}" for v in versions)))
+    return version
+
+
+def read_json_document(path: str | Path, kind: str, versions: tuple[int, ...] = (1,)) -> dict:
+    """Read one of Prunella's JSON files (``kind`` e.g. 'model', 'project') as plain data.
+
+    Refuses, with a message saying what to do: a missing file, a folder, a file too large to be
+    one of ours, text that is not UTF-8 or not JSON (with line and column), NaN/Infinity,
+    nesting too deep to parse, anything that is not a JSON object, and unknown kinds or
+    versions. Nothing in the file is ever executed.
+    """
+    path = Path(path)
+    what = {"model": "model", "dictionary": "data dictionary", "project": "project"}.get(kind, kind)
+    if not path.exists():
+        raise InputError(say("file.missing", path=str(path), what=what))
+    if path.is_dir():
+        raise InputError(say("read.folder", path=str(path)))
+    size = path.stat().st_size
+    if size > MAX_JSON_BYTES:
+        raise InputError(say("file.too_big", file=path.name, what=what, mb=size // 2**20))
+    raw = path.read_bytes()
+    try:
+        text = raw.decode("utf-8-sig")
+    except UnicodeDecodeError:
+        raise InputError(say("file.not_json", file=path.name, what=what,
+                             detail="it is not UTF-8 text")) from None
+    try:
+        data = json.loads(text, parse_constant=_refuse_constant)
+    except json.JSONDecodeError as exc:
+        detail = f"line {exc.lineno}, column {exc.colno}: {exc.msg}"
+        raise InputError(say("file.not_json", file=path.name, what=what, detail=detail)) from None
+    except (ValueError, RecursionError) as exc:
+        detail = str(exc) if isinstance(exc, ValueError) else "it is nested too deeply"
+        raise InputError(say("file.not_json", file=path.name, what=what, detail=detail)) from None
+    check_format(data, kind, versions, path.name)
+    return data

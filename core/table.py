@@ -3,25 +3,36 @@
 The source file is only ever opened for reading. Cells keep their raw form here (numbers that
 pandas recognises become numbers, everything else stays text); turning text into values is
 the data dictionary's job (core/variables.py), so one parser serves every file type.
+
+Text files are read by core/text_table.py, workbooks by core/xlsx.py; both share the rules
+here for where the header is and for tidying headers and empty rows. Every kept row remembers
+its row number in the spreadsheet, so messages can say where.
 """
 
 from __future__ import annotations
 
-import codecs
-import csv
 import hashlib
 import re
 from dataclasses import dataclass, field
 from pathlib import Path
 
+import numpy as np
 import pandas as pd
 
 from .errors import InputError
+from .messages import say
+from .values import rows_phrase
 
 TEXT_SUFFIXES = {".csv", ".tsv", ".txt", ".tab"}
 EXCEL_SUFFIXES = {".xlsx", ".xlsm"}
 _SNIFF_BYTES = 256 * 1024
-_DECIMAL_COMMA = re.compile(r"(?:^|[;\t|])\s*-?\d+,\d+\s*(?=[;\t|]|$)", re.MULTILINE)
+_OLE = b"\xd0\xcf\x11\xe0\xa1\xb1\x1a\xe1"
+_OTHER_FILES = ((b"%PDF", "a PDF document"), (b"\x89PNG", "a PNG image"),
+                (b"\xff\xd8\xff", "a JPEG image"), (b"GIF8", "a GIF image"),
+                (b"\x1f\x8b", "a gzip-compressed file"), (b"7z\xbc\xaf", "a 7-Zip archive"),
+                (b"Rar!", "a RAR archive"), (b"SQLite format 3", "an SQLite database"),
+                (b"PAR1", "a Parquet file"), (b"{\\rtf", "an RTF document"))
+_NUMBERISH = re.compile(r"^[+-]?(\d+[.,]?\d*|[.,]\d+)([eE][+-]?\d+)?$")
 
 
 @dataclass(frozen=True)
@@ -37,10 +48,19 @@ class Provenance:
     delimiter: str | None = None
     decimal: str | None = None
     warnings: tuple[str, ...] = ()
+    header_row: int = 1  # spreadsheet row (1-based) that holds the column names
+    # Spreadsheet row number of every kept row (rows left out as empty are skipped).
+    row_numbers: np.ndarray | None = field(default=None, repr=False, compare=False)
 
     @property
     def short_fingerprint(self) -> str:
         return self.sha256[:12]
+
+    def row_of(self, position: int) -> int:
+        """The spreadsheet row number of the table's row at ``position`` (0-based)."""
+        if self.row_numbers is not None:
+            return int(self.row_numbers[position])
+        return self.header_row + 1 + int(position)
 
     def to_dict(self) -> dict:
         return {
@@ -53,6 +73,7 @@ class Provenance:
             "delimiter": self.delimiter,
             "decimal": self.decimal,
             "warnings": list(self.warnings),
+            "header_row": self.header_row,
         }
 
 
@@ -62,6 +83,14 @@ class LoadedTable:
 
     frame: pd.DataFrame = field(repr=False)
     provenance: Provenance
+
+    @property
+    def row_numbers(self) -> np.ndarray:
+        """Spreadsheet row number of each row of ``frame``, for messages."""
+        numbers = self.provenance.row_numbers
+        if numbers is None or len(numbers) != len(self.frame):
+            return np.arange(len(self.frame)) + self.provenance.header_row + 1
+        return numbers
 
 
 def file_sha256(path: str | Path) -> str:
@@ -74,62 +103,67 @@ def file_sha256(path: str | Path) -> str:
 
 
 def list_sheets(path: str | Path) -> list[str]:
-    """Names of the sheets of an XLSX workbook, in workbook order."""
+    """Names of the sheets of an XLSX workbook, in workbook order ([] for a text file)."""
     path = Path(path)
     _check_readable(path)
-    if path.suffix.lower() not in EXCEL_SUFFIXES:
+    if _file_kind(path, _read_head(path)) != "xlsx":
         return []
-    from openpyxl import load_workbook
+    from .xlsx import sheet_names
 
-    try:
-        book = load_workbook(path, read_only=True, data_only=True)
-    except Exception as exc:  # openpyxl raises many kinds for broken files
-        raise InputError(_broken_excel_message(path, exc)) from None
-    try:
-        return list(book.sheetnames)
-    finally:
-        book.close()
+    return sheet_names(path)
 
 
 def read_table(path: str | Path, sheet: str | None = None) -> LoadedTable:
-    """Read a CSV/TSV/XLSX file. ``sheet`` picks an XLSX sheet by name (default: the first)."""
+    """Read a CSV/TSV/XLSX file. ``sheet`` picks an XLSX sheet by name (default: the first).
+
+    Raises :class:`InputError` with a message saying what is wrong, where, and how to fix it.
+    """
     path = Path(path)
     _check_readable(path)
-    sha = file_sha256(path)
-    suffix = path.suffix.lower()
     head = _read_head(path)
-    if head.startswith(b"PK\x03\x04") and suffix not in EXCEL_SUFFIXES:
-        raise InputError(
-            f"{path.name} is an Excel workbook saved under a text name; rename it to end in "
-            ".xlsx, or save it from the spreadsheet program as CSV."
-        )
-    if suffix in EXCEL_SUFFIXES or head.startswith(b"PK\x03\x04"):
-        frame, used_sheet, warnings = _read_excel(path, sheet)
+    kind = _file_kind(path, head)
+    sha = file_sha256(path)
+    if kind == "xlsx":
+        from .xlsx import read_sheet
+
+        raw = read_sheet(path, sheet)
+        frame, rows, warnings = _tidy(raw.frame, raw.header, raw.row_numbers,
+                                      f"{path.name}, sheet {raw.sheet!r}", letters=True)
         provenance = Provenance(
-            path=str(path), sheet=used_sheet, sha256=sha, n_rows=len(frame),
-            n_columns=frame.shape[1], warnings=tuple(warnings),
+            path=str(path), sheet=raw.sheet, sha256=sha, n_rows=len(frame),
+            n_columns=frame.shape[1], warnings=tuple(raw.warnings + warnings),
+            header_row=raw.header_row, row_numbers=rows,
         )
         return LoadedTable(frame, provenance)
     if sheet is not None:
-        raise InputError(
-            f"{path.name} is a text file and has no sheets; leave out the sheet name."
-        )
-    frame, encoding, delimiter, decimal, warnings = _read_text(path, head)
+        raise InputError(say("read.text_has_no_sheets", file=path.name))
+    from .text_table import read_text
+
+    frame, rows, layout, warnings = read_text(path, head)
     provenance = Provenance(
         path=str(path), sheet=None, sha256=sha, n_rows=len(frame), n_columns=frame.shape[1],
-        encoding=encoding, delimiter=delimiter, decimal=decimal, warnings=tuple(warnings),
+        encoding=layout["encoding"], delimiter=layout["delimiter"], decimal=layout["decimal"],
+        warnings=tuple(warnings), header_row=layout["header_row"], row_numbers=rows,
     )
     return LoadedTable(frame, provenance)
 
 
-# --- text files -----------------------------------------------------------------------------
+# --- what kind of file ----------------------------------------------------------------------
 
 
 def _check_readable(path: Path) -> None:
     if not path.exists():
-        raise InputError(f"No file at {path}; check the path and the file name.")
+        raise InputError(say("read.no_file", path=str(path)))
     if path.is_dir():
-        raise InputError(f"{path} is a folder; choose a spreadsheet file inside it.")
+        raise InputError(say("read.folder", path=str(path)))
+    try:
+        with open(path, "rb"):
+            pass
+    except OSError as exc:
+        raise InputError(say("read.cannot_open", file=path.name,
+                             reason=exc.strerror or type(exc).__name__)) from None
+    if path.stat().st_size == 0:
+        raise InputError(say("read.zero_bytes", file=path.name))
 
 
 def _read_head(path: Path) -> bytes:
@@ -137,195 +171,155 @@ def _read_head(path: Path) -> bytes:
         return handle.read(_SNIFF_BYTES)
 
 
-def _detect_encoding(head: bytes, path: Path) -> tuple[str, list[str]]:
-    if head.startswith(b"\xef\xbb\xbf"):
-        return "utf-8-sig", []
-    if head.startswith((b"\xff\xfe", b"\xfe\xff")):
-        return "utf-16", ["The file is UTF-16 encoded; it was read as such."]
-    try:
-        # A cut in the middle of a multi-byte character at the sample's end is not an error.
-        head.decode("utf-8")
-        whole_ok = True
-    except UnicodeDecodeError as exc:
-        whole_ok = exc.start >= len(head) - 3
-    if whole_ok:
-        try:
-            _decode_whole(path, "utf-8")
-            return "utf-8", []
-        except UnicodeDecodeError:
-            pass
-    try:
-        _decode_whole(path, "cp1252")
-        return "cp1252", [
-            f"{path.name} is not UTF-8; it was read as Windows-1252 (Western European). "
-            "If accented letters look wrong, save the file as UTF-8 and open it again."
-        ]
-    except UnicodeDecodeError:
-        return "latin-1", [
-            f"{path.name} is not UTF-8; it was read as Latin-1. If letters look wrong, save "
-            "the file as UTF-8 and open it again."
-        ]
+def _file_kind(path: Path, head: bytes) -> str:
+    """'xlsx' or 'text'; refuses files that are neither, saying what they look like."""
+    suffix = path.suffix.lower()
+    if head.startswith(b"PK\x03\x04"):
+        if suffix in EXCEL_SUFFIXES:
+            return "xlsx"
+        if b"xl/" in head[:65536] or b"[Content_Types].xml" in head[:65536]:
+            raise InputError(say("read.workbook_with_text_name", file=path.name))
+        raise InputError(say("read.other_file", file=path.name, what="a zip archive"))
+    if head.startswith(_OLE):
+        if b"E\x00n\x00c\x00r\x00y\x00p\x00t\x00e\x00d\x00P\x00a\x00c\x00k\x00a\x00g\x00e" in head:
+            raise InputError(say("read.encrypted", file=path.name))
+        raise InputError(say("read.ole", file=path.name))
+    for signature, what in _OTHER_FILES:
+        if head.startswith(signature):
+            raise InputError(say("read.other_file", file=path.name, what=what))
+    if suffix in EXCEL_SUFFIXES:
+        if _looks_textual(head):
+            raise InputError(say("read.text_with_workbook_name", file=path.name))
+        raise InputError(say("xlsx.damaged", file=path.name))
+    return "text"
 
 
-def _decode_whole(path: Path, encoding: str) -> None:
-    decoder = codecs.getincrementaldecoder(encoding)()
-    with open(path, "rb") as handle:
-        for block in iter(lambda: handle.read(1 << 22), b""):
-            decoder.decode(block)
-    decoder.decode(b"", final=True)
+def _looks_textual(head: bytes) -> bool:
+    return b"\x00" not in head[:8192] and _binary_share(head) < 0.01
 
 
-def _sniff(sample: str, path: Path) -> tuple[str, str, list[str]]:
-    """Delimiter and decimal separator of a text table."""
-    warnings: list[str] = []
-    lines = [line for line in sample.splitlines() if line.strip()][:50]
-    if not lines:
-        raise InputError(f"{path.name} is empty; choose a file that holds a table.")
-    text = "\n".join(lines)
-    delimiter = None
-    try:
-        delimiter = csv.Sniffer().sniff(text, delimiters=",;\t|").delimiter
-    except csv.Error:
-        pass
-    if delimiter is None:
-        # Sniffer gives up on one-column files and on ragged ones; count on the header.
-        counts = {d: lines[0].count(d) for d in ",;\t|"}
-        best = max(counts, key=counts.get)
-        delimiter = best if counts[best] > 0 else ","
-    decimal = "."
-    if delimiter in ";\t|" and _DECIMAL_COMMA.search(text):
-        decimal = ","
-    return delimiter, decimal, warnings
-
-
-def _read_text(path: Path, head: bytes):
-    if b"\x00" in head[:8192] and not head.startswith((b"\xff\xfe", b"\xfe\xff")):
-        raise InputError(
-            f"{path.name} does not look like a text spreadsheet (it holds binary data); "
-            "open the original file or save it as CSV from the spreadsheet program."
-        )
-    if not head.strip():
-        raise InputError(f"{path.name} is empty; choose a file that holds a table.")
-    encoding, warnings = _detect_encoding(head, path)
-    sample = head.decode(encoding if encoding != "utf-8-sig" else "utf-8-sig", errors="ignore")
-    delimiter, decimal, more = _sniff(sample, path)
-    warnings += more
-    try:
-        frame = pd.read_csv(
-            path, sep=delimiter, decimal=decimal, encoding=encoding, keep_default_na=False,
-            na_values=[""], skip_blank_lines=True, engine="c", low_memory=False,
-        )
-    except pd.errors.EmptyDataError:
-        raise InputError(f"{path.name} is empty; choose a file that holds a table.") from None
-    except pd.errors.ParserError as exc:
-        raise InputError(
-            f"{path.name} could not be read as a table ({_first_line(exc)}); check that every "
-            "row has the same number of cells, or save the sheet again as CSV."
-        ) from None
-    frame, tidy = _tidy(frame, path.name)
-    return frame, encoding, delimiter, decimal, warnings + tidy
-
-
-# --- workbooks ------------------------------------------------------------------------------
-
-
-def _broken_excel_message(path: Path, exc: Exception) -> str:
-    text = str(exc).lower()
-    if "encrypt" in text or "password" in text:
-        return (
-            f"{path.name} is protected with a password; remove the protection in the "
-            "spreadsheet program and save a copy."
-        )
-    return (
-        f"{path.name} could not be opened as an Excel workbook (the file is damaged or not "
-        "really XLSX); open it in the spreadsheet program and save it again, or save as CSV."
-    )
-
-
-def _read_excel(path: Path, sheet: str | None):
-    import zipfile
-
-    with open(path, "rb") as handle:
-        signature = handle.read(8)
-    if signature.startswith(b"\xd0\xcf\x11\xe0"):
-        # An OLE container in .xlsx clothing is how password-protected workbooks are stored.
-        raise InputError(
-            f"{path.name} is protected with a password (or is an old .xls file); remove the "
-            "protection or save it as .xlsx in the spreadsheet program."
-        )
-    if not zipfile.is_zipfile(path):
-        raise InputError(_broken_excel_message(path, ValueError("not a zip")))
-    sheets = list_sheets(path)
-    if not sheets:
-        raise InputError(f"{path.name} holds no sheets; choose another workbook.")
-    if sheet is None:
-        used = sheets[0]
-    elif sheet in sheets:
-        used = sheet
+def _binary_share(head: bytes) -> float:
+    """Share of control characters (other than tab, CR, LF, FF) in the first 8 KB."""
+    chunk = head[:8192]
+    if chunk.startswith((b"\xff\xfe", b"\xfe\xff")):
+        text = chunk.decode("utf-16", errors="replace")
     else:
-        raise InputError(
-            f"{path.name} has no sheet called {sheet!r}; its sheets are: "
-            + ", ".join(repr(s) for s in sheets) + "."
-        )
+        text = chunk.decode("utf-8", errors="ignore") if _is_utf8(chunk) else \
+            chunk.decode("cp1252", errors="replace")
+    if not text:
+        return 0.0
+    control = sum(1 for ch in text if (ord(ch) < 32 and ch not in "\t\r\n\f") or
+                  ord(ch) == 0x7F)
+    return control / len(text)
+
+
+def _is_utf8(chunk: bytes) -> bool:
     try:
-        frame = pd.read_excel(path, sheet_name=used, engine="openpyxl", keep_default_na=False,
-                              na_values=[""])
-    except Exception as exc:
-        raise InputError(_broken_excel_message(path, exc)) from None
-    frame, warnings = _tidy(frame, f"{path.name}, sheet {used!r}")
-    if len(sheets) > 1 and sheet is None:
-        warnings.insert(0, f"The workbook has {len(sheets)} sheets; the first, {used!r}, was "
-                           "read. Choose another sheet by name if that is not the data.")
-    return frame, used, warnings
+        chunk.decode("utf-8")
+        return True
+    except UnicodeDecodeError as exc:
+        return exc.start >= len(chunk) - 3  # a character cut at the sample's end is fine
+
+
+# --- where the header is -------------------------------------------------------------------
+
+
+def _header_index(records: list[list], width: int, path: Path, where: str = "") -> int:
+    """The first record that looks like column names: filled enough, and mostly words."""
+    where = where or path.name
+    need = max(1, int(np.ceil(0.5 * width)))
+    filled = [[str(c).strip() for c in r if c is not None and str(c).strip()]
+              for r in records[:31]]
+    for index, cells in enumerate(filled[:30]):
+        if len(cells) < need:
+            continue
+        later = next((f for f in filled[index + 1:] if f), [])
+        if width > 1 and len(cells) == 1 and len(later) >= 2:
+            continue  # a title above a wider table
+        words = [c for c in cells if not _NUMBERISH.match(c)]
+        if not words:
+            raise InputError(say("read.no_header", where=where, row=index + 1,
+                                 examples=", ".join(cells[:4])))
+        if len(words) >= 0.5 * len(cells):
+            return index
+    for index, record in enumerate(records):
+        if any(str(c).strip() for c in record if c is not None):
+            return index
+    raise InputError(say("read.zero_bytes", file=path.name))
 
 
 # --- common tidying -------------------------------------------------------------------------
 
 
-def _tidy(frame: pd.DataFrame, where: str) -> tuple[pd.DataFrame, list[str]]:
-    """Drop fully empty trailing rows/columns and report odd headers."""
+def _span(first: int, count: int) -> str:
+    return f"row {first}" if count <= 1 else f"rows {first}–{first + count - 1}"
+
+
+def column_name_at(position: int, letters: bool) -> str:
+    """How a spreadsheet names the column at ``position`` (0-based): 'C' or 'column 3'."""
+    if letters:
+        from openpyxl.utils import get_column_letter
+
+        return get_column_letter(position + 1)
+    return str(position + 1)
+
+
+def _clean_header(value) -> str:
+    if value is None or (isinstance(value, float) and np.isnan(value)):
+        return ""
+    if isinstance(value, float) and value == int(value):
+        value = int(value)
+    return re.sub(r"\s+", " ", str(value)).strip()
+
+
+def _tidy(frame: pd.DataFrame, header: list, rows: np.ndarray, where: str,
+          letters: bool = False) -> tuple[pd.DataFrame, np.ndarray, list[str]]:
+    """Name columns from ``header``, drop empty rows/columns, and report odd headers."""
     warnings: list[str] = []
-    empty_cols = [c for c in frame.columns if str(c).startswith("Unnamed:") and
-                  frame[c].isna().all()]
-    if empty_cols:
-        frame = frame.drop(columns=empty_cols)
-        warnings.append(f"{len(empty_cols)} empty column(s) without a header were left out.")
-    before = len(frame)
-    frame = frame.dropna(how="all")
-    if len(frame) < before:
-        warnings.append(f"{before - len(frame)} empty row(s) were left out.")
+    names = [_clean_header(h) for h in header]
+    frame = frame.copy(deep=False)
+    frame.columns = range(frame.shape[1])
+    empty = frame.isna().all(axis=0).to_numpy()
+    drop = [j for j in range(frame.shape[1]) if empty[j] and not names[j]]
+    if drop:
+        frame = frame.drop(columns=drop)
+        warnings.append(say("read.empty_columns", n=len(drop), where=where,
+                            columns=", ".join(column_name_at(j, letters) for j in drop[:8])))
+    kept = [j for j in range(len(names)) if j not in set(drop)]
+    names = [names[j] for j in kept]
+    blank_rows = frame.isna().all(axis=1).to_numpy()
+    if blank_rows.any():
+        frame = frame.loc[~blank_rows]
+        warnings.append(say("read.empty_rows", n=int(blank_rows.sum()), where=where,
+                            rows=rows_phrase(rows[blank_rows])))
+        rows = rows[~blank_rows]
     frame = frame.reset_index(drop=True)
-    names = [str(c) for c in frame.columns]
-    blank = [i + 1 for i, c in enumerate(names) if c.startswith("Unnamed:")]
+    if frame.shape[1] == 0:
+        raise InputError(say("read.no_columns", where=where))
+    blank = [i for i, n in enumerate(names) if not n]
     if blank:
-        warnings.append(
-            "Column(s) " + ", ".join(map(str, blank)) + " have no header; they were named "
-            "'column N'. Give every column a header in the spreadsheet to name them yourself."
-        )
-        names = [f"column {i + 1}" if c.startswith("Unnamed:") else c for i, c in enumerate(names)]
-    stripped = [c.strip() for c in names]
+        labels = [column_name_at(kept[i], letters) for i in blank]
+        for i, label in zip(blank, labels):
+            names[i] = f"column {label}"
+        warnings.append(say("read.blank_headers", where=where, columns=", ".join(labels[:8])))
     seen: dict[str, int] = {}
     final = []
-    for name in stripped:
-        if name in seen:
-            seen[name] += 1
-            new = f"{name} ({seen[name]})"
-            warnings.append(f"The header {name!r} appears more than once; the repeat was "
-                            f"renamed {new!r}. Rename one of them in the spreadsheet.")
+    for index, name in enumerate(names):
+        key = name
+        if key in seen:
+            seen[key] += 1
+            new = f"{name} ({seen[key]})"
+            warnings.append(say("read.duplicate_header", where=where, name=name, new=new,
+                                column=column_name_at(kept[index], letters)))
             final.append(new)
         else:
-            seen[name] = 1
+            seen[key] = 1
             final.append(name)
     frame.columns = final
-    if frame.shape[1] == 0:
-        raise InputError(f"{where} holds no columns; choose a file that holds a table.")
     if len(frame) == 0:
-        raise InputError(
-            f"{where} has a header but no rows of data; choose the file that holds the patients."
-        )
-    return frame, warnings
+        raise InputError(say("read.header_only", where=where))
+    return frame, np.asarray(rows, dtype=np.int64), warnings
 
 
 def _first_line(exc: Exception) -> str:
     return str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
-

@@ -10,8 +10,9 @@ data as JSON or CSV.
 from __future__ import annotations
 
 import csv
+import io
 import json
-import re
+from collections.abc import Sequence
 from dataclasses import asdict, dataclass, field, replace
 from pathlib import Path
 
@@ -19,9 +20,9 @@ import numpy as np
 import pandas as pd
 
 from .errors import InputError
+from .messages import say
 from .values import (
-    YES_WORDS, is_missing_text, level_text, parse_dates, parse_levels, parse_numbers,
-    yes_no_levels,
+    YES_WORDS, counted, is_missing_text, level_text, parse_levels, parse_numbers,
 )
 
 ROLES = ("outcome", "predictor", "patient_id", "site", "ignore")
@@ -29,13 +30,21 @@ KINDS = ("numeric", "binary", "ordinal", "nominal", "identifier", "date", "text"
 CATEGORY_KINDS = ("binary", "ordinal", "nominal")
 PREDICTOR_KINDS = ("numeric",) + CATEGORY_KINDS
 DICTIONARY_FORMAT = "prunella-dictionary/1"
+DICTIONARY_VERSIONS = (1,)  # versions this Prunella reads
 MAX_NOMINAL_LEVELS = 40
 
-_ORDINAL_HINT = re.compile(r"(level|grade|score|stage|class|category|triage|scale|rank)", re.I)
-_SITE_HINT = re.compile(r"(site|campus|hospital|centre|center|clinic|facility)", re.I)
-_PATIENT_HINT = re.compile(r"(patient|person|subject|mrn|nhs|medical.?record|client)", re.I)
-_ID_HINT = re.compile(r"(^id$|_id$|^id_|\bid\b|number|record|^no$|code$)", re.I)
-_UNIT_IN_HEADER = re.compile(r"^(?P<label>.*?)\s*[\(\[](?P<unit>[^\)\]]{1,20})[\)\]]\s*$")
+
+
+def _text_list(value, key: str, name: str) -> tuple[str, ...]:
+    if value is None:
+        return ()
+    if isinstance(value, str):
+        return tuple(v for v in value.split("|") if v != "")
+    if not isinstance(value, (list, tuple)) or \
+            not all(isinstance(v, (str, int, float)) and not isinstance(v, bool) for v in value):
+        raise InputError(say("dictionary.bad_field", column=name, key=key,
+                             expected="a list of texts"))
+    return tuple(str(v) for v in value)
 
 
 @dataclass(frozen=True)
@@ -59,6 +68,10 @@ class ColumnSpec:
         if self.kind not in KINDS:
             raise InputError(f"Column {self.name!r}: kind {self.kind!r} is not one of "
                              + ", ".join(KINDS) + ".")
+        if len(set(self.levels)) != len(self.levels):
+            twice = sorted({lv for lv in self.levels if self.levels.count(lv) > 1})
+            raise InputError(say("dictionary.repeated_levels", column=self.name,
+                                 levels=", ".join(repr(lv) for lv in twice)))
 
     @property
     def display(self) -> str:
@@ -72,19 +85,28 @@ class ColumnSpec:
 
     @classmethod
     def from_dict(cls, data: dict) -> "ColumnSpec":
-        if "name" not in data:
+        """An entry from saved data; wrong types are refused naming the column and field."""
+        if not isinstance(data, dict):
+            raise InputError(say("dictionary.entry_not_object", found=type(data).__name__))
+        if not isinstance(data.get("name"), str) or not data["name"]:
             raise InputError("A column in the data dictionary has no 'name'; add one.")
+        name = data["name"]
         known = {f for f in cls.__dataclass_fields__}
         clean = {k: v for k, v in data.items() if k in known}
         for key in ("missing_codes", "levels"):
             if key in clean:
-                value = clean[key]
-                if isinstance(value, str):
-                    value = [v for v in value.split("|") if v != ""] if value else []
-                clean[key] = tuple(str(v) for v in (value or ()))
+                clean[key] = _text_list(clean[key], key, name)
+        for key in ("role", "kind", "label", "unit", "note", "positive"):
+            value = clean.get(key)
+            if value is not None and not isinstance(value, str):
+                raise InputError(say("dictionary.bad_field", column=name, key=key,
+                                     expected="a text"))
         for key in ("label", "unit", "note"):
             if clean.get(key) is None:
                 clean[key] = ""
+        for key in ("role", "kind"):
+            if clean.get(key) in ("", None):
+                clean.pop(key, None)
         if clean.get("positive") in ("", None):
             clean["positive"] = None
         return cls(**clean)
@@ -131,12 +153,15 @@ class DataDictionary:
         return {"format": DICTIONARY_FORMAT, "columns": [c.to_dict() for c in self.columns]}
 
     @classmethod
-    def from_dict(cls, data: dict) -> "DataDictionary":
-        if not isinstance(data, dict) or data.get("format") != DICTIONARY_FORMAT:
-            raise InputError(f"This is not a Prunella data dictionary (expected format "
-                             f"{DICTIONARY_FORMAT!r}); choose the dictionary file saved "
-                             "with the data.")
-        return cls(tuple(ColumnSpec.from_dict(c) for c in data.get("columns", [])))
+    def from_dict(cls, data: dict, name: str = "The data dictionary") -> "DataDictionary":
+        """A dictionary from parsed JSON; refuses other files, other versions, wrong types."""
+        from .safe_files import check_format
+
+        check_format(data, "dictionary", DICTIONARY_VERSIONS, name)
+        columns = data.get("columns", [])
+        if not isinstance(columns, list):
+            raise InputError(say("dictionary.columns_not_list", file=name))
+        return cls(tuple(ColumnSpec.from_dict(c) for c in columns))
 
     def save(self, path: str | Path) -> None:
         """Save as JSON (``.json``) or CSV (any other suffix), atomically."""
@@ -151,8 +176,6 @@ class DataDictionary:
         for c in self.columns:
             rows.append([c.name, c.role, c.kind, c.label, c.unit, "|".join(c.missing_codes),
                          "|".join(c.levels), c.positive or "", c.note])
-        import io
-
         buffer = io.StringIO()
         csv.writer(buffer, lineterminator="\n").writerows(rows)
         write_text_atomic(path, buffer.getvalue())
@@ -163,130 +186,26 @@ class DataDictionary:
         path = Path(path)
         if not path.exists():
             raise InputError(f"No data dictionary at {path}; check the path.")
-        text = path.read_text(encoding="utf-8-sig")
         if path.suffix.lower() == ".json":
-            try:
-                data = json.loads(text)
-            except json.JSONDecodeError as exc:
-                raise InputError(f"{path.name} is not valid JSON (line {exc.lineno}); fix it "
-                                 "or save the dictionary again from Prunella.") from None
-            return cls.from_dict(data)
-        rows = list(csv.DictReader(text.splitlines()))
+            from .safe_files import read_json_document
+
+            data = read_json_document(path, "dictionary", DICTIONARY_VERSIONS)
+            return cls.from_dict(data, path.name)
+        try:
+            text = path.read_text(encoding="utf-8-sig")
+            rows = list(csv.DictReader(io.StringIO(text, newline="")))
+        except (UnicodeDecodeError, OSError, csv.Error):
+            raise InputError(say("dictionary.csv_unreadable", file=path.name)) from None
         if not rows or "name" not in rows[0]:
             raise InputError(f"{path.name} has no 'name' column; a dictionary CSV needs the "
                              "columns name, role, kind, label, unit, missing_codes, levels.")
         return cls(tuple(ColumnSpec.from_dict(r) for r in rows))
 
 
-# --- inference ------------------------------------------------------------------------------
-
-
-def _label_and_unit(name: str) -> tuple[str, str]:
-    match = _UNIT_IN_HEADER.match(name)
-    if match and match.group("label"):
-        label, unit = match.group("label"), match.group("unit").strip()
-    else:
-        label, unit = name, ""
-    label = re.sub(r"[_\.]+", " ", label).strip()
-    if label and label == label.lower():
-        label = label[0].upper() + label[1:]
-    return label or name, unit
-
-
-def infer_column(name: str, values: pd.Series) -> tuple[ColumnSpec, list[str]]:
-    """A sensible dictionary entry for one column, and notes on what was decided and why."""
-    notes: list[str] = []
-    label, unit = _label_and_unit(name)
-    missing = is_missing_text(values)
-    present = values[~missing]
-    n_present = len(present)
-    base = dict(name=name, label=label, unit=unit)
-    if n_present == 0:
-        notes.append(f"{name!r} has no recorded values; it is left out.")
-        return ColumnSpec(kind="numeric", role="ignore", note="no recorded values", **base), notes
-    if pd.api.types.is_datetime64_any_dtype(values.dtype):
-        return ColumnSpec(kind="date", role="ignore", note="date", **base), notes
-
-    numbers = parse_numbers(values, label=name)
-    readable_share = 1.0 - numbers.n_unreadable / n_present
-    n_unique = int(pd.Series(level_text(present)).nunique())
-    if readable_share >= 0.95:
-        finite = numbers.values[~np.isnan(numbers.values)]
-        distinct = np.unique(finite)
-        if len(distinct) <= 1:
-            notes.append(f"{name!r} has the same value in every row; it is left out.")
-            return ColumnSpec(kind="numeric", role="ignore", note="constant", **base), notes
-        if set(distinct.tolist()) <= {0.0, 1.0}:
-            return ColumnSpec(kind="binary", levels=("0", "1"), **base), notes
-        whole = bool(np.all(distinct == np.round(distinct)))
-        # A negative code such as -99 in a column whose other values are all >= 0.
-        sentinels = tuple(str(int(v)) for v in distinct if v in (-9, -99, -999, -9999)
-                          and not (finite[finite != v] < 0).any()
-                          and np.sum(finite == v) < 0.5 * len(finite))
-        if sentinels:
-            notes.append(f"{name!r}: the value {', '.join(sentinels)} looks like a code for "
-                         "'not recorded' and is treated as missing; remove it from the "
-                         "column's missing-value codes if it is a real value.")
-        if whole and len(distinct) <= 10 and _ORDINAL_HINT.search(name):
-            levels = tuple(str(int(v)) for v in distinct if str(int(v)) not in sentinels)
-            return ColumnSpec(kind="ordinal", levels=levels, missing_codes=sentinels,
-                              **base), notes
-        if whole and n_unique == n_present and n_present >= 20 and _ID_HINT.search(name):
-            notes.append(f"{name!r} is different in every row, like a record number; it is "
-                         "left out of the predictors.")
-            return ColumnSpec(kind="identifier", role="ignore", **base), notes
-        if numbers.notes:
-            notes.extend(numbers.notes)
-        return ColumnSpec(kind="numeric", missing_codes=sentinels, **base), notes
-
-    text = level_text(present)
-    folded = text.str.casefold()
-    levels_seen = list(pd.unique(folded))
-    if len(levels_seen) == 2 or yes_no_levels(levels_seen):
-        if yes_no_levels(levels_seen):
-            spellings = pd.unique(text)
-            if len(spellings) > 2:
-                notes.append(f"{name!r} writes yes and no in several ways ("
-                             + ", ".join(repr(s) for s in spellings[:6])
-                             + "); they were read as 'yes' and 'no'.")
-            return ColumnSpec(kind="binary", levels=("no", "yes"), positive=None, **base), notes
-        levels = _canonical_levels(text)
-        role = "site" if _SITE_HINT.search(name) else "predictor"
-        return ColumnSpec(kind="binary", levels=tuple(levels), role=role, **base), notes
-    if n_unique >= 0.95 * n_present and n_present >= 20:
-        dates = parse_dates(present)
-        if dates.notna().mean() >= 0.9:
-            return ColumnSpec(kind="date", role="ignore", note="date", **base), notes
-        notes.append(f"{name!r} is different in (almost) every row, like an identifier; it is "
-                     "left out of the predictors.")
-        return ColumnSpec(kind="identifier", role="ignore", **base), notes
-    dates = parse_dates(present) if text.str.contains(r"\d[-/.]\d", regex=True).mean() > 0.9 else None
-    if dates is not None and dates.notna().mean() >= 0.9:
-        return ColumnSpec(kind="date", role="ignore", note="date", **base), notes
-    if _PATIENT_HINT.search(name) and n_unique < n_present:
-        notes.append(f"{name!r} looks like a patient identifier with repeat visits; "
-                     "cross-validation will keep each patient's visits together.")
-        return ColumnSpec(kind="identifier", role="patient_id", **base), notes
-    levels = _canonical_levels(text)
-    if len(levels) > MAX_NOMINAL_LEVELS:
-        notes.append(f"{name!r} has {len(levels)} different texts, too many for a chart "
-                     "question; it is left out (group the texts into fewer categories to use it).")
-        return ColumnSpec(kind="text", role="ignore", **base), notes
-    if readable_share < 0.95 and numbers.n_unreadable < n_present and readable_share > 0.5:
-        notes.append(f"{name!r} mixes numbers and words; it is treated as categories. If it "
-                     "should be a number, correct the words or mark them as missing codes.")
-    role = "site" if _SITE_HINT.search(name) and len(levels) >= 2 else "predictor"
-    if len(set(folded)) < len(set(text)):
-        notes.append(f"{name!r} spells some categories with different capitals; they were "
-                     "merged.")
-    return ColumnSpec(kind="nominal", levels=tuple(levels), role=role, **base), notes
-
-
 def _canonical_levels(text: pd.Series) -> list[str]:
     """Distinct levels, merging case variants under their most frequent spelling."""
-    counts = text.value_counts()
     chosen: dict[str, str] = {}
-    for spelling in counts.index:  # most frequent first
+    for spelling in counted(text)[0]:  # most frequent first
         chosen.setdefault(str(spelling).casefold(), str(spelling))
     return sorted(chosen.values(), key=_natural_key)
 
@@ -298,14 +217,24 @@ def _natural_key(level: str):
         return (1, 0.0, level.casefold())
 
 
-def infer_dictionary(frame: pd.DataFrame) -> tuple[DataDictionary, list[str]]:
-    """Infer a dictionary entry for every column; returns the dictionary and notes."""
-    specs, notes = [], []
-    for name in frame.columns:
-        spec, col_notes = infer_column(str(name), frame[name])
-        specs.append(spec)
-        notes.extend(col_notes)
-    return DataDictionary(tuple(specs)), notes
+def infer_column(name: str, values: pd.Series,
+                 rows: Sequence[int] | np.ndarray | None = None) -> tuple[ColumnSpec, list[str]]:
+    """A sensible dictionary entry for one column, and notes (see core/inference.py)."""
+    from .inference import infer_column as infer
+
+    return infer(name, values, rows)
+
+
+def infer_dictionary(frame: pd.DataFrame, row_numbers: Sequence[int] | np.ndarray | None = None,
+                     ) -> tuple[DataDictionary, list[str]]:
+    """Infer a dictionary entry for every column; returns the dictionary and notes.
+
+    ``row_numbers`` (e.g. ``LoadedTable.row_numbers``) lets the notes say which rows.
+    Implemented in core/inference.py.
+    """
+    from .inference import infer_dictionary as infer
+
+    return infer(frame, row_numbers)
 
 
 def merge_dictionary(inferred: DataDictionary, given: DataDictionary) -> tuple[DataDictionary, list[str]]:
@@ -315,8 +244,9 @@ def merge_dictionary(inferred: DataDictionary, given: DataDictionary) -> tuple[D
     merged = tuple(given.get(c.name) if c.name in given_names else c for c in inferred.columns)
     absent = [n for n in given.names if n not in inferred]
     if absent:
-        notes.append("The data dictionary describes column(s) that are not in the data: "
-                     + ", ".join(map(repr, absent)) + "; they were skipped.")
+        notes.append(say("dictionary.absent_columns",
+                         columns=", ".join(map(repr, absent[:20]))
+                         + (" …" if len(absent) > 20 else "")))
     return DataDictionary(merged), notes
 
 
@@ -341,8 +271,9 @@ class TypedColumn:
 
 def typed_column(values: pd.Series, spec: ColumnSpec) -> TypedColumn:
     """Parse one column according to its dictionary entry."""
+    # Notes name the column by its header, as the user finds it in the spreadsheet.
     if spec.kind == "numeric":
-        parsed = parse_numbers(values, spec.missing_codes, spec.display)
+        parsed = parse_numbers(values, spec.missing_codes, spec.name)
         return TypedColumn(spec, numbers=parsed.values, notes=parsed.notes)
     if spec.kind in CATEGORY_KINDS:
         levels = spec.levels
@@ -350,7 +281,7 @@ def typed_column(values: pd.Series, spec: ColumnSpec) -> TypedColumn:
             present = level_text(values[~is_missing_text(values, spec.missing_codes)])
             levels = tuple(_canonical_levels(present))
             spec = replace(spec, levels=levels)
-        cat, notes = parse_levels(values, levels, spec.missing_codes, spec.display)
+        cat, notes = parse_levels(values, levels, spec.missing_codes, spec.name)
         return TypedColumn(spec, codes=np.asarray(cat.codes, dtype=np.int32), notes=notes)
     raise InputError(f"Column {spec.display!r} is of kind {spec.kind!r}, which cannot be used "
                      "in a tree; set its kind to numeric, binary, ordinal or nominal.")

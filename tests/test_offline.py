@@ -1,0 +1,96 @@
+"""Offline by design: loading, fitting, checking, charting and reporting open no network socket.
+
+Every way a Python program reaches the network goes through the ``socket`` module (HTTP
+libraries included), so the test replaces its constructors and resolvers with ones that fail
+loudly, then runs the whole workflow in this process on the invented demo cohort.
+"""
+
+from __future__ import annotations
+
+import importlib.util
+import socket
+from pathlib import Path
+
+import pytest
+
+ROOT = Path(__file__).resolve().parents[1]
+DEMO = ROOT / "sample_data"
+
+
+class NetworkUsed(AssertionError):
+    pass
+
+
+@pytest.fixture
+def no_network(monkeypatch):
+    attempts = []
+
+    def refuse(*args, **kwargs):
+        attempts.append(args)
+        raise NetworkUsed(f"network access attempted: {args!r}")
+
+    class NoSocket(socket.socket):
+        def __init__(self, *args, **kwargs):
+            refuse("socket", *args)
+
+    for name in ("create_connection", "getaddrinfo", "gethostbyname", "gethostbyname_ex",
+                 "socketpair", "create_server", "fromfd"):
+        monkeypatch.setattr(socket, name, refuse)
+    monkeypatch.setattr(socket, "socket", NoSocket)
+    monkeypatch.setattr(socket.socket, "connect", refuse, raising=False)
+    return attempts
+
+
+def test_the_whole_workflow_opens_no_socket(no_network, tmp_path):
+    from core.derive import DerivationRequest, derive
+    from core.design import DesignSpec
+    from core.guards import guard_design
+    from core.model import TreeModel
+    from core.report import prepare_report, write_report
+    from core.resample import CVSettings
+    from core.safe_files import write_csv_safely
+    from core.table import read_table
+    from core.validate import check_table
+    from core.variables import DataDictionary, infer_dictionary, merge_dictionary
+
+    table = read_table(DEMO / "breathless_ed.xlsx", sheet="visits")
+    inferred, _ = infer_dictionary(table.frame, table.row_numbers)
+    dictionary, _ = merge_dictionary(inferred, DataDictionary.load(
+        DEMO / "breathless_ed.dictionary.json"))
+    predictors = tuple(c.name for c in dictionary.by_role("predictor"))
+    design = DesignSpec("admitted", predictors, patient_id="patient_id")
+    report = guard_design(table.frame, dictionary, design)
+    north = table.frame["campus"] == "North"
+    derivation = derive(table, dictionary,
+                        DerivationRequest(report.design, cv=CVSettings(folds=5), holdout=0.25))
+    model = derivation.model
+    model.save(tmp_path / "model.json")
+    model = TreeModel.load(tmp_path / "model.json")
+    scored = model.apply(table.frame)
+    write_csv_safely(table.frame.assign(box=scored.leaf), tmp_path / "scored.csv")
+    csv_table = read_table(DEMO / "breathless_ed.csv")
+    check = check_table(model, csv_table, source="the demo file again")
+    assert check is not None and north.any()
+    contents = prepare_report(derivation, external=(check,), nested=True, outer_folds=2,
+                              bootstrap=2)
+    write_report(contents, tmp_path / "report.pdf")
+    assert (tmp_path / "report.pdf").read_bytes().startswith(b"%PDF")
+    if importlib.util.find_spec("core.chart") is not None and \
+            importlib.util.find_spec("core.chart.pdf") is not None:
+        from core.chart import write_chart
+
+        write_chart(model, tmp_path / "chart.pdf")
+        assert (tmp_path / "chart.pdf").read_bytes().startswith(b"%PDF")
+    assert no_network == []
+
+
+def test_the_guard_really_catches_a_socket(no_network):
+    with pytest.raises(NetworkUsed):
+        socket.create_connection(("192.0.2.1", 80), timeout=0.1)
+    with pytest.raises(NetworkUsed):
+        socket.socket(socket.AF_INET, socket.SOCK_STREAM)
+    import urllib.request
+
+    with pytest.raises(Exception):
+        urllib.request.urlopen("http://192.0.2.1/", timeout=0.1)
+    assert len(no_network) == 3
