@@ -119,33 +119,33 @@ ELSEWHERE = [
     ("pathcv.size_word", "refused", "The tree size must be '1se', 'min' or a number of leaves, "
      "not {size!r}.", "Use 1se, min or a number.", "core/pathcv.py"),
     ("cli.output_is_input", "refused", "{target} is an input file; choose another name for the "
-     "output so the input stays unchanged.", "Write results to a new file.", "core/cli.py"),
+     "output so the input stays unchanged.", "Write results to a new file.", "core/cli/common.py"),
     ("cli.priors", "refused", "--priors must be observed, equal, or numbers separated by "
-     "commas (one per class).", "For example --priors 0.7,0.3.", "core/cli.py"),
+     "commas (one per class).", "For example --priors 0.7,0.3.", "core/cli/fit.py"),
     ("cli.size", "refused", "--size must be 1se, min or a number of leaves.",
-     "For example --size 1se or --size 4.", "core/cli.py"),
+     "For example --size 1se or --size 4.", "core/cli/fit.py"),
     ("cli.report_needs_pdf", "refused", "--out must name a PDF file (ending in .pdf).",
-     "Give an output name ending in .pdf.", "core/cli.py"),
+     "Give an output name ending in .pdf.", "core/cli/checking.py"),
     ("cli.bootstrap", "refused", "--bootstrap must be 0 (none) or a positive number of "
-     "resamples.", "200 is usual.", "core/cli.py"),
+     "resamples.", "200 is usual.", "core/cli/checking.py"),
     ("cli.report_data_differs", "warning", "The data file's SHA-256 ({found}...) differs from "
      "the one the model was fitted on ({expected}...): this report re-derives the tree from the "
      "data given, which is not the model's data.",
-     "Give the report the data file the model was fitted on.", "core/cli.py"),
+     "Give the report the data file the model was fitted on.", "core/cli/checking.py"),
     ("cli.report_no_settings", "refused", "The model file holds no derivation settings, so "
      "the derivation cannot be rerun for the report; fit the model again with Prunella.",
-     "Fit the model again.", "core/cli.py"),
+     "Fit the model again.", "core/cli/checking.py"),
     ("cli.report_tree_differs", "warning", "The tree re-derived from the data differs from the "
      "tree in the model file; the report describes the re-derived tree.",
      "Check that the data and the Prunella version are those the model was fitted with.",
-     "core/cli.py"),
+     "core/cli/checking.py"),
     ("cli.chart_date", "refused", "--date must be a date written YYYY-MM-DD, not {given!r}.",
-     "For example --date 2025-03-01.", "core/cli.py"),
+     "For example --date 2025-03-01.", "core/cli/chart.py"),
     ("cli.chart_bands", "refused", "--bands must be one or two numbers separated by a comma, "
-     "e.g. 10,30.", "For example --bands 10,30.", "core/cli.py"),
+     "e.g. 10,30.", "For example --bands 10,30.", "core/cli/chart.py"),
     ("cli.chart_not_printed", "refused", "The model was saved to {model}, but no chart was "
      "printed. {reason}", "Choose the size the message names, or larger paper, and print the "
-     "chart with 'prunella chart'.", "core/cli.py"),
+     "chart with 'prunella chart'.", "core/cli/chart.py"),
     ("chart.paper", "refused", "Paper {paper!r} is not one Prunella prints on; choose a4, "
      "letter, a3 or tabloid.", "Use one of the four papers.", "core/chart/options.py"),
     ("chart.orientation", "refused", "Orientation {given!r} is not one of {choices}.",

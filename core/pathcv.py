@@ -101,7 +101,7 @@ class CrossValidatedPath:
                              f"{size!r}.") from None
         fits = np.flatnonzero(self.leaves <= wanted)
         if wanted < 1 or fits.size == 0:
-            raise InputError(f"A tree needs at least one leaf; sizes on the pruning path are "
+            raise InputError("A tree needs at least one leaf; sizes on the pruning path are "
                              + ", ".join(map(str, self.leaves[::-1])) + ".")
         return int(fits.min()), "user"
 

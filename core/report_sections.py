@@ -69,7 +69,7 @@ def _site_counts(contents: ReportContents) -> dict[str, int]:
 
 
 def _title_page(c: ReportContents, title: str, s: Styles) -> list:
-    model, der = c.model, c.derivation
+    model = c.model
     data = model.extra.get("data", {})
     printed = f" · printed {c.printed}" if c.printed else ""
     story = [para(title, s.title),

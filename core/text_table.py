@@ -21,7 +21,7 @@ import pandas as pd
 
 from .errors import InputError
 from .messages import say
-from .table import _binary_share, _first_line, _header_index, _is_utf8, _span, _tidy
+from .table import _binary_share, _first_line, _header_index, _span, _tidy
 
 _DELIMITERS = (",", ";", "\t", "|")
 _DELIMITER_NAMES = {",": "commas", ";": "semicolons", "\t": "tabs", "|": "bars (|)"}

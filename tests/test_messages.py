@@ -14,7 +14,8 @@ from core.messages import catalogue, distinct_messages, explain, markdown_table,
 ROOT = Path(__file__).resolve().parents[1]
 CORE = ROOT / "core"
 # Modules whose own wording is listed in the catalogue (entries with a source).
-WORDED_ELSEWHERE = ("design.py", "derive.py", "resample.py", "grow.py", "pathcv.py", "cli.py",
+WORDED_ELSEWHERE = ("design.py", "derive.py", "resample.py", "grow.py", "pathcv.py",
+                    "cli/common.py", "cli/fit.py", "cli/checking.py", "cli/chart.py",
                     "model.py", "variables.py", "validate.py", "nested.py", "stability.py",
                     "chart/options.py")
 

@@ -1,0 +1,52 @@
+"""The ``prunella`` subcommands. Bad input prints one sentence with the fix and exits with 2.
+
+The entry point lives in gui/launch.py, which hands subcommands here without importing Qt.
+Each subcommand's options and work live in their own module: fit.py (fit, score),
+checking.py (check, report) and chart.py (chart).
+"""
+
+from __future__ import annotations
+
+import sys
+
+from .. import __version__
+from ..errors import Cancelled, InputError
+from . import chart, checking, fit
+from .common import EXIT_BAD_INPUT, Parser, load_dictionary
+
+SUBCOMMANDS = ("fit", "score", "check", "report", "chart")
+_RUN = {"fit": fit.run_fit, "score": fit.run_score, "check": checking.run_check,
+        "report": checking.run_report, "chart": chart.run_chart}
+
+__all__ = ["SUBCOMMANDS", "EXIT_BAD_INPUT", "build_parser", "load_dictionary", "main"]
+
+
+def build_parser() -> Parser:
+    parser = Parser(prog="prunella", description="Cross-validated, cost-complexity-pruned "
+                    "decision trees for clinical spreadsheets. Run without a command to open the app.")
+    parser.add_argument("--version", action="version", version=f"prunella {__version__}")
+    sub = parser.add_subparsers(dest="command", parser_class=Parser)
+    fit.add_parsers(sub)
+    checking.add_parsers(sub)
+    chart.add_parsers(sub)
+    return parser
+
+
+def main(argv: list[str] | None = None) -> int:
+    """Run a subcommand; returns the exit status."""
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    if args.command is None:
+        parser.print_help()
+        return EXIT_BAD_INPUT
+    try:
+        return _RUN[args.command](args)
+    except InputError as exc:
+        print(f"prunella: {exc}", file=sys.stderr)
+        return EXIT_BAD_INPUT
+    except Cancelled as exc:
+        print(f"prunella: {exc}", file=sys.stderr)
+        return 130
+    except KeyboardInterrupt:
+        print("prunella: interrupted.", file=sys.stderr)
+        return 130

@@ -1,0 +1,104 @@
+"""``prunella chart`` and ``prunella fit --chart``: the one-page PDF decision chart."""
+
+from __future__ import annotations
+
+import sys
+from typing import TYPE_CHECKING
+
+from ..errors import InputError
+from ..model import TreeModel
+from .common import csv_list, refuse_overwrite
+
+if TYPE_CHECKING:
+    from ..derive import Derivation
+
+
+def add_paper_options(parser) -> None:
+    parser.add_argument("--paper", default="a4", choices=("a4", "letter", "a3", "tabloid"),
+                        help="paper size (default a4)")
+    parser.add_argument("--orientation", default="auto", choices=("auto", "portrait", "landscape"),
+                        help="page orientation (default: chosen for the tree's shape)")
+    parser.add_argument("--title", help="chart title (default: the outcome)")
+
+
+def add_fit_chart_options(fit) -> None:
+    fit.add_argument("--chart", help="also print the chosen tree as a one-page PDF chart")
+    add_paper_options(fit)
+
+
+def add_parsers(sub) -> None:
+    chart = sub.add_parser("chart", help="print a saved model as a one-page PDF decision chart")
+    chart.add_argument("model", help="model JSON written by 'prunella fit'")
+    chart.add_argument("--out", required=True, help="where to write the PDF")
+    add_paper_options(chart)
+    chart.add_argument("--subtitle", help="subtitle: the population and outcome definition "
+                       "(default: the outcome and the derivation cohort)")
+    chart.add_argument("--min-text", type=float, help="smallest text size in points "
+                       "(default 9 on A4/Letter, 10.5 on A3/Tabloid)")
+    chart.add_argument("--small-cell", type=int, default=10, help="flag outcome boxes resting on "
+                       "fewer patients than N (default 10; 0 = never)")
+    chart.add_argument("--hide-counts", action="store_true",
+                       help="print rates and intervals without patient counts")
+    chart.add_argument("--bands", help="absolute risk-band cut-points, e.g. 10,30 (percent for "
+                       "rates, outcome units for means); default: relative to the cohort")
+    chart.add_argument("--date", help="date printed on the chart, YYYY-MM-DD (default: today)")
+
+
+def chart_options_from_args(args):
+    """The chart options that ``prunella chart`` / ``fit --chart`` arguments describe."""
+    import datetime as dt
+
+    from ..chart import ChartOptions
+
+    printed = None
+    if getattr(args, "date", None):
+        try:
+            printed = dt.date.fromisoformat(args.date)
+        except ValueError:
+            raise InputError(f"--date must be a date written YYYY-MM-DD, not {args.date!r}.") from None
+    cuts = None
+    if getattr(args, "bands", None):
+        try:
+            cuts = tuple(float(c) for c in csv_list(args.bands))
+        except ValueError:
+            raise InputError("--bands must be one or two numbers separated by a comma, "
+                             "e.g. 10,30.") from None
+    return ChartOptions(paper=args.paper, orientation=args.orientation, title=args.title,
+                        subtitle=getattr(args, "subtitle", None),
+                        min_text=getattr(args, "min_text", None),
+                        small_cell=getattr(args, "small_cell", 10),
+                        hide_counts=getattr(args, "hide_counts", False), band_cuts=cuts,
+                        printed=printed).checked()
+
+
+def _chart_note(plan, path: str) -> str:
+    return (f"Wrote the chart to {path} ({plan.options.paper_name} "
+            f"{'landscape' if plan.landscape else 'portrait'}, tree text {plan.tree.size:g} pt).")
+
+
+def run_chart(args) -> int:
+    from ..chart import write_chart
+
+    refuse_overwrite(args.out, args.model)
+    options = chart_options_from_args(args)  # bad options are told before any reading
+    model = TreeModel.load(args.model)
+    plan = write_chart(model, args.out, options)
+    print(_chart_note(plan, args.out))
+    return 0
+
+
+def fit_chart(args, derivation: Derivation) -> None:
+    from ..chart import ChartTooLarge, sizes_that_fit, write_chart
+    from ..chart.fitting import too_large_message
+
+    options = chart_options_from_args(args)
+    try:
+        plan = write_chart(derivation.model, args.chart, options)
+    except ChartTooLarge:
+        sizes = sizes_that_fit(derivation, options.paper, options.orientation, options.min_text,
+                               options=options)
+        message = too_large_message(len(derivation.model.leaves), max(sizes, default=None), options)
+        raise InputError(f"The model was saved to {args.model}, but no chart was printed. "
+                         + message) from None
+    if not args.quiet:
+        print(_chart_note(plan, args.chart), file=sys.stderr)

@@ -1,0 +1,126 @@
+"""``prunella check`` and ``prunella report``: a saved tree checked on separate patients, and
+the methods and validation report."""
+
+from __future__ import annotations
+
+import sys
+
+from ..errors import InputError
+from ..model import TreeModel
+from ..safe_files import write_text_atomic
+from ..table import read_table
+from ..variables import DataDictionary, merge_dictionary
+from .common import load_dictionary, refuse_overwrite
+
+
+def add_parsers(sub) -> None:
+    check = sub.add_parser("check", help="check a saved tree on separate patients and print "
+                           "the measures with 95%% intervals")
+    check.add_argument("model", help="model JSON written by 'prunella fit'")
+    check.add_argument("data", help="CSV, TSV or XLSX file of patients the tree never saw")
+    check.add_argument("--sheet", help="XLSX sheet name (default: the first sheet)")
+    check.add_argument("--source", help="where these patients come from, in words, as the chart "
+                       "and report should name them (default: the file name)")
+    check.add_argument("--out", help="write every measure as JSON")
+    check.add_argument("--checked-model", help="write the model with this check recorded, so the "
+                       "chart shows it instead of the 'not yet checked' banner")
+
+    report = sub.add_parser("report", help="write the methods and validation report (PDF)")
+    report.add_argument("model", help="model JSON written by 'prunella fit'")
+    report.add_argument("data", help="the derivation data the model was fitted on")
+    report.add_argument("--sheet", help="XLSX sheet name of DATA")
+    report.add_argument("--dictionary", help="data dictionary (JSON or CSV) for labels of columns "
+                        "the model does not describe (patient identifier, site, dates)")
+    report.add_argument("--external", help="a file of patients from elsewhere to check the tree on")
+    report.add_argument("--external-sheet", help="XLSX sheet name of the external file")
+    report.add_argument("--external-source", help="where the external patients come from, in words")
+    report.add_argument("--bootstrap", type=int, default=200,
+                        help="bootstrap resamples for stability (default 200; 0 = none)")
+    report.add_argument("--outer-folds", type=int, default=5,
+                        help="outer folds of the nested cross-validation (default 5)")
+    report.add_argument("--no-nested", action="store_true", help="skip nested cross-validation")
+    report.add_argument("--jobs", type=int, default=1, help="parallel work (default 1; -1 = all cores)")
+    report.add_argument("--out", required=True, help="where to write the PDF")
+
+
+def run_check(args) -> int:
+    import json
+
+    from ..validate import check_table, with_validation
+
+    refuse_overwrite(args.out, args.data, args.model)
+    refuse_overwrite(args.checked_model, args.data, args.model)
+    model = TreeModel.load(args.model)
+    table = read_table(args.data, sheet=args.sheet)
+    result = check_table(model, table, source=args.source)
+    print(result.text())
+    if args.out:
+        write_text_atomic(args.out, json.dumps(result.to_dict(), indent=1, ensure_ascii=False,
+                                               allow_nan=False) + "\n")
+    if args.checked_model:
+        with_validation(model, result).save(args.checked_model)
+    return 0
+
+
+def model_dictionary(table, model: TreeModel, dictionary_path: str | None) -> DataDictionary:
+    """The dictionary a report re-derivation uses: inferred, then the given file, then the
+    model's own definitions of its outcome and predictors (those made the tree)."""
+    dictionary, _ = load_dictionary(table, dictionary_path)
+    known = [s for s in (model.outcome,) + model.predictors if s.name in dictionary]
+    merged, _ = merge_dictionary(dictionary, DataDictionary(tuple(known)))
+    return merged
+
+
+def run_report(args) -> int:
+    import datetime as dt
+
+    from ..derive import DerivationRequest, choose_model, derive
+    from ..report import prepare_report, write_report
+    from ..validate import check_table
+
+    inputs = [args.data, args.model] + ([args.external] if args.external else [])
+    refuse_overwrite(args.out, *inputs)
+    if not str(args.out).lower().endswith(".pdf"):
+        raise InputError("--out must name a PDF file (ending in .pdf).")
+    if args.bootstrap < 0:
+        raise InputError("--bootstrap must be 0 (none) or a positive number of resamples.")
+    model = TreeModel.load(args.model)
+    settings = model.extra.get("settings")
+    if not settings:
+        raise InputError("The model file holds no derivation settings, so the derivation cannot "
+                         "be rerun for the report; fit the model again with Prunella.")
+    request = DerivationRequest.from_dict(settings)
+    table = read_table(args.data, sheet=args.sheet)
+    notes = []
+    expected = model.extra.get("data", {}).get("sha256")
+    if expected and expected != table.provenance.sha256:
+        notes.append(f"The data file's SHA-256 ({table.provenance.sha256[:12]}...) differs from "
+                     f"the one the model was fitted on ({expected[:12]}...): this report "
+                     "re-derives the tree from the data given, which is not the model's data.")
+        print(f"prunella: warning: {notes[-1]}", file=sys.stderr)
+    derivation = derive(table, model_dictionary(table, model, args.dictionary), request,
+                        jobs=args.jobs)
+    rule = model.chosen.get("rule")
+    derivation = choose_model(derivation, rule if rule in ("1se", "min") else model.chosen["leaves"])
+    if derivation.model.nodes != model.nodes:
+        notes.append("The tree re-derived from the data differs from the tree in the model file; "
+                     "the report describes the re-derived tree.")
+        print(f"prunella: warning: {notes[-1]}", file=sys.stderr)
+    external = ()
+    if args.external:
+        external_table = read_table(args.external, sheet=args.external_sheet)
+        external = (check_table(derivation.model, external_table, source=args.external_source),)
+    work = []
+    if not args.no_nested:
+        work.append(f"nested cross-validation ({args.outer_folds} outer folds)")
+    if args.bootstrap:
+        work.append(f"{args.bootstrap} bootstrap resamples")
+    if work:
+        print("Running " + " and ".join(work) + "...", file=sys.stderr)
+    contents = prepare_report(derivation, external=external, nested=not args.no_nested,
+                              outer_folds=args.outer_folds, bootstrap=args.bootstrap,
+                              jobs=args.jobs, notes=tuple(notes),
+                              printed=dt.date.today().isoformat())
+    write_report(contents, args.out)
+    print(f"Wrote the methods and validation report to {args.out}.")
+    return 0

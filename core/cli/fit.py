@@ -1,0 +1,213 @@
+"""``prunella fit`` and ``prunella score``: grow, prune and cross-validate a tree from a
+spreadsheet; route the rows of a spreadsheet through a saved tree."""
+
+from __future__ import annotations
+
+import sys
+from dataclasses import replace
+from typing import TYPE_CHECKING
+
+import numpy as np
+import pandas as pd
+
+from .. import __version__
+from ..cautions import CAUTION_TITLE, caution_text
+from ..design import DesignSpec
+from ..errors import InputError
+from ..messages import distinct_messages, explain
+from ..model import TreeModel
+from ..safe_files import write_csv_safely, write_text_atomic
+from ..table import read_table
+from ..variables import DataDictionary
+from .chart import add_fit_chart_options, fit_chart
+from .common import csv_list, load_dictionary, refuse_overwrite
+
+if TYPE_CHECKING:  # scikit-learn loads only when a tree is grown, so bad input is refused fast
+    from ..derive import Derivation, DerivationRequest
+
+
+def add_parsers(sub) -> None:
+    fit = sub.add_parser("fit", help="grow, prune and cross-validate a tree from a spreadsheet")
+    fit.add_argument("data", help="CSV, TSV or XLSX file, one row per visit")
+    fit.add_argument("--outcome", required=True, help="column to predict")
+    fit.add_argument("--sheet", help="XLSX sheet name (default: the first sheet)")
+    fit.add_argument("--task", choices=("classification", "regression"),
+                     help="default: classification for categories, regression for numbers")
+    fit.add_argument("--positive", help="positive class of a two-class outcome (default: yes/1)")
+    fit.add_argument("--predictors", help="comma-separated columns to ask about "
+                     "(default: every predictor in the data dictionary)")
+    fit.add_argument("--exclude", help="comma-separated columns to leave out")
+    fit.add_argument("--dictionary", help="data dictionary (JSON or CSV) with roles, kinds, labels, units")
+    fit.add_argument("--patient-id", help="patient identifier column: repeat visits stay in one fold")
+    fit.add_argument("--site", help="site column: cross-validate by leaving one site out at a time")
+    fit.add_argument("--folds", type=int, default=10, help="number of folds (default 10)")
+    fit.add_argument("--repeats", type=int, default=1, help="repeat the k-fold split R times")
+    fit.add_argument("--loo", action="store_true", help="leave-one-out cross-validation")
+    fit.add_argument("--holdout", type=float, help="share of patients set aside before growing, "
+                     "to check the tree on (e.g. 0.25)")
+    fit.add_argument("--min-leaf", type=int, default=5, help="minimum patients per leaf (default 5)")
+    fit.add_argument("--max-depth", type=int, help="maximum depth of the grown tree")
+    fit.add_argument("--criterion", help="split criterion: gini or entropy (classification), "
+                     "squared_error or friedman_mse (regression)")
+    fit.add_argument("--priors", default="observed", help="class priors: observed, equal, or "
+                     "comma-separated numbers in class order")
+    fit.add_argument("--miss-cost", type=float, help="two classes: missing a positive is X times "
+                     "as bad as a needless alarm")
+    fit.add_argument("--risk", choices=("cost", "impurity"), default="cost",
+                     help="node risk for pruning a classification tree (default cost)")
+    fit.add_argument("--size", default="1se", help="tree size: 1se (default), min, or a number of leaves")
+    fit.add_argument("--seed", type=int, default=0, help="random seed (default 0)")
+    fit.add_argument("--jobs", type=int, default=1, help="parallel folds (default 1; -1 = all cores)")
+    fit.add_argument("--model", required=True, help="where to write the model JSON")
+    fit.add_argument("--curve", help="write the pruning curve as CSV")
+    fit.add_argument("--rules", help="write the tree as plain-text rules")
+    fit.add_argument("--quiet", action="store_true", help="print only warnings")
+    add_fit_chart_options(fit)
+
+    score = sub.add_parser("score", help="route rows of a spreadsheet through a saved model")
+    score.add_argument("model", help="model JSON written by 'prunella fit'")
+    score.add_argument("data", help="CSV, TSV or XLSX file")
+    score.add_argument("--sheet", help="XLSX sheet name (default: the first sheet)")
+    score.add_argument("--out", required=True, help="where to write the scored CSV")
+
+
+def request_from_args(args, dictionary: DataDictionary) -> DerivationRequest:
+    """The derivation request described by ``prunella fit`` options."""
+    from ..derive import DerivationRequest
+    from ..grow import TreeSettings
+    from ..resample import CVSettings
+
+    if args.outcome not in dictionary:
+        dictionary.get(args.outcome)  # raises the "no such column" message
+    patient = args.patient_id or next((c.name for c in dictionary.by_role("patient_id")), None)
+    excluded = set(csv_list(args.exclude)) | {args.outcome, patient, args.site}
+    for name in csv_list(args.exclude):
+        dictionary.get(name)
+    if args.predictors:
+        predictors = tuple(p for p in csv_list(args.predictors) if p not in excluded)
+    else:
+        predictors = tuple(c.name for c in dictionary.by_role("predictor") if c.name not in excluded)
+    design = DesignSpec(outcome=args.outcome, predictors=predictors, task=args.task,
+                        positive=args.positive, patient_id=patient, site=args.site)
+    priors: str | tuple[float, ...] = args.priors
+    if priors not in ("observed", "equal"):
+        try:
+            priors = tuple(float(p) for p in csv_list(args.priors))
+        except ValueError:
+            raise InputError("--priors must be observed, equal, or numbers separated by commas "
+                             "(one per class).") from None
+    tree = TreeSettings(min_leaf=args.min_leaf, max_depth=args.max_depth, criterion=args.criterion,
+                        priors=priors, miss_cost=args.miss_cost, risk=args.risk, seed=args.seed)
+    plan = "loo" if args.loo else ("site" if args.site else "kfold")
+    cv = CVSettings(plan=plan, folds=args.folds, repeats=args.repeats, seed=args.seed)
+    size: str | int = args.size
+    if size not in ("1se", "min"):
+        try:
+            size = int(size)
+        except ValueError:
+            raise InputError("--size must be 1se, min or a number of leaves.") from None
+    return DerivationRequest(design=design, tree=tree, cv=cv, holdout=args.holdout, size=size)
+
+
+def curve_frame(derivation: Derivation) -> pd.DataFrame:
+    """The pruning curve as a table: size, α, training risk, CV risk and its SE."""
+    path = derivation.path
+    return pd.DataFrame({
+        "leaves": path.leaves, "alpha": path.alpha, "grid_alpha": path.grid,
+        "train_risk": path.train_risk, "cv_risk": path.cv_risk, "cv_se": path.cv_se,
+        "is_min": np.arange(len(path.leaves)) == path.min_index,
+        "is_1se": np.arange(len(path.leaves)) == path.one_se_index,
+    })
+
+
+def run_fit(args) -> int:
+    refuse_overwrite(args.model, args.data)
+    refuse_overwrite(args.curve, args.data)
+    refuse_overwrite(args.rules, args.data)
+    refuse_overwrite(args.chart, args.data)
+    table = read_table(args.data, sheet=args.sheet)
+    dictionary, notes = load_dictionary(table, args.dictionary)
+    shown = _print_notes(list(table.provenance.warnings) + notes)
+    request = request_from_args(args, dictionary)
+    request = _guarded(args, table, dictionary, request)
+    from ..derive import derive
+
+    derivation = derive(table, dictionary, request, jobs=args.jobs)
+    model = derivation.model
+    model.save(args.model)
+    if args.curve:
+        write_csv_safely(curve_frame(derivation), args.curve)
+    if args.rules:
+        write_text_atomic(args.rules, model.rules())
+    if args.chart:
+        fit_chart(args, derivation)
+    _print_notes(list(derivation.notes), shown)
+    if not args.quiet:
+        print(summary_text(derivation))
+    return 0
+
+
+def _print_notes(notes: list[str], already: list[str] | None = None) -> list[str]:
+    """Print each note once on stderr as 'warning:' or 'note:' (core/message_catalogue.py);
+    a finding already shown with its rows is not repeated."""
+    already = list(already or [])
+    fresh = [n for n in distinct_messages(already + notes) if n not in already]
+    for note in fresh:
+        kind = explain(note)
+        prefix = "warning" if kind is not None and kind.severity == "warning" else "note"
+        print(f"{prefix}: {note}", file=sys.stderr)
+    return already + fresh
+
+
+def _guarded(args, table, dictionary: DataDictionary, request: DerivationRequest) -> DerivationRequest:
+    """Run the identity, leakage, repeat-visit and rare-class guards; print their findings.
+
+    Identity columns are left out unless named in --predictors."""
+    from ..guards import guard_design
+
+    report = guard_design(table.frame, dictionary, request.design,
+                          keep=csv_list(args.predictors), grouped=request.cv.grouped,
+                          seed=args.seed, min_leaf=args.min_leaf)
+    for finding in report.findings:
+        print(f"{finding.severity}: {finding.message}", file=sys.stderr)
+    return replace(request, design=report.design)
+
+
+def summary_text(derivation: Derivation) -> str:
+    """What a fit found: the pruning path with CV beside training risk, and the chosen tree."""
+    path, model = derivation.path, derivation.model
+    lines = [f"Prunella {__version__}: {model.outcome.display} ({model.task}), {model.n_rows} rows, "
+             f"{path.description}.",
+             f"Risk: {model.path['risk_measure']}.", "",
+             f"{'leaves':>7} {'training':>9} {'cross-validated':>16} {'± SE':>7}"]
+    for k in range(len(path.leaves)):
+        mark = ""
+        if k == path.min_index:
+            mark += "  minimum"
+        if k == path.one_se_index:
+            mark += "  1-SE choice"
+        lines.append(f"{path.leaves[k]:>7} {path.train_risk[k]:>9.4f} {path.cv_risk[k]:>16.4f} "
+                     f"{path.cv_se[k]:>7.4f}{mark}")
+    chosen = model.chosen
+    lines += ["", f"Chosen: {chosen['leaves']} leaves ({chosen['rule']}), cross-validated risk "
+              f"{chosen['cv_risk']:.4f} ± {chosen['cv_se']:.4f} (training {chosen['train_risk']:.4f}).",
+              f"Model fingerprint: {model.fingerprint[:12]}"]
+    check = model.extra.get("validation")
+    if check:
+        lines.append(f"Checked on {check['source']} ({check['n']} visits): {check['summary']}.")
+    lines += ["", model.rules(), f"{CAUTION_TITLE}. {caution_text()}"]
+    return "\n".join(lines)
+
+
+def run_score(args) -> int:
+    refuse_overwrite(args.out, args.data, args.model)
+    model = TreeModel.load(args.model)
+    table = read_table(args.data, sheet=args.sheet)
+    from ..scoring import scored_table
+
+    out, notes = scored_table(model, table.frame)
+    write_csv_safely(out, args.out)
+    for warning in list(table.provenance.warnings) + list(notes):
+        print(f"note: {warning}", file=sys.stderr)
+    print(f"Scored {len(out)} rows into {args.out}.")
+    return 0
