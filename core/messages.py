@@ -119,7 +119,8 @@ STEPS = (("read", "reading the file"), ("xlsx", "reading a workbook"),
          ("derive", "held-out check"), ("chart", "printing the chart"),
          ("validate", "checking a tree"),
          ("nested", "methods report"), ("stability", "methods report"),
-         ("file", "opening saved files"), ("model", "model files and scoring"))
+         ("file", "opening saved files"), ("project", "opening projects"),
+         ("model", "model files and scoring"))
 
 
 def markdown_table() -> str:
