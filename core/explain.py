@@ -12,22 +12,7 @@ import numpy as np
 import pandas as pd
 
 from .intervals import mean_interval, wilson_interval
-from .model import TreeModel
-
-
-@dataclass(frozen=True)
-class Step:
-    """One question on the way to a box, and the answer that leads on."""
-
-    box: int  # the question's box number
-    question: str
-    answer: str  # "YES" or "NO"
-    includes_missing: bool  # this branch also takes a value that is not recorded
-    to: int  # the box this answer leads to
-
-    def text(self) -> str:
-        note = " (or not recorded)" if self.includes_missing else ""
-        return f"Box {self.box}: {self.question} {self.answer}{note}"
+from .model import Step, TreeModel
 
 
 @dataclass(frozen=True)
@@ -58,26 +43,11 @@ class BoxDetails:
     mean_high: float | None = None
 
 
-def steps_to(model: TreeModel, box: int) -> tuple[Step, ...]:
-    """The questions and answers that lead from box 1 to ``box``, in order."""
-    model.node(box)  # raises IndexError for a box that does not exist
-    parents = {c: (n, i) for n in model.nodes for i, c in enumerate(n.children)}
-    steps = []
-    current = box
-    while current in parents:
-        node, branch = parents[current]
-        answer = "yes" if branch == 0 else "no"
-        missing = node.question.missing_goes == answer and node.question.kind != "missing"
-        steps.append(Step(node.id, node.text, answer.upper(), missing, current))
-        current = node.id
-    return tuple(reversed(steps))
-
-
 def box_details(model: TreeModel, box: int) -> BoxDetails:
     """Patients, outcome distribution (with intervals) and the path of questions of a box."""
     node = model.node(box)
     common = dict(box=box, leaf=node.leaf, text=node.text, n=node.n,
-                  share_of_all=node.n / max(model.n_rows, 1), steps=steps_to(model, box))
+                  share_of_all=node.n / max(model.n_rows, 1), steps=model.steps_to(box))
     if model.task == "regression":
         low, high = mean_interval(float(node.mean), float(node.sd or 0.0), node.n)
         return BoxDetails(mean=float(node.mean), sd=float(node.sd or 0.0), mean_low=low,
@@ -110,7 +80,7 @@ def route_patient(model: TreeModel, values: dict[str, object]) -> PatientRoute:
     frame = pd.DataFrame({c: pd.Series(v, dtype=object) for c, v in row.items()})
     scored = model.apply(frame)
     leaf = int(scored.leaf[0])
-    steps = steps_to(model, leaf)
+    steps = model.steps_to(leaf)
     boxes = tuple([1] + [s.to for s in steps]) if steps else (1,)
     prediction = scored.prediction[0]
     if isinstance(prediction, (np.floating, float)):

@@ -68,6 +68,25 @@ def question_text(question: Question, spec: ColumnSpec) -> str:
 
 
 @dataclass(frozen=True)
+class Step:
+    """One question on the way to a box, and the answer that leads on."""
+
+    box: int  # the question's box number
+    question: str
+    answer: str  # "YES" or "NO"
+    includes_missing: bool  # this branch also takes a value that is not recorded
+    to: int  # the box this answer leads to
+
+    def phrase(self) -> str:
+        """The question and its answer, as the rules print it."""
+        note = " (or not recorded)" if self.includes_missing else ""
+        return f"{self.question} {self.answer}{note}"
+
+    def text(self) -> str:
+        return f"Box {self.box}: {self.phrase()}"
+
+
+@dataclass(frozen=True)
 class Node:
     """A box of the tree. Internal nodes have a question and children (yes, no)."""
 
@@ -301,23 +320,25 @@ class TreeModel:
 
     # --- plain text ---------------------------------------------------------------------
 
+    def steps_to(self, box: int) -> tuple[Step, ...]:
+        """The questions and answers that lead from box 1 to ``box``, in order."""
+        self.node(box)  # raises IndexError for a box that does not exist
+        parents = {c: (n, i) for n in self.nodes for i, c in enumerate(n.children)}
+        steps = []
+        current = box
+        while current in parents:
+            node, branch = parents[current]
+            answer = "yes" if branch == 0 else "no"
+            missing = node.question.missing_goes == answer and node.question.kind != "missing"
+            steps.append(Step(node.id, node.text, answer.upper(), missing, current))
+            current = node.id
+        return tuple(reversed(steps))
+
     def rules(self) -> str:
         """The tree as numbered plain-text rules, one line per path to an outcome box."""
         lines = [f"Outcome: {self.outcome.display}", ""]
-        parents = {c: (n, i) for n in self.nodes for i, c in enumerate(n.children)}
         for leaf in self.leaves:
-            steps = []
-            current = leaf.id
-            while current in parents:
-                node, branch = parents[current]
-                answer = "YES" if branch == 0 else "NO"
-                missing = node.question.missing_goes == ("yes" if branch == 0 else "no")
-                step = f"{node.text} {answer}"
-                if missing and node.question.kind != "missing":
-                    step += " (or not recorded)"
-                steps.append(step)
-                current = node.id
-            condition = " AND ".join(reversed(steps)) or "(every patient)"
+            condition = " AND ".join(s.phrase() for s in self.steps_to(leaf.id)) or "(every patient)"
             lines.append(f"Box {leaf.id}: IF {condition}")
             lines.append(f"    THEN {leaf.text}")
         return "\n".join(lines) + "\n"

@@ -299,18 +299,7 @@ def _pruning(c: ReportContents, s: Styles) -> list:
 
 
 def _leaf_paths(model) -> dict[int, list[str]]:
-    parents = {child: (node, i) for node in model.nodes for i, child in enumerate(node.children)}
-    paths = {}
-    for leaf in model.leaves:
-        steps, current = [], leaf.id
-        while current in parents:
-            node, branch = parents[current]
-            answer = "yes" if branch == 0 else "no"
-            missing = node.question.missing_goes == answer and node.question.kind != "missing"
-            steps.append(f"{node.text} {answer.upper()}" + (" (or not recorded)" if missing else ""))
-            current = node.id
-        paths[leaf.id] = list(reversed(steps))
-    return paths
+    return {leaf.id: [step.phrase() for step in model.steps_to(leaf.id)] for leaf in model.leaves}
 
 
 def _chart(c: ReportContents, s: Styles) -> list:

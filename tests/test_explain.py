@@ -10,7 +10,7 @@ import pytest
 
 from core.derive import DerivationRequest, derive
 from core.design import DesignSpec
-from core.explain import box_details, route_patient, steps_to
+from core.explain import box_details, route_patient
 from core.intervals import wilson_interval
 from core.scoring import scored_table
 from core.table import read_table
@@ -31,9 +31,9 @@ def demo():
 
 def test_steps_lead_from_box_one_to_every_box(demo):
     _, model = demo
-    assert steps_to(model, 1) == ()
+    assert model.steps_to(1) == ()
     for node in model.nodes[1:]:
-        steps = steps_to(model, node.id)
+        steps = model.steps_to(node.id)
         assert steps[0].box == 1 and steps[-1].to == node.id
         for before, after in zip(steps, steps[1:]):
             assert before.to == after.box  # a connected path

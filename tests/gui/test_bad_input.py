@@ -13,8 +13,8 @@ import pytest  # noqa: E402
     ("empty.csv", b"", "empty"),
     ("header.csv", b"a,b,c\n", "no rows"),
     ("binary.csv", bytes(range(256)) * 40, "binary"),
-    ("book.xlsx", b"this is not a workbook at all", "could not be opened"),
-    ("zipped.csv", b"PK\x03\x04" + b"\x00" * 200, "Excel workbook"),
+    ("book.xlsx", b"this is not a workbook at all", "is a text file, not an Excel workbook"),
+    ("zipped.csv", b"PK\x03\x04" + b"\x00" * 200, "zip archive, not a spreadsheet"),
 ])
 def test_broken_spreadsheet_shows_a_message(window, qtbot, dialogs, tmp_path, name, content, words):
     path = tmp_path / name
