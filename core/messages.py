@@ -97,7 +97,8 @@ def explain(message: str) -> MessageKind | None:
 
 
 # What only the command line needs: its options in brackets, or a clause about it.
-_CLI_BRACKETS = re.compile(r"\s*\((?:on the command line:?\s*)?--.*?\)(?=[.;,:]|\s*$)", re.I)
+_CLI_BRACKETS = re.compile(r"\s*\((?:on the command line:?\s*)?--[^()]*(?:\([^()]*\)[^()]*)*\)",
+                           re.I)  # one level of brackets inside, e.g. a column "SpO2 (%)"
 _CLI_CLAUSE = re.compile(r"\s*;\s*on the command line\b[^.;]*", re.I)
 _CLI_SENTENCE = re.compile(r"(?:^|(?<=[.!?])\s+)On the command line\b[^.]*\.?", re.I)
 

@@ -124,6 +124,10 @@ def test_app_wording_drops_only_what_the_command_line_needs():
     assert shown.endswith("leave it out of the predictors.")
     assert "Check when it is recorded" in shown
     assert app_wording("Pick another sheet (--sheet NAME).") == "Pick another sheet."
+    repeats = say("guard.repeats_no_id", column="SpO2 (%)", patients=5, n_rows=12)
+    assert app_wording(repeats) == ("'SpO2 (%)' repeats for 5 patient(s) (12 rows): these look "
+                                    "like repeat visits. Set it as the patient identifier so "
+                                    "cross-validation keeps each patient's rows together.")
     assert app_wording("Check the spelling of the path; on the command line put paths with "
                        "spaces in quotes.") == "Check the spelling of the path."
     assert app_wording("On the command line: --sheet NAME.") == ""
