@@ -54,7 +54,7 @@ class _Checker:
         if value is None and optional:
             return
         if not isinstance(value, str) or not value:
-            self.fail(key, "it must be a text")
+            self.fail(key, "it must be a text (not empty)")
         if choices and value not in choices:
             self.fail(key, f"{value[:40]!r} is not one of {', '.join(choices)}")
 

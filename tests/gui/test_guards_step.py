@@ -260,3 +260,16 @@ def test_messages_from_core_come_with_what_to_do(window, qtbot, dialogs, tmp_pat
     assert limits, [r.finding.text for r in rows]
     assert limits[0].finding.severity == "warning" and rows[0].finding.severity == "warning"
     assert "What to do:" in limits[0].advice.text()
+
+
+def test_warnings_in_pages_carry_the_advice_without_command_line_options():
+    """The checking step and the patient look-up show core's warnings through warning_html."""
+    from core.messages import say
+    from gui.panels.base import warning_html, with_advice
+
+    leak = say("guard.leakage", column="bed_booked", outcome="admitted", evidence="ROC area 0.99")
+    html = warning_html(leak)
+    assert html.startswith("<p>⚠ Probable leakage") and "<i>What to do: A value recorded" in html
+    assert "--exclude" not in html
+    assert warning_html("Something core never says.") == "<p>⚠ Something core never says.</p>"
+    assert with_advice(leak).count("What to do:") == 1
