@@ -23,14 +23,14 @@ line show as they are:
 
 from __future__ import annotations
 
-from collections.abc import Iterable
+from collections.abc import Callable, Iterable
 from dataclasses import dataclass, field, replace
 
 import numpy as np
 import pandas as pd
 
 from .design import AnalysisData, DesignSpec, fit_encoding, prepare_analysis
-from .errors import InputError
+from .errors import Cancelled, InputError
 from .identity import IdentityHint, identity_by_header, identity_hint, looks_like_record_numbers
 from .messages import catalogue, say
 from .values import is_missing_text, level_text, parse_numbers
@@ -141,8 +141,11 @@ def leave_out_identity(design: DesignSpec, findings: Iterable[GuardFinding],
 
 
 def leakage_findings(data: AnalysisData, grouped: bool = True, seed: int = 0,
-                     min_leaf: int = 5) -> tuple[GuardFinding, ...]:
-    """Predictors that on their own separate the outcome almost perfectly under CV."""
+                     min_leaf: int = 5, cancel: Callable[[], bool] | None = None,
+                     ) -> tuple[GuardFinding, ...]:
+    """Predictors that on their own separate the outcome almost perfectly under CV.
+
+    ``cancel()`` is asked before each predictor; when it returns True, Cancelled is raised."""
     from sklearn.metrics import roc_auc_score
     from sklearn.tree import DecisionTreeClassifier, DecisionTreeRegressor
 
@@ -163,6 +166,8 @@ def leakage_findings(data: AnalysisData, grouped: bool = True, seed: int = 0,
     n_classes = len(data.classes)
     found = []
     for column in data.predictors:
+        if cancel is not None and cancel():
+            raise Cancelled()
         single = replace(data, predictors=(column,))
         scores = np.zeros((data.n, n_classes)) if classification else np.zeros(data.n)
         for fold in folds:
@@ -264,8 +269,12 @@ def outcome_findings(data: AnalysisData) -> tuple[GuardFinding, ...]:
 
 def guard_design(frame: pd.DataFrame, dictionary: DataDictionary, design: DesignSpec,
                  keep: Iterable[str] = (), grouped: bool = True, seed: int = 0, min_leaf: int = 5,
-                 leakage: bool = True) -> GuardReport:
+                 leakage: bool = True, cancel: Callable[[], bool] | None = None) -> GuardReport:
     """Run every guard on a design. Identity columns not named in ``keep`` are left out.
+
+    ``cancel()`` (optional) is asked between the leakage screens of the predictors; when it
+    returns True, core.errors.Cancelled is raised (the app restarts the guards when the design
+    changes).
 
     Problems that make the design unusable (no outcome, one class, …) are left for
     :func:`core.design.prepare_analysis` to report, so the user meets one message for them.
@@ -282,7 +291,8 @@ def guard_design(frame: pd.DataFrame, dictionary: DataDictionary, design: Design
         return GuardReport(guarded, tuple(findings), left_out)
     findings.extend(outcome_findings(data))
     if leakage:
-        findings.extend(leakage_findings(data, grouped=grouped, seed=seed, min_leaf=min_leaf))
+        findings.extend(leakage_findings(data, grouped=grouped, seed=seed, min_leaf=min_leaf,
+                                         cancel=cancel))
     return GuardReport(guarded, tuple(findings), left_out)
 
 

@@ -230,6 +230,28 @@ _FILES = [
     ("file.old_version", "refused", "{file} uses format version {version}, which this "
      "Prunella no longer reads (it reads {readable}); save it again with the Prunella that "
      "wrote it.", "Open it with the Prunella that made it and save it again."),
+    ("file.folder", "refused", "{path} is a folder; choose the Prunella {what} file inside "
+     "it.", "Choose the file itself, not the folder that holds it."),
+    ("project.damaged", "refused", "The project file {file} is damaged at {where}: {problem}; "
+     "save the project again from Prunella, or start a new one.",
+     "Use the project file as Prunella saved it; do not edit it by hand (or open a backup)."),
+    ("project.seed_mismatch", "refused", "The project file {file} is inconsistent: its seed "
+     "({seed}) differs from the seed in its settings ({settings_seed}); save the project again "
+     "from Prunella.", "The file was edited by hand; set the seed on step 3 and save again."),
+    ("project.draft_damaged", "refused", "This project file (draft layout) is damaged "
+     "({problem}); start a new project.", "Open the data and choose the settings again."),
+    ("project.data_missing", "warning", "The project's data file {file} is not at {path} any "
+     "more; find the file (it may have been moved or renamed) to continue.",
+     "Point Prunella to the moved file; its fingerprint shows whether it is the same data."),
+    ("project.no_fingerprint", "note", "The project does not record a fingerprint for {file}.",
+     "Nothing to do; save the project again to record it."),
+    ("project.data_changed", "warning", "{file} has changed since the project was saved (its "
+     "fingerprint was {saved}, now {now}). The tree will be grown again on the file as it is "
+     "now and may differ from the saved one; open the original file if you want to reproduce "
+     "the saved tree.", "Open the original file to reproduce the saved tree, or accept that "
+     "the tree is grown again on the new data (and check it again)."),
+    ("project.data_same", "note", "{file} is unchanged since the project was saved.",
+     "Nothing to do."),
     ("model.damaged", "refused", "The model file is damaged at {where}: {problem}; save the "
      "model again from Prunella.", "Use the model file as Prunella saved it; do not edit it "
      "by hand."),

@@ -96,6 +96,35 @@ def explain(message: str) -> MessageKind | None:
     return None if best is None else best[1]
 
 
+# What only the command line needs: its options in brackets, or a clause about it.
+_CLI_BRACKETS = re.compile(r"\s*\((?:on the command line:?\s*)?--[^()]*(?:\([^()]*\)[^()]*)*\)",
+                           re.I)  # one level of brackets inside, e.g. a column "SpO2 (%)"
+_CLI_CLAUSE = re.compile(r"\s*;\s*on the command line\b[^.;]*", re.I)
+_CLI_SENTENCE = re.compile(r"(?:^|(?<=[.!?])\s+)On the command line\b[^.]*\.?", re.I)
+
+
+def app_wording(text: str) -> str:
+    """A message or advice as the app shows it: without the command line's options
+    ("(on the command line: --exclude crp)", "(--sheet NAME)", "; on the command line …")."""
+    text = _CLI_BRACKETS.sub("", text)
+    text = _CLI_CLAUSE.sub("", text)
+    text = _CLI_SENTENCE.sub("", text)
+    return text.strip()
+
+
+def app_advice(message: str) -> str | None:
+    """The catalogue's "what to do" for a message, as the app shows it beside the message;
+    None when the message is not in the catalogue, needs nothing done, or the advice is only
+    about the command line."""
+    kind = explain(message)
+    if kind is None:
+        return None
+    advice = app_wording(kind.advice)
+    if not advice or "--" in advice or advice.rstrip(".").lower() == "nothing to do":
+        return None
+    return advice
+
+
 def distinct_messages(messages) -> list[str]:
     """Messages in order without repeats; a finding given with and without rows counts once
     (the version with rows is kept)."""
@@ -119,7 +148,8 @@ STEPS = (("read", "reading the file"), ("xlsx", "reading a workbook"),
          ("derive", "held-out check"), ("chart", "printing the chart"),
          ("validate", "checking a tree"),
          ("nested", "methods report"), ("stability", "methods report"),
-         ("file", "opening saved files"), ("model", "model files and scoring"))
+         ("file", "opening saved files"), ("project", "opening projects"),
+         ("model", "model files and scoring"))
 
 
 def markdown_table() -> str:

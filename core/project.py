@@ -20,13 +20,14 @@ from pathlib import Path
 from . import __version__
 from .derive import DerivationRequest
 from .errors import InputError
-from .safe_files import write_text_atomic
+from .messages import say
+from .project_file import validate_project_dict
+from .safe_files import check_format, read_json_document, write_text_atomic
 from .table import file_sha256
 from .variables import DataDictionary
 
 PROJECT_FORMAT = "prunella-project/1"
 PROJECT_SUFFIX = ".prunella"
-_FORMAT_PREFIX = "prunella-project/"
 CURRENT_VERSION = 1
 
 
@@ -72,9 +73,11 @@ class Project:
 
     @classmethod
     def from_dict(cls, data: dict, project_path: str | Path | None = None) -> "Project":
-        """Read a project dict of any known version (older ones are upgraded first)."""
-        data = upgrade_project(data)
-        where = f"The project file {Path(project_path).name}" if project_path else "The project"
+        """Read a project dict of any known version (older ones are upgraded first); fields
+        of the wrong type or value are refused naming the field (core/project_file.py)."""
+        name = Path(project_path).name if project_path else "(not saved)"
+        data = upgrade_project(data, name)
+        validate_project_dict(data, name)
         try:
             entry = data.get("data")
             data_path = sheet = sha = None
@@ -83,27 +86,24 @@ class Project:
                 sheet = entry.get("sheet")
                 sha = entry.get("sha256")
             dictionary = (None if data.get("dictionary") is None
-                          else DataDictionary.from_dict(data["dictionary"]))
+                          else DataDictionary.from_dict(data["dictionary"],
+                                                        f"The data dictionary in {name}"))
             request = (None if data.get("request") is None
                        else DerivationRequest.from_dict(data["request"]))
             size = data.get("size", "1se")
-            if not (size in ("1se", "min") or (isinstance(size, int) and size >= 1)):
-                raise ValueError(f"size {size!r}")
             chart = data.get("chart") or {}
-            if not isinstance(chart, dict):
-                raise ValueError("chart options are not a table")
             seed = data.get("seed")
         except InputError as exc:
-            raise InputError(f"{where} is damaged: {exc}") from None
+            raise InputError(say("project.damaged", file=name, where="its contents",
+                                 problem=str(exc))) from None
         except (KeyError, TypeError, ValueError, AttributeError) as exc:
-            raise InputError(f"{where} is damaged ({type(exc).__name__}: {exc}); save the "
-                             "project again from Prunella or start a new one.") from None
+            raise InputError(say("project.damaged", file=name, where="its contents",
+                                 problem=f"{type(exc).__name__}: {exc}")) from None
         if request is not None and seed is not None and seed != request.cv.seed:
-            raise InputError(f"{where} is inconsistent: its seed ({seed}) differs from the "
-                             f"seed in its settings ({request.cv.seed}); save the project "
-                             "again from Prunella.")
+            raise InputError(say("project.seed_mismatch", file=name, seed=seed,
+                                 settings_seed=request.cv.seed))
         return cls(data_path=data_path, data_sheet=sheet, data_sha256=sha,
-                   dictionary=dictionary, request=request, size=size, chart=chart,
+                   dictionary=dictionary, request=request, size=size, chart=dict(chart),
                    model_fingerprint=data.get("model_fingerprint"))
 
     def with_seed(self, seed: int) -> "Project":
@@ -118,8 +118,6 @@ class Project:
 def _resolve_data_path(entry: dict, project_path: str | Path | None) -> str:
     """The data file: beside the project (relative path) if it is there, else the saved path."""
     saved = entry["path"]
-    if not isinstance(saved, str) or not saved:
-        raise ValueError("data path is not a file name")
     relative = entry.get("relative_path")
     if relative and project_path is not None:
         candidate = (Path(project_path).resolve().parent / relative).resolve()
@@ -135,50 +133,31 @@ def save_project(project: Project, path: str | Path) -> None:
 
 
 def load_project(path: str | Path) -> Project:
-    """Read a project file; anything that is not a readable Prunella project is refused."""
+    """Read a project file; anything that is not a readable Prunella project is refused.
+
+    The file is read as data only (core.safe_files.read_json_document): a missing file, a
+    folder, text that is not JSON, NaN or Infinity, nesting too deep, another kind of file or
+    an unknown version each get one message saying what to do."""
     path = Path(path)
-    if not path.exists():
-        raise InputError(f"No project file at {path}; check the path.")
-    if path.is_dir():
-        raise InputError(f"{path} is a folder; choose a Prunella project file "
-                         f"(ending in {PROJECT_SUFFIX}).")
-    try:
-        data = json.loads(path.read_text(encoding="utf-8-sig"))
-    except (json.JSONDecodeError, UnicodeDecodeError):
-        raise InputError(f"{path.name} is not a Prunella project (it is not valid JSON); "
-                         "choose a project file saved by Prunella.") from None
+    data = read_json_document(path, "project", READABLE_VERSIONS)
     return Project.from_dict(data, project_path=path)
 
 
 # --- versions -------------------------------------------------------------------------------
 
 
-def project_version(data: dict) -> int:
-    """The layout version of a project dict; refuses anything that is not a Prunella project."""
-    if not isinstance(data, dict) or not isinstance(data.get("format"), str) \
-            or not data["format"].startswith(_FORMAT_PREFIX):
-        raise InputError("This file is not a Prunella project (it has no "
-                         f"'format': '{PROJECT_FORMAT}'); choose a project file saved by Prunella.")
-    try:
-        version = int(data["format"][len(_FORMAT_PREFIX):])
-    except ValueError:
-        raise InputError(f"This project file has format {data['format']!r}, which Prunella does "
-                         "not know; choose a project file saved by Prunella.") from None
-    if version > CURRENT_VERSION:
-        raise InputError(f"This project was saved by a newer Prunella (format {data['format']!r}; "
-                         f"this version reads up to {PROJECT_FORMAT!r}); update Prunella to open it.")
-    if version not in _UPGRADES and version != CURRENT_VERSION:
-        raise InputError(f"This project file has format {data['format']!r}, which this version "
-                         "of Prunella cannot read; save it again from the Prunella that made it.")
-    return version
+def project_version(data: dict, name: str = "This file") -> int:
+    """The layout version of a project dict; refuses anything that is not a Prunella project
+    of a layout this version reads (``name`` names the file in the message)."""
+    return check_format(data, "project", READABLE_VERSIONS, name)
 
 
-def upgrade_project(data: dict) -> dict:
+def upgrade_project(data: dict, name: str = "This file") -> dict:
     """Bring a project dict of any known layout up to the current one, step by step."""
-    version = project_version(data)
+    version = project_version(data, name)
     while version < CURRENT_VERSION:
         data = _UPGRADES[version](data)
-        version = project_version(data)
+        version = project_version(data, name)
     return data
 
 
@@ -205,13 +184,14 @@ def _upgrade_0_to_1(data: dict) -> dict:
             "chart": {"title": data["chart_title"]} if data.get("chart_title") else {},
             "model_fingerprint": None,
         }
-    except (AttributeError, TypeError) as exc:
-        raise InputError(f"This project file (draft layout) is damaged ({exc}); start a new "
-                         "project.") from None
+    except (AttributeError, TypeError, KeyError) as exc:
+        raise InputError(say("project.draft_damaged", problem=f"{type(exc).__name__}: {exc}")
+                         ) from None
     return upgraded
 
 
 _UPGRADES = {0: _upgrade_0_to_1}
+READABLE_VERSIONS = tuple(sorted(_UPGRADES)) + (CURRENT_VERSION,)
 
 
 # --- the data file --------------------------------------------------------------------------
@@ -231,16 +211,13 @@ class DataCheck:
     def message(self) -> str:
         name = Path(self.path).name
         if not self.exists:
-            return (f"The project's data file {name} is not at {self.path} any more; find the "
-                    "file (it may have been moved or renamed) to continue.")
+            return say("project.data_missing", file=name, path=self.path)
         if self.saved_sha256 is None:
-            return f"The project does not record a fingerprint for {name}."
+            return say("project.no_fingerprint", file=name)
         if not self.same:
-            return (f"{name} has changed since the project was saved (its fingerprint was "
-                    f"{self.saved_sha256[:12]}, now {self.current_sha256[:12]}). The tree will "
-                    "be grown again on the file as it is now and may differ from the saved one; "
-                    "open the original file if you want to reproduce the saved tree.")
-        return f"{name} is unchanged since the project was saved."
+            return say("project.data_changed", file=name, saved=self.saved_sha256[:12],
+                       now=self.current_sha256[:12])
+        return say("project.data_same", file=name)
 
 
 def check_data_file(project: Project, path: str | Path | None = None) -> DataCheck:

@@ -150,7 +150,7 @@ def read_json_document(path: str | Path, kind: str, versions: tuple[int, ...] = 
     if not path.exists():
         raise InputError(say("file.missing", path=str(path), what=what))
     if path.is_dir():
-        raise InputError(say("read.folder", path=str(path)))
+        raise InputError(say("file.folder", path=str(path), what=what))
     size = path.stat().st_size
     if size > MAX_JSON_BYTES:
         raise InputError(say("file.too_big", file=path.name, what=what, mb=size // 2**20))

@@ -19,7 +19,7 @@ from core.project import PROJECT_SUFFIX, check_data_file, load_project, save_pro
 from core.table import read_table
 from core.variables import infer_dictionary, merge_dictionary
 from gui import workers
-from gui.panels.base import heading_font
+from gui.panels.base import heading_font, with_advice
 from gui.panels.chart import ChartPanel
 from gui.panels.checking import CheckingPanel
 from gui.panels.data import DATA_FILTER, DataPanel
@@ -282,7 +282,7 @@ class MainWindow(QMainWindow):
         try:
             data, dictionary = demo_files()
         except InputError as exc:
-            QMessageBox.warning(self, "Prunella", str(exc))
+            QMessageBox.warning(self, "Prunella", with_advice(str(exc)))
             return
         self.go_to("data")
         self.panels["data"].open_path(str(data), dictionary_path=str(dictionary))
@@ -292,7 +292,7 @@ class MainWindow(QMainWindow):
         try:
             project = load_project(path)
         except InputError as exc:
-            QMessageBox.warning(self, "The project could not be opened", str(exc))
+            QMessageBox.warning(self, "The project could not be opened", with_advice(str(exc)))
             return
         if project.data_path is None:
             self.session.apply_project(project, None, None)
@@ -302,14 +302,14 @@ class MainWindow(QMainWindow):
         check = check_data_file(project)
         data_path = project.data_path
         if not check.exists:
-            QMessageBox.warning(self, "The data file has moved", check.message)
+            QMessageBox.warning(self, "The data file has moved", with_advice(check.message))
             data_path, _ = QFileDialog.getOpenFileName(self, "Find the project's data file",
                                                        str(Path(path).parent), DATA_FILTER)
             if not data_path:
                 return
             check = check_data_file(project, data_path)
         if check.exists and not check.same:
-            QMessageBox.warning(self, "The data file has changed", check.message)
+            QMessageBox.warning(self, "The data file has changed", with_advice(check.message))
         self._project_job = workers.Job(read_for_project, project, data_path,
                                         takes_progress=False)
         self._pending_project = (project, path, check)
@@ -332,7 +332,7 @@ class MainWindow(QMainWindow):
             self.panels["size"].run()
 
     def _project_failed(self, message: str) -> None:
-        QMessageBox.warning(self, "The project's data could not be read", message)
+        QMessageBox.warning(self, "The project's data could not be read", with_advice(message))
 
     # --- saving -----------------------------------------------------------------------------
 
@@ -433,7 +433,8 @@ class MainWindow(QMainWindow):
         if not self._may_discard():
             event.ignore()
             return
-        for panel in (self.panels["size"], self.panels["data"], self.panels["chart"]):
+        for panel in (self.panels["size"], self.panels["data"], self.panels["chart"],
+                      self.panels["outcome"]):
             if panel.job is not None and panel.job.running:
                 panel.job.cancel()
         self.settings.setValue("window/geometry", self.saveGeometry())

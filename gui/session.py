@@ -39,6 +39,7 @@ class Session(QObject):
     chosen_changed = Signal()  # another size was chosen from the same run
     chart_changed = Signal()  # chart options
     check_changed = Signal()  # which check on separate patients the chart prints
+    guards_changed = Signal()  # the checks of the outcome step started or came back
     state_changed = Signal()  # out-of-date steps or unsaved changes
 
     def __init__(self, parent: QObject | None = None) -> None:
@@ -58,6 +59,12 @@ class Session(QObject):
         self.project_path: str | None = None
         self.dirty = False
         self.expected_fingerprint: str | None = None  # from a reopened project
+        # The guards of step 2 (gui/guard_watch.py): identity columns the user chose to keep
+        # although they look like they identify patients, the latest result for the current
+        # choices, and whether a check is under way.
+        self.kept: frozenset[str] = frozenset()
+        self.screen = None  # a gui.guard_watch.Screen
+        self.guard_pending = False
 
     # --- what the user changes ------------------------------------------------------------
 
@@ -65,6 +72,7 @@ class Session(QObject):
                  notes: tuple[str, ...] = ()) -> None:
         if table is not self.table:
             self.design = None  # another file: its outcome and predictors are chosen afresh
+            self.kept, self.screen = frozenset(), None
         self.table, self.dictionary, self.notes = table, dictionary, tuple(notes)
         self._touch()
         self.data_changed.emit()
@@ -94,6 +102,27 @@ class Session(QObject):
         self.tree, self.cv, self.holdout = tree, cv, holdout
         self._touch()
         self.design_changed.emit()
+
+    def set_kept(self, kept) -> None:
+        """The identity-like columns the user ticked back deliberately (like naming them in
+        --predictors on the command line)."""
+        kept = frozenset(kept)
+        if kept == self.kept:
+            return
+        self.kept = kept
+        self._touch()
+
+    def set_screen(self, screen, pending: bool = False) -> None:
+        """The guards' latest result (None: nothing to check), and whether one is under way."""
+        if screen is self.screen and pending == self.guard_pending:
+            return
+        self.screen, self.guard_pending = screen, pending
+        self.guards_changed.emit()
+
+    def set_guard_pending(self, pending: bool) -> None:
+        if pending != self.guard_pending:
+            self.guard_pending = pending
+            self.guards_changed.emit()
 
     def set_seed(self, seed: int) -> None:
         self.set_settings(tree=replace(self.tree, seed=seed), cv=replace(self.cv, seed=seed))
@@ -213,6 +242,10 @@ class Session(QObject):
             self.holdout = request.holdout
         else:
             self.design, self.tree, self.cv, self.holdout = None, TreeSettings(), CVSettings(), None
+        # The saved predictors were the user's choices: any identity-like column among them was
+        # kept deliberately, so the reopened project grows the same tree (the app still says so).
+        self.kept = frozenset(() if request is None else request.design.predictors)
+        self.screen = None
         self.size = project.size
         self.chart = {**DEFAULT_CHART, **project.chart}
         self.derivation = self.chosen = None

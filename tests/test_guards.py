@@ -203,3 +203,24 @@ def test_fit_shows_the_guards_and_leaves_identity_out(tmp_path):
                     "--predictors", "spo2,age,visit_id", "--folds", "5", "--quiet")
     assert explicit.returncode == 2  # named on purpose, then refused: it is an identifier
     assert "marked as identifier" in explicit.stderr and "Traceback" not in explicit.stderr
+
+
+def test_guards_stop_when_cancelled(demo):
+    """The app restarts the guards when the design changes: a cancel is honoured between the
+    leakage screens, and only then (nothing is screened once it is asked)."""
+    from core.errors import Cancelled
+
+    table, dictionary = demo
+    predictors = tuple(c.name for c in dictionary.by_role("predictor") if c.name != "admitted")
+    design = DesignSpec("admitted", predictors, patient_id="patient_id")
+    asked = []
+
+    def cancel_after_two() -> bool:
+        asked.append(1)
+        return len(asked) > 2
+
+    with pytest.raises(Cancelled):
+        guard_design(table.frame, dictionary, design, cancel=cancel_after_two)
+    assert len(asked) == 3  # two predictors screened, stopped before the third
+    report = guard_design(table.frame, dictionary, design, cancel=lambda: False)
+    assert "bed_booked" in report.leakage_columns

@@ -114,3 +114,32 @@ def test_distinct_messages_keeps_the_version_with_rows():
     assert distinct_messages([without, with_rows, without]) == [with_rows]
     assert explain("prunella: " + with_rows).code == "values.limits"
     assert explain("something Prunella never says") is None
+
+
+def test_app_wording_drops_only_what_the_command_line_needs():
+    from core.messages import app_advice, app_wording
+
+    leak = say("guard.leakage", column="bed_booked", outcome="admitted", evidence="ROC area 0.97")
+    shown = app_wording(leak)
+    assert "--exclude" not in shown and "command line" not in shown
+    assert shown.endswith("leave it out of the predictors.")
+    assert "Check when it is recorded" in shown
+    assert app_wording("Pick another sheet (--sheet NAME).") == "Pick another sheet."
+    repeats = say("guard.repeats_no_id", column="SpO2 (%)", patients=5, n_rows=12)
+    assert app_wording(repeats) == ("'SpO2 (%)' repeats for 5 patient(s) (12 rows): these look "
+                                    "like repeat visits. Set it as the patient identifier so "
+                                    "cross-validation keeps each patient's rows together.")
+    assert app_wording("Check the spelling of the path; on the command line put paths with "
+                       "spaces in quotes.") == "Check the spelling of the path."
+    assert app_wording("On the command line: --sheet NAME.") == ""
+    assert app_wording("Keep (this) as it is.") == "Keep (this) as it is."
+    # Advice: from the catalogue, without command-line-only or empty advice.
+    assert "recorded after the decision" in app_advice(leak)
+    grouped = say("guard.repeats_grouped", patients=3, n_rows=7, most=3, column="patient_id")
+    assert app_advice(grouped) is None  # "Nothing to do."
+    assert app_advice("something Prunella never says") is None
+    for kind in catalogue().values():  # no advice the app shows names an option
+        text = kind.template.format(**{n: "x" for _, n, _, _ in
+                                       string.Formatter().parse(kind.template) if n})
+        advice = app_advice(text)
+        assert advice is None or "--" not in advice

@@ -14,6 +14,7 @@ import pytest
 from core.derive import DerivationRequest, choose_model, derive
 from core.design import DesignSpec
 from core.errors import InputError
+from core.messages import explain
 from core.grow import TreeSettings
 from core.project import (
     PROJECT_FORMAT, Project, check_data_file, load_project, save_project, upgrade_project,
@@ -106,9 +107,9 @@ def test_old_draft_layout_is_upgraded():
 @pytest.mark.parametrize("content, words", [
     ("{not json", "not valid JSON"),
     ("[1, 2]", "not a Prunella project"),
-    ('{"format": "prunella-model/1"}', "not a Prunella project"),
+    ('{"format": "prunella-model/1"}', "model file, not a project file"),
     ('{"format": "prunella-project/9"}', "newer Prunella"),
-    ('{"format": "prunella-project/x"}', "does not know"),
+    ('{"format": "prunella-project/x"}', "its format is 'prunella-project/x'"),
     ('{"format": "prunella-project/1", "data": {"path": 5}}', "damaged"),
     ('{"format": "prunella-project/1", "data": null, "size": "huge"}', "damaged"),
     ('{"format": "prunella-project/1", "data": null, "dictionary": {"format": "x"}}', "damaged"),
@@ -161,3 +162,115 @@ def test_reopened_project_recomputes_the_identical_tree(tmp_path, dictionary):
     redone = choose_model(derive(read_table(again.data_path), again.dictionary, again.request),
                           again.size)
     assert redone.model.fingerprint == again.model_fingerprint
+
+
+# --- files that are JSON in name only (read through core.safe_files.read_json_document) -----
+
+
+def _saved(tmp_path, dictionary) -> tuple[Path, dict]:
+    target = tmp_path / "p.prunella"
+    save_project(_project(DEMO, dictionary), target)
+    return target, json.loads(target.read_text(encoding="utf-8"))
+
+
+def test_deeply_nested_file_is_refused_not_a_crash(tmp_path):
+    target = tmp_path / "deep.prunella"
+    depth = 100_000  # far deeper than Python's parser can follow
+    target.write_text('{"format": "prunella-project/1", "chart": ' + "[" * depth + "]" * depth
+                      + "}", encoding="utf-8")
+    with pytest.raises(InputError, match="nested too deeply"):
+        load_project(target)
+
+
+@pytest.mark.parametrize("constant", ["NaN", "Infinity", "-Infinity"])
+def test_nan_and_infinity_are_refused(tmp_path, dictionary, constant):
+    target, raw = _saved(tmp_path, dictionary)
+    text = json.dumps(raw).replace('"min_text": 9', f'"min_text": {constant}')
+    assert constant in text
+    target.write_text(text, encoding="utf-8")
+    with pytest.raises(InputError, match=f"{constant} is not allowed"):
+        load_project(target)
+
+
+def test_text_that_is_not_utf8_and_folders_and_missing_files_are_refused(tmp_path):
+    binary = tmp_path / "binary.prunella"
+    binary.write_bytes(b"\xff\xfe\x00{\x81")
+    with pytest.raises(InputError, match="not UTF-8"):
+        load_project(binary)
+    folder = tmp_path / "folder.prunella"
+    folder.mkdir()
+    with pytest.raises(InputError, match="is a folder; choose the Prunella project file"):
+        load_project(folder)
+    with pytest.raises(InputError, match="No project file at"):
+        load_project(tmp_path / "absent.prunella")
+
+
+def _set(raw: dict, dotted: str, value) -> None:
+    keys = dotted.split(".")
+    for key in keys[:-1]:
+        raw = raw[key]
+    raw[keys[-1]] = value
+
+
+@pytest.mark.parametrize("field, value, named", [
+    ("size", True, "size"),  # JSON true is not a number of boxes
+    ("size", 0, "size"),
+    ("size", 2.5, "size"),
+    ("seed", "three", "seed"),
+    ("data", [1], "data"),
+    ("data.path", 5, "data → path"),
+    ("data.sheet", 1, "data → sheet"),
+    ("data.sha256", 12345, "data → sha256"),
+    ("data.sha256", "not-a-fingerprint", "data → sha256"),
+    ("dictionary", "the usual", "dictionary"),
+    ("request", 7, "request"),
+    ("request.design", None, "request → design"),
+    ("request.design.outcome", 1, "request → design → outcome"),
+    ("request.design.predictors", "age", "request → design → predictors"),
+    ("request.design.predictors", ["age", 3], "request → design → predictors"),
+    ("request.design.task", "clustering", "request → design → task"),
+    ("request.tree.min_leaf", "5", "request → tree → min_leaf"),
+    ("request.tree.min_leaf", 0, "request → tree → min_leaf"),
+    ("request.tree.max_depth", False, "request → tree → max_depth"),
+    ("request.tree.priors", "tilted", "request → tree → priors"),
+    ("request.tree.priors", [0.5, "x"], "request → tree → priors"),
+    ("request.tree.loss", [[0, 1], [1, "a"]], "request → tree → loss"),
+    ("request.tree.miss_cost", -2, "request → tree → miss_cost"),
+    ("request.tree.criterion", "chaos", "request → tree → criterion"),
+    ("request.cv.folds", 1, "request → cv → folds"),
+    ("request.cv.folds", "10", "request → cv → folds"),
+    ("request.cv.plan", "bootstrap", "request → cv → plan"),
+    ("request.cv.grouped", "yes", "request → cv → grouped"),
+    ("request.cv.validation_share", 1.5, "request → cv → validation_share"),
+    ("request.holdout", 1.0, "request → holdout"),
+    ("chart", [], "chart"),
+    ("chart.title", 5, "chart → title"),
+    ("chart.min_text", "big", "chart → min_text"),
+    ("model_fingerprint", 5, "model_fingerprint"),
+])
+def test_fields_of_the_wrong_type_are_refused_naming_the_field(tmp_path, dictionary, field,
+                                                               value, named):
+    target, raw = _saved(tmp_path, dictionary)
+    _set(raw, field, value)
+    if field.endswith("seed"):
+        raw["request"]["cv"]["seed"] = raw["request"]["tree"]["seed"] = 3
+    target.write_text(json.dumps(raw), encoding="utf-8")
+    with pytest.raises(InputError) as caught:
+        load_project(target)
+    message = str(caught.value)
+    assert f"The project file p.prunella is damaged at {named}:" in message, message
+    assert "save the project again from Prunella" in message
+    assert explain(message).code == "project.damaged"
+
+
+def test_every_message_of_a_project_has_advice_in_the_catalogue(tmp_path, dictionary):
+    data = tmp_path / "cohort.csv"
+    shutil.copy(DEMO, data)
+    project = _project(data, dictionary)
+    messages = [check_data_file(project).message]
+    data.write_text(data.read_text(encoding="utf-8") + "\n", encoding="utf-8")
+    messages.append(check_data_file(project).message)
+    data.unlink()
+    messages.append(check_data_file(project).message)
+    codes = [explain(m).code for m in messages]
+    assert codes == ["project.data_same", "project.data_changed", "project.data_missing"]

@@ -9,6 +9,7 @@ from PySide6.QtWidgets import (
     QFrame, QHBoxLayout, QLabel, QMessageBox, QPushButton, QVBoxLayout, QWidget,
 )
 
+from core.messages import app_advice, app_wording
 from gui.session import STEP_TITLES, STEPS, Session
 
 
@@ -24,6 +25,24 @@ def explain(widget: QWidget, text: str) -> QWidget:
     widget.setToolTip(text)
     widget.setWhatsThis(text)
     return widget
+
+
+def with_advice(text: str) -> str:
+    """A message from core as the app shows it, with the catalogue's "what to do" under it
+    (core.messages.app_advice) when there is any."""
+    advice = app_advice(text)
+    shown = app_wording(text) or text
+    return shown if advice is None else f"{shown}\n\nWhat to do: {advice}"
+
+
+def warning_html(text: str) -> str:
+    """A warning from core as a paragraph: ⚠, the message, and what to do (in italics)."""
+    from html import escape
+
+    advice = app_advice(text)
+    shown = escape(app_wording(text) or text)
+    more = "" if advice is None else f"<br><i>What to do: {escape(advice)}</i>"
+    return f"<p>⚠ {shown}{more}</p>"
 
 
 class Banner(QFrame):
@@ -96,5 +115,5 @@ class Panel(QWidget):
         self.go_to.emit("size")
 
     def warn(self, text: str, title: str = "Prunella") -> None:
-        """One clear message for the user (never a crash)."""
-        QMessageBox.warning(self, title, text)
+        """One clear message for the user (never a crash), with what to do about it."""
+        QMessageBox.warning(self, title, with_advice(text))

@@ -25,7 +25,7 @@ from core.stability import DEFAULT_RESAMPLES, bootstrap_stability
 from core.table import read_table
 from core.validate import check_heldout, check_table
 from gui import workers
-from gui.panels.base import Banner, Panel, explain
+from gui.panels.base import Banner, Panel, explain, warning_html
 from gui.panels.data import DATA_FILTER
 
 RULES = {"1se": "smallest within one standard error (SE) of the lowest error",
@@ -65,7 +65,7 @@ def check_html(result) -> str:
     if result.columns is not None:
         parts.append("<p>" + "<br>".join(escape(line) for line in result.columns.lines()) + "</p>")
     for warning in result.warnings:
-        parts.append(f"<p>⚠ {escape(warning)}</p>")
+        parts.append(warning_html(warning))
     parts.append(_table(m.rows(), ("Measure", "Value (95% interval)")))
     if isinstance(m, ClassificationMeasures):
         head = "".join(f"<th align='right'>{escape(c)}</th>" for c in m.classes)

@@ -7,13 +7,15 @@ from pathlib import Path
 
 from PySide6.QtCore import Qt, Signal
 from PySide6.QtWidgets import (
-    QAbstractItemView, QComboBox, QFileDialog, QHBoxLayout, QHeaderView, QLabel, QListWidget,
-    QListWidgetItem, QMenu, QProgressBar, QPushButton, QSplitter, QStackedWidget, QTableView,
+    QAbstractItemView, QComboBox, QFileDialog, QHBoxLayout, QHeaderView, QLabel, QMenu,
+    QProgressBar, QPushButton, QSplitter, QStackedWidget, QTableView,
     QTabWidget, QToolButton, QVBoxLayout, QWidget,
 )
 
 from core.cli import load_dictionary
 from core.errors import InputError
+from core.messages import app_advice, app_wording
+from core.messages import explain as catalogue_entry
 from core.table import EXCEL_SUFFIXES, list_sheets, read_table
 from core.variables import DataDictionary, infer_dictionary
 from gui import workers
@@ -21,10 +23,20 @@ from gui.panels.base import Panel, explain, heading_font
 from gui.widgets.dictionary_model import (
     KIND_WORDS, ROLE_WORDS, ChoiceDelegate, DictionaryModel,
 )
+from gui.widgets.findings import Finding, FindingsView
 from gui.widgets.frame_model import FrameModel
 
 DATA_FILTER = "Spreadsheets (*.csv *.tsv *.txt *.tab *.xlsx *.xlsm);;All files (*)"
 DICTIONARY_FILTER = "Data dictionary (*.json *.csv)"
+
+
+def note_finding(note: str) -> Finding:
+    """A reading note as the list shows it: how serious (from the message catalogue), the
+    note, and the catalogue's "what to do"."""
+    kind = catalogue_entry(note)
+    severity = kind.severity if kind is not None else "note"
+    return Finding(severity, app_wording(note) or note, app_advice(note), kind=
+                   "" if kind is None else kind.code)
 
 
 def dictionary_beside(path: str | Path) -> Path | None:
@@ -142,23 +154,22 @@ class DataPanel(Panel):
                                    "double-click a cell to change it.")
         self.tabs.setTabToolTip(1, "The spreadsheet as read (blank = not recorded).")
 
-        self.notes_list = QListWidget()
-        self.notes_list.setWordWrap(True)
-        self.notes_list.setAccessibleName("Things to check")
-        self.notes_list.setAlternatingRowColors(True)
+        self.notes_view = FindingsView()
+        self.notes_view.setAccessibleName("Things to check")
         notes_box = QWidget()
         notes_layout = QVBoxLayout(notes_box)
         notes_layout.setContentsMargins(0, 4, 0, 0)
         self.notes_title = QLabel("Things to check")
         self.notes_title.setFont(heading_font(self, 1.1))
         notes_layout.addWidget(self.notes_title)
-        notes_layout.addWidget(self.notes_list, 1)
+        notes_layout.addWidget(self.notes_view, 1)
 
         splitter = QSplitter(Qt.Vertical)
         splitter.addWidget(self.tabs)
         splitter.addWidget(notes_box)
-        splitter.setStretchFactor(0, 4)
-        splitter.setStretchFactor(1, 1)
+        splitter.setStretchFactor(0, 3)
+        splitter.setStretchFactor(1, 2)
+        splitter.setSizes([560, 260])  # room for two or three notes with their advice
         splitter.setChildrenCollapsible(False)
 
         # What shows before anything is open.
@@ -325,7 +336,7 @@ class DataPanel(Panel):
             self.frame_model.set_frame(None)
             self.dictionary_model.set_dictionary(None)
             self.file_label.setText("No spreadsheet open yet.")
-            self.notes_list.clear()
+            self.notes_view.show_findings("", [])
             self._show_sheet_choice(False)
             return
         if self.frame_model.frame is not table.frame:
@@ -337,12 +348,13 @@ class DataPanel(Panel):
             f"<b>{Path(p.path).name}</b>{sheet}: {p.n_rows:,} rows, {p.n_columns} columns · "
             f"fingerprint {p.short_fingerprint}")
         self.file_label.setToolTip(f"{p.path}\nSHA-256 (the file's fingerprint): {p.sha256}")
-        self.notes_list.clear()
         notes = list(dict.fromkeys(list(p.warnings) + list(self.session.notes)))
-        for note in notes:
-            QListWidgetItem("•  " + note, self.notes_list)
-        if not notes:
-            QListWidgetItem("Nothing to check: every column was read without surprises.",
-                            self.notes_list)
+        findings = [note_finding(n) for n in notes]
+        order = {"refused": 0, "warning": 1, "note": 2}
+        findings.sort(key=lambda f: order[f.severity])  # what to check first, first
+        if not findings:
+            findings = [Finding("note", "Nothing to check: every column was read without "
+                                "surprises.")]
+        self.notes_view.show_findings("", findings)
         self.notes_title.setText(f"Things to check ({len(notes)})" if notes else "Things to check")
 

@@ -12,10 +12,13 @@ from PySide6.QtWidgets import (
 )
 
 from core.design import DesignSpec, suggest_task
+from core.messages import app_advice, app_wording
 from core.variables import CATEGORY_KINDS, PREDICTOR_KINDS, positive_level
+from gui.guard_watch import GuardWatch
 from gui.panels.base import Panel, explain
 from gui.widgets.checklist import Checklist
 from gui.widgets.dictionary_model import KIND_WORDS
+from gui.widgets.findings import Finding, FindingsView
 
 TASK_WORDS = {
     "classification": "Sort patients into outcome groups (classification)",
@@ -88,7 +91,16 @@ class OutcomePanel(Panel):
         left_layout.setContentsMargins(0, 0, 0, 0)
         left_layout.addWidget(choices)
         left_layout.addWidget(self.summary)
-        left_layout.addStretch(1)
+        self.findings = FindingsView()
+        self.findings.status.setTextFormat(Qt.RichText)
+        self.findings.setAccessibleName("Checks on these choices")
+        checks = QGroupBox("Checks on these choices")
+        checks.setToolTip("Prunella checks the choices for columns that identify patients, "
+                          "columns that give the outcome away (leakage), repeat visits and "
+                          "rare outcomes, in the background.")
+        checks_layout = QVBoxLayout(checks)
+        checks_layout.addWidget(self.findings)
+        left_layout.addWidget(checks, 1)
 
         self.checklist = Checklist()
         self.checklist.setToolTip("Predictors: the columns the tree may ask a question about.")
@@ -110,9 +122,19 @@ class OutcomePanel(Panel):
             combo.currentIndexChanged.connect(self._write_back)
         self.checklist.changed.connect(self._write_back)
         self.cost_spin.valueChanged.connect(self._cost_changed)
+        self.findings.acted.connect(self._act)
+        # The guards run whenever the choices change (gui/guard_watch.py).
+        self.watch = GuardWatch(session, parent=self)
         session.data_changed.connect(self._data_changed)
         session.design_changed.connect(self.refresh)
+        session.guards_changed.connect(self.show_guards)
         self._data_changed()
+        self.show_guards()
+
+    @property
+    def job(self):
+        """The guards' latest check (the window cancels it on closing)."""
+        return self.watch.job
 
     # --- from the session to the widgets ----------------------------------------------------
 
@@ -190,6 +212,7 @@ class OutcomePanel(Panel):
                 self._select(self.task_combo, design.task or "classification")
             self._fill_positive(design)
             self._fill_predictors(design)
+            self._update_marks()
             self.cost_spin.blockSignals(True)
             self.cost_spin.setValue(self.session.tree.miss_cost or 1.0)
             self.cost_spin.blockSignals(False)
@@ -278,6 +301,7 @@ class OutcomePanel(Panel):
         site = self.site_combo.currentData() or None
         taken = {name, patient, site}
         predictors = tuple(p for p in self.checklist.checked() if p not in taken)
+        self._update_kept(predictors)
         spec = self.session.dictionary.get(name)
         positive = self.positive_combo.currentData() if task == "classification" else None
         if task == "classification" and positive is None:
@@ -295,6 +319,111 @@ class OutcomePanel(Panel):
         else:
             self._fill_positive(design)
             self._update_summary()
+
+    def _update_kept(self, predictors: tuple[str, ...]) -> None:
+        """A column the guards left out and the user ticked back, one at a time, is kept on
+        purpose; a kept column that is unticked is left out again. Ticking every column with
+        a button keeps nothing that identifies patients."""
+        screen, kept = self.session.screen, set(self.session.kept)
+        if screen is not None and not self.checklist.bulk:
+            kept |= {p for p in predictors if p in screen.left_out_columns}
+        offered = set(self.checklist.names())
+        kept -= {k for k in kept if k in offered and k not in predictors}
+        self.session.set_kept(kept)
+
+    def keep_column(self, name: str) -> None:
+        """Tick a column the guards left out, on purpose (the button beside its warning)."""
+        self.checklist.set_checked(tuple(self.checklist.checked()) + (name,))
+        self._write_back()
+
+    def leave_out(self, name: str) -> None:
+        """Untick a column (the button beside a leakage or identity warning)."""
+        self.checklist.set_checked(tuple(p for p in self.checklist.checked() if p != name))
+        self._write_back()
+
+    def _act(self, action: str, column: str) -> None:
+        if action == "keep":
+            self.keep_column(column)
+        elif action == "leave":
+            self.leave_out(column)
+        elif action == "patient":
+            self._select(self.patient_combo, column)  # announces the change itself
+        elif action == "group":
+            self.session.set_settings(cv=replace(self.session.cv, grouped=True))
+
+    # --- the guards' findings ---------------------------------------------------------------
+
+    def guard_findings(self) -> list[Finding]:
+        """The guards' findings in plain words, with what to do; warnings first."""
+        screen, design = self.session.screen, self.session.design
+        if screen is None or design is None:
+            return []
+        rows = []
+        for f in screen.left_out:
+            rows.append(Finding("warning", app_wording(f.message), app_advice(f.message),
+                                "keep", "Keep it anyway", f.column, "identity"))
+        for f in screen.kept:
+            if f.column in design.predictors:
+                what = f.measures.get("what", "an identity")
+                rows.append(Finding(
+                    "warning", f"“{f.column}” is asked about because you ticked it, although it "
+                    f"looks like {what}. The chart prints every question the tree asks: keep it "
+                    "only if it identifies no one.", app_advice(f.message), "leave",
+                    "Leave it out", f.column, "identity_kept"))
+        actions = {"leakage": ("leave", "Leave it out"),
+                   "repeats_no_id": ("patient", "Use as patient number"),
+                   "repeats_not_grouped": ("group", "Keep visits together")}
+        for f in screen.other_findings:
+            key = f.code.split(".")[-1] if f.kind == "repeat_visits" else f.kind
+            action, words = actions.get(key, (None, ""))
+            rows.append(Finding(f.severity, app_wording(f.message), app_advice(f.message),
+                                action, words, f.column, f.kind))
+        if screen.error:
+            rows.append(Finding("refused", "The checks could not be made: " + screen.error,
+                                None, kind="error"))
+        order = {"refused": 0, "warning": 1, "note": 2}
+        return sorted(rows, key=lambda r: order[r.severity])
+
+    def show_guards(self) -> None:
+        session = self.session
+        if session.guard_pending:
+            status = ("Checking these choices for columns that identify patients, columns "
+                      "that give the outcome away, repeat visits and rare outcomes…")
+            rows = []
+        elif session.screen is None:
+            status = "The choices are checked once the outcome is chosen."
+            rows = []
+        else:
+            rows = self.guard_findings()
+            warnings = sum(r.severity != "note" for r in rows)
+            if warnings:
+                status = f"<b>{warnings} warning{'s' if warnings != 1 else ''}</b> about these " \
+                         "choices; read each before growing the tree."
+            else:
+                status = ("No warnings: no ticked column identifies patients or gives the "
+                          "outcome away on its own.")
+        self.findings.show_findings(status, rows)
+        self._update_marks()
+
+    def _update_marks(self) -> None:
+        screen, design = self.session.screen, self.session.design
+        marks: dict[str, tuple[str, str]] = {}
+        if screen is not None and design is not None:
+            for f in screen.left_out:
+                marks[f.column] = ("⚠ left out: may identify patients",
+                                   "Left out because it looks like it identifies patients; "
+                                   "tick it to keep it anyway, only if it identifies no one.")
+            for f in screen.kept:
+                if f.column in design.predictors:
+                    marks[f.column] = ("⚠ kept: may identify patients",
+                                       "You ticked it although it looks like it identifies "
+                                       "patients.")
+            for f in screen.other_findings:
+                if f.kind == "leakage":
+                    marks[f.column] = ("⚠ probable leakage",
+                                       "On its own it predicts the outcome almost perfectly: "
+                                       "check when it is recorded.")
+        self.checklist.set_marks(marks)
 
     def _cost_changed(self, value: float) -> None:
         if self._writing:

@@ -5,6 +5,7 @@ from __future__ import annotations
 
 import time
 from dataclasses import replace
+from html import escape
 
 from PySide6.QtCore import Qt, Signal
 from PySide6.QtWidgets import (
@@ -17,6 +18,7 @@ from core.chart import sizes_that_fit
 from core.chart.options import PAPER_NAMES, default_min_text
 from core.derive import choose_model, derive
 from core.errors import InputError
+from core.messages import app_advice, app_wording
 from core.grow import TreeSettings
 from core.resample import CVSettings
 from gui import workers
@@ -226,6 +228,12 @@ class SizePanel(Panel):
         self.not_ready = Banner("ℹ", "Go to step 2")
         self.not_ready.button.clicked.connect(lambda: self.go_to.emit("outcome"))
         self.body.insertWidget(3, self.not_ready)
+        # What the guards of step 2 found, in one line, before anything is grown.
+        self.guard_line = Banner("⚠", "Go to step 2")
+        self.guard_line.setAccessibleName("Warnings from step 2")
+        self.guard_line.button.clicked.connect(lambda: self.go_to.emit("outcome"))
+        self.body.insertWidget(4, self.guard_line)
+        self._queued = False  # Run was pressed while the checks of step 2 were under way
 
         for widget in (self.min_leaf, self.max_depth, self.folds, self.repeats, self.share,
                        self.seed, self.holdout):
@@ -245,8 +253,10 @@ class SizePanel(Panel):
         session.result_changed.connect(self.refresh_result)
         session.chosen_changed.connect(self.refresh_chosen)
         session.chart_changed.connect(self.refresh_fits)
+        session.guards_changed.connect(self.refresh_guards)
         self.refresh_settings()
         self.refresh_result()
+        self.refresh_guards()
 
     # --- settings ---------------------------------------------------------------------------
 
@@ -332,13 +342,66 @@ class SizePanel(Panel):
         self._writing = False
         self._enable_settings()
 
+    # --- the guards of step 2 ---------------------------------------------------------------
+
+    def refresh_guards(self) -> None:
+        """One line saying what step 2's checks found (or that they are under way)."""
+        session = self.session
+        if session.guard_pending:
+            self.guard_line.symbol.setText("…")
+            self.guard_line.show_text("Checking the choices of step 2 (identity, leakage, "
+                                      "repeat visits, rare outcomes)…")
+        elif session.screen is None or not session.screen.warnings and not session.screen.error:
+            self.guard_line.hide()
+        else:
+            warnings = session.screen.warnings
+            n = len(warnings) + (1 if session.screen.error else 0)
+            what = []
+            for kind, words in (("identity", "columns that may identify patients"),
+                                ("leakage", "probable leakage"),
+                                ("repeat_visits", "repeat visits"),
+                                ("rare_class", "a rare outcome")):
+                columns = [f.column for f in warnings if f.kind == kind and f.column]
+                if columns and kind in ("identity", "leakage"):
+                    names = ", ".join(f"“{escape(c)}”" for c in dict.fromkeys(columns))
+                    what.append(f"{words} ({names})")
+                elif any(f.kind == kind for f in warnings):
+                    what.append(words)
+            if session.screen.error:
+                what.append("the checks could not be made")
+            self.guard_line.symbol.setText("⚠")
+            self.guard_line.show_text(
+                f"<b>{n} warning{'s' if n != 1 else ''} on step 2</b>: " + "; ".join(what)
+                + (". Read them" if n != 1 else ". Read it") + " before relying on the tree.")
+        if self._queued and not session.guard_pending:
+            self._queued = False
+            self._start_run()
+
     # --- running ----------------------------------------------------------------------------
 
     def run(self) -> None:
-        request = self.session.request()
-        if request is None or self._busy:
+        """Grow the tree; while step 2's checks are under way, wait for them first (they may
+        leave identity-like columns out of the predictors)."""
+        if self.session.request() is None or self._busy:
             return
         self._busy = True
+        self.run_button.setEnabled(False)
+        self.cancel_button.setEnabled(True)
+        self._started = time.monotonic()
+        if self.session.guard_pending:
+            self._queued = True
+            self.progress.setRange(0, 0)
+            self.status.setText("Waiting for the checks of step 2 to finish…")
+            return
+        self._start_run()
+
+    def _start_run(self) -> None:
+        request = self.session.request()
+        if request is None:  # the checks left no predictor
+            self._busy = False
+            self.status.setText("Nothing was grown: no predictor is left on step 2.")
+            self._over()
+            return
         session = self.session
         self.job = workers.Job(run_derivation, session.table, session.dictionary, request,
                                session.size)
@@ -351,10 +414,14 @@ class SizePanel(Panel):
         self.status.setText("Growing the full tree…")
         self.run_button.setEnabled(False)
         self.cancel_button.setEnabled(True)
-        self._started = time.monotonic()
         workers.start(self.job)
 
     def cancel(self) -> None:
+        if self._busy and self._queued:
+            self._queued = False
+            self._cancelled()
+            self._over()
+            return
         if self._busy and self.job is not None:
             self.job.cancel()
             self.status.setText("Stopping after the current step…")
@@ -380,9 +447,10 @@ class SizePanel(Panel):
         self.session.set_result(derivation, chosen, changes_work=not reproduced)
         seconds = time.monotonic() - self._started
         text = f"Done in {seconds:.1f} s. {len(derivation.path.leaves)} sizes on the pruning path."
-        notes = list(derivation.notes)
-        if notes:
-            text += " " + " ".join(notes)
+        for note in derivation.notes:
+            advice = app_advice(note)
+            text += " " + (app_wording(note) or note) + (f" (What to do: {advice})" if advice
+                                                         else "")
         if expected is not None:
             if reproduced:
                 text += (" This is exactly the tree saved in the project (fingerprint "

@@ -13,7 +13,7 @@ from PySide6.QtWidgets import (
 
 from core.explain import box_details, route_patient
 from core.thresholds import format_number
-from gui.panels.base import Banner, Panel, explain
+from gui.panels.base import Banner, Panel, explain, warning_html
 from gui.widgets.tree_view import TreeView
 
 NOT_RECORDED = "(not recorded)"
@@ -238,7 +238,7 @@ class TreePanel(Panel):
         self.last_route = route
         self.view.light_path(route.boxes)
         leaf = model.node(route.outcome_box)
-        warn = "".join(f"<p>⚠ {escape(w)}</p>" for w in route.warnings)
+        warn = "".join(warning_html(w) for w in route.warnings)
         # The way there is lit in the diagram and listed in the box details above.
         self.result.setText(f"<p><b>Reaches box {route.outcome_box}:</b> {escape(leaf.text)}</p>"
                             f"{warn}")

@@ -9,6 +9,8 @@ from PySide6.QtWidgets import (
 )
 
 NAME_ROLE = Qt.UserRole + 1
+TEXT_ROLE = Qt.UserRole + 2  # the item's own text, before any mark
+TIP_ROLE = Qt.UserRole + 3
 
 
 class Checklist(QWidget):
@@ -24,6 +26,7 @@ class Checklist(QWidget):
         self._proxy.setFilterCaseSensitivity(Qt.CaseInsensitive)
         self._proxy.setFilterRole(Qt.DisplayRole)
         self._suggested: tuple[str, ...] = ()
+        self.bulk = False  # True while a button ticks or unticks many items at once
 
         self.search = QLineEdit()
         self.search.setPlaceholderText("Find a column…")
@@ -66,6 +69,8 @@ class Checklist(QWidget):
         for name, text, tip in items:
             item = QStandardItem(text)
             item.setData(name, NAME_ROLE)
+            item.setData(text, TEXT_ROLE)
+            item.setData(tip, TIP_ROLE)
             item.setToolTip(tip)
             item.setEditable(False)
             item.setCheckable(True)
@@ -74,6 +79,26 @@ class Checklist(QWidget):
         self._model.blockSignals(blocker)
         self._proxy.invalidate()
         self._update_count()
+
+    def set_marks(self, marks: dict[str, tuple[str, str]]) -> None:
+        """Put a short mark after some items' text, with a line added to their tooltip
+        (name -> (mark, tip)); items not named lose their mark."""
+        blocker = self._model.blockSignals(True)
+        for row in range(self._model.rowCount()):
+            item = self._model.item(row)
+            mark, tip = marks.get(item.data(NAME_ROLE), ("", ""))
+            item.setText(item.data(TEXT_ROLE) + (f"   {mark}" if mark else ""))
+            item.setToolTip(item.data(TIP_ROLE) + (f"\n{tip}" if tip else ""))
+        self._model.blockSignals(blocker)
+        self.view.viewport().update()
+
+    def mark_of(self, name: str) -> str:
+        """The mark shown after an item (empty if none)."""
+        for row in range(self._model.rowCount()):
+            item = self._model.item(row)
+            if item.data(NAME_ROLE) == name:
+                return item.text()[len(item.data(TEXT_ROLE)):].strip()
+        return ""
 
     def set_checked(self, names: tuple[str, ...]) -> None:
         blocker = self._model.blockSignals(True)
@@ -101,7 +126,11 @@ class Checklist(QWidget):
             item.setCheckState(Qt.Checked if decide(item.data(NAME_ROLE)) else Qt.Unchecked)
         self._model.blockSignals(blocker)
         self.view.viewport().update()
-        self._item_changed()
+        self.bulk = True
+        try:
+            self._item_changed()
+        finally:
+            self.bulk = False
 
     def _tick_all(self) -> None:
         self._set_many(lambda name: True)

@@ -19,6 +19,30 @@ from PySide6.QtCore import QSettings  # noqa: E402
 from gui.app import make_application  # noqa: E402
 
 
+def _identity_cohort(path: Path) -> None:
+    """An invented table with identity-like columns, and a dictionary beside it."""
+    import numpy as np
+    import pandas as pd
+
+    from core.variables import infer_dictionary
+
+    rng = np.random.default_rng(3)
+    n = 240
+    frame = pd.DataFrame({
+        "age": rng.integers(18, 95, n), "sat": rng.integers(84, 100, n),
+        "surname": rng.choice(["Okafor", "Lindqvist", "Moreau", "Tanaka", "Haddad"], n),
+        "postcode": rng.choice(["FB1 2AB", "FB3 4CD", "FB5 6EF", "FB7 8GH"], n),
+        "visit": [f"V{i:04d}" for i in range(n)],
+    })
+    frame["outcome"] = np.where((frame["sat"] < 91) | (rng.random(n) < 0.15), "yes", "no")
+    frame.to_csv(path, index=False)
+    dictionary, _ = infer_dictionary(frame)
+    for name in ("surname", "postcode"):
+        dictionary = dictionary.with_column(name, role="predictor")
+    dictionary = dictionary.with_column("outcome", role="outcome")
+    dictionary.save(path.with_name(path.stem + ".dictionary.json"))
+
+
 def main(argv: list[str]) -> int:
     out = Path(argv[0] if argv else "screenshots")
     sizes = [tuple(int(v) for v in s.split("x")) for s in (argv[1:] or ["1366x768", "1920x1080"])]
@@ -60,6 +84,29 @@ def main(argv: list[str]) -> int:
             settle(1.5 if step == "chart" else 0.6,
                    until=(lambda: not chart.preview_busy) if step == "chart" else None)
             window.grab().save(str(out / f"{number}-{step}-{width}x{height}.png"))
+        # Step 2's checks with the demo's leakage column ticked, and their line on step 3.
+        outcome = window.panels["outcome"]
+        if "bed_booked" not in window.session.design.predictors:
+            outcome.keep_column("bed_booked")
+        settle(until=lambda: not window.session.guard_pending and window.session.screen)
+        for number, step in ((2, "outcome"), (3, "size")):
+            window.go_to(step)
+            settle(0.6)
+            window.grab().save(str(out / f"{number}b-{step}-checks-{width}x{height}.png"))
+    # Columns that identify patients: an invented cohort with a surname and a postcode,
+    # marked as predictors by a hand-made dictionary.
+    folder = Path(tempfile.mkdtemp())
+    _identity_cohort(folder / "cohort.csv")
+    window.panels["data"].open_path(str(folder / "cohort.csv"))
+    settle(until=lambda: window.session.table is not None
+           and Path(window.session.table.provenance.path).name == "cohort.csv")
+    settle(until=lambda: not window.session.guard_pending and window.session.screen)
+    for width, height in sizes:
+        window.resize(width, height)
+        for number, step in ((1, "data"), (2, "outcome")):
+            window.go_to(step)
+            settle(0.6)
+            window.grab().save(str(out / f"{number}c-{step}-identity-{width}x{height}.png"))
     window.session.dirty = False
     window.close()
     print(f"screenshots in {out}")

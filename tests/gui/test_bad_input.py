@@ -43,12 +43,17 @@ def test_after_a_broken_file_the_next_one_opens(window, qtbot, dialogs, tmp_path
     ('{"format": "prunella-project/7"}', "newer Prunella"),
     ('{"format": "something-else/1"}', "not a Prunella project"),
     ('{"format": "prunella-project/1", "data": {"path": ""}}', "damaged"),
+    ('{"format": "prunella-project/1", "chart": ' + "[" * 50000 + "]" * 50000 + "}",
+     "nested too deeply"),
+    ('{"format": "prunella-project/1", "chart": {"min_text": NaN}}', "NaN is not allowed"),
+    ('{"format": "prunella-project/1", "size": true}', "damaged at size"),
 ])
 def test_broken_project_shows_a_message(window, dialogs, tmp_path, content, words):
     path = tmp_path / "bad.prunella"
     path.write_text(content, encoding="utf-8")
     window.open_any(str(path))
     assert any(words in t for t in dialogs.texts("warning")), dialogs.texts("warning")
+    assert "What to do:" in dialogs.texts("warning")[-1]  # the catalogue's advice beside it
     assert window.session.table is None and window.isVisible()
 
 
