@@ -239,7 +239,10 @@ def repeat_visit_findings(frame: pd.DataFrame, dictionary: DataDictionary, desig
         counts = _repeat_counts(frame[name])
         repeats = counts[counts > 1]
         if len(repeats) >= 2:
-            found.append(_finding("repeat_visits", name, "guard.repeats_no_id",
+            # A repeating name hints at repeat visits but must not become the identifier.
+            by_name = not named and hint.what == "names"
+            code = "guard.repeats_by_name" if by_name else "guard.repeats_no_id"
+            found.append(_finding("repeat_visits", name, code,
                                   measures={"patients_with_repeats": len(repeats)},
                                   column=name, patients=len(repeats), n_rows=int(repeats.sum())))
     return tuple(found[:1])

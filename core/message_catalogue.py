@@ -298,6 +298,12 @@ _GUARDS = [
      "line: --patient-id {column}) so cross-validation keeps each patient's rows together.",
      "Without it, one patient can be in the training and the test part, and the error looks "
      "better than it is."),
+    ("guard.repeats_by_name", "warning", "{column!r} repeats for {patients} name(s) ({n_rows} "
+     "rows): some patients probably came more than once. A name is not a safe patient "
+     "identifier (different people share names), so add a patient number column and set it as "
+     "the patient identifier; cross-validation then keeps each patient's rows together.",
+     "Without it, one patient can be in the training and the test part, and the error looks "
+     "better than it is."),
     ("guard.rare_class", "warning", "Only {n} patient(s) have {label!r} for {outcome!r} (fewer "
      "than {limit}): too few to grow and cross-validate a tree on; treat the result as "
      "exploratory, or collect more patients with {label!r}.",

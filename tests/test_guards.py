@@ -158,6 +158,18 @@ def test_repeat_visits(demo):
     assert hinted and hinted[0].column == "patient_id" and "--patient-id" in hinted[0].message
 
 
+def test_a_repeating_name_is_not_offered_as_the_patient_identifier():
+    """Repeat names hint at repeat visits, but names are shared by different people
+    (common practice: link visits by a record number, never by name)."""
+    frame = pd.DataFrame({"surname": ["Okafor", "Novak", "Okafor", "Tanaka", "Novak", "Haddad"] * 5,
+                          "spo2": np.arange(30) + 70, "admitted": ["yes", "no"] * 15})
+    dictionary, _ = infer_dictionary(frame)
+    found = repeat_visit_findings(frame, dictionary, DesignSpec("admitted", ("spo2",)))
+    assert found and found[0].code == "guard.repeats_by_name"
+    assert "not a safe patient identifier" in found[0].message
+    assert "--patient-id" not in found[0].message
+
+
 def test_rare_class():
     rng = np.random.default_rng(1)
     frame = pd.DataFrame({"x": rng.normal(size=100), "y": ["no"] * 93 + ["yes"] * 7})
