@@ -299,3 +299,12 @@ def positive_level(spec: ColumnSpec) -> str:
             return level
     return spec.levels[-1]
 
+
+def dictionary_for(table, dictionary_path: str | Path | None = None) -> tuple[DataDictionary, list[str]]:
+    """The dictionary of a loaded table: inferred from its cells, overridden column by column
+    by a saved dictionary file if one is given; with the notes of both steps."""
+    inferred, notes = infer_dictionary(table.frame, table.row_numbers)
+    if dictionary_path:
+        merged, more = merge_dictionary(inferred, DataDictionary.load(dictionary_path))
+        return merged, notes + more
+    return inferred, notes

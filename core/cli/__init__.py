@@ -12,13 +12,13 @@ import sys
 from .. import __version__
 from ..errors import Cancelled, InputError
 from . import chart, checking, fit
-from .common import EXIT_BAD_INPUT, Parser, load_dictionary
+from .common import EXIT_BAD_INPUT, Parser
 
 SUBCOMMANDS = ("fit", "score", "check", "report", "chart")
 _RUN = {"fit": fit.run_fit, "score": fit.run_score, "check": checking.run_check,
         "report": checking.run_report, "chart": chart.run_chart}
 
-__all__ = ["SUBCOMMANDS", "EXIT_BAD_INPUT", "build_parser", "load_dictionary", "main"]
+__all__ = ["SUBCOMMANDS", "EXIT_BAD_INPUT", "build_parser", "main"]
 
 
 def build_parser() -> Parser:

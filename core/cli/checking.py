@@ -10,7 +10,8 @@ from ..model import TreeModel
 from ..safe_files import write_text_atomic
 from ..table import read_table
 from ..variables import DataDictionary, merge_dictionary
-from .common import load_dictionary, refuse_overwrite
+from ..variables import dictionary_for
+from .common import refuse_overwrite
 
 
 def add_parsers(sub) -> None:
@@ -65,7 +66,7 @@ def run_check(args) -> int:
 def model_dictionary(table, model: TreeModel, dictionary_path: str | None) -> DataDictionary:
     """The dictionary a report re-derivation uses: inferred, then the given file, then the
     model's own definitions of its outcome and predictors (those made the tree)."""
-    dictionary, _ = load_dictionary(table, dictionary_path)
+    dictionary, _ = dictionary_for(table, dictionary_path)
     known = [s for s in (model.outcome,) + model.predictors if s.name in dictionary]
     merged, _ = merge_dictionary(dictionary, DataDictionary(tuple(known)))
     return merged

@@ -7,8 +7,6 @@ import argparse
 from pathlib import Path
 
 from ..errors import InputError
-from ..table import LoadedTable
-from ..variables import DataDictionary, infer_dictionary, merge_dictionary
 
 EXIT_BAD_INPUT = 2
 
@@ -31,12 +29,3 @@ def refuse_overwrite(target: str | None, *sources: str) -> None:
         if Path(source).exists() and Path(target).resolve() == Path(source).resolve():
             raise InputError(f"{target} is an input file; choose another name for the output "
                              "so the input stays unchanged.")
-
-
-def load_dictionary(table: LoadedTable, dictionary_path: str | None) -> tuple[DataDictionary, list[str]]:
-    """Inferred dictionary, overridden by the saved one if given."""
-    inferred, notes = infer_dictionary(table.frame, table.row_numbers)
-    if dictionary_path:
-        merged, more = merge_dictionary(inferred, DataDictionary.load(dictionary_path))
-        return merged, notes + more
-    return inferred, notes

@@ -20,7 +20,8 @@ from ..safe_files import write_csv_safely, write_text_atomic
 from ..table import read_table
 from ..variables import DataDictionary
 from .chart import add_fit_chart_options, fit_chart
-from .common import csv_list, load_dictionary, refuse_overwrite
+from ..variables import dictionary_for
+from .common import csv_list, refuse_overwrite
 
 if TYPE_CHECKING:  # scikit-learn loads only when a tree is grown, so bad input is refused fast
     from ..derive import Derivation, DerivationRequest
@@ -126,7 +127,7 @@ def run_fit(args) -> int:
     refuse_overwrite(args.rules, args.data)
     refuse_overwrite(args.chart, args.data)
     table = read_table(args.data, sheet=args.sheet)
-    dictionary, notes = load_dictionary(table, args.dictionary)
+    dictionary, notes = dictionary_for(table, args.dictionary)
     shown = _print_notes(list(table.provenance.warnings) + notes)
     request = request_from_args(args, dictionary)
     request = _guarded(args, table, dictionary, request)

@@ -12,7 +12,7 @@ from PySide6.QtWidgets import (
     QTabWidget, QToolButton, QVBoxLayout, QWidget,
 )
 
-from core.cli import load_dictionary
+from core.variables import dictionary_for
 from core.errors import InputError
 from core.messages import app_advice, app_wording
 from core.messages import explain as catalogue_entry
@@ -52,7 +52,7 @@ def dictionary_beside(path: str | Path) -> Path | None:
 def read_data(path: str, sheet: str | None, dictionary_path: str | None):
     """Read a table and its dictionary (inferred, then the saved one over it). Runs in a worker."""
     table = read_table(path, sheet=sheet)
-    dictionary, notes = load_dictionary(table, dictionary_path)
+    dictionary, notes = dictionary_for(table, dictionary_path)
     if dictionary_path:
         notes = [f"The data dictionary {Path(dictionary_path).name} was used; columns it does "
                  "not describe were guessed from the data."] + list(notes)
@@ -292,7 +292,7 @@ class DataPanel(Panel):
 
     def load_dictionary_file(self, path: str) -> None:
         try:
-            dictionary, notes = load_dictionary(self.session.table, path)
+            dictionary, notes = dictionary_for(self.session.table, path)
         except InputError as exc:
             self.warn(str(exc), "The dictionary could not be read")
             return
