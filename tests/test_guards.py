@@ -27,7 +27,7 @@ from core.identity import (
     identity_by_contents, identity_by_header, looks_like_record_numbers, normalised_header,
 )
 from core.table import read_table
-from core.variables import DataDictionary, infer_dictionary
+from core.variables import infer_dictionary
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = ROOT / "sample_data" / "breathless_ed.csv"

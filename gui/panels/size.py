@@ -9,7 +9,7 @@ from html import escape
 
 from PySide6.QtCore import Qt, Signal
 from PySide6.QtWidgets import (
-    QCheckBox, QComboBox, QDoubleSpinBox, QFormLayout, QFrame, QGroupBox, QHBoxLayout, QLabel,
+    QCheckBox, QComboBox, QFormLayout, QFrame, QGroupBox, QHBoxLayout, QLabel,
     QProgressBar, QPushButton, QScrollArea, QSizePolicy, QSpinBox, QSplitter, QVBoxLayout,
     QWidget,
 )
@@ -19,7 +19,6 @@ from core.chart.options import PAPER_NAMES, default_min_text
 from core.derive import choose_model, derive
 from core.errors import InputError
 from core.messages import app_advice, app_wording
-from core.grow import TreeSettings
 from core.resample import CVSettings
 from gui import workers
 from gui.panels.base import Banner, Panel, explain
