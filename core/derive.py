@@ -283,6 +283,7 @@ def _cohort(frame: pd.DataFrame, dictionary: DataDictionary, data: AnalysisData,
         cohort["outcome_counts"] = {c: int(k) for c, k in zip(data.classes, counts)}
     else:
         cohort["outcome_mean"] = float(np.mean(data.y))
+        cohort["outcome_range"] = [float(np.min(data.y)), float(np.max(data.y))]
     return cohort
 
 

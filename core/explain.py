@@ -11,7 +11,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from .intervals import mean_interval, wilson_interval
+from .intervals import wilson_interval
 from .model import Step, TreeModel
 
 
@@ -49,7 +49,7 @@ def box_details(model: TreeModel, box: int) -> BoxDetails:
     common = dict(box=box, leaf=node.leaf, text=node.text, n=node.n,
                   share_of_all=node.n / max(model.n_rows, 1), steps=model.steps_to(box))
     if model.task == "regression":
-        low, high = mean_interval(float(node.mean), float(node.sd or 0.0), node.n)
+        low, high = model.mean_interval(node)
         return BoxDetails(mean=float(node.mean), sd=float(node.sd or 0.0), mean_low=low,
                           mean_high=high, **common)
     shares = []

@@ -24,9 +24,16 @@ def wilson_interval(successes: int, n: int, level: float = 0.95) -> tuple[float,
     return (float(low), float(high))
 
 
-def mean_interval(mean: float, sd: float, n: int, level: float = 0.95) -> tuple[float, float]:
-    """Student-t interval for a mean from its SD and count (n ≥ 2; else the point itself)."""
+def mean_interval(mean: float, sd: float, n: int, level: float = 0.95,
+                  within: tuple[float, float] | None = None) -> tuple[float, float]:
+    """Student-t interval for a mean from its SD and count (n ≥ 2; else the point itself).
+
+    ``within`` (the range the outcome can take, e.g. the observed range of a length of stay)
+    keeps a small, skewed box from showing an impossible end such as a negative stay."""
     if n < 2 or not math.isfinite(sd):
         return (mean, mean)
     half = stats.t.ppf(0.5 + level / 2, n - 1) * sd / math.sqrt(n)
-    return (float(mean - half), float(mean + half))
+    low, high = float(mean - half), float(mean + half)
+    if within is not None:
+        low, high = max(low, within[0]), min(high, within[1])
+    return (low, high)

@@ -16,6 +16,7 @@ import numpy as np
 import pandas as pd
 
 from .errors import InputError
+from .intervals import mean_interval
 from .model_file import validate_model_dict
 from .safe_files import check_format, read_json_document, write_text_atomic
 from .thresholds import format_number
@@ -178,6 +179,13 @@ class TreeModel:
     @property
     def leaves(self) -> tuple[Node, ...]:
         return tuple(n for n in self.nodes if n.leaf)
+
+    def mean_interval(self, node: Node) -> tuple[float, float]:
+        """95% interval of a box's mean outcome (regression), kept within the outcome's
+        observed range in the derivation data."""
+        span = self.extra.get("cohort", {}).get("outcome_range")
+        return mean_interval(float(node.mean), float(node.sd or 0.0), node.n,
+                             within=tuple(span) if span else None)
 
     def spec(self, column: str) -> ColumnSpec:
         for spec in self.predictors:

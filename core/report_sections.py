@@ -14,7 +14,7 @@ from reportlab.platypus import KeepTogether, Paragraph
 
 from . import __version__
 from .cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER, UNCHECKED_DETAIL
-from .intervals import mean_interval, wilson_interval
+from .intervals import wilson_interval
 from .report_figures import pruning_curve_figure, stability_figure
 from .report_style import Styles, caution_box, chart_figure, figure, para, table, text
 from .report_performance import performance_section, risk_text
@@ -343,7 +343,7 @@ def _tree(c: ReportContents, s: Styles) -> list:
             rate = f"{k / max(leaf.n, 1):.0%} ({lo:.0%}–{hi:.0%})"
             expected = str(leaf.prediction)
         else:
-            lo, hi = mean_interval(leaf.mean, leaf.sd or float("nan"), leaf.n)
+            lo, hi = model.mean_interval(leaf)
             rate = f"{leaf.mean:.3g} ({lo:.3g}–{hi:.3g})"
             expected = f"mean {leaf.mean:.3g}"
         mark = " †" if leaf.n < SMALL_BOX else ""

@@ -160,3 +160,24 @@ def test_three_classes_with_a_nominal_predictor_and_a_loss_matrix():
     with pytest.raises(InputError, match="3×3"):
         derive(table, dictionary, DerivationRequest(DesignSpec("kind", ("colour",)),
                                                     tree=TreeSettings(loss=((0, 1), (1, 0)))))
+
+
+def test_a_small_skewed_box_never_shows_an_impossible_mean_interval():
+    """A t interval on a handful of long stays can reach below zero; a length of stay cannot,
+    so box intervals stay within the outcome's observed range (common practice)."""
+    table, dictionary = _clinic()
+    frame = table.frame.copy()
+    frame["stay"] = np.where(np.arange(len(frame)) % 97 == 0, 900.0, 2.0 + 20 * (frame["rate"] > 24))
+    table = LoadedTable(frame, table.provenance)
+    request = DerivationRequest(DesignSpec("stay", ("rate", "mode", "lab"), task="regression"),
+                                tree=TreeSettings(min_leaf=3), size=10_000)  # the largest tree
+    model = derive(table, dictionary, request).model
+    low_end, high_end = model.extra["cohort"]["outcome_range"]
+    assert (low_end, high_end) == (2.0, 900.0)
+    from core.intervals import mean_interval
+
+    raw_lows = [mean_interval(n.mean, n.sd, n.n)[0] for n in model.leaves]
+    assert min(raw_lows) < 0  # the unclipped interval would print a negative stay
+    for leaf in model.leaves:
+        low, high = model.mean_interval(leaf)
+        assert low_end <= low <= leaf.mean <= high <= high_end

@@ -12,7 +12,6 @@ from functools import lru_cache
 
 from .. import __version__
 from ..cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER, UNCHECKED_DETAIL
-from ..intervals import mean_interval
 from ..intervals import wilson_interval as _wilson_interval
 from ..model import Node, TreeModel
 from .bands import Band, Banding, banding, box_value, number, percent, rate_phrase
@@ -94,7 +93,7 @@ def outcome_paras(model: TreeModel, node: Node, options: ChartOptions) -> tuple[
     paras = [Para(expected_text(model, node), bold=True)]
     count = "" if options.hide_counts else _plural(node.n, count_word(model))
     if model.task == "regression":
-        low, high = mean_interval(float(node.mean), float(node.sd or 0.0), node.n)
+        low, high = model.mean_interval(node)
         if count:
             paras.append(Para(count))
         paras.append(Para(f"95% CI {span(number(low), number(high, model.outcome.unit))}"))
@@ -275,7 +274,7 @@ def _key(model: TreeModel, bands: Banding, options: ChartOptions) -> PanelSectio
         items.append(PanelItem(f"Dashed: under {options.small_cell} {count_word(model)}, "
                                "so the rate is uncertain", dashed=True))
     if model.task == "regression":
-        what = f"Mean: average {model.outcome.display.lower()}; 95% CI: t interval."
+        what = f"Mean: average {model.outcome.display.lower()}; 95% CI: t interval, kept within the observed range."
     elif model.positive is not None:
         what = f"Rate: share {rate_phrase(model)}; 95% CI: Wilson interval."
     else:
