@@ -364,7 +364,7 @@ def regression_measures(y: np.ndarray, predicted: np.ndarray, leaves: np.ndarray
                 continue
             mean = float(values.mean())
             sd = float(values.std(ddof=1)) if m > 1 else float("nan")
-            low, high = mean_interval(mean, sd, m, LEVEL)
+            low, high = mean_interval(mean, sd, m, LEVEL, within=(float(y.min()), float(y.max())))
             agrees = bool(low <= box.mean <= high) if m > 1 else None
             rows.append(CalibrationRow(box.box, label, box.n, box.mean, m, mean,
                                        low if m > 1 else None, high if m > 1 else None, agrees))
