@@ -208,10 +208,10 @@ def _outcome_text(stats: dict, data: AnalysisData) -> str:
     counts = stats["counts"]
     if len(data.classes) == 2:
         share = counts[1] / max(n, 1)
-        return (f"{label}: {stats['prediction']} expected ({share:.0%} of {n} patients "
+        return (f"{label}: expect {stats['prediction']} ({share:.0%} of {n} patients "
                 f"had {data.classes[1]})")
     share = counts[data.classes.index(stats["prediction"])] / max(n, 1)
-    return f"{label}: {stats['prediction']} expected ({share:.0%} of {n} patients)"
+    return f"{label}: expect {stats['prediction']} ({share:.0%} of {n} patients)"
 
 
 def _question(column: MatrixColumn, tree, node: int, X_rows: np.ndarray, data: AnalysisData,

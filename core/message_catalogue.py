@@ -272,6 +272,10 @@ _FILES = [
     ("dictionary.absent_columns", "warning", "The data dictionary describes column(s) that are "
      "not in the data: {columns}; they were skipped.",
      "Check the column names: the dictionary must use the spreadsheet's headers exactly."),
+    ("dictionary.used", "note", "The data dictionary {file} was used; columns it does not "
+     "describe were guessed from the data.",
+     "To guess every column from the data instead, press 'Guess again from the data' (on the command line: "
+     "--dictionary none)."),
 ]
 
 _GUARDS = [

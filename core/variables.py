@@ -300,11 +300,21 @@ def positive_level(spec: ColumnSpec) -> str:
     return spec.levels[-1]
 
 
+def dictionary_beside(path: str | Path) -> Path | None:
+    """A dictionary saved next to the data as NAME.dictionary.json (or .csv), if there is one."""
+    path = Path(path)
+    for suffix in (".dictionary.json", ".dictionary.csv"):
+        candidate = path.with_name(path.stem + suffix)
+        if candidate.is_file():
+            return candidate
+    return None
+
+
 def dictionary_for(table, dictionary_path: str | Path | None = None) -> tuple[DataDictionary, list[str]]:
     """The dictionary of a loaded table: inferred from its cells, overridden column by column
     by a saved dictionary file if one is given; with the notes of both steps."""
     inferred, notes = infer_dictionary(table.frame, table.row_numbers)
     if dictionary_path:
         merged, more = merge_dictionary(inferred, DataDictionary.load(dictionary_path))
-        return merged, notes + more
+        return merged, [say("dictionary.used", file=Path(dictionary_path).name)] + notes + more
     return inferred, notes

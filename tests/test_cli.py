@@ -54,6 +54,23 @@ def test_fit_writes_model_curve_and_rules(fitted):
     assert "1-SE choice" in result.stdout and "does not replace clinical judgment" in result.stdout
 
 
+def test_fit_uses_the_dictionary_saved_beside_the_data_unless_told_not_to(fitted, tmp_path):
+    """As the app does: NAME.dictionary.json beside NAME.csv is read, and said so; its roles
+    keep the columns known only after the outcome (length of stay, bed booked) out."""
+    out, _ = fitted
+    beside = run("fit", DEMO, "--outcome", "admitted", "--model", tmp_path / "beside.json")
+    assert beside.returncode == 0, beside.stderr
+    assert "breathless_ed.dictionary.json was used" in beside.stderr
+    mine, given = (json.loads(p.read_text()) for p in (tmp_path / "beside.json", out / "m.json"))
+    assert mine["nodes"] == given["nodes"]
+    guessed = run("fit", DEMO, "--outcome", "admitted", "--dictionary", "none",
+                  "--model", tmp_path / "guessed.json")
+    assert guessed.returncode == 0, guessed.stderr
+    assert "was used" not in guessed.stderr
+    # Guessing from the data alone offers every column, and the leakage guard speaks up.
+    assert "Probable leakage: 'los_hours'" in guessed.stderr
+
+
 def test_score_adds_box_and_prediction_and_never_touches_the_input(fitted, tmp_path):
     out, _ = fitted
     before = _sha(DEMO)

@@ -79,7 +79,7 @@ def expected_text(model: TreeModel, node: Node) -> str:
     label = model.outcome.display
     if model.task == "regression":
         return f"{label}: mean {node.mean:.3g}" + (f" {model.outcome.unit}" if model.outcome.unit else "")
-    return f"{label}: {node.prediction} expected"
+    return f"{label}: expect {node.prediction}"
 
 
 def span(low: str, high: str) -> str:

@@ -11,7 +11,7 @@ from ..safe_files import write_text_atomic
 from ..table import read_table
 from ..variables import DataDictionary, merge_dictionary
 from ..variables import dictionary_for
-from .common import refuse_overwrite
+from .common import dictionary_path, refuse_overwrite
 
 
 def add_parsers(sub) -> None:
@@ -31,7 +31,8 @@ def add_parsers(sub) -> None:
     report.add_argument("data", help="the derivation data the model was fitted on")
     report.add_argument("--sheet", help="XLSX sheet name of DATA")
     report.add_argument("--dictionary", help="data dictionary (JSON or CSV) for labels of columns "
-                        "the model does not describe (patient identifier, site, dates)")
+                        "the model does not describe (patient identifier, site, dates); default: "
+                        "the one beside the data, if any; 'none' guesses them from the data")
     report.add_argument("--external", help="a file of patients from elsewhere to check the tree on")
     report.add_argument("--external-sheet", help="XLSX sheet name of the external file")
     report.add_argument("--external-source", help="where the external patients come from, in words")
@@ -63,10 +64,10 @@ def run_check(args) -> int:
     return 0
 
 
-def model_dictionary(table, model: TreeModel, dictionary_path: str | None) -> DataDictionary:
+def model_dictionary(table, model: TreeModel, dictionary_file: str | None) -> DataDictionary:
     """The dictionary a report re-derivation uses: inferred, then the given file, then the
     model's own definitions of its outcome and predictors (those made the tree)."""
-    dictionary, _ = dictionary_for(table, dictionary_path)
+    dictionary, _ = dictionary_for(table, dictionary_file)
     known = [s for s in (model.outcome,) + model.predictors if s.name in dictionary]
     merged, _ = merge_dictionary(dictionary, DataDictionary(tuple(known)))
     return merged
@@ -99,7 +100,7 @@ def run_report(args) -> int:
                      f"the one the model was fitted on ({expected[:12]}...): this report "
                      "re-derives the tree from the data given, which is not the model's data.")
         print(f"prunella: warning: {notes[-1]}", file=sys.stderr)
-    derivation = derive(table, model_dictionary(table, model, args.dictionary), request,
+    derivation = derive(table, model_dictionary(table, model, dictionary_path(args.dictionary, args.data)), request,
                         jobs=args.jobs)
     rule = model.chosen.get("rule")
     derivation = choose_model(derivation, rule if rule in ("1se", "min") else model.chosen["leaves"])

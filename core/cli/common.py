@@ -29,3 +29,19 @@ def refuse_overwrite(target: str | None, *sources: str) -> None:
         if Path(source).exists() and Path(target).resolve() == Path(source).resolve():
             raise InputError(f"{target} is an input file; choose another name for the output "
                              "so the input stays unchanged.")
+
+
+DICTIONARY_HELP = ("data dictionary (JSON or CSV) with roles, kinds, labels, units; default: "
+                   "NAME.dictionary.json (or .csv) beside the data, if there is one, as in the "
+                   "app; 'none' guesses every column from the data")
+
+
+def dictionary_path(given: str | None, data: str) -> str | None:
+    """The dictionary file to use: the one given, else the one saved beside the data (the
+    app picks that one up too, so both read the same file the same way)."""
+    if given is not None:
+        return None if given.strip().lower() == "none" else given
+    from ..variables import dictionary_beside
+
+    beside = dictionary_beside(data)
+    return None if beside is None else str(beside)

@@ -21,7 +21,7 @@ from ..table import read_table
 from ..variables import DataDictionary
 from .chart import add_fit_chart_options, fit_chart
 from ..variables import dictionary_for
-from .common import csv_list, refuse_overwrite
+from .common import DICTIONARY_HELP, csv_list, dictionary_path, refuse_overwrite
 
 if TYPE_CHECKING:  # scikit-learn loads only when a tree is grown, so bad input is refused fast
     from ..derive import Derivation, DerivationRequest
@@ -38,7 +38,7 @@ def add_parsers(sub) -> None:
     fit.add_argument("--predictors", help="comma-separated columns to ask about "
                      "(default: every predictor in the data dictionary)")
     fit.add_argument("--exclude", help="comma-separated columns to leave out")
-    fit.add_argument("--dictionary", help="data dictionary (JSON or CSV) with roles, kinds, labels, units")
+    fit.add_argument("--dictionary", help=DICTIONARY_HELP)
     fit.add_argument("--patient-id", help="patient identifier column: repeat visits stay in one fold")
     fit.add_argument("--site", help="site column: cross-validate by leaving one site out at a time")
     fit.add_argument("--folds", type=int, default=10, help="number of folds (default 10)")
@@ -127,7 +127,7 @@ def run_fit(args) -> int:
     refuse_overwrite(args.rules, args.data)
     refuse_overwrite(args.chart, args.data)
     table = read_table(args.data, sheet=args.sheet)
-    dictionary, notes = dictionary_for(table, args.dictionary)
+    dictionary, notes = dictionary_for(table, dictionary_path(args.dictionary, args.data))
     shown = _print_notes(list(table.provenance.warnings) + notes)
     request = request_from_args(args, dictionary)
     request = _guarded(args, table, dictionary, request)

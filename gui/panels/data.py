@@ -12,12 +12,11 @@ from PySide6.QtWidgets import (
     QTabWidget, QToolButton, QVBoxLayout, QWidget,
 )
 
-from core.variables import dictionary_for
 from core.errors import InputError
 from core.messages import app_advice, app_wording
 from core.messages import explain as catalogue_entry
 from core.table import EXCEL_SUFFIXES, list_sheets, read_table
-from core.variables import DataDictionary, infer_dictionary
+from core.variables import DataDictionary, dictionary_beside, dictionary_for, infer_dictionary
 from gui import workers
 from gui.panels.base import Panel, explain, heading_font
 from gui.widgets.dictionary_model import (
@@ -39,23 +38,10 @@ def note_finding(note: str) -> Finding:
                    "" if kind is None else kind.code)
 
 
-def dictionary_beside(path: str | Path) -> Path | None:
-    """A dictionary saved next to the data as NAME.dictionary.json (or .csv), if there is one."""
-    path = Path(path)
-    for suffix in (".dictionary.json", ".dictionary.csv"):
-        candidate = path.with_name(path.stem + suffix)
-        if candidate.is_file():
-            return candidate
-    return None
-
-
 def read_data(path: str, sheet: str | None, dictionary_path: str | None):
     """Read a table and its dictionary (inferred, then the saved one over it). Runs in a worker."""
     table = read_table(path, sheet=sheet)
     dictionary, notes = dictionary_for(table, dictionary_path)
-    if dictionary_path:
-        notes = [f"The data dictionary {Path(dictionary_path).name} was used; columns it does "
-                 "not describe were guessed from the data."] + list(notes)
     return table, dictionary, tuple(notes)
 
 

@@ -153,8 +153,9 @@ class TreePanel(Panel):
         self.empty.hide()
         self.view.show_model(model)
         leaves = len(model.leaves)
-        self.size_label.setText(f"{len(model.nodes)} boxes: {len(model.nodes) - leaves} questions, "
-                                f"{leaves} outcomes")
+        questions = len(model.nodes) - leaves
+        self.size_label.setText(f"{len(model.nodes)} boxes: {questions} question{'s' * (questions != 1)}, "
+                                f"{leaves} outcome{'s' * (leaves != 1)}")
         self._build_lookup(model)
         self.show_box(1)
         self.view.select_box(None)
