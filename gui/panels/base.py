@@ -114,6 +114,24 @@ class Panel(QWidget):
     def _go_to_size(self) -> None:
         self.go_to.emit("size")
 
+    def add_tree_content(self, content: QWidget) -> None:
+        """For the steps that show a grown tree: a banner that leads to step 3 while there
+        is none, above the step's own content."""
+        self.no_tree = Banner("ℹ", "Go to step 3")
+        self.no_tree.button.clicked.connect(self._go_to_size)
+        self.body.addWidget(self.no_tree)
+        self.content = content
+
+    def show_tree_content(self) -> bool:
+        """Show the content if there is a tree, else the banner; True if there is a tree."""
+        has_tree = self.session.model is not None
+        self.content.setVisible(has_tree)
+        if has_tree:
+            self.no_tree.hide()
+        else:
+            self.no_tree.show_text("No tree yet: run step 3 to grow one.")
+        return has_tree
+
     def warn(self, text: str, title: str = "Prunella") -> None:
         """One clear message for the user (never a crash), with what to do about it."""
         QMessageBox.warning(self, title, with_advice(text))

@@ -23,7 +23,7 @@ from core.errors import InputError
 from core.safe_files import write_bytes_atomic, write_csv_safely, write_text_atomic
 from core.scoring import scored_table
 from gui import workers
-from gui.panels.base import Banner, Panel, explain, heading_font
+from gui.panels.base import Panel, explain, heading_font
 from gui.widgets.pdf_preview import PdfPreview
 
 PAPERS = (("A4", "a4"), ("US Letter", "letter"), ("A3", "a3"), ("Tabloid", "tabloid"))
@@ -193,11 +193,8 @@ class ChartPanel(Panel):
         splitter.setStretchFactor(1, 1)
         splitter.setSizes([360, 800])
         splitter.setChildrenCollapsible(False)
-        self.empty = Banner("ℹ", "Go to step 3")
-        self.empty.button.clicked.connect(lambda: self.go_to.emit("size"))
-        self.body.addWidget(self.empty)
+        self.add_tree_content(splitter)
         self.body.addWidget(splitter, 1)
-        self.content = splitter
 
         self.title_edit.textEdited.connect(self._write_back)
         self.subtitle_edit.textEdited.connect(self._write_back)
@@ -247,17 +244,14 @@ class ChartPanel(Panel):
     # --- the preview ------------------------------------------------------------------------
 
     def refresh(self) -> None:
-        has_tree = self.session.model is not None
-        self.content.setVisible(has_tree)
+        has_tree = self.show_tree_content()
         for button in (self.export_button, self.print_button, self.model_button,
                        self.rules_button, self.scored_button):
             button.setEnabled(has_tree)
         if not has_tree:
-            self.empty.show_text("No tree yet: run step 3 to grow one.")
             self.document.close()
             self.pdf_path = None
             return
-        self.empty.hide()
         self.schedule_preview()
 
     def schedule_preview(self) -> None:

@@ -246,13 +246,10 @@ class CheckingPanel(Panel):
         scroll.setWidgetResizable(True)
         scroll.setFrameShape(QFrame.NoFrame)
         scroll.setFocusPolicy(Qt.NoFocus)
-        self.empty = Banner("ℹ", "Go to step 3")
-        self.empty.button.clicked.connect(lambda: self.go_to.emit("size"))
-        self.body.addWidget(self.empty)
+        self.add_tree_content(scroll)
         self.body.addLayout(work_row)
         self.body.addWidget(self.status)
         self.body.addWidget(scroll, 1)
-        self.content = scroll
         self._work_widgets = (self.progress, self.cancel_button)
         for widget in self._work_widgets:  # shown only while something runs
             widget.hide()
@@ -296,12 +293,8 @@ class CheckingPanel(Panel):
 
     def refresh(self) -> None:
         model = self.session.model
-        has_tree = model is not None
-        self.content.setVisible(has_tree)
-        if not has_tree:
-            self.empty.show_text("No tree yet: run step 3 to grow one.")
+        if not self.show_tree_content():
             return
-        self.empty.hide()
         self.cv_label.setText(cross_validated_html(model))
         self._show_checks()
         self._enable()

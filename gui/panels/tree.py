@@ -13,7 +13,7 @@ from PySide6.QtWidgets import (
 
 from core.explain import box_details, route_patient
 from core.thresholds import format_number
-from gui.panels.base import Banner, Panel, explain, warning_html
+from gui.panels.base import Panel, explain, warning_html
 from gui.widgets.tree_view import TreeView
 
 NOT_RECORDED = "(not recorded)"
@@ -131,11 +131,8 @@ class TreePanel(Panel):
         splitter.setStretchFactor(1, 1)
         splitter.setSizes([900, 420])
         splitter.setChildrenCollapsible(False)
-        self.empty = Banner("ℹ", "Go to step 3")
-        self.empty.button.clicked.connect(lambda: self.go_to.emit("size"))
-        self.body.addWidget(self.empty)
+        self.add_tree_content(splitter)
         self.body.addWidget(splitter, 1)
-        self.content = splitter
 
         session.result_changed.connect(self.refresh)
         session.chosen_changed.connect(self.refresh)
@@ -143,14 +140,11 @@ class TreePanel(Panel):
 
     def refresh(self) -> None:
         model = self.session.model
-        self.content.setVisible(model is not None)
-        if model is None:
-            self.empty.show_text("No tree yet: run step 3 to grow one.")
+        if not self.show_tree_content():
             self.view.show_model(None)
             self._build_lookup(None)
             self.details.setHtml("")
             return
-        self.empty.hide()
         self.view.show_model(model)
         leaves = len(model.leaves)
         questions = len(model.nodes) - leaves

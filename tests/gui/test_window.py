@@ -115,7 +115,7 @@ def test_back_and_next_walk_the_steps(window, qtbot):
     qtbot.mouseClick(window.back_button, Qt.LeftButton)
     assert window.current_step() == "checking"
     # Steps without what they need say so instead of showing nothing.
-    assert "run step 3" in window.panels["checking"].empty.text.text()
+    assert "run step 3" in window.panels["checking"].no_tree.text.text()
     window.steps.setCurrentRow(0)
     assert window.current_step() == "data"
 
