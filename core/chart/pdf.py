@@ -41,15 +41,18 @@ class _Painter:
         else:
             c.drawString(line.x, self.h - line.baseline, line.text)
 
+    def _paint(self, fill: str | None, edge: str | None, width: float) -> None:
+        if fill:
+            self.c.setFillColor(HexColor(fill))
+        if edge:
+            self.c.setStrokeColor(HexColor(edge))
+            self.c.setLineWidth(width)
+
     def rect(self, r: Rect, fill: str | None, edge: str | None = None, width: float = 1.0,
              radius: float = 0.0, dash: tuple[float, ...] | None = None) -> None:
         c = self.c
         c.saveState()
-        if fill:
-            c.setFillColor(HexColor(fill))
-        if edge:
-            c.setStrokeColor(HexColor(edge))
-            c.setLineWidth(width)
+        self._paint(fill, edge, width)
         if dash:
             c.setDash(list(dash))
         if radius:
@@ -68,12 +71,8 @@ class _Painter:
         for x, y in rest:
             path.lineTo(x, self.h - y)
         path.close()
-        if fill:
-            c.setFillColor(HexColor(fill))
-        if edge:
-            c.setStrokeColor(HexColor(edge))
-            c.setLineWidth(width)
-            c.setLineJoin(1)
+        self._paint(fill, edge, width)
+        c.setLineJoin(1)  # round corners on the question boxes' points
         c.drawPath(path, stroke=int(bool(edge)), fill=int(bool(fill)))
         c.restoreState()
 

@@ -6,7 +6,7 @@ from __future__ import annotations
 from PySide6.QtCore import Qt, Signal
 from PySide6.QtGui import QFont
 from PySide6.QtWidgets import (
-    QFrame, QHBoxLayout, QLabel, QMessageBox, QPushButton, QVBoxLayout, QWidget,
+    QFrame, QHBoxLayout, QLabel, QMessageBox, QPushButton, QSplitter, QVBoxLayout, QWidget,
 )
 
 from core.messages import app_advice, app_wording
@@ -43,6 +43,21 @@ def warning_html(text: str) -> str:
     shown = escape(app_wording(text) or text)
     more = "" if advice is None else f"<br><i>What to do: {escape(advice)}</i>"
     return f"<p>⚠ {shown}{more}</p>"
+
+
+def side_by_side(left: QWidget, right: QWidget, stretch: tuple[int, int],
+                 sizes: tuple[int, int] | None = None) -> QSplitter:
+    """Two parts of a step beside each other; the user may move the divider, but neither
+    part can be squeezed away."""
+    splitter = QSplitter(Qt.Horizontal)
+    splitter.addWidget(left)
+    splitter.addWidget(right)
+    splitter.setStretchFactor(0, stretch[0])
+    splitter.setStretchFactor(1, stretch[1])
+    if sizes:
+        splitter.setSizes(list(sizes))
+    splitter.setChildrenCollapsible(False)
+    return splitter
 
 
 class Banner(QFrame):

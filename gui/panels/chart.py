@@ -13,7 +13,7 @@ from PySide6.QtPdf import QPdfDocument
 from PySide6.QtPrintSupport import QPrintDialog, QPrinter
 from PySide6.QtWidgets import (
     QComboBox, QDialog, QDoubleSpinBox, QFileDialog, QFormLayout, QFrame, QGroupBox,
-    QHBoxLayout, QLabel, QLineEdit, QPushButton, QScrollArea, QSplitter, QStackedWidget,
+    QHBoxLayout, QLabel, QLineEdit, QPushButton, QScrollArea, QStackedWidget,
     QVBoxLayout, QWidget,
 )
 
@@ -23,7 +23,7 @@ from core.errors import InputError
 from core.safe_files import write_bytes_atomic, write_csv_safely, write_text_atomic
 from core.scoring import scored_table
 from gui import workers
-from gui.panels.base import Panel, explain, heading_font
+from gui.panels.base import Panel, explain, heading_font, side_by_side
 from gui.widgets.pdf_preview import PdfPreview
 
 PAPERS = (("A4", "a4"), ("US Letter", "letter"), ("A3", "a3"), ("Tabloid", "tabloid"))
@@ -186,13 +186,7 @@ class ChartPanel(Panel):
         self.preview_stack.addWidget(note_page)
         self.preview_stack.addWidget(self.pdf_view)
 
-        splitter = QSplitter(Qt.Horizontal)
-        splitter.addWidget(scroll)
-        splitter.addWidget(self.preview_stack)
-        splitter.setStretchFactor(0, 0)
-        splitter.setStretchFactor(1, 1)
-        splitter.setSizes([360, 800])
-        splitter.setChildrenCollapsible(False)
+        splitter = side_by_side(scroll, self.preview_stack, stretch=(0, 1), sizes=(360, 800))
         self.add_tree_content(splitter)
         self.body.addWidget(splitter, 1)
 

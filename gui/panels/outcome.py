@@ -7,7 +7,7 @@ from dataclasses import replace
 
 from PySide6.QtCore import Qt
 from PySide6.QtWidgets import (
-    QComboBox, QDoubleSpinBox, QFormLayout, QGroupBox, QHBoxLayout, QLabel, QSplitter,
+    QComboBox, QDoubleSpinBox, QFormLayout, QGroupBox, QHBoxLayout, QLabel,
     QVBoxLayout, QWidget,
 )
 
@@ -15,7 +15,7 @@ from core.design import DesignSpec, suggest_task
 from core.messages import app_advice, app_wording
 from core.variables import CATEGORY_KINDS, PREDICTOR_KINDS, positive_level
 from gui.guard_watch import GuardWatch
-from gui.panels.base import Panel, explain
+from gui.panels.base import Panel, explain, side_by_side
 from gui.widgets.checklist import Checklist
 from gui.widgets.dictionary_model import KIND_WORDS
 from gui.widgets.findings import Finding, FindingsView
@@ -109,12 +109,7 @@ class OutcomePanel(Panel):
         box = QVBoxLayout(predictors)
         box.addWidget(self.checklist)
 
-        splitter = QSplitter(Qt.Horizontal)
-        splitter.addWidget(left)
-        splitter.addWidget(predictors)
-        splitter.setStretchFactor(0, 3)
-        splitter.setStretchFactor(1, 2)
-        splitter.setChildrenCollapsible(False)
+        splitter = side_by_side(left, predictors, stretch=(3, 2))
         self.body.addWidget(splitter, 1)
 
         self.outcome_combo.currentIndexChanged.connect(self._outcome_chosen)

@@ -10,7 +10,7 @@ from html import escape
 from PySide6.QtCore import Qt, Signal
 from PySide6.QtWidgets import (
     QCheckBox, QComboBox, QFormLayout, QFrame, QGroupBox, QHBoxLayout, QLabel,
-    QProgressBar, QPushButton, QScrollArea, QSizePolicy, QSpinBox, QSplitter, QVBoxLayout,
+    QProgressBar, QPushButton, QScrollArea, QSizePolicy, QSpinBox, QVBoxLayout,
     QWidget,
 )
 
@@ -21,7 +21,7 @@ from core.errors import InputError
 from core.messages import app_advice, app_wording
 from core.resample import CVSettings
 from gui import workers
-from gui.panels.base import Banner, Panel, explain
+from gui.panels.base import Banner, Panel, explain, side_by_side
 from gui.widgets.curve import CurveCanvas, CurveData
 
 CRITERIA = {
@@ -216,13 +216,7 @@ class SizePanel(Panel):
         right_layout.addWidget(self.choice)
         right_layout.addWidget(self.fit_note)
 
-        splitter = QSplitter(Qt.Horizontal)
-        splitter.addWidget(left)
-        splitter.addWidget(right)
-        splitter.setStretchFactor(0, 0)
-        splitter.setStretchFactor(1, 1)
-        splitter.setSizes([left.minimumWidth(), 800])
-        splitter.setChildrenCollapsible(False)
+        splitter = side_by_side(left, right, stretch=(0, 1), sizes=(left.minimumWidth(), 800))
         self.body.addWidget(splitter, 1)
         self.not_ready = Banner("ℹ", "Go to step 2")
         self.not_ready.button.clicked.connect(lambda: self.go_to.emit("outcome"))

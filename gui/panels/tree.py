@@ -13,7 +13,7 @@ from PySide6.QtWidgets import (
 
 from core.explain import box_details, route_patient
 from core.thresholds import format_number
-from gui.panels.base import Panel, explain, warning_html
+from gui.panels.base import Panel, explain, side_by_side, warning_html
 from gui.widgets.tree_view import TreeView
 
 NOT_RECORDED = "(not recorded)"
@@ -124,13 +124,7 @@ class TreePanel(Panel):
         side.setStretchFactor(0, 1)
         side.setStretchFactor(1, 1)
         side.setMinimumWidth(340)
-        splitter = QSplitter(Qt.Horizontal)
-        splitter.addWidget(left)
-        splitter.addWidget(side)
-        splitter.setStretchFactor(0, 3)
-        splitter.setStretchFactor(1, 1)
-        splitter.setSizes([900, 420])
-        splitter.setChildrenCollapsible(False)
+        splitter = side_by_side(left, side, stretch=(3, 1), sizes=(900, 420))
         self.add_tree_content(splitter)
         self.body.addWidget(splitter, 1)
 
