@@ -213,8 +213,25 @@ class _NumberedCanvas(canvas.Canvas):
         self.restoreState()
 
 
+def keep_headings_with_next(story: list) -> list:
+    """Headings pulled into the KeepTogether block that follows them.
+
+    reportlab's keepWithNext does not reach into a KeepTogether (it is a container), so a
+    heading followed by a kept-together figure or table could be left alone at the foot of a
+    page, its content on the next."""
+    out: list = []
+    for flowable in reversed(story):
+        if out and isinstance(out[-1], KeepTogether) and flowable.getKeepWithNext() \
+                and not isinstance(flowable, KeepTogether):
+            out[-1] = KeepTogether([flowable] + list(out[-1]._content))
+        else:
+            out.append(flowable)
+    return out[::-1]
+
+
 def build_pdf(story: list, header: str, footer: str, title: str, author: str) -> bytes:
     """Lay out ``story`` on A4 pages with the running header and numbered footer."""
+    story = keep_headings_with_next(story)
     register_fonts()
     buffer = io.BytesIO()
     doc = BaseDocTemplate(buffer, pagesize=PAGE, leftMargin=MARGIN, rightMargin=MARGIN,

@@ -90,6 +90,29 @@ def test_chosen_tree_section_shows_the_wall_chart_itself(contents, written):
             assert node.text in words
 
 
+def test_no_page_ends_with_a_heading(contents, written):
+    """A section heading is never left alone at the foot of a page, its content on the next
+    (reportlab's keepWithNext does not reach into a KeepTogether; core keeps them together)."""
+    headings = [f"{number}. {name}" for number, name in enumerate(SECTIONS, 1)]
+    for page in PdfReader(io.BytesIO(written)).pages:
+        lines = [line.strip() for line in page.extract_text().splitlines() if line.strip()]
+        body = [line for line in lines if not line.startswith(("Prunella ", "Decision tree for "))]
+        assert body and body[-1] not in headings, body[-3:]
+
+
+def test_a_heading_joins_the_block_kept_together_after_it():
+    from reportlab.platypus import KeepTogether, Paragraph, Spacer
+
+    from core.report_style import Styles, keep_headings_with_next
+
+    s = Styles()
+    heading, figure = Paragraph("7. The chosen tree", s.h1), Spacer(10, 500)
+    story = keep_headings_with_next([Paragraph("text", s.body), heading,
+                                     KeepTogether([figure]), Paragraph("more", s.body)])
+    assert len(story) == 3 and isinstance(story[1], KeepTogether)
+    assert story[1]._content[:2] == [heading, figure]
+
+
 def test_report_is_reproducible(contents, written):
     assert render_report(contents) == written  # invariant mode, no dates in the figures
 
