@@ -100,8 +100,8 @@ def run_report(args) -> int:
                      f"the one the model was fitted on ({expected[:12]}...): this report "
                      "re-derives the tree from the data given, which is not the model's data.")
         print(f"prunella: warning: {notes[-1]}", file=sys.stderr)
-    derivation = derive(table, model_dictionary(table, model, dictionary_path(args.dictionary, args.data)), request,
-                        jobs=args.jobs)
+    dictionary = model_dictionary(table, model, dictionary_path(args.dictionary, args.data))
+    derivation = derive(table, dictionary, request, jobs=args.jobs)
     rule = model.chosen.get("rule")
     derivation = choose_model(derivation, rule if rule in ("1se", "min") else model.chosen["leaves"])
     if derivation.model.nodes != model.nodes:
