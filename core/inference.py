@@ -17,7 +17,7 @@ import numpy as np
 import pandas as pd
 
 from .identity import identity_hint, looks_like_record_numbers
-from .messages import say
+from .messages import catalogue, say
 from .values import (
     missing_texts, parse_dates, parse_numbers, profile_cells, rows_phrase, yes_no_levels,
 )
@@ -95,8 +95,9 @@ def _infer(name: str, values: pd.Series, rows) -> tuple[ColumnSpec, list[str]]:
                          words=", ".join(repr(w) for w in words),
                          n=numbers.n_unreadable, rows=rows_phrase(numbers.unreadable_rows
                                                                   if rows is not None else None)))
-        kept = [n for n in numbers.notes if not n.startswith(f"{numbers.n_unreadable} cell(s)")]
-        notes.extend(kept)
+        # The words are now missing codes, so the "not numbers" note no longer applies.
+        not_numbers = catalogue()["values.not_numbers"].pattern()
+        notes.extend(n for n in numbers.notes if not not_numbers.match(n))
         return ColumnSpec(kind="numeric", missing_codes=words, **base), notes
 
     # Texts: counted per distinct trimmed text, and per spelling regardless of capitals.
@@ -193,8 +194,8 @@ def _numeric(name: str, base: dict, numbers, n_present: int, notes: list[str], r
         return ColumnSpec(kind="binary", levels=("0", "1"), **base), notes
     whole = bool(np.all(distinct == np.round(distinct)))
     # A negative code such as -99 in a column whose other values are all >= 0.
-    sentinels = tuple(str(int(v)) for v in distinct if v in _SENTINELS
-                      and not (finite[finite != v] < 0).any()
+    sentinels = tuple(str(int(v)) for v in distinct[np.isin(distinct, _SENTINELS)]
+                      if not (finite[finite != v] < 0).any()
                       and np.sum(finite == v) < 0.5 * len(finite))
     if sentinels:
         code = float(sentinels[0])

@@ -9,26 +9,16 @@ field concerned, instead of failing later while a chart is printed or patients a
 
 from __future__ import annotations
 
-import math
-
+from .design import TASKS
 from .errors import InputError
 from .messages import say
+from .safe_files import is_finite_number, is_whole_number
 
-TASKS = ("classification", "regression")
 SPLIT_KINDS = ("above", "in", "missing")
 
 
 def _damaged(where: str, problem: str) -> InputError:
     return InputError(say("model.damaged", where=where, problem=problem))
-
-
-def _is_int(value) -> bool:
-    return isinstance(value, int) and not isinstance(value, bool)
-
-
-def _is_number(value) -> bool:
-    return isinstance(value, (int, float)) and not isinstance(value, bool) and \
-        math.isfinite(value)
 
 
 def _texts(value, where: str, key: str) -> None:
@@ -46,7 +36,7 @@ def validate_model_dict(data: dict) -> None:
             raise _damaged("the file", f"'{key}' has the wrong type")
     if data["task"] not in TASKS:
         raise _damaged("the file", f"the task {str(data['task'])[:40]!r} is unknown")
-    if not _is_int(data.get("n_rows")) or data["n_rows"] < 0:
+    if not is_whole_number(data.get("n_rows")) or data["n_rows"] < 0:
         raise _damaged("the file", "'n_rows' must be a whole number")
     classes = data.get("classes", [])
     _texts(classes, "the file", "classes")
@@ -66,15 +56,15 @@ def validate_model_dict(data: dict) -> None:
         where = f"box {position}"
         if not isinstance(node, dict):
             raise _damaged(where, "the box is not a JSON object")
-        if node.get("id") != position or not _is_int(node.get("id")):
+        if node.get("id") != position or not is_whole_number(node.get("id")):
             raise _damaged(where, "boxes must be numbered 1, 2, 3, … in order")
-        if not _is_int(node.get("n")) or node["n"] < 0:
+        if not is_whole_number(node.get("n")) or node["n"] < 0:
             raise _damaged(where, "'n' (patients in the box) must be a whole number")
-        if "depth" in node and (not _is_int(node["depth"]) or node["depth"] < 0):
+        if "depth" in node and (not is_whole_number(node["depth"]) or node["depth"] < 0):
             raise _damaged(where, "'depth' must be a whole number")
         children = node.get("children", [])
         if not isinstance(children, list) or len(children) not in (0, 2) or \
-                not all(_is_int(c) for c in children):
+                not all(is_whole_number(c) for c in children):
             raise _damaged(where, "'children' must list two box numbers, or none for an "
                                   "outcome box")
         for child in children:
@@ -89,12 +79,12 @@ def validate_model_dict(data: dict) -> None:
             _check_leaf(node, where, classification, classes)
         if "counts" in node:
             counts = node["counts"]
-            if not isinstance(counts, list) or not all(_is_int(c) and c >= 0 for c in counts):
+            if not isinstance(counts, list) or not all(is_whole_number(c) and c >= 0 for c in counts):
                 raise _damaged(where, "'counts' must be whole numbers")
             if classification and len(counts) != len(classes):
                 raise _damaged(where, "'counts' must have one number per class")
         for key in ("mean", "sd"):
-            if node.get(key) is not None and not _is_number(node[key]):
+            if node.get(key) is not None and not is_finite_number(node[key]):
                 raise _damaged(where, f"'{key}' must be a number")
         for key in ("question", "outcome"):
             if key in node and not isinstance(node[key], str):
@@ -112,7 +102,7 @@ def _check_split(split, where: str, predictors: set) -> None:
     kind = split.get("kind")
     if kind not in SPLIT_KINDS:
         raise _damaged(where, f"the question kind {str(kind)[:20]!r} is unknown")
-    if kind == "above" and not _is_number(split.get("threshold")):
+    if kind == "above" and not is_finite_number(split.get("threshold")):
         raise _damaged(where, "a question 'above' needs a number as its threshold")
     for key in ("yes_levels", "no_levels"):
         if key in split:
@@ -128,5 +118,5 @@ def _check_leaf(node: dict, where: str, classification: bool, classes: list) -> 
     if classification:
         if prediction not in classes:
             raise _damaged(where, "its prediction is not one of the classes")
-    elif not _is_number(prediction):
+    elif not is_finite_number(prediction):
         raise _damaged(where, "its prediction must be a number")

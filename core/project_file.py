@@ -9,27 +9,16 @@ grown or a chart is printed. Booleans are not numbers here: JSON's ``true`` is n
 
 from __future__ import annotations
 
-import math
-
+from .design import TASKS
 from .errors import InputError
 from .grow import CLASSIFICATION_CRITERIA, REGRESSION_CRITERIA, RISKS
 from .messages import say
+from .safe_files import is_finite_number, is_whole_number
 from .resample import PLANS
-
-TASKS = ("classification", "regression")
 
 
 def _damaged(file: str, where: str, problem: str) -> InputError:
     return InputError(say("project.damaged", file=file, where=where, problem=problem))
-
-
-def _is_int(value) -> bool:
-    return isinstance(value, int) and not isinstance(value, bool)
-
-
-def _is_number(value) -> bool:
-    return isinstance(value, (int, float)) and not isinstance(value, bool) and \
-        math.isfinite(value)
 
 
 class _Checker:
@@ -62,7 +51,7 @@ class _Checker:
         value = self.data.get(key)
         if value is None and optional:
             return
-        if not _is_int(value) or value < least:
+        if not is_whole_number(value) or value < least:
             self.fail(key, f"it must be a whole number of {least} or more")
 
     def number(self, key: str, low: float, high: float | None = None,
@@ -70,7 +59,7 @@ class _Checker:
         value = self.data.get(key)
         if value is None and optional:
             return
-        if not _is_number(value) or value <= low or (high is not None and value >= high):
+        if not is_finite_number(value) or value <= low or (high is not None and value >= high):
             span = f"above {low:g}" if high is None else f"between {low:g} and {high:g}"
             self.fail(key, f"it must be a number {span}")
 
@@ -103,7 +92,7 @@ def validate_project_dict(data: dict, file: str = "The project") -> None:
     if request is not None:
         _check_request(request)
     size = data.get("size", "1se")
-    if not (size in ("1se", "min") or (_is_int(size) and size >= 1)):
+    if not (size in ("1se", "min") or (is_whole_number(size) and size >= 1)):
         top.fail("size", "it must be '1se', 'min' or a whole number of outcome boxes")
     top.whole("seed", 0)
     chart = top.object("chart")
@@ -137,12 +126,12 @@ def _check_request(request: _Checker) -> None:
         priors = tree.data.get("priors")
         if priors is not None and priors not in ("observed", "equal") and not (
                 isinstance(priors, list) and priors and
-                all(_is_number(p) and p >= 0 for p in priors)):
+                all(is_finite_number(p) and p >= 0 for p in priors)):
             tree.fail("priors", "it must be 'observed', 'equal' or a list of numbers")
         loss = tree.data.get("loss")
         if loss is not None and not (
                 isinstance(loss, list) and loss and
-                all(isinstance(r, list) and all(_is_number(v) and v >= 0 for v in r)
+                all(isinstance(r, list) and all(is_finite_number(v) and v >= 0 for v in r)
                     for r in loss)):
             tree.fail("loss", "it must be a table (list of lists) of numbers")
     cv = request.object("cv")
@@ -156,5 +145,5 @@ def _check_request(request: _Checker) -> None:
         cv.whole("seed", 0)
     request.number("holdout", 0, 1)
     size = request.data.get("size", "1se")
-    if not (size in ("1se", "min") or (_is_int(size) and size >= 1)):
+    if not (size in ("1se", "min") or (is_whole_number(size) and size >= 1)):
         request.fail("size", "it must be '1se', 'min' or a whole number of outcome boxes")

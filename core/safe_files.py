@@ -12,6 +12,7 @@ damaged, of another kind, or from a newer version.
 from __future__ import annotations
 
 import json
+import math
 import os
 import re
 import tempfile
@@ -26,6 +27,17 @@ from .messages import say
 _FORMULA_STARTS = ("=", "+", "-", "@", "\t", "\r")
 MAX_JSON_BYTES = 200 * 1024 * 1024  # far above any real model or project file
 _FORMAT = re.compile(r"^prunella-([a-z][a-z0-9-]*)/(\d+)$")
+
+
+def is_whole_number(value) -> bool:
+    """A JSON integer (JSON's true and false are not numbers here)."""
+    return isinstance(value, int) and not isinstance(value, bool)
+
+
+def is_finite_number(value) -> bool:
+    """A JSON number that is neither NaN nor infinite (nor true or false)."""
+    return isinstance(value, (int, float)) and not isinstance(value, bool) and \
+        math.isfinite(value)
 
 
 def write_bytes_atomic(path: str | Path, data: bytes) -> None:

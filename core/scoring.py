@@ -5,6 +5,7 @@ Used by ``prunella score`` and by the app's export, so both write the same colum
 
 from __future__ import annotations
 
+import numpy as np
 import pandas as pd
 
 from .model import TreeModel
@@ -18,6 +19,8 @@ def scored_table(model: TreeModel, frame: pd.DataFrame) -> tuple[pd.DataFrame, t
     out["prunella_box"] = scored.leaf
     out["prunella_prediction"] = scored.prediction
     if model.positive is not None:
-        share = {n.id: n.counts[1] / max(n.n, 1) for n in model.leaves}
-        out[f"prunella_share_{model.positive}"] = [round(share[i], 4) for i in scored.leaf]
+        share = np.zeros(len(model.nodes) + 1)  # looked up by box number, as predictions are
+        for leaf in model.leaves:
+            share[leaf.id] = leaf.counts[1] / max(leaf.n, 1)
+        out[f"prunella_share_{model.positive}"] = np.round(share[np.asarray(scored.leaf)], 4)
     return out, scored.warnings

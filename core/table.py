@@ -56,12 +56,6 @@ class Provenance:
     def short_fingerprint(self) -> str:
         return self.sha256[:12]
 
-    def row_of(self, position: int) -> int:
-        """The spreadsheet row number of the table's row at ``position`` (0-based)."""
-        if self.row_numbers is not None:
-            return int(self.row_numbers[position])
-        return self.header_row + 1 + int(position)
-
     def to_dict(self) -> dict:
         return {
             "path": self.path,
@@ -285,7 +279,8 @@ def _tidy(frame: pd.DataFrame, header: list, rows: np.ndarray, where: str,
         frame = frame.drop(columns=drop)
         warnings.append(say("read.empty_columns", n=len(drop), where=where,
                             columns=", ".join(column_name_at(j, letters) for j in drop[:8])))
-    kept = [j for j in range(len(names)) if j not in set(drop)]
+    dropped = set(drop)
+    kept = [j for j in range(len(names)) if j not in dropped]
     names = [names[j] for j in kept]
     blank_rows = frame.isna().all(axis=1).to_numpy()
     if blank_rows.any():

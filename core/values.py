@@ -63,7 +63,6 @@ class CellProfile:
     (missing? a number? which levels?) is asked once per distinct cell."""
 
     index: np.ndarray  # per cell: position among the distinct cells, -1 for an empty cell
-    raw: np.ndarray  # the distinct cells as read (object)
     texts: np.ndarray  # their trimmed text (object array of str)
     counts: np.ndarray  # how many cells hold each
 
@@ -72,7 +71,7 @@ def profile_cells(values: pd.Series) -> CellProfile:
     """The distinct cells of a column and how often each occurs (one hashing pass)."""
     index, uniques = _factorize(values)
     counts = np.bincount(index[index >= 0], minlength=len(uniques))
-    return CellProfile(index, uniques, _unique_texts(uniques), counts)
+    return CellProfile(index, _unique_texts(uniques), counts)
 
 
 def counted(values: pd.Series) -> tuple[list, np.ndarray]:
@@ -166,12 +165,13 @@ def is_missing_text(values: pd.Series, extra_codes: tuple[str, ...] = ()) -> np.
         if numeric:
             missing |= np.isin(values.to_numpy(dtype="float64", na_value=np.nan), numeric)
         return missing
-    codes = _DEFAULT_MISSING | {c.strip().casefold() for c in extra_codes}
     index, uniques = _factorize(values)
-    if len(uniques) == 0:
-        return missing
-    flags = np.array([t.casefold() in codes for t in _unique_texts(uniques)], dtype=bool)
-    return missing | (flags[index] & (index >= 0))
+    return _missing_cells(index, _unique_texts(uniques), extra_codes)
+
+
+def _missing_cells(index: np.ndarray, texts: np.ndarray, extra_codes: tuple[str, ...]) -> np.ndarray:
+    """Per cell of a factorised text column: empty, or a missing-value code."""
+    return (index < 0) | np.append(missing_texts(texts, extra_codes), True)[index]
 
 
 def level_text(values: pd.Series) -> pd.Series:
@@ -203,8 +203,7 @@ def parse_numbers(values: pd.Series, extra_codes: tuple[str, ...] = (), label: s
         return _finish(out, missing, np.zeros(len(out), bool), None, notes, label, rows)
     profile = profile or profile_cells(values)
     index, texts = profile.index, profile.texts
-    all_codes = _DEFAULT_MISSING | {c.strip().casefold() for c in extra_codes}
-    code_missing = np.array([t.casefold() in all_codes for t in texts], dtype=bool)
+    code_missing = missing_texts(texts, extra_codes)
     missing = (index < 0) | np.append(code_missing, True)[index]
     parsed = pd.to_numeric(pd.Series(texts, dtype=object), errors="coerce").to_numpy(
         dtype="float64", na_value=np.nan).copy() if len(texts) else np.zeros(0)
@@ -299,9 +298,10 @@ def parse_levels(values: pd.Series, levels: tuple[str, ...], extra_codes: tuple[
     Matching ignores case and surrounding spaces. A yes/no column accepts every common
     spelling of yes and no ("Y", "TRUE", "1").
     """
-    missing = is_missing_text(values, extra_codes)
-    index, uniques = _factorize(values)
+    index, uniques = _factorize(values)  # hashed once: for the missing codes and the levels
     texts = _unique_texts(uniques)
+    missing = is_missing_text(values, extra_codes) if _is_numeric(values) else \
+        _missing_cells(index, texts, extra_codes)
     lookup = {lv.casefold(): lv for lv in levels}
     if set(lookup) == {"yes", "no"}:
         lookup.update({w: lookup["yes"] for w in YES_WORDS})

@@ -217,14 +217,6 @@ def _natural_key(level: str):
         return (1, 0.0, level.casefold())
 
 
-def infer_column(name: str, values: pd.Series,
-                 rows: Sequence[int] | np.ndarray | None = None) -> tuple[ColumnSpec, list[str]]:
-    """A sensible dictionary entry for one column, and notes (see core/inference.py)."""
-    from .inference import infer_column as infer
-
-    return infer(name, values, rows)
-
-
 def infer_dictionary(frame: pd.DataFrame, row_numbers: Sequence[int] | np.ndarray | None = None,
                      ) -> tuple[DataDictionary, list[str]]:
     """Infer a dictionary entry for every column; returns the dictionary and notes.

@@ -21,6 +21,7 @@ import pandas as pd
 
 from .errors import InputError
 from .messages import say
+from .table import _header_index, _span
 from .values import SPREADSHEET_ERRORS, rows_phrase
 
 _NS = "{http://schemas.openxmlformats.org/spreadsheetml/2006/main}"
@@ -116,7 +117,6 @@ def _read(book, path: Path, sheet: str | None) -> SheetRead:
         raise InputError(say("xlsx.empty_sheet", where=where))
     width = max(_last_filled(r) for r in rows[:100_000])
     _fill_merged_headers(rows, xml.merged, limit=_HEADER_SCAN + 2)
-    from .table import _header_index  # shared rule for where the header is
 
     scan = [["" if not _filled(v) else str(v) for v in r] for r in rows[:_HEADER_SCAN]]
     h = _header_index(scan, width, path, where)
@@ -139,7 +139,7 @@ def _read(book, path: Path, sheet: str | None) -> SheetRead:
     titles = [r for r in rows[:h] if any(_filled(v) for v in r)]
     if titles:
         title = " ".join(str(v) for v in titles[0] if _filled(v))[:60]
-        warnings.append(say("read.title_rows", where=where, lines=_span(h), title=title,
+        warnings.append(say("read.title_rows", where=where, lines=_span(1, h), title=title,
                             header_row=h + 1))
     body = rows[first_data:]
     numbers = np.arange(first_data + 1, first_data + 1 + len(body), dtype=np.int64)
@@ -160,10 +160,6 @@ def _last_filled(row: tuple) -> int:
         if _filled(row[j]):
             return j + 1
     return 0
-
-
-def _span(h: int) -> str:
-    return "row 1" if h == 1 else f"rows 1–{h}"
 
 
 def _join(upper, lower) -> str | None:
@@ -247,7 +243,8 @@ def _structure_notes(xml: _SheetXml, numbers: np.ndarray, body: list, header: li
         notes.append(say("xlsx.uncalculated", where=where, n=len(xml.uncached),
                          cells=", ".join(xml.uncached[:6]) + (" …" if len(xml.uncached) > 6
                                                               else "")))
-    cached = [ref for ref in xml.formulas if ref not in set(xml.uncached)]
+    uncached = set(xml.uncached)
+    cached = [ref for ref in xml.formulas if ref not in uncached]
     if cached:
         letters = sorted({re.match(r"[A-Z]+", ref).group(0) for ref in cached
                           if re.match(r"[A-Z]+", ref)}, key=column_index_from_string)
