@@ -19,6 +19,7 @@ from .report_figures import pruning_curve_figure, stability_figure
 from .report_style import Styles, caution_box, chart_figure, figure, para, table, text
 from .report_performance import performance_section, risk_text
 from .report_tripod import tripod_rows
+from .words import plural
 
 if TYPE_CHECKING:
     from .report import ReportContents
@@ -80,11 +81,12 @@ def _title_page(c: ReportContents, title: str, s: Styles) -> list:
     cohort = model.extra.get("cohort", {})
     patients = f" from {cohort['patients']} patients" if cohort.get("patients") else ""
     asked = ", ".join(model.spec(col).display for col in model.columns_asked()) or "no question"
+    boxes = plural(len(model.leaves), "outcome box", "outcome boxes")
     summary = (f"A classification and regression tree (CART) for <b>{text(model.outcome.display)}"
                f"</b> was grown on {model.n_rows} visits{patients} "
                f"({text(data.get('file', 'the data file'))}), pruned by weakest-link "
                f"cost-complexity pruning, and sized by {text(model.path.get('cv', 'cross-validation'))}. "
-               f"The chosen tree has {len(model.leaves)} outcome boxes and asks about {text(asked)}. "
+               f"The chosen tree has {boxes} and asks about {text(asked)}. "
                f"Its cross-validated risk is {model.chosen['cv_risk']:.3f} ± "
                f"{model.chosen['cv_se']:.3f} ({text(model.path.get('risk_measure', 'risk'))}; "
                f"training risk {model.chosen['train_risk']:.3f}).")
@@ -247,7 +249,7 @@ def _settings(c: ReportContents, s: Styles) -> list:
              ["Size rule", {"1se": "1-SE rule: the smallest tree within one standard error of "
                                    "the minimum cross-validated risk",
                             "min": "minimum cross-validated risk"}.get(
-                 model.chosen["rule"], f"chosen by the user ({model.chosen['leaves']} boxes)")],
+                 model.chosen["rule"], f"chosen by the user ({plural(int(model.chosen['leaves']), 'box', 'boxes')})")],
              ["Held-out share set aside before growing",
               f"{req.holdout:.0%}" if req.holdout else "none"],
              ["Random seed", str(t.seed)]]
@@ -270,8 +272,8 @@ def _pruning(c: ReportContents, s: Styles) -> list:
     story = [figure(pruning_curve_figure(path),
                     f"Figure {s.next_figure()}. Cross-validated risk (±1 SE) and training risk for each size on "
                     f"the pruning path. Diamond: minimum cross-validated risk "
-                    f"({path['min_leaves']} boxes); square: the 1-SE choice "
-                    f"({path['one_se_leaves']} boxes). Training risk always falls as the tree "
+                    f"({plural(int(path['min_leaves']), 'box', 'boxes')}); square: the 1-SE choice "
+                    f"({plural(int(path['one_se_leaves']), 'box', 'boxes')}). Training risk always falls as the tree "
                     "grows; only the cross-validated risk says how it does on new patients.", s)]
     leaves = path["leaves"]
     order = sorted(range(len(leaves)), key=lambda k: leaves[k])
@@ -392,7 +394,7 @@ def _stability(c: ReportContents, s: Styles) -> list:
                        s.body), table(rows, [0.08, 0.52, 0.2, 0.2], s, align_right=(2, 3))]
     sizes = pd.Series(st.leaves).value_counts().sort_index()
     story.append(para("Sizes chosen in the resamples: " + ", ".join(
-        f"{k} boxes ({v} resample{'s' if v > 1 else ''})" for k, v in sizes.items()) + ".", s.body))
+        f"{plural(int(k), 'box', 'boxes')} ({plural(int(v), 'resample', 'resamples')})" for k, v in sizes.items()) + ".", s.body))
     return story
 
 

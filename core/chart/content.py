@@ -14,6 +14,7 @@ from .. import __version__
 from ..cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER, UNCHECKED_DETAIL
 from ..intervals import wilson_interval as _wilson_interval
 from ..model import Node, TreeModel
+from ..words import plural
 from .bands import Band, Banding, banding, box_value, number, percent, rate_phrase
 from .layout import BoxSpec, Para, TreeSpec
 from .options import ChartOptions
@@ -64,8 +65,10 @@ def count_word(model: TreeModel) -> str:
     return "visits" if patients is not None and patients != visits else "patients"
 
 
-def _plural(n: int, word: str) -> str:
-    return f"{n:,} {word[:-1] if n == 1 else word}"
+def _count(n: int, model: TreeModel) -> str:
+    """'1 patient', '412 visits': a count in the chart's word for a row."""
+    word = count_word(model)
+    return plural(n, {"visits": "visit", "patients": "patient"}[word], word)
 
 
 _COUNTS_NOTE = re.compile(r" \([^()]*\)$")
@@ -91,7 +94,7 @@ def span(low: str, high: str) -> str:
 def outcome_paras(model: TreeModel, node: Node, options: ChartOptions) -> tuple[Para, ...]:
     """Expected outcome, observed rate (or mean) and how many it rests on, its 95% interval."""
     paras = [Para(expected_text(model, node), bold=True)]
-    count = "" if options.hide_counts else _plural(node.n, count_word(model))
+    count = "" if options.hide_counts else _count(node.n, model)
     if model.task == "regression":
         low, high = model.mean_interval(node)
         if count:
@@ -160,7 +163,7 @@ def default_subtitle(model: TreeModel) -> str:
     if cohort.get("first_date"):
         dates = f", {cohort['first_date']} to {cohort['last_date']}"
     visits = cohort.get("visits", model.n_rows)
-    return f"{outcome}. Derived from {_plural(visits, count_word(model))}{dates}."
+    return f"{outcome}. Derived from {_count(visits, model)}{dates}."
 
 
 def _cohort_size(model: TreeModel) -> str:
@@ -169,7 +172,7 @@ def _cohort_size(model: TreeModel) -> str:
     patients = cohort.get("patients")
     if patients is not None and patients != visits:
         return f"{visits:,} visits by {patients:,} patients"
-    return _plural(visits, "patients")
+    return plural(visits, "patient", "patients")
 
 
 def _is_error_rate(model: TreeModel) -> bool:
@@ -196,7 +199,7 @@ def _risk(model: TreeModel, value: float) -> str:
 def _rule(model: TreeModel) -> str:
     chosen = model.chosen
     rule = chosen.get("rule")
-    boxes = _plural(int(chosen["leaves"]), "outcome boxes")
+    boxes = plural(int(chosen["leaves"]), "outcome box", "outcome boxes")
     if rule == "1se":
         return (f"Size: {boxes} (1-SE rule: the smallest tree within one SE of the lowest "
                 "cross-validated error).")
