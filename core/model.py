@@ -17,6 +17,7 @@ import pandas as pd
 
 from .errors import InputError
 from .intervals import mean_interval
+from .metrics import Proportion, proportion
 from .model_file import validate_model_dict
 from .safe_files import check_format, read_json_document, write_text_atomic
 from .thresholds import format_number
@@ -37,6 +38,12 @@ class Question:
     yes_levels: tuple[str, ...] = ()
     no_levels: tuple[str, ...] = ()
     missing_goes: str = "no"  # "yes" or "no": the branch for a value that is not recorded
+
+    def takes_missing(self, branch: int) -> bool:
+        """Whether branch ``branch`` (0 = YES, 1 = NO) also takes a value that is not recorded.
+
+        A question that asks "not recorded?" says so itself, so neither branch adds it."""
+        return self.kind != "missing" and self.missing_goes == ("yes" if branch == 0 else "no")
 
     def to_dict(self) -> dict:
         return {"column": self.column, "kind": self.kind, "threshold": self.threshold,
@@ -66,6 +73,26 @@ def question_text(question: Question, spec: ColumnSpec) -> str:
     if len(levels) == 1:
         return f"{label}: {levels[0]}?"
     return f"{label}: {', '.join(levels[:-1])} or {levels[-1]}?"
+
+
+ANSWERS = ("YES", "NO")  # the words on a question's branches, children in this order
+
+
+def shared_count(counts: tuple[int, ...], classes: tuple[str, ...], prediction) -> int:
+    """The patients of a box that its share counts: those with the positive class of a
+    yes/no outcome, else those with the class the box expects."""
+    if len(classes) == 2:
+        return int(counts[1])
+    return int(counts[classes.index(str(prediction))])
+
+
+def expected_outcome(outcome: ColumnSpec, task: str, prediction, mean: float | None) -> str:
+    """A box's expected outcome in words, without its counts: 'Admitted: expect yes',
+    'Length of stay: mean 31.2 h'."""
+    if task == "regression":
+        unit = f" {outcome.unit}" if outcome.unit else ""
+        return f"{outcome.display}: mean {mean:.3g}{unit}"
+    return f"{outcome.display}: expect {prediction}"
 
 
 @dataclass(frozen=True)
@@ -186,6 +213,17 @@ class TreeModel:
         span = self.extra.get("cohort", {}).get("outcome_range")
         return mean_interval(float(node.mean), float(node.sd or 0.0), node.n,
                              within=tuple(span) if span else None)
+
+    def box_share(self, node: Node) -> Proportion:
+        """The share a box shows (classification): its patients with the positive class of a
+        yes/no outcome, else with the class it expects, as k of n with a Wilson interval."""
+        if self.task != "classification":
+            raise ValueError("box_share is for classification trees; use mean_interval")
+        return proportion(shared_count(node.counts, self.classes, node.prediction), node.n)
+
+    def expected_outcome(self, node: Node) -> str:
+        """A box's expected outcome in words, without its counts (see :func:`expected_outcome`)."""
+        return expected_outcome(self.outcome, self.task, node.prediction, node.mean)
 
     def spec(self, column: str) -> ColumnSpec:
         for spec in self.predictors:
@@ -336,9 +374,8 @@ class TreeModel:
         current = box
         while current in parents:
             node, branch = parents[current]
-            answer = "yes" if branch == 0 else "no"
-            missing = node.question.missing_goes == answer and node.question.kind != "missing"
-            steps.append(Step(node.id, node.text, answer.upper(), missing, current))
+            steps.append(Step(node.id, node.text, ANSWERS[branch],
+                              node.question.takes_missing(branch), current))
             current = node.id
         return tuple(reversed(steps))
 

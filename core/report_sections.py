@@ -14,7 +14,6 @@ from reportlab.platypus import KeepTogether, Paragraph
 
 from . import __version__
 from .cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER, UNCHECKED_DETAIL
-from .intervals import wilson_interval
 from .report_figures import pruning_curve_figure, stability_figure
 from .report_style import Styles, caution_box, chart_figure, figure, para, table, text
 from .report_performance import performance_section, risk_text
@@ -340,9 +339,7 @@ def _tree(c: ReportContents, s: Styles) -> list:
     for leaf_id, steps in _leaf_paths(model).items():
         leaf = model.node(leaf_id)
         if model.task == "classification":
-            k = leaf.counts[1] if model.positive else leaf.counts[model.classes.index(leaf.prediction)]
-            lo, hi = wilson_interval(k, leaf.n)
-            rate = f"{k / max(leaf.n, 1):.0%} ({lo:.0%}–{hi:.0%})"
+            rate = model.box_share(leaf).text()
             expected = str(leaf.prediction)
         else:
             lo, hi = model.mean_interval(leaf)

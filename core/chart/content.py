@@ -8,12 +8,10 @@ from __future__ import annotations
 import math
 import re
 from dataclasses import dataclass
-from functools import lru_cache
 
 from .. import __version__
 from ..cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER, UNCHECKED_DETAIL
-from ..intervals import wilson_interval as _wilson_interval
-from ..model import Node, TreeModel
+from ..model import ANSWERS, Node, TreeModel
 from ..words import plural
 from .bands import Band, Banding, banding, box_value, number, percent, rate_phrase
 from .layout import BoxSpec, Para, TreeSpec
@@ -22,7 +20,6 @@ from .options import ChartOptions
 HOW_TO_READ = ("How to read: start at box 1. Answer each question; follow YES or NO until "
                "you reach an outcome box.")
 NOT_RECORDED = "or not recorded"
-wilson_interval = lru_cache(maxsize=4096)(_wilson_interval)  # the planner asks many times
 
 
 @dataclass(frozen=True)
@@ -71,18 +68,18 @@ def _count(n: int, model: TreeModel) -> str:
     return plural(n, {"visits": "visit", "patients": "patient"}[word], word)
 
 
+# Older model files word an outcome "Admitted: yes expected (...)": what the chart prints is
+# what the model file says, so the counts at its end are cut off, not the words rebuilt.
 _COUNTS_NOTE = re.compile(r" \([^()]*\)$")
 
 
 def expected_text(model: TreeModel, node: Node) -> str:
     """The expected outcome in words, as the model file words it (without the counts in
     brackets at its end, which the box prints its own way)."""
-    if node.leaf and node.text:
-        return _COUNTS_NOTE.sub("", node.text)
-    label = model.outcome.display
-    if model.task == "regression":
-        return f"{label}: mean {node.mean:.3g}" + (f" {model.outcome.unit}" if model.outcome.unit else "")
-    return f"{label}: expect {node.prediction}"
+    phrase = model.expected_outcome(node)
+    if not (node.leaf and node.text) or node.text.startswith(phrase + " ("):
+        return phrase
+    return _COUNTS_NOTE.sub("", node.text)
 
 
 def span(low: str, high: str) -> str:
@@ -101,14 +98,10 @@ def outcome_paras(model: TreeModel, node: Node, options: ChartOptions) -> tuple[
             paras.append(Para(count))
         paras.append(Para(f"95% CI {span(number(low), number(high, model.outcome.unit))}"))
     else:
-        if model.positive is not None:
-            k = node.counts[1]
-        else:
-            k = node.counts[model.classes.index(str(node.prediction))]
-        low, high = wilson_interval(k, node.n)
-        rate = percent(k / max(node.n, 1))
+        share = model.box_share(node)
+        rate = percent(share.value or 0.0)
         paras.append(Para(f"{rate} of {count}" if count else f"Rate {rate}"))
-        paras.append(Para(f"95% CI {span(percent(low)[:-1], percent(high))}"))
+        paras.append(Para(f"95% CI {span(percent(share.low or 0.0)[:-1], percent(share.high or 1.0))}"))
     if node.n < options.small_cell:
         paras.append(Para("Small group", bold=True))
     return tuple(paras)
@@ -134,9 +127,8 @@ def tree_spec(model: TreeModel, options: ChartOptions,
         children[node.id] = node.children
         question = node.question
         for k, child in enumerate(node.children):
-            answer = "YES" if k == 0 else "NO"
-            paras = [Para(answer, bold=True)]
-            if question.kind != "missing" and question.missing_goes == ("yes" if k == 0 else "no"):
+            paras = [Para(ANSWERS[k], bold=True)]
+            if question.takes_missing(k):
                 paras.append(Para(NOT_RECORDED))
             labels[(node.id, child)] = tuple(paras)
         stack.extend(reversed(node.children))
