@@ -16,6 +16,7 @@ from . import __version__
 from .cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER, UNCHECKED_DETAIL
 from .report_figures import pruning_curve_figure, stability_figure
 from .report_style import Styles, caution_box, chart_figure, figure, para, table, text
+from .report_numbers import section
 from .report_performance import performance_section, risk_text
 from .report_tripod import tripod_rows
 from .words import plural
@@ -24,16 +25,6 @@ if TYPE_CHECKING:
     from .report import ReportContents
 
 SMALL_BOX = 10  # outcome boxes resting on fewer patients are flagged (common practice: 5 or 10)
-
-SECTIONS = ("Data source", "Participants", "Outcome and predictors", "Missing values",
-            "Model building", "Pruning path and the choice of size", "The chosen tree",
-            "Performance", "Stability", "Limitations and cautions", "TRIPOD checklist")
-
-
-def section(name: str) -> int:
-    """The number of a report section (the TRIPOD table refers to these)."""
-    return SECTIONS.index(name) + 1
-
 
 
 # --- helpers ----------------------------------------------------------------------------------
