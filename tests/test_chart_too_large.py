@@ -42,3 +42,20 @@ def test_trying_one_paper_after_another_searches_nothing(monkeypatch) -> None:
         with pytest.raises(ChartTooLarge):
             plan_chart(big, ChartOptions(paper=paper, printed=dt.date(2026, 1, 2)))
     assert calls == []
+
+
+def test_sizes_that_fit_take_the_whole_chart_options() -> None:
+    """What the shading promises is what the chart then does, with every option set."""
+    from core.chart import sizes_that_fit
+    from core.chart.fitting import tree_fits
+
+    derivation = demo.admitted()
+    chart = ChartOptions(paper="a4", title="Breathless adults in the emergency department: "
+                         "who is admitted", subtitle="Invented demo cohort " * 8,
+                         hide_counts=True, small_cell=20, band_cuts=(10.0, 30.0),
+                         printed=dt.date(2026, 1, 2))
+    sizes = sizes_that_fit(derivation, chart)
+    for n in sorted({int(v) for v in derivation.path.leaves})[:8]:
+        assert (n in sizes) == tree_fits(demo.admitted_size(n).model, chart)
+    with pytest.raises(TypeError, match="ChartOptions"):
+        sizes_that_fit(derivation, "a4")

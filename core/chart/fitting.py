@@ -199,19 +199,22 @@ def too_large_message(leaves: int, fitting: int | None, options: ChartOptions) -
     return text
 
 
-def sizes_that_fit(derivation: "Derivation", paper: str = "a4", orientation: str = "auto",
-                   min_text: float | None = None, measure: Measure = reportlab_measure,
-                   options: ChartOptions | None = None) -> list[int]:
+def sizes_that_fit(derivation: "Derivation", options: ChartOptions | None = None,
+                   measure: Measure = reportlab_measure) -> list[int]:
     """Numbers of outcome boxes (leaves) of ``derivation.path.leaves`` whose tree fits on one
-    page of ``paper`` at ``min_text``, in the order of the path (largest first).
+    page as ``options`` print it (paper, orientation, minimum text, and the title, bands,
+    counts and small-group flags that change what the boxes and panel hold), in the order of
+    the path (largest first).
 
     Candidates come from :func:`core.derive.choose_model`; trees with more boxes than the
     page could hold packed edge to edge, or deeper than any arrangement allows, are
     skipped before they are built."""
     from ..derive import choose_model
 
-    base = options or ChartOptions()
-    options = replace(base, paper=paper, orientation=orientation, min_text=min_text).checked()
+    if options is not None and not isinstance(options, ChartOptions):
+        raise TypeError("sizes_that_fit takes the chart's ChartOptions, e.g. "
+                        "ChartOptions(paper='a3'), not a paper name")
+    options = (options or ChartOptions()).checked()
     most = _most_leaves(options.paper, options.min_text, measure)
     deepest = deepest_possible(chart_text(derivation.model, options), options, measure)
     path = derivation.path

@@ -95,8 +95,7 @@ def fit_chart(args, derivation: Derivation) -> None:
     try:
         plan = write_chart(derivation.model, args.chart, options)
     except ChartTooLarge:
-        sizes = sizes_that_fit(derivation, options.paper, options.orientation, options.min_text,
-                               options=options)
+        sizes = sizes_that_fit(derivation, options)
         message = too_large_message(len(derivation.model.leaves), max(sizes, default=None), options)
         raise InputError(f"The model was saved to {args.model}, but no chart was printed. "
                          + message) from None
