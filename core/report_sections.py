@@ -14,6 +14,7 @@ from reportlab.platypus import KeepTogether, Paragraph
 
 from . import __version__
 from .cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER, UNCHECKED_DETAIL
+from .chart.options import SMALL_GROUP  # the chart dashes the boxes the report flags
 from .report_figures import pruning_curve_figure, stability_figure
 from .report_style import Styles, caution_box, chart_figure, figure, para, table, text
 from .report_numbers import section
@@ -23,8 +24,6 @@ from .words import plural
 
 if TYPE_CHECKING:
     from .report import ReportContents
-
-SMALL_BOX = 10  # outcome boxes resting on fewer patients are flagged (common practice: 5 or 10)
 
 
 # --- helpers ----------------------------------------------------------------------------------
@@ -336,14 +335,14 @@ def _tree(c: ReportContents, s: Styles) -> list:
             lo, hi = model.mean_interval(leaf)
             rate = f"{leaf.mean:.3g} ({lo:.3g}–{hi:.3g})"
             expected = f"mean {leaf.mean:.3g}"
-        mark = " †" if leaf.n < SMALL_BOX else ""
+        mark = " †" if leaf.n < SMALL_GROUP else ""
         if mark:
             small.append(leaf_id)
         route = " → ".join(steps) if steps else "every patient"
         rows.append([f"{leaf_id}{mark}", route, expected, str(leaf.n), rate])
     story.append(table(rows, [0.07, 0.48, 0.13, 0.1, 0.22], s, align_right=(3,)))
     if small:
-        story.append(para(f"† rests on fewer than {SMALL_BOX} derivation patients: the rate is "
+        story.append(para(f"† rests on fewer than {SMALL_GROUP} derivation patients: the rate is "
                           "uncertain and may identify individuals; consider suppressing it before "
                           "sharing.", s.caption))
     return story
@@ -403,9 +402,9 @@ def _limitations(c: ReportContents, s: Styles) -> list:
                          f"{', '.join(map(str, outside))} lies outside the observed interval: "
                          "the tree is miscalibrated there and should be recalibrated or "
                          "rederived locally.")
-    small = [leaf.id for leaf in model.leaves if leaf.n < SMALL_BOX]
+    small = [leaf.id for leaf in model.leaves if leaf.n < SMALL_GROUP]
     if small:
-        items.append(f"Box(es) {', '.join(map(str, small))} rest on fewer than {SMALL_BOX} patients.")
+        items.append(f"Box(es) {', '.join(map(str, small))} rest on fewer than {SMALL_GROUP} patients.")
     heavy = [t.spec.display for t in der.data.predictors if t.missing.mean() > 0.2]
     if heavy:
         items.append("Often not recorded (over 20% of visits): " + ", ".join(heavy) + "; where "
