@@ -267,6 +267,11 @@ class TreeModel:
     def from_dict(cls, data: dict, name: str = "This file") -> "TreeModel":
         """A model from parsed JSON; damaged, foreign or newer files are refused (InputError)."""
         check_format(data, "model", MODEL_VERSIONS, name)
+        return cls._from_checked_format(data)
+
+    @classmethod
+    def _from_checked_format(cls, data: dict) -> "TreeModel":
+        """A model from parsed JSON whose format and version were already checked."""
         validate_model_dict(data)
         try:
             known = {"format", "task", "outcome", "outcome_spec", "classes", "positive", "n_rows",
@@ -286,10 +291,8 @@ class TreeModel:
     @classmethod
     def load(cls, path: str | Path) -> "TreeModel":
         """Read a model file written by :meth:`save` (JSON only; nothing in it is executed)."""
-        path = Path(path)
-        if not path.exists():
-            raise InputError(f"No model file at {path}; check the path.")
-        return cls.from_dict(read_json_document(path, "model", MODEL_VERSIONS), path.name)
+        # read_json_document refuses a missing, foreign or newer file with the catalogue's message.
+        return cls._from_checked_format(read_json_document(path, "model", MODEL_VERSIONS))
 
     def _check(self) -> None:
         ids = [n.id for n in self.nodes]

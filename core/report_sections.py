@@ -34,10 +34,6 @@ def _grouped(digest: str) -> str:
     return " ".join(digest[i:i + 16] for i in range(0, len(digest), 16))
 
 
-def _pct(k: int, n: int) -> str:
-    return f"{k / n:.0%}" if n else "–"
-
-
 def _count_pct(k: int, n: int) -> str:
     return f"{k} ({100 * k / n:.1f}%)" if n else str(k)
 

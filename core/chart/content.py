@@ -13,7 +13,7 @@ from .. import __version__
 from ..cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER, UNCHECKED_DETAIL
 from ..model import ANSWERS, Node, TreeModel
 from ..words import plural
-from .bands import Band, Banding, banding, box_value, number, percent, rate_phrase
+from .bands import Band, Banding, banding, number, percent, rate_phrase
 from .layout import BoxSpec, Para, TreeSpec
 from .options import ChartOptions
 
@@ -302,8 +302,3 @@ def chart_text(model: TreeModel, options: ChartOptions) -> ChartText:
                      how_to_read=HOW_TO_READ, banner=banner, tree=spec, bands=band_of,
                      small=small, sections=tuple(sections), footer=footer,
                      fingerprint=model.fingerprint)
-
-
-def outcome_value(model: TreeModel, node: Node) -> float:
-    """The rate or mean an outcome box shows (for tests and the app)."""
-    return box_value(model, node)
