@@ -22,6 +22,7 @@ from .model_file import validate_model_dict
 from .safe_files import check_format, read_json_document, write_text_atomic
 from .thresholds import format_number
 from .variables import ColumnSpec, typed_column
+from .words import short_fingerprint
 
 MODEL_FORMAT = "prunella-model/1"
 MODEL_VERSIONS = (1,)  # format versions this Prunella reads
@@ -259,6 +260,11 @@ class TreeModel:
         canonical = json.dumps(self.to_dict(), sort_keys=True, separators=(",", ":"),
                                ensure_ascii=False, allow_nan=False)
         return hashlib.sha256(canonical.encode("utf-8")).hexdigest()
+
+    @property
+    def short_fingerprint(self) -> str:
+        """The fingerprint as pages and screens print it (its first 12 digits)."""
+        return short_fingerprint(self.fingerprint)
 
     def save(self, path: str | Path) -> None:
         write_text_atomic(path, self.to_json())

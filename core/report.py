@@ -86,7 +86,7 @@ def render_report(contents: ReportContents) -> bytes:
     for number, name in enumerate(SECTIONS, 1):
         story.append(para(f"{number}. {name}", s.h1))
         story += SECTION_WRITERS[name](contents, s)
-    footer = (f"Prunella {__version__} · model {model.fingerprint[:12]} · decision support only "
+    footer = (f"Prunella {__version__} · model {model.short_fingerprint} · decision support only "
               f"(section {section('Limitations and cautions')})")
     return build_pdf(story, header=title, footer=footer, title=title, author="Prunella")
 

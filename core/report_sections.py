@@ -20,7 +20,7 @@ from .report_style import Styles, caution_box, chart_figure, figure, para, table
 from .report_numbers import section
 from .report_performance import performance_section, risk_text
 from .report_tripod import tripod_rows
-from .words import plural
+from .words import plural, short_fingerprint
 
 if TYPE_CHECKING:
     from .report import ReportContents
@@ -60,21 +60,25 @@ def _title_page(c: ReportContents, title: str, s: Styles) -> list:
     printed = f" · printed {c.printed}" if c.printed else ""
     story = [para(title, s.title),
              para(f"Prepared with Prunella {__version__} · model fingerprint "
-                  f"{model.fingerprint[:16]} · data SHA-256 {str(data.get('sha256', ''))[:16]}"
+                  f"{model.short_fingerprint} · data SHA-256 {short_fingerprint(data.get('sha256', ''))}"
                   f"{printed}", s.subtitle)]
     story.append(para("", s.body))
     cohort = model.extra.get("cohort", {})
     patients = f" from {cohort['patients']} patients" if cohort.get("patients") else ""
     asked = ", ".join(model.spec(col).display for col in model.columns_asked()) or "no question"
     boxes = plural(len(model.leaves), "outcome box", "outcome boxes")
+
+    def risk(value: float) -> str:
+        return risk_text(value, model.task)
+
     summary = (f"A classification and regression tree (CART) for <b>{text(model.outcome.display)}"
                f"</b> was grown on {model.n_rows} visits{patients} "
                f"({text(data.get('file', 'the data file'))}), pruned by weakest-link "
                f"cost-complexity pruning, and sized by {text(model.path.get('cv', 'cross-validation'))}. "
                f"The chosen tree has {boxes} and asks about {text(asked)}. "
-               f"Its cross-validated risk is {model.chosen['cv_risk']:.3f} ± "
-               f"{model.chosen['cv_se']:.3f} ({text(model.path.get('risk_measure', 'risk'))}; "
-               f"training risk {model.chosen['train_risk']:.3f}).")
+               f"Its cross-validated risk is {risk(model.chosen['cv_risk'])} ± "
+               f"{risk(model.chosen['cv_se'])} ({text(model.path.get('risk_measure', 'risk'))}; "
+               f"training risk {risk(model.chosen['train_risk'])}).")
     story.append(para(summary, s.body, markup=True))
     lines = []
     if c.nested is not None:

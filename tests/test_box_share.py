@@ -78,3 +78,24 @@ def test_rules_and_chart_agree_on_branch_labels() -> None:
             paras = [p.text for p in labels[(step.box, step.to)]]
             assert paras[0] == step.answer
             assert (NOT_RECORDED in paras) == step.includes_missing
+
+
+def test_the_report_title_page_prints_risks_and_fingerprints_as_elsewhere() -> None:
+    from core.report_performance import risk_text
+    from core.report_sections import _title_page
+    from core.report_style import Styles
+
+    for which in ("admitted", "length_of_stay"):
+        model = getattr(demo, which)().model
+
+        class Contents:  # just what the title page reads
+            nested, checks, stability, notes, printed = None, [], None, [], "2026-01-02"
+
+        Contents.model = model
+        story = _title_page(Contents, "Report", Styles())
+        words = " ".join(getattr(f, "text", "") for f in story)
+        assert f"model fingerprint {model.short_fingerprint} ·" in words
+        assert model.fingerprint[:13] not in words
+        chosen = model.chosen
+        assert (f"Its cross-validated risk is {risk_text(chosen['cv_risk'], model.task)} ± "
+                f"{risk_text(chosen['cv_se'], model.task)}") in words

@@ -35,3 +35,15 @@ def test_a_larger_tree_says_outcome_boxes() -> None:
     model = demo.admitted().model
     size = [line for line in _panel_lines(model) if line.startswith("Size:")]
     assert size[0].startswith(f"Size: {len(model.leaves)} outcome boxes"), size
+
+
+def test_one_short_fingerprint_everywhere() -> None:
+    from core.words import short_fingerprint
+
+    model = demo.admitted().model
+    assert model.short_fingerprint == model.fingerprint[:12] == short_fingerprint(model.fingerprint)
+    provenance = demo.admitted().table.provenance
+    assert provenance.short_fingerprint == provenance.sha256[:12]
+    footer = chart_text(model, ChartOptions().checked()).footer[0]
+    assert footer.startswith(f"Model {model.short_fingerprint}  ·  Data "
+                             f"{short_fingerprint(model.extra['data']['sha256'])}  ·")

@@ -12,7 +12,7 @@ from dataclasses import dataclass
 from .. import __version__
 from ..cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER, UNCHECKED_DETAIL
 from ..model import ANSWERS, Node, TreeModel
-from ..words import plural
+from ..words import plural, short_fingerprint
 from .bands import Band, Banding, banding, number, percent, rate_phrase
 from .layout import BoxSpec, Para, TreeSpec
 from .options import ChartOptions
@@ -292,7 +292,7 @@ def chart_text(model: TreeModel, options: ChartOptions) -> ChartText:
     sections.append(PanelSection(CAUTION_TITLE, tuple(PanelItem(c) for c in CAUTIONS),
                                  kind="caution"))
     data = model.extra.get("data", {})
-    footer = (f"Model {model.fingerprint[:12]}  ·  Data {str(data.get('sha256', ''))[:12] or 'unknown'}"
+    footer = (f"Model {model.short_fingerprint}  ·  Data {short_fingerprint(data.get('sha256', '')) or 'unknown'}"
               f"  ·  Printed {options.printed.isoformat()}  ·  Prunella {__version__}",
               "The model fingerprint (SHA-256 of the model file, also in the QR code) names "
               "the exact tree on this chart.")

@@ -13,6 +13,7 @@ from ..stability import DEFAULT_RESAMPLES
 from ..table import read_table
 from ..variables import DataDictionary, merge_dictionary
 from ..variables import dictionary_for
+from ..words import short_fingerprint
 from .common import dictionary_path, refuse_overwrite
 
 
@@ -100,8 +101,8 @@ def run_report(args) -> int:
     notes = []
     expected = model.extra.get("data", {}).get("sha256")
     if expected and expected != table.provenance.sha256:
-        notes.append(f"The data file's SHA-256 ({table.provenance.sha256[:12]}...) differs from "
-                     f"the one the model was fitted on ({expected[:12]}...): this report "
+        notes.append(f"The data file's SHA-256 ({table.provenance.short_fingerprint}...) differs from "
+                     f"the one the model was fitted on ({short_fingerprint(expected)}...): this report "
                      "re-derives the tree from the data given, which is not the model's data.")
         print(f"prunella: warning: {notes[-1]}", file=sys.stderr)
     dictionary = model_dictionary(table, model, dictionary_path(args.dictionary, args.data))
