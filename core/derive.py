@@ -15,7 +15,7 @@ from . import __version__
 from .design import AnalysisData, DesignSpec, MatrixColumn, prepare_analysis
 from .errors import InputError
 from .grow import TreeSettings
-from .model import Node, Question, TreeModel, column_values, question_text
+from .model import Node, Question, TreeModel, column_values, expected_outcome, question_text, shared_count
 from .prune import parents_of
 from .pathcv import CancelFlag, CrossValidatedPath, Progress, cross_validate_path
 from .resample import CVSettings, holdout_split
@@ -200,18 +200,13 @@ def _node_stats(tree, node: int, data: AnalysisData) -> dict:
 
 
 def _outcome_text(stats: dict, data: AnalysisData) -> str:
-    label = data.outcome.display
     n = stats["n"]
+    expected = expected_outcome(data.outcome, data.task, stats["prediction"], stats.get("mean"))
     if data.task == "regression":
-        unit = f" {data.outcome.unit}" if data.outcome.unit else ""
-        return f"{label}: mean {stats['mean']:.3g}{unit} ({n} patients)"
-    counts = stats["counts"]
-    if len(data.classes) == 2:
-        share = counts[1] / max(n, 1)
-        return (f"{label}: expect {stats['prediction']} ({share:.0%} of {n} patients "
-                f"had {data.classes[1]})")
-    share = counts[data.classes.index(stats["prediction"])] / max(n, 1)
-    return f"{label}: expect {stats['prediction']} ({share:.0%} of {n} patients)"
+        return f"{expected} ({n} patients)"
+    share = shared_count(stats["counts"], data.classes, stats["prediction"]) / max(n, 1)
+    had = f" had {data.classes[1]}" if len(data.classes) == 2 else ""
+    return f"{expected} ({share:.0%} of {n} patients{had})"
 
 
 def _question(column: MatrixColumn, tree, node: int, X_rows: np.ndarray, data: AnalysisData,

@@ -187,8 +187,6 @@ ELSEWHERE = [
      "Use 2 or more outer folds (5 is usual).", "core/nested.py"),
     ("stability.resamples", "refused", "The number of bootstrap resamples must be at least 1 "
      "(200 is usual).", "Give a positive number of resamples.", "core/stability.py"),
-    ("model.no_model", "refused", "No model file at {path}; check the path.", "Check the path.",
-     "core/model.py"),
     ("model.damaged_detail", "refused", "The model file is damaged ({kind}: {detail}); save the "
      "model again from Prunella.", "Use the model file as Prunella saved it.", "core/model.py"),
     ("model.numbering", "refused", "The model file is damaged (boxes are not numbered 1, 2, 3, "

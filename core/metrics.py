@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from functools import lru_cache
 
 import numpy as np
 from scipy import stats
@@ -22,6 +23,7 @@ from sklearn.metrics import (
 from .intervals import mean_interval, wilson_interval
 
 LEVEL = 0.95
+_wilson = lru_cache(maxsize=4096)(wilson_interval)  # the chart planner asks for the same boxes often
 _Z = float(stats.norm.ppf(0.5 + LEVEL / 2))
 
 
@@ -50,7 +52,7 @@ def proportion(k: int, n: int) -> Proportion:
     k, n = int(k), int(n)
     if n == 0:
         return Proportion(k, n, None, None, None)
-    low, high = wilson_interval(k, n, LEVEL)
+    low, high = _wilson(k, n, LEVEL)
     return Proportion(k, n, k / n, low, high)
 
 

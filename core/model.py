@@ -17,10 +17,12 @@ import pandas as pd
 
 from .errors import InputError
 from .intervals import mean_interval
+from .metrics import Proportion, proportion
 from .model_file import validate_model_dict
 from .safe_files import check_format, read_json_document, write_text_atomic
 from .thresholds import format_number
 from .variables import ColumnSpec, typed_column
+from .words import short_fingerprint
 
 MODEL_FORMAT = "prunella-model/1"
 MODEL_VERSIONS = (1,)  # format versions this Prunella reads
@@ -37,6 +39,12 @@ class Question:
     yes_levels: tuple[str, ...] = ()
     no_levels: tuple[str, ...] = ()
     missing_goes: str = "no"  # "yes" or "no": the branch for a value that is not recorded
+
+    def takes_missing(self, branch: int) -> bool:
+        """Whether branch ``branch`` (0 = YES, 1 = NO) also takes a value that is not recorded.
+
+        A question that asks "not recorded?" says so itself, so neither branch adds it."""
+        return self.kind != "missing" and self.missing_goes == ("yes" if branch == 0 else "no")
 
     def to_dict(self) -> dict:
         return {"column": self.column, "kind": self.kind, "threshold": self.threshold,
@@ -66,6 +74,26 @@ def question_text(question: Question, spec: ColumnSpec) -> str:
     if len(levels) == 1:
         return f"{label}: {levels[0]}?"
     return f"{label}: {', '.join(levels[:-1])} or {levels[-1]}?"
+
+
+ANSWERS = ("YES", "NO")  # the words on a question's branches, children in this order
+
+
+def shared_count(counts: tuple[int, ...], classes: tuple[str, ...], prediction) -> int:
+    """The patients of a box that its share counts: those with the positive class of a
+    yes/no outcome, else those with the class the box expects."""
+    if len(classes) == 2:
+        return int(counts[1])
+    return int(counts[classes.index(str(prediction))])
+
+
+def expected_outcome(outcome: ColumnSpec, task: str, prediction, mean: float | None) -> str:
+    """A box's expected outcome in words, without its counts: 'Admitted: expect yes',
+    'Length of stay: mean 31.2 h'."""
+    if task == "regression":
+        unit = f" {outcome.unit}" if outcome.unit else ""
+        return f"{outcome.display}: mean {mean:.3g}{unit}"
+    return f"{outcome.display}: expect {prediction}"
 
 
 @dataclass(frozen=True)
@@ -187,6 +215,17 @@ class TreeModel:
         return mean_interval(float(node.mean), float(node.sd or 0.0), node.n,
                              within=tuple(span) if span else None)
 
+    def box_share(self, node: Node) -> Proportion:
+        """The share a box shows (classification): its patients with the positive class of a
+        yes/no outcome, else with the class it expects, as k of n with a Wilson interval."""
+        if self.task != "classification":
+            raise ValueError("box_share is for classification trees; use mean_interval")
+        return proportion(shared_count(node.counts, self.classes, node.prediction), node.n)
+
+    def expected_outcome(self, node: Node) -> str:
+        """A box's expected outcome in words, without its counts (see :func:`expected_outcome`)."""
+        return expected_outcome(self.outcome, self.task, node.prediction, node.mean)
+
     def spec(self, column: str) -> ColumnSpec:
         for spec in self.predictors:
             if spec.name == column:
@@ -222,6 +261,11 @@ class TreeModel:
                                ensure_ascii=False, allow_nan=False)
         return hashlib.sha256(canonical.encode("utf-8")).hexdigest()
 
+    @property
+    def short_fingerprint(self) -> str:
+        """The fingerprint as pages and screens print it (its first 12 digits)."""
+        return short_fingerprint(self.fingerprint)
+
     def save(self, path: str | Path) -> None:
         write_text_atomic(path, self.to_json())
 
@@ -229,6 +273,11 @@ class TreeModel:
     def from_dict(cls, data: dict, name: str = "This file") -> "TreeModel":
         """A model from parsed JSON; damaged, foreign or newer files are refused (InputError)."""
         check_format(data, "model", MODEL_VERSIONS, name)
+        return cls._from_checked_format(data)
+
+    @classmethod
+    def _from_checked_format(cls, data: dict) -> "TreeModel":
+        """A model from parsed JSON whose format and version were already checked."""
         validate_model_dict(data)
         try:
             known = {"format", "task", "outcome", "outcome_spec", "classes", "positive", "n_rows",
@@ -248,10 +297,8 @@ class TreeModel:
     @classmethod
     def load(cls, path: str | Path) -> "TreeModel":
         """Read a model file written by :meth:`save` (JSON only; nothing in it is executed)."""
-        path = Path(path)
-        if not path.exists():
-            raise InputError(f"No model file at {path}; check the path.")
-        return cls.from_dict(read_json_document(path, "model", MODEL_VERSIONS), path.name)
+        # read_json_document refuses a missing, foreign or newer file with the catalogue's message.
+        return cls._from_checked_format(read_json_document(path, "model", MODEL_VERSIONS))
 
     def _check(self) -> None:
         ids = [n.id for n in self.nodes]
@@ -336,9 +383,8 @@ class TreeModel:
         current = box
         while current in parents:
             node, branch = parents[current]
-            answer = "yes" if branch == 0 else "no"
-            missing = node.question.missing_goes == answer and node.question.kind != "missing"
-            steps.append(Step(node.id, node.text, answer.upper(), missing, current))
+            steps.append(Step(node.id, node.text, ANSWERS[branch],
+                              node.question.takes_missing(branch), current))
             current = node.id
         return tuple(reversed(steps))
 

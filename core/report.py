@@ -18,7 +18,8 @@ from .derive import Derivation
 from .errors import Cancelled
 from .nested import DEFAULT_OUTER_FOLDS, NestedResult, nested_cross_validate
 from .pathcv import CancelFlag, Progress
-from .report_sections import SECTION_WRITERS, SECTIONS, _title_page, section
+from .report_numbers import SECTIONS, section
+from .report_sections import SECTION_WRITERS, _title_page
 from .report_style import Styles, build_pdf, para
 from .safe_files import write_bytes_atomic
 from .stability import DEFAULT_RESAMPLES, Stability, bootstrap_stability
@@ -85,7 +86,7 @@ def render_report(contents: ReportContents) -> bytes:
     for number, name in enumerate(SECTIONS, 1):
         story.append(para(f"{number}. {name}", s.h1))
         story += SECTION_WRITERS[name](contents, s)
-    footer = (f"Prunella {__version__} · model {model.fingerprint[:12]} · decision support only "
+    footer = (f"Prunella {__version__} · model {model.short_fingerprint} · decision support only "
               f"(section {section('Limitations and cautions')})")
     return build_pdf(story, header=title, footer=footer, title=title, author="Prunella")
 

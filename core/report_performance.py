@@ -10,6 +10,7 @@ from .cautions import UNCHECKED_BANNER, UNCHECKED_DETAIL
 from .metrics import ClassificationMeasures, Measures
 from .nested import NestedResult
 from .report_figures import calibration_figure, roc_figure
+from .report_numbers import section
 from .report_style import Styles, figure, figures_side_by_side, para, table, text
 from .validate import ValidationResult, training_measures
 
@@ -41,6 +42,7 @@ def _perf_row(name: str, basis: str, n: int, m: Measures | None, risk: str, s: S
 
 def performance_section(c: ReportContents, s: Styles) -> list:
     model, der = c.model, c.derivation
+    number = section("Performance")
     classification = model.task == "classification"
     binary = classification and model.positive is not None
     if binary:
@@ -76,27 +78,28 @@ def performance_section(c: ReportContents, s: Styles) -> list:
                   "patients it was grown on) to the most honest (patients it never saw). "
                   "Intervals are 95%: Wilson for proportions, DeLong for the ROC area; ± is one "
                   "standard error. " + ("Cost is the expected misclassification cost per "
-                  "patient under the costs and priors of section 5, comparable across rows."
+                  f"patient under the costs and priors of section {section('Model building')}, "
+                  "comparable across rows."
                   if classification else "Errors are in the outcome's unit."), s.body),
-             KeepTogether([para("8.1 Overview", s.h2),
+             KeepTogether([para(f"{number}.1 Overview", s.h2),
                            table(rows, widths, s, align_right=(1,), keep=False)])]
     if c.nested is not None:
-        story += _nested_detail(c.nested, s)
+        story += _nested_detail(c.nested, f"{number}.2", s)
     for i, check in enumerate(c.checks, 2 + (c.nested is not None)):
-        story += _check_detail(check, f"8.{i}", s)
+        story += _check_detail(check, f"{number}.{i}", s)
     if not c.checks:
         story.append(para(f"{UNCHECKED_BANNER}. {UNCHECKED_DETAIL}", s.body))
     return story
 
 
-def _nested_detail(nested: NestedResult, s: Styles) -> list:
+def _nested_detail(nested: NestedResult, number: str, s: Styles) -> list:
     task = "regression" if nested.risk_measure == "mean squared error" else "classification"
     rows = [["Outer fold", "Growing patients", "Test visits", "Boxes chosen inside",
              "Inner CV risk", "Outer test risk"]]
     for f in nested.folds:
         rows.append([str(f.fold), str(f.n_train), str(f.n_test), str(f.leaves),
                      risk_text(f.inner_cv_risk, task), risk_text(f.test_risk, task)])
-    return [para("8.2 Nested cross-validation", s.h2),
+    return [para(f"{number} Nested cross-validation", s.h2),
             para(f"{nested.description}. Inside every outer fold the whole procedure ran again "
                  f"(growing, cross-validating the pruning path, choosing the size by the "
                  f"{nested.size_rule}); the chosen tree was then measured on the outer fold. "

@@ -14,26 +14,16 @@ from reportlab.platypus import KeepTogether, Paragraph
 
 from . import __version__
 from .cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER, UNCHECKED_DETAIL
-from .intervals import wilson_interval
+from .chart.options import SMALL_GROUP  # the chart dashes the boxes the report flags
 from .report_figures import pruning_curve_figure, stability_figure
 from .report_style import Styles, caution_box, chart_figure, figure, para, table, text
+from .report_numbers import section
 from .report_performance import performance_section, risk_text
 from .report_tripod import tripod_rows
+from .words import plural, short_fingerprint
 
 if TYPE_CHECKING:
     from .report import ReportContents
-
-SMALL_BOX = 10  # outcome boxes resting on fewer patients are flagged (common practice: 5 or 10)
-
-SECTIONS = ("Data source", "Participants", "Outcome and predictors", "Missing values",
-            "Model building", "Pruning path and the choice of size", "The chosen tree",
-            "Performance", "Stability", "Limitations and cautions", "TRIPOD checklist")
-
-
-def section(name: str) -> int:
-    """The number of a report section (the TRIPOD table refers to these)."""
-    return SECTIONS.index(name) + 1
-
 
 
 # --- helpers ----------------------------------------------------------------------------------
@@ -42,10 +32,6 @@ def section(name: str) -> int:
 def _grouped(digest: str) -> str:
     """A long hexadecimal fingerprint in groups of 16, so it wraps between groups."""
     return " ".join(digest[i:i + 16] for i in range(0, len(digest), 16))
-
-
-def _pct(k: int, n: int) -> str:
-    return f"{k / n:.0%}" if n else "–"
 
 
 def _count_pct(k: int, n: int) -> str:
@@ -74,20 +60,25 @@ def _title_page(c: ReportContents, title: str, s: Styles) -> list:
     printed = f" · printed {c.printed}" if c.printed else ""
     story = [para(title, s.title),
              para(f"Prepared with Prunella {__version__} · model fingerprint "
-                  f"{model.fingerprint[:16]} · data SHA-256 {str(data.get('sha256', ''))[:16]}"
+                  f"{model.short_fingerprint} · data SHA-256 {short_fingerprint(data.get('sha256', ''))}"
                   f"{printed}", s.subtitle)]
     story.append(para("", s.body))
     cohort = model.extra.get("cohort", {})
     patients = f" from {cohort['patients']} patients" if cohort.get("patients") else ""
     asked = ", ".join(model.spec(col).display for col in model.columns_asked()) or "no question"
+    boxes = plural(len(model.leaves), "outcome box", "outcome boxes")
+
+    def risk(value: float) -> str:
+        return risk_text(value, model.task)
+
     summary = (f"A classification and regression tree (CART) for <b>{text(model.outcome.display)}"
                f"</b> was grown on {model.n_rows} visits{patients} "
                f"({text(data.get('file', 'the data file'))}), pruned by weakest-link "
                f"cost-complexity pruning, and sized by {text(model.path.get('cv', 'cross-validation'))}. "
-               f"The chosen tree has {len(model.leaves)} outcome boxes and asks about {text(asked)}. "
-               f"Its cross-validated risk is {model.chosen['cv_risk']:.3f} ± "
-               f"{model.chosen['cv_se']:.3f} ({text(model.path.get('risk_measure', 'risk'))}; "
-               f"training risk {model.chosen['train_risk']:.3f}).")
+               f"The chosen tree has {boxes} and asks about {text(asked)}. "
+               f"Its cross-validated risk is {risk(model.chosen['cv_risk'])} ± "
+               f"{risk(model.chosen['cv_se'])} ({text(model.path.get('risk_measure', 'risk'))}; "
+               f"training risk {risk(model.chosen['train_risk'])}).")
     story.append(para(summary, s.body, markup=True))
     lines = []
     if c.nested is not None:
@@ -247,7 +238,7 @@ def _settings(c: ReportContents, s: Styles) -> list:
              ["Size rule", {"1se": "1-SE rule: the smallest tree within one standard error of "
                                    "the minimum cross-validated risk",
                             "min": "minimum cross-validated risk"}.get(
-                 model.chosen["rule"], f"chosen by the user ({model.chosen['leaves']} boxes)")],
+                 model.chosen["rule"], f"chosen by the user ({plural(int(model.chosen['leaves']), 'box', 'boxes')})")],
              ["Held-out share set aside before growing",
               f"{req.holdout:.0%}" if req.holdout else "none"],
              ["Random seed", str(t.seed)]]
@@ -270,8 +261,8 @@ def _pruning(c: ReportContents, s: Styles) -> list:
     story = [figure(pruning_curve_figure(path),
                     f"Figure {s.next_figure()}. Cross-validated risk (±1 SE) and training risk for each size on "
                     f"the pruning path. Diamond: minimum cross-validated risk "
-                    f"({path['min_leaves']} boxes); square: the 1-SE choice "
-                    f"({path['one_se_leaves']} boxes). Training risk always falls as the tree "
+                    f"({plural(int(path['min_leaves']), 'box', 'boxes')}); square: the 1-SE choice "
+                    f"({plural(int(path['one_se_leaves']), 'box', 'boxes')}). Training risk always falls as the tree "
                     "grows; only the cross-validated risk says how it does on new patients.", s)]
     leaves = path["leaves"]
     order = sorted(range(len(leaves)), key=lambda k: leaves[k])
@@ -338,22 +329,20 @@ def _tree(c: ReportContents, s: Styles) -> list:
     for leaf_id, steps in _leaf_paths(model).items():
         leaf = model.node(leaf_id)
         if model.task == "classification":
-            k = leaf.counts[1] if model.positive else leaf.counts[model.classes.index(leaf.prediction)]
-            lo, hi = wilson_interval(k, leaf.n)
-            rate = f"{k / max(leaf.n, 1):.0%} ({lo:.0%}–{hi:.0%})"
+            rate = model.box_share(leaf).text()
             expected = str(leaf.prediction)
         else:
             lo, hi = model.mean_interval(leaf)
             rate = f"{leaf.mean:.3g} ({lo:.3g}–{hi:.3g})"
             expected = f"mean {leaf.mean:.3g}"
-        mark = " †" if leaf.n < SMALL_BOX else ""
+        mark = " †" if leaf.n < SMALL_GROUP else ""
         if mark:
             small.append(leaf_id)
         route = " → ".join(steps) if steps else "every patient"
         rows.append([f"{leaf_id}{mark}", route, expected, str(leaf.n), rate])
     story.append(table(rows, [0.07, 0.48, 0.13, 0.1, 0.22], s, align_right=(3,)))
     if small:
-        story.append(para(f"† rests on fewer than {SMALL_BOX} derivation patients: the rate is "
+        story.append(para(f"† rests on fewer than {SMALL_GROUP} derivation patients: the rate is "
                           "uncertain and may identify individuals; consider suppressing it before "
                           "sharing.", s.caption))
     return story
@@ -392,7 +381,7 @@ def _stability(c: ReportContents, s: Styles) -> list:
                        s.body), table(rows, [0.08, 0.52, 0.2, 0.2], s, align_right=(2, 3))]
     sizes = pd.Series(st.leaves).value_counts().sort_index()
     story.append(para("Sizes chosen in the resamples: " + ", ".join(
-        f"{k} boxes ({v} resample{'s' if v > 1 else ''})" for k, v in sizes.items()) + ".", s.body))
+        f"{plural(int(k), 'box', 'boxes')} ({plural(int(v), 'resample', 'resamples')})" for k, v in sizes.items()) + ".", s.body))
     return story
 
 
@@ -413,9 +402,9 @@ def _limitations(c: ReportContents, s: Styles) -> list:
                          f"{', '.join(map(str, outside))} lies outside the observed interval: "
                          "the tree is miscalibrated there and should be recalibrated or "
                          "rederived locally.")
-    small = [leaf.id for leaf in model.leaves if leaf.n < SMALL_BOX]
+    small = [leaf.id for leaf in model.leaves if leaf.n < SMALL_GROUP]
     if small:
-        items.append(f"Box(es) {', '.join(map(str, small))} rest on fewer than {SMALL_BOX} patients.")
+        items.append(f"Box(es) {', '.join(map(str, small))} rest on fewer than {SMALL_GROUP} patients.")
     heavy = [t.spec.display for t in der.data.predictors if t.missing.mean() > 0.2]
     if heavy:
         items.append("Often not recorded (over 20% of visits): " + ", ".join(heavy) + "; where "

@@ -22,6 +22,7 @@ import pandas as pd
 from .errors import InputError
 from .messages import say
 from .values import rows_phrase
+from .words import short_fingerprint
 
 TEXT_SUFFIXES = {".csv", ".tsv", ".txt", ".tab"}
 EXCEL_SUFFIXES = {".xlsx", ".xlsm"}
@@ -54,7 +55,7 @@ class Provenance:
 
     @property
     def short_fingerprint(self) -> str:
-        return self.sha256[:12]
+        return short_fingerprint(self.sha256)
 
     def to_dict(self) -> dict:
         return {

@@ -9,6 +9,7 @@ from dataclasses import replace
 
 from PySide6.QtCore import QObject, Signal
 
+from core.chart import ChartOptions
 from core.derive import Derivation, DerivationRequest
 from core.design import DesignSpec
 from core.grow import TreeSettings
@@ -126,6 +127,15 @@ class Session(QObject):
 
     def set_seed(self, seed: int) -> None:
         self.set_settings(tree=replace(self.tree, seed=seed), cv=replace(self.cv, seed=seed))
+
+    def chart_options(self) -> ChartOptions:
+        """The chart settings as core's ChartOptions (None: the chart's own default)."""
+        chart = self.chart
+        return ChartOptions(paper=chart.get("paper") or "a4",
+                            orientation=chart.get("orientation") or "auto",
+                            title=chart.get("title") or None,
+                            subtitle=chart.get("subtitle") or None,
+                            min_text=chart.get("min_text"))
 
     def set_chart(self, **options) -> None:
         merged = {**self.chart, **options}

@@ -34,14 +34,14 @@ def test_a_tree_too_large_is_refused_naming_the_largest_that_fits() -> None:
     assert f"{len(big.leaves)} outcome boxes" in message and "9 pt" in message
     assert f"largest tree of its pruning sequence that fits has {fitting} outcome boxes" in message
     assert "A3" in message
-    sizes = sizes_that_fit(demo.admitted(), "a4")
+    sizes = sizes_that_fit(demo.admitted(), ChartOptions(paper="a4"))
     assert fitting == max(s for s in sizes if s <= len(big.leaves))
     plan_chart(demo.admitted_size(fitting).model, options())  # it really fits
 
 
 def test_sizes_that_fit_agree_with_planning_each_size() -> None:
     derivation = demo.admitted()
-    sizes = sizes_that_fit(derivation, "a4", "auto")
+    sizes = sizes_that_fit(derivation, ChartOptions(paper="a4", orientation="auto"))
     assert derivation.model.chosen["leaves"] in sizes and 1 in sizes
     leaves = [int(v) for v in derivation.path.leaves]
     assert sizes == [s for s in leaves if s in sizes]  # the path's order, largest first
@@ -49,7 +49,7 @@ def test_sizes_that_fit_agree_with_planning_each_size() -> None:
         model = demo.admitted_size(n).model
         assert (n in sizes) == tree_fits(model, options())
     assert max(leaves) not in sizes
-    larger = sizes_that_fit(derivation, "a3", "auto")
+    larger = sizes_that_fit(derivation, ChartOptions(paper="a3", orientation="auto"))
     assert max(larger) >= max(sizes)
 
 

@@ -46,10 +46,10 @@ class Banding:
 
 
 def box_value(model: TreeModel, node: Node) -> float:
-    """What a box is banded by: the share of the positive class, or the mean."""
+    """What a box is banded by: its share (:meth:`TreeModel.box_share`), or its mean."""
     if model.task == "regression":
         return float(node.mean)
-    return node.counts[1] / max(node.n, 1)
+    return model.box_share(node).value or 0.0
 
 
 def percent(value: float) -> str:

@@ -93,7 +93,7 @@ def size_boxes(spec: TreeSpec, style: LayoutStyle, measure: Measure) -> dict[int
     text_w = {"question": 0.0, "outcome": 0.0}
     own_w = {i: max((w for _, _, w in wrapped[i]), default=0.0) for i in spec.boxes}
     for i, box in spec.boxes.items():
-        width = max((w for _, _, w in wrapped[i]), default=0.0)
+        width = own_w[i]
         if box.kind == "outcome" and box.heading is not None:
             r = badge_radius(box)
             heading = measure(box.heading.text, box.heading.bold, s * box.heading.scale)

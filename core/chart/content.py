@@ -8,20 +8,18 @@ from __future__ import annotations
 import math
 import re
 from dataclasses import dataclass
-from functools import lru_cache
 
 from .. import __version__
 from ..cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER, UNCHECKED_DETAIL
-from ..intervals import wilson_interval as _wilson_interval
-from ..model import Node, TreeModel
-from .bands import Band, Banding, banding, box_value, number, percent, rate_phrase
+from ..model import ANSWERS, Node, TreeModel
+from ..words import plural, short_fingerprint
+from .bands import Band, Banding, banding, number, percent, rate_phrase
 from .layout import BoxSpec, Para, TreeSpec
 from .options import ChartOptions
 
 HOW_TO_READ = ("How to read: start at box 1. Answer each question; follow YES or NO until "
                "you reach an outcome box.")
 NOT_RECORDED = "or not recorded"
-wilson_interval = lru_cache(maxsize=4096)(_wilson_interval)  # the planner asks many times
 
 
 @dataclass(frozen=True)
@@ -64,22 +62,24 @@ def count_word(model: TreeModel) -> str:
     return "visits" if patients is not None and patients != visits else "patients"
 
 
-def _plural(n: int, word: str) -> str:
-    return f"{n:,} {word[:-1] if n == 1 else word}"
+def _count(n: int, model: TreeModel) -> str:
+    """'1 patient', '412 visits': a count in the chart's word for a row."""
+    word = count_word(model)
+    return plural(n, {"visits": "visit", "patients": "patient"}[word], word)
 
 
+# Older model files word an outcome "Admitted: yes expected (...)": what the chart prints is
+# what the model file says, so the counts at its end are cut off, not the words rebuilt.
 _COUNTS_NOTE = re.compile(r" \([^()]*\)$")
 
 
 def expected_text(model: TreeModel, node: Node) -> str:
     """The expected outcome in words, as the model file words it (without the counts in
     brackets at its end, which the box prints its own way)."""
-    if node.leaf and node.text:
-        return _COUNTS_NOTE.sub("", node.text)
-    label = model.outcome.display
-    if model.task == "regression":
-        return f"{label}: mean {node.mean:.3g}" + (f" {model.outcome.unit}" if model.outcome.unit else "")
-    return f"{label}: expect {node.prediction}"
+    phrase = model.expected_outcome(node)
+    if not (node.leaf and node.text) or node.text.startswith(phrase + " ("):
+        return phrase
+    return _COUNTS_NOTE.sub("", node.text)
 
 
 def span(low: str, high: str) -> str:
@@ -91,21 +91,17 @@ def span(low: str, high: str) -> str:
 def outcome_paras(model: TreeModel, node: Node, options: ChartOptions) -> tuple[Para, ...]:
     """Expected outcome, observed rate (or mean) and how many it rests on, its 95% interval."""
     paras = [Para(expected_text(model, node), bold=True)]
-    count = "" if options.hide_counts else _plural(node.n, count_word(model))
+    count = "" if options.hide_counts else _count(node.n, model)
     if model.task == "regression":
         low, high = model.mean_interval(node)
         if count:
             paras.append(Para(count))
         paras.append(Para(f"95% CI {span(number(low), number(high, model.outcome.unit))}"))
     else:
-        if model.positive is not None:
-            k = node.counts[1]
-        else:
-            k = node.counts[model.classes.index(str(node.prediction))]
-        low, high = wilson_interval(k, node.n)
-        rate = percent(k / max(node.n, 1))
+        share = model.box_share(node)
+        rate = percent(share.value or 0.0)
         paras.append(Para(f"{rate} of {count}" if count else f"Rate {rate}"))
-        paras.append(Para(f"95% CI {span(percent(low)[:-1], percent(high))}"))
+        paras.append(Para(f"95% CI {span(percent(share.low or 0.0)[:-1], percent(share.high or 1.0))}"))
     if node.n < options.small_cell:
         paras.append(Para("Small group", bold=True))
     return tuple(paras)
@@ -131,9 +127,8 @@ def tree_spec(model: TreeModel, options: ChartOptions,
         children[node.id] = node.children
         question = node.question
         for k, child in enumerate(node.children):
-            answer = "YES" if k == 0 else "NO"
-            paras = [Para(answer, bold=True)]
-            if question.kind != "missing" and question.missing_goes == ("yes" if k == 0 else "no"):
+            paras = [Para(ANSWERS[k], bold=True)]
+            if question.takes_missing(k):
                 paras.append(Para(NOT_RECORDED))
             labels[(node.id, child)] = tuple(paras)
         stack.extend(reversed(node.children))
@@ -160,7 +155,7 @@ def default_subtitle(model: TreeModel) -> str:
     if cohort.get("first_date"):
         dates = f", {cohort['first_date']} to {cohort['last_date']}"
     visits = cohort.get("visits", model.n_rows)
-    return f"{outcome}. Derived from {_plural(visits, count_word(model))}{dates}."
+    return f"{outcome}. Derived from {_count(visits, model)}{dates}."
 
 
 def _cohort_size(model: TreeModel) -> str:
@@ -169,7 +164,7 @@ def _cohort_size(model: TreeModel) -> str:
     patients = cohort.get("patients")
     if patients is not None and patients != visits:
         return f"{visits:,} visits by {patients:,} patients"
-    return _plural(visits, "patients")
+    return plural(visits, "patient", "patients")
 
 
 def _is_error_rate(model: TreeModel) -> bool:
@@ -196,7 +191,7 @@ def _risk(model: TreeModel, value: float) -> str:
 def _rule(model: TreeModel) -> str:
     chosen = model.chosen
     rule = chosen.get("rule")
-    boxes = _plural(int(chosen["leaves"]), "outcome boxes")
+    boxes = plural(int(chosen["leaves"]), "outcome box", "outcome boxes")
     if rule == "1se":
         return (f"Size: {boxes} (1-SE rule: the smallest tree within one SE of the lowest "
                 "cross-validated error).")
@@ -297,7 +292,7 @@ def chart_text(model: TreeModel, options: ChartOptions) -> ChartText:
     sections.append(PanelSection(CAUTION_TITLE, tuple(PanelItem(c) for c in CAUTIONS),
                                  kind="caution"))
     data = model.extra.get("data", {})
-    footer = (f"Model {model.fingerprint[:12]}  ·  Data {str(data.get('sha256', ''))[:12] or 'unknown'}"
+    footer = (f"Model {model.short_fingerprint}  ·  Data {short_fingerprint(data.get('sha256', '')) or 'unknown'}"
               f"  ·  Printed {options.printed.isoformat()}  ·  Prunella {__version__}",
               "The model fingerprint (SHA-256 of the model file, also in the QR code) names "
               "the exact tree on this chart.")
@@ -307,8 +302,3 @@ def chart_text(model: TreeModel, options: ChartOptions) -> ChartText:
                      how_to_read=HOW_TO_READ, banner=banner, tree=spec, bands=band_of,
                      small=small, sections=tuple(sections), footer=footer,
                      fingerprint=model.fingerprint)
-
-
-def outcome_value(model: TreeModel, node: Node) -> float:
-    """The rate or mean an outcome box shows (for tests and the app)."""
-    return box_value(model, node)

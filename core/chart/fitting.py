@@ -12,7 +12,7 @@ enough to find them with core/prune.py.
 from __future__ import annotations
 
 from dataclasses import replace
-from functools import lru_cache
+from functools import cached_property, lru_cache
 from typing import TYPE_CHECKING
 
 import numpy as np
@@ -21,7 +21,7 @@ from ..errors import InputError
 from ..grow import ClassCosts, growth_class_weights
 from ..model import TreeModel
 from ..prune import collapse_alphas
-from .content import chart_text, expected_text
+from .content import chart_text
 from .layout import BoxSpec, LayoutStyle, Measure, Para, TreeSpec, layout_tree, reportlab_measure
 from .options import LARGER_PAPER, PAPER_NAMES, ChartOptions, margin_for, page_size
 from .page import ChartPlan, deepest_possible, plan_page
@@ -31,11 +31,25 @@ if TYPE_CHECKING:
 
 
 class ChartTooLarge(InputError):
-    """The tree cannot be printed on one page at the minimum text size."""
+    """The tree cannot be printed on one page at the minimum text size.
 
-    def __init__(self, message: str, fitting: int | None):
-        super().__init__(message)
-        self.largest_fitting = fitting
+    The largest smaller tree that fits is searched for only when it is asked for (the
+    message, :attr:`largest_fitting`): a caller that tries larger paper next, or knows the
+    candidate trees better, does not pay for the search."""
+
+    def __init__(self, model: TreeModel, options: ChartOptions, measure: Measure):
+        super().__init__()
+        self._model, self._options, self._measure = model, options, measure
+
+    @cached_property
+    def largest_fitting(self) -> int | None:
+        """Outcome boxes of the largest tree of the model's pruning sequence that fits."""
+        model, options, measure = self._model, self._options, self._measure
+        return next((leaves for leaves, collapsed in smaller_trees(model)[1:]
+                     if tree_fits(model, options, measure, collapsed)), None)
+
+    def __str__(self) -> str:
+        return too_large_message(len(self._model.leaves), self.largest_fitting, self._options)
 
 
 def plan_chart(model: TreeModel, options: ChartOptions | None = None,
@@ -44,7 +58,7 @@ def plan_chart(model: TreeModel, options: ChartOptions | None = None,
     options = (options or ChartOptions()).checked()
     plan = plan_page(chart_text(model, options), options, measure)
     if plan is None:
-        raise _too_large(model, options, measure)
+        raise ChartTooLarge(model, options, measure)
     return plan
 
 
@@ -73,7 +87,7 @@ def pruned_model(model: TreeModel, collapsed: frozenset[int]) -> TreeModel:
     nodes = []
     for node in order:
         if node.leaf or node.id in collapsed:
-            text = node.text if node.leaf else expected_text(model, node)
+            text = node.text if node.leaf else model.expected_outcome(node)
             nodes.append(replace(node, id=number[node.id], question=None, children=(), text=text))
         else:
             nodes.append(replace(node, id=number[node.id],
@@ -166,13 +180,6 @@ def _most_leaves(paper: str, size: float, measure: Measure) -> int:
     return max(1, int((w - 2 * m) * (h - 2 * m) / area) + 1)
 
 
-def _too_large(model: TreeModel, options: ChartOptions, measure: Measure) -> ChartTooLarge:
-    trees = smaller_trees(model)
-    fitting = next((leaves for leaves, collapsed in trees[1:]
-                    if tree_fits(model, options, measure, collapsed)), None)
-    return ChartTooLarge(too_large_message(len(model.leaves), fitting, options), fitting)
-
-
 def too_large_message(leaves: int, fitting: int | None, options: ChartOptions) -> str:
     """The refusal, naming the largest size that fits and larger paper."""
     paper = options.paper_name
@@ -192,19 +199,22 @@ def too_large_message(leaves: int, fitting: int | None, options: ChartOptions) -
     return text
 
 
-def sizes_that_fit(derivation: "Derivation", paper: str = "a4", orientation: str = "auto",
-                   min_text: float | None = None, measure: Measure = reportlab_measure,
-                   options: ChartOptions | None = None) -> list[int]:
+def sizes_that_fit(derivation: "Derivation", options: ChartOptions | None = None,
+                   measure: Measure = reportlab_measure) -> list[int]:
     """Numbers of outcome boxes (leaves) of ``derivation.path.leaves`` whose tree fits on one
-    page of ``paper`` at ``min_text``, in the order of the path (largest first).
+    page as ``options`` print it (paper, orientation, minimum text, and the title, bands,
+    counts and small-group flags that change what the boxes and panel hold), in the order of
+    the path (largest first).
 
     Candidates come from :func:`core.derive.choose_model`; trees with more boxes than the
     page could hold packed edge to edge, or deeper than any arrangement allows, are
     skipped before they are built."""
     from ..derive import choose_model
 
-    base = options or ChartOptions()
-    options = replace(base, paper=paper, orientation=orientation, min_text=min_text).checked()
+    if options is not None and not isinstance(options, ChartOptions):
+        raise TypeError("sizes_that_fit takes the chart's ChartOptions, e.g. "
+                        "ChartOptions(paper='a3'), not a paper name")
+    options = (options or ChartOptions()).checked()
     most = _most_leaves(options.paper, options.min_text, measure)
     deepest = deepest_possible(chart_text(derivation.model, options), options, measure)
     path = derivation.path

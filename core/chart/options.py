@@ -27,6 +27,9 @@ _BASE_PAPER = {"a4": "a4", "letter": "letter", "a3": "a4", "tabloid": "letter"}
 BASE_MIN_TEXT = 9.0  # points, on A4 and Letter: the legibility floor at arm's length
 ORIENTATIONS = ("auto", "portrait", "landscape")
 DIRECTIONS = ("auto", "down", "right")
+# Outcome boxes resting on fewer patients are flagged on the chart and in the report
+# (common practice: 5 or 10).
+SMALL_GROUP = 10
 
 
 LARGE_PAPER_SCALE = 7 / 6
@@ -65,7 +68,7 @@ class ChartOptions:
     title: str | None = None
     subtitle: str | None = None
     min_text: float | None = None  # points; default from the paper
-    small_cell: int = 10  # outcome boxes resting on fewer patients are flagged
+    small_cell: int = SMALL_GROUP  # outcome boxes resting on fewer patients are flagged
     hide_counts: bool = False  # print rates and intervals without patient counts
     band_cuts: tuple[float, ...] | None = None  # absolute cut-points (percent, or outcome units)
     band_ratio: float = 1.25  # relative bands: HIGHER at ≥ ratio × the cohort's rate

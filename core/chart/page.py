@@ -70,7 +70,7 @@ class _Frame:
         self.width, self.height = page_size(options.paper, landscape)
         m = margin_for(options.paper)
         self.printable = Rect(m, m, self.width - 2 * m, self.height - 2 * m)
-        self.scale = scale = TypeScale(body=options.min_text, tree=options.min_text)
+        self.scale = scale = TypeScale(body=options.min_text)
         self.measure, self.placement = measure, placement
         b, cw = scale.body, self.printable.w
 
@@ -361,7 +361,7 @@ def _finish(text: ChartText, options: ChartOptions, frame: _Frame, layout: TreeL
                           0.0, 1.0, 0.05) or layout
     placed = layout.moved(area.x + (area.w - layout.width) / 2,
                           area.y + (area.h - layout.height) / 2)
-    scale = TypeScale(body=options.min_text, tree=layout.size)
+    scale = TypeScale(body=options.min_text)
     return ChartPlan(text=text, options=options, width=frame.width, height=frame.height,
                      landscape=frame.width > frame.height, placement=frame.placement,
                      printable=frame.printable, scale=scale, header=frame.header,

@@ -180,7 +180,6 @@ class TypeScale:
     """Text sizes in points for one chart; every size is at least ``body``."""
 
     body: float  # the legibility floor: side panel, footer, smallest tree text
-    tree: float  # tree text (≥ body; larger when the tree leaves room)
 
     @property
     def title(self) -> float:
@@ -194,11 +193,3 @@ class TypeScale:
     def heading(self) -> float:
         return round(self.body * 1.1, 2)
 
-    @property
-    def question(self) -> float:
-        return round(self.tree * 1.1, 2)
-
-    @property
-    def leading(self) -> float:
-        """Line spacing factor."""
-        return 1.25

@@ -5,6 +5,7 @@ from __future__ import annotations
 import sys
 from typing import TYPE_CHECKING
 
+from ..chart.options import ORIENTATIONS, PAPER_SIZES, ChartOptions, default_min_text
 from ..errors import InputError
 from ..model import TreeModel
 from .common import csv_list, refuse_overwrite
@@ -12,11 +13,13 @@ from .common import csv_list, refuse_overwrite
 if TYPE_CHECKING:
     from ..derive import Derivation
 
+_DEFAULTS = ChartOptions()  # the command line's defaults are the chart's own
+
 
 def add_paper_options(parser) -> None:
-    parser.add_argument("--paper", default="a4", choices=("a4", "letter", "a3", "tabloid"),
-                        help="paper size (default a4)")
-    parser.add_argument("--orientation", default="auto", choices=("auto", "portrait", "landscape"),
+    parser.add_argument("--paper", default=_DEFAULTS.paper, choices=tuple(PAPER_SIZES),
+                        help=f"paper size (default {_DEFAULTS.paper})")
+    parser.add_argument("--orientation", default=_DEFAULTS.orientation, choices=ORIENTATIONS,
                         help="page orientation (default: chosen for the tree's shape)")
     parser.add_argument("--title", help="chart title (default: the outcome)")
 
@@ -34,9 +37,11 @@ def add_parsers(sub) -> None:
     chart.add_argument("--subtitle", help="subtitle: the population and outcome definition "
                        "(default: the outcome and the derivation cohort)")
     chart.add_argument("--min-text", type=float, help="smallest text size in points "
-                       "(default 9 on A4/Letter, 10.5 on A3/Tabloid)")
-    chart.add_argument("--small-cell", type=int, default=10, help="flag outcome boxes resting on "
-                       "fewer patients than N (default 10; 0 = never)")
+                       f"(default {default_min_text('a4'):g} on A4/Letter, "
+                       f"{default_min_text('a3'):g} on A3/Tabloid)")
+    chart.add_argument("--small-cell", type=int, default=_DEFAULTS.small_cell,
+                       help="flag outcome boxes resting on fewer patients than N "
+                       f"(default {_DEFAULTS.small_cell}; 0 = never)")
     chart.add_argument("--hide-counts", action="store_true",
                        help="print rates and intervals without patient counts")
     chart.add_argument("--bands", help="absolute risk-band cut-points, e.g. 10,30 (percent for "
@@ -47,8 +52,6 @@ def add_parsers(sub) -> None:
 def chart_options_from_args(args):
     """The chart options that ``prunella chart`` / ``fit --chart`` arguments describe."""
     import datetime as dt
-
-    from ..chart import ChartOptions
 
     printed = None
     if getattr(args, "date", None):
@@ -66,7 +69,7 @@ def chart_options_from_args(args):
     return ChartOptions(paper=args.paper, orientation=args.orientation, title=args.title,
                         subtitle=getattr(args, "subtitle", None),
                         min_text=getattr(args, "min_text", None),
-                        small_cell=getattr(args, "small_cell", 10),
+                        small_cell=getattr(args, "small_cell", _DEFAULTS.small_cell),
                         hide_counts=getattr(args, "hide_counts", False), band_cuts=cuts,
                         printed=printed).checked()
 
@@ -95,8 +98,7 @@ def fit_chart(args, derivation: Derivation) -> None:
     try:
         plan = write_chart(derivation.model, args.chart, options)
     except ChartTooLarge:
-        sizes = sizes_that_fit(derivation, options.paper, options.orientation, options.min_text,
-                               options=options)
+        sizes = sizes_that_fit(derivation, options)
         message = too_large_message(len(derivation.model.leaves), max(sizes, default=None), options)
         raise InputError(f"The model was saved to {args.model}, but no chart was printed. "
                          + message) from None

@@ -7,10 +7,13 @@ import sys
 
 from ..errors import InputError
 from ..model import TreeModel
+from ..nested import DEFAULT_OUTER_FOLDS
 from ..safe_files import write_text_atomic
+from ..stability import DEFAULT_RESAMPLES
 from ..table import read_table
 from ..variables import DataDictionary, merge_dictionary
 from ..variables import dictionary_for
+from ..words import short_fingerprint
 from .common import dictionary_path, refuse_overwrite
 
 
@@ -36,10 +39,12 @@ def add_parsers(sub) -> None:
     report.add_argument("--external", help="a file of patients from elsewhere to check the tree on")
     report.add_argument("--external-sheet", help="XLSX sheet name of the external file")
     report.add_argument("--external-source", help="where the external patients come from, in words")
-    report.add_argument("--bootstrap", type=int, default=200,
-                        help="bootstrap resamples for stability (default 200; 0 = none)")
-    report.add_argument("--outer-folds", type=int, default=5,
-                        help="outer folds of the nested cross-validation (default 5)")
+    report.add_argument("--bootstrap", type=int, default=DEFAULT_RESAMPLES,
+                        help=f"bootstrap resamples for stability (default {DEFAULT_RESAMPLES}; "
+                        "0 = none)")
+    report.add_argument("--outer-folds", type=int, default=DEFAULT_OUTER_FOLDS,
+                        help="outer folds of the nested cross-validation "
+                        f"(default {DEFAULT_OUTER_FOLDS})")
     report.add_argument("--no-nested", action="store_true", help="skip nested cross-validation")
     report.add_argument("--jobs", type=int, default=1, help="parallel work (default 1; -1 = all cores)")
     report.add_argument("--out", required=True, help="where to write the PDF")
@@ -96,8 +101,8 @@ def run_report(args) -> int:
     notes = []
     expected = model.extra.get("data", {}).get("sha256")
     if expected and expected != table.provenance.sha256:
-        notes.append(f"The data file's SHA-256 ({table.provenance.sha256[:12]}...) differs from "
-                     f"the one the model was fitted on ({expected[:12]}...): this report "
+        notes.append(f"The data file's SHA-256 ({table.provenance.short_fingerprint}...) differs from "
+                     f"the one the model was fitted on ({short_fingerprint(expected)}...): this report "
                      "re-derives the tree from the data given, which is not the model's data.")
         print(f"prunella: warning: {notes[-1]}", file=sys.stderr)
     dictionary = model_dictionary(table, model, dictionary_path(args.dictionary, args.data))

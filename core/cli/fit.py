@@ -192,7 +192,7 @@ def summary_text(derivation: Derivation) -> str:
     chosen = model.chosen
     lines += ["", f"Chosen: {chosen['leaves']} leaves ({chosen['rule']}), cross-validated risk "
               f"{chosen['cv_risk']:.4f} ± {chosen['cv_se']:.4f} (training {chosen['train_risk']:.4f}).",
-              f"Model fingerprint: {model.fingerprint[:12]}"]
+              f"Model fingerprint: {model.short_fingerprint}"]
     check = model.extra.get("validation")
     if check:
         lines.append(f"Checked on {check['source']} ({check['n']} visits): {check['summary']}.")

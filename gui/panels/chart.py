@@ -31,14 +31,6 @@ ORIENTATIONS = (("Best fit for the tree", "auto"), ("Portrait (upright)", "portr
                 ("Landscape (sideways)", "landscape"))
 
 
-def chart_options(chart: dict) -> ChartOptions:
-    """The session's chart settings as core's ChartOptions (None: the chart's own default)."""
-    return ChartOptions(paper=chart.get("paper") or "a4",
-                        orientation=chart.get("orientation") or "auto",
-                        title=chart.get("title") or None, subtitle=chart.get("subtitle") or None,
-                        min_text=chart.get("min_text"))
-
-
 @dataclass(frozen=True)
 class ChartResult:
     """A drawn chart (its file), or why it could not be drawn and the size that would fit."""
@@ -49,10 +41,10 @@ class ChartResult:
     target: str = ""  # the file it was asked to write (names the request it answers)
 
 
-def draw_chart(model, chart: dict, path: str) -> ChartResult:
+def draw_chart(model, options: ChartOptions, path: str) -> ChartResult:
     """Write the one-page chart PDF of ``model`` with core.chart. Runs in a worker."""
     try:
-        write_chart(model, path, chart_options(chart))
+        write_chart(model, path, options)
     except ChartTooLarge as exc:
         return ChartResult(None, str(exc), exc.largest_fitting, target=path)
     return ChartResult(path, target=path)
@@ -274,7 +266,7 @@ class ChartPanel(Panel):
         path = str(Path(self._temp.path()) / f"preview-{self._serial}.pdf")
         self.preview_note.setText("Drawing the chart…")
         self.job = workers.Job(draw_chart, self.session.chart_derivation().model,
-                               dict(self.session.chart), path, takes_progress=False)
+                               self.session.chart_options(), path, takes_progress=False)
         self.job.signals.done.connect(self._preview_ready)
         self.job.signals.failed.connect(self._preview_failed)
         self.job.signals.finished.connect(self._render_over)

@@ -515,23 +515,20 @@ class SizePanel(Panel):
         return self._fit_sizes[1], self._fit_sizes[2]
 
     def _fit_key(self):
-        chart = self.session.chart
-        return (id(self.session.derivation), chart.get("paper"), chart.get("orientation"),
-                chart.get("min_text"))
+        # Every chart setting: the title and subtitle change what fits, too.
+        return (id(self.session.derivation), tuple(sorted(self.session.chart.items())))
 
     def _start_fits(self) -> None:
         """Ask the chart module, in the background, which sizes print legibly on the paper."""
         derivation = self.session.derivation
         if derivation is None:
             return
-        chart = self.session.chart
         key = self._fit_key()
         if self._fit_job is not None and self._fit_job.running:
             self._fit_waiting = True  # ask again when this one is done
             return
         self._fit_waiting = False
-        job = workers.Job(sizes_that_fit, derivation, chart.get("paper") or "a4",
-                          chart.get("orientation") or "auto", chart.get("min_text"),
+        job = workers.Job(sizes_that_fit, derivation, self.session.chart_options(),
                           takes_progress=False)
         job.key = key
         job.signals.done.connect(self._fits_done)

@@ -110,7 +110,8 @@ def test_sizes_that_fit_are_shaded_on_the_curve(charted, qtbot):
     window = charted
     size = window.panels["size"]
     qtbot.waitUntil(lambda: size.fit_sizes is not None, timeout=60000)
-    expected = sizes_that_fit(window.session.derivation, "a4", "auto", None)
+    assert window.session.chart["paper"] == "a4"
+    expected = sizes_that_fit(window.session.derivation, window.session.chart_options())
     assert size.fit_sizes == tuple(expected)
     assert any(t.startswith("Fits on A4") for t in size.curve.legend_texts())
     window.session.set_chart(paper="a3")

@@ -1,0 +1,101 @@
+"""One rule for a box's share, its expected outcome in words and its branch labels.
+
+Invented demo data (tests/_chart_demo.py). Wilson (1927) score interval: checked against
+core/intervals.py, which tests/test_metrics.py checks against published values.
+"""
+
+from __future__ import annotations
+
+from dataclasses import replace
+
+import pytest
+
+import _chart_demo as demo
+from core.chart.bands import box_value
+from core.chart.content import expected_text
+from core.intervals import wilson_interval
+from core.model import ANSWERS, Question
+
+
+def test_a_yes_no_box_shares_the_positive_class() -> None:
+    model = demo.admitted().model
+    for leaf in model.leaves:
+        share = model.box_share(leaf)
+        assert (share.k, share.n) == (leaf.counts[1], leaf.n)
+        assert (share.low, share.high) == pytest.approx(wilson_interval(leaf.counts[1], leaf.n))
+        assert box_value(model, leaf) == pytest.approx(leaf.counts[1] / leaf.n)
+
+
+def test_a_box_of_several_classes_shares_its_expected_class() -> None:
+    model = demo.three_classes().model
+    assert len(model.classes) > 2
+    for leaf in model.leaves:
+        k = leaf.counts[model.classes.index(str(leaf.prediction))]
+        assert model.box_share(leaf).k == k
+        assert k == max(leaf.counts) or model.extra.get("costs")  # expected = most, at equal costs
+
+
+def test_a_regression_box_has_no_share() -> None:
+    model = demo.length_of_stay().model
+    with pytest.raises(ValueError, match="classification"):
+        model.box_share(model.leaves[0])
+
+
+@pytest.mark.parametrize("which", ["admitted", "length_of_stay", "three_classes"])
+def test_derived_outcome_text_is_the_shared_phrase_with_counts(which: str) -> None:
+    model = getattr(demo, which)().model
+    for leaf in model.leaves:
+        assert leaf.text.startswith(model.expected_outcome(leaf) + " ("), leaf.text
+        assert f"{leaf.n} patients" in leaf.text
+        assert expected_text(model, leaf) == model.expected_outcome(leaf)
+
+
+def test_an_older_model_file_is_printed_in_its_own_words() -> None:
+    model = demo.admitted().model
+    leaf = model.leaves[0]
+    old = replace(leaf, text=f"{model.outcome.display}: {leaf.prediction} expected (40% of 9 patients)")
+    assert expected_text(model, old) == f"{model.outcome.display}: {leaf.prediction} expected"
+
+
+def test_which_branch_takes_a_value_not_recorded() -> None:
+    above = Question("age", "above", threshold=70, missing_goes="yes")
+    assert [above.takes_missing(b) for b in (0, 1)] == [True, False]
+    levels = Question("sex", "in", yes_levels=("F",), no_levels=("M",), missing_goes="no")
+    assert [levels.takes_missing(b) for b in (0, 1)] == [False, True]
+    asks = Question("age", "missing", missing_goes="yes")
+    assert [asks.takes_missing(b) for b in (0, 1)] == [False, False]
+    assert ANSWERS == ("YES", "NO")
+
+
+def test_rules_and_chart_agree_on_branch_labels() -> None:
+    from core.chart import ChartOptions
+    from core.chart.content import NOT_RECORDED, chart_text
+
+    model = demo.admitted().model
+    labels = chart_text(model, ChartOptions().checked()).tree.labels
+    for leaf in model.leaves:
+        for step in model.steps_to(leaf.id):
+            paras = [p.text for p in labels[(step.box, step.to)]]
+            assert paras[0] == step.answer
+            assert (NOT_RECORDED in paras) == step.includes_missing
+
+
+def test_the_report_title_page_prints_risks_and_fingerprints_as_elsewhere() -> None:
+    from core.report_performance import risk_text
+    from core.report_sections import _title_page
+    from core.report_style import Styles
+
+    for which in ("admitted", "length_of_stay"):
+        model = getattr(demo, which)().model
+
+        class Contents:  # just what the title page reads
+            nested, checks, stability, notes, printed = None, [], None, [], "2026-01-02"
+
+        Contents.model = model
+        story = _title_page(Contents, "Report", Styles())
+        words = " ".join(getattr(f, "text", "") for f in story)
+        assert f"model fingerprint {model.short_fingerprint} ·" in words
+        assert model.fingerprint[:13] not in words
+        chosen = model.chosen
+        assert (f"Its cross-validated risk is {risk_text(chosen['cv_risk'], model.task)} ± "
+                f"{risk_text(chosen['cv_se'], model.task)}") in words
