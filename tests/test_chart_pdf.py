@@ -23,6 +23,7 @@ from core.chart.options import default_min_text
 from core.chart.pdf import draw
 from core.chart.style import contrast_ratio
 from core.model import column_values
+from tests.helpers import demo_inputs
 
 DATE = dt.date(2025, 3, 14)
 
@@ -211,7 +212,7 @@ def test_validation_results_replace_the_unchecked_banner(chosen) -> None:
 
 def test_a_held_out_check_from_derive_is_printed() -> None:
     """core.derive's own held-out check (no 'summary' key) still prints its measures."""
-    table, dictionary, predictors = demo._inputs()
+    table, dictionary, predictors = demo_inputs()
     from core.derive import DerivationRequest, derive
     from core.design import DesignSpec
     from core.resample import CVSettings

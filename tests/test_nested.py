@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-from pathlib import Path
 
 import numpy as np
 import pandas as pd
@@ -14,11 +13,12 @@ from core.errors import Cancelled, InputError
 from core.grow import TreeSettings
 from core.nested import nested_cross_validate
 from core.resample import CVSettings
-from core.table import LoadedTable, Provenance, read_table
+from core.table import LoadedTable, Provenance
 from core.variables import ColumnSpec, DataDictionary
+from tests.helpers import demo_inputs
 from tests.waveform import waveform
 
-SAMPLE = Path(__file__).resolve().parents[1] / "sample_data"
+
 FEATURES = tuple(f"x{m}" for m in range(1, 22))
 CLASSES = ("1", "2", "3")
 WAVE_DICTIONARY = DataDictionary(tuple(ColumnSpec(f) for f in FEATURES) + (
@@ -62,8 +62,7 @@ def test_nested_error_estimate_is_close_to_fresh_error_on_waveform_data():
 
 @pytest.fixture(scope="module")
 def demo_data():
-    table = read_table(SAMPLE / "breathless_ed.csv")
-    dictionary = DataDictionary.load(SAMPLE / "breathless_ed.dictionary.json")
+    table, dictionary, _ = demo_inputs()
     predictors = ("age", "resp_rate", "spo2", "arrival_mode", "crp")
     request = DerivationRequest(DesignSpec("admitted", predictors, patient_id="patient_id"),
                                 cv=CVSettings(folds=5))
