@@ -7,32 +7,19 @@ from __future__ import annotations
 
 from dataclasses import replace
 from functools import lru_cache
-from pathlib import Path
-
 import pandas as pd
 
 from core.derive import DerivationRequest, choose_model, derive
 from core.design import DesignSpec
 from core.resample import CVSettings
-from core.table import read_table
 from core.variables import ColumnSpec, DataDictionary
-
-ROOT = Path(__file__).resolve().parents[1]
-DATA = ROOT / "sample_data" / "breathless_ed.csv"
-DICTIONARY = ROOT / "sample_data" / "breathless_ed.dictionary.json"
-
-
-def _inputs():
-    table = read_table(DATA)
-    dictionary = DataDictionary.load(DICTIONARY)
-    predictors = tuple(c.name for c in dictionary.columns if c.role == "predictor")
-    return table, dictionary, predictors
+from tests.helpers import demo_inputs
 
 
 @lru_cache(maxsize=None)
 def admitted():
     """The demo's classification run (10-fold CV, patients kept together), 1-SE tree."""
-    table, dictionary, predictors = _inputs()
+    table, dictionary, predictors = demo_inputs()
     return derive(table, dictionary, DerivationRequest(
         DesignSpec("admitted", predictors, patient_id="patient_id")))
 
@@ -45,7 +32,7 @@ def admitted_size(leaves: int):
 @lru_cache(maxsize=None)
 def length_of_stay():
     """A regression run on los_hours (5-fold CV to keep the suite quick)."""
-    table, dictionary, predictors = _inputs()
+    table, dictionary, predictors = demo_inputs()
     dictionary = dictionary.with_column("los_hours", role="outcome")
     return derive(table, dictionary, DerivationRequest(
         DesignSpec("los_hours", predictors, task="regression", patient_id="patient_id"),
@@ -55,7 +42,7 @@ def length_of_stay():
 @lru_cache(maxsize=None)
 def three_classes():
     """A three-class outcome made from the stay: sent home quickly, short stay, long stay."""
-    table, dictionary, predictors = _inputs()
+    table, dictionary, predictors = demo_inputs()
     frame = table.frame.copy()
     hours = pd.to_numeric(frame["los_hours"], errors="coerce")
     frame["stay"] = pd.cut(hours, [-1, 6, 72, float("inf")],

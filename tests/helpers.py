@@ -1,12 +1,52 @@
-"""Small builders shared by the tests: tables in memory turned into AnalysisData."""
+"""Small builders shared by the tests: tables in memory turned into AnalysisData, the
+invented demo cohort's files, the command line run as a child process, file fingerprints."""
 
 from __future__ import annotations
+
+import hashlib
+import os
+import subprocess
+import sys
+from functools import lru_cache
+from pathlib import Path
 
 import numpy as np
 import pandas as pd
 
 from core.design import DesignSpec, prepare_analysis
-from core.variables import infer_dictionary
+from core.table import LoadedTable, read_table
+from core.variables import DataDictionary, infer_dictionary
+
+ROOT = Path(__file__).resolve().parents[1]
+SAMPLE = ROOT / "sample_data"
+# The invented demo cohort (sample_data/README.md): exercises the code, never a reference.
+DEMO_CSV = SAMPLE / "breathless_ed.csv"
+DEMO_XLSX = SAMPLE / "breathless_ed.xlsx"
+DEMO_DICTIONARY = SAMPLE / "breathless_ed.dictionary.json"
+
+
+@lru_cache(maxsize=None)
+def demo_inputs() -> tuple[LoadedTable, DataDictionary, tuple[str, ...]]:
+    """The demo CSV as read, its saved dictionary, and the dictionary's predictors.
+
+    Read once per test session and shared: copy ``table.frame`` before changing it."""
+    table = read_table(DEMO_CSV)
+    dictionary = DataDictionary.load(DEMO_DICTIONARY)
+    predictors = tuple(c.name for c in dictionary.columns if c.role == "predictor")
+    return table, dictionary, predictors
+
+
+def run_prunella(*args, cwd=ROOT, timeout: float = 300) -> subprocess.CompletedProcess:
+    """``python -m gui ARGS`` as a user would run it: a child process with this checkout on
+    PYTHONPATH, output captured as text. ``timeout`` only stops a hung child."""
+    env = dict(os.environ, PYTHONPATH=str(ROOT))
+    return subprocess.run([sys.executable, "-m", "gui", *map(str, args)], cwd=cwd, env=env,
+                          capture_output=True, text=True, timeout=timeout)
+
+
+def sha256_of(path) -> str:
+    """Hex SHA-256 of a file's bytes (to show an input file was not changed)."""
+    return hashlib.sha256(Path(path).read_bytes()).hexdigest()
 
 
 def analysis_from_arrays(X: np.ndarray, y: np.ndarray, task: str, names=None, **design):

@@ -11,11 +11,9 @@ modification time). All data are invented for these tests.
 from __future__ import annotations
 
 import csv
-import hashlib
 import io
 import os
 import subprocess
-import sys
 import zipfile
 from concurrent.futures import ThreadPoolExecutor
 from dataclasses import dataclass
@@ -37,8 +35,8 @@ from core.resample import CVSettings
 from core.table import read_table
 from core.values import parse_dates
 from core.variables import infer_dictionary
+from tests.helpers import run_prunella, sha256_of
 
-ROOT = Path(__file__).resolve().parents[1]
 HEADER = ["age", "spo2", "resp_rate", "sex", "admitted"]
 
 
@@ -583,7 +581,7 @@ case("text_named_xls", "export.xls", says=["named .xls but holds a text table"],
 def fingerprint(path: Path) -> tuple[str, int] | None:
     if not path.is_file():
         return None
-    return hashlib.sha256(path.read_bytes()).hexdigest(), path.stat().st_mtime_ns
+    return sha256_of(path), path.stat().st_mtime_ns
 
 
 def core_run(path: Path, c: Case):
@@ -618,14 +616,11 @@ def corpus(tmp_path_factory) -> Path:
 def _cli(folder: Path, c: Case) -> subprocess.CompletedProcess:
     out = folder.parent / f"{folder.name}-out-{c.name}"
     out.mkdir(exist_ok=True)
-    command = [sys.executable, "-m", "gui", "fit", str(folder / c.name / c.file),
-               "--outcome", c.outcome, "--model", str(out / "model.json"), "--folds", "3",
-               "--min-leaf", "3", "--quiet"]
+    args = ["fit", folder / c.name / c.file, "--outcome", c.outcome, "--model", out / "model.json",
+            "--folds", "3", "--min-leaf", "3", "--quiet"]
     if c.sheet:
-        command += ["--sheet", c.sheet]
-    env = {**os.environ, "PYTHONPATH": str(ROOT)}
-    return subprocess.run(command + list(c.args), cwd=ROOT, env=env, capture_output=True,
-                          text=True, timeout=240)
+        args += ["--sheet", c.sheet]
+    return run_prunella(*args, *c.args, timeout=240)
 
 
 @pytest.fixture(scope="module")

@@ -6,25 +6,14 @@ The demo cohort is invented; it is used only to exercise the commands.
 from __future__ import annotations
 
 import io
-import os
 import subprocess
-import sys
 from pathlib import Path
 
 import pypdf
 import pytest
 
 from core.cli import SUBCOMMANDS
-
-ROOT = Path(__file__).resolve().parents[1]
-DATA = ROOT / "sample_data" / "breathless_ed.csv"
-DICTIONARY = ROOT / "sample_data" / "breathless_ed.dictionary.json"
-
-
-def prunella(*args: str) -> subprocess.CompletedProcess:
-    env = dict(os.environ, PYTHONPATH=str(ROOT))
-    return subprocess.run([sys.executable, "-m", "gui", *map(str, args)], cwd=ROOT, env=env,
-                          capture_output=True, text=True, timeout=300)
+from tests.helpers import DEMO_CSV, DEMO_DICTIONARY, run_prunella
 
 
 def page(path: Path) -> pypdf.PageObject:
@@ -38,9 +27,9 @@ def fitted(tmp_path_factory) -> tuple[Path, Path, subprocess.CompletedProcess]:
     """One fit of the demo cohort (3-fold CV to stay quick) with --chart on US Letter."""
     folder = tmp_path_factory.mktemp("fit")
     model, chart = folder / "admitted.json", folder / "admitted.pdf"
-    done = prunella("fit", DATA, "--outcome", "admitted", "--dictionary", DICTIONARY,
-                    "--folds", "3", "--model", model, "--chart", chart, "--paper", "letter",
-                    "--title", "Who is admitted?")
+    done = run_prunella("fit", DEMO_CSV, "--outcome", "admitted", "--dictionary", DEMO_DICTIONARY,
+                        "--folds", "3", "--model", model, "--chart", chart, "--paper", "letter",
+                        "--title", "Who is admitted?")
     return model, chart, done
 
 
@@ -75,7 +64,7 @@ def test_chart_from_a_saved_model_is_reproducible(fitted, tmp_path) -> None:
     first, second = tmp_path / "one.pdf", tmp_path / "two.pdf"
     args = ("--paper", "a3", "--orientation", "landscape", "--subtitle",
             "Adults with acute breathlessness at the emergency department", "--date", "2025-06-30")
-    done = prunella("chart", model, "--out", first, *args)
+    done = run_prunella("chart", model, "--out", first, *args)
     assert done.returncode == 0, done.stderr
     assert "Wrote the chart" in done.stdout and "A3 landscape" in done.stdout
     from core.cli import main  # the second run in-process: same bytes either way
@@ -92,8 +81,8 @@ def test_chart_from_a_saved_model_is_reproducible(fitted, tmp_path) -> None:
 def test_hide_counts_and_small_cells(fitted, tmp_path) -> None:
     model, _, _ = fitted
     out = tmp_path / "hidden.pdf"
-    done = prunella("chart", model, "--out", out, "--paper", "a3", "--hide-counts", "--small-cell", "100000",
-                    "--bands", "20,50")
+    done = run_prunella("chart", model, "--out", out, "--paper", "a3", "--hide-counts",
+                        "--small-cell", "100000", "--bands", "20,50")
     assert done.returncode == 0, done.stderr
     text = " ".join(page(out).extract_text().split())
     assert "Small group" in text and " of " not in text.split("Derived from")[0]
@@ -102,14 +91,14 @@ def test_hide_counts_and_small_cells(fitted, tmp_path) -> None:
 
 def test_too_large_a_tree_is_refused_with_advice(tmp_path) -> None:
     model, chart = tmp_path / "big.json", tmp_path / "big.pdf"
-    done = prunella("fit", DATA, "--outcome", "admitted", "--dictionary", DICTIONARY,
-                    "--folds", "3", "--size", "30", "--model", model, "--chart", chart)
+    done = run_prunella("fit", DEMO_CSV, "--outcome", "admitted", "--dictionary", DEMO_DICTIONARY,
+                        "--folds", "3", "--size", "30", "--model", model, "--chart", chart)
     assert done.returncode == 2
     assert "does not fit on one A4 page" in done.stderr
     assert "The largest tree of its pruning sequence that fits has" in done.stderr
     assert "A3" in done.stderr and "--size" in done.stderr
     assert model.exists() and not chart.exists()
-    again = prunella("chart", model, "--out", chart)
+    again = run_prunella("chart", model, "--out", chart)
     assert again.returncode == 2 and "does not fit" in again.stderr and not chart.exists()
 
 

@@ -23,6 +23,7 @@ from core.chart.options import default_min_text
 from core.chart.pdf import draw
 from core.chart.style import contrast_ratio
 from core.model import column_values
+from tests.helpers import demo_inputs
 
 DATE = dt.date(2025, 3, 14)
 
@@ -133,7 +134,10 @@ def test_every_question_answer_and_outcome_can_be_extracted(chosen, chosen_pdf) 
     for node in chosen.nodes:
         box = plan.tree.boxes[node.id]
         inside = flat(text_inside(box.rect, frags))
-        assert inside.startswith(str(node.id))  # the box number comes first
+        # Numbered boxes, the number first: Society for Medical Decision Making, Committee on
+        # Standardization of Clinical Algorithms 1992, Medical Decision Making 12:149–154
+        # (from memory).
+        assert inside.startswith(str(node.id))
         if node.leaf:
             assert node.text.startswith(expected_text(chosen, node) + " (")
             assert expected_text(chosen, node) in inside
@@ -208,7 +212,7 @@ def test_validation_results_replace_the_unchecked_banner(chosen) -> None:
 
 def test_a_held_out_check_from_derive_is_printed() -> None:
     """core.derive's own held-out check (no 'summary' key) still prints its measures."""
-    table, dictionary, predictors = demo._inputs()
+    table, dictionary, predictors = demo_inputs()
     from core.derive import DerivationRequest, derive
     from core.design import DesignSpec
     from core.resample import CVSettings
@@ -262,7 +266,11 @@ def test_every_text_colour_drawn_meets_wcag_aa_on_its_fill(chosen) -> None:
 
 def _printed_tree(model, pdf: bytes, paper: str):
     """Read every question box back from the page: column, kind, threshold or levels, and
-    which branch the page says takes a value that was not recorded."""
+    which branch the page says takes a value that was not recorded.
+
+    Each decision box must parse as one numbered yes/no question (Society for Medical Decision
+    Making, Committee on Standardization of Clinical Algorithms 1992, Medical Decision Making
+    12:149–154 (from memory)); a box that does not parse fails the caller's test."""
     plan = plan_chart(model, options(paper=paper))
     frags = fragments(pdf)
     by_label = {spec.display: spec for spec in model.predictors}
@@ -358,6 +366,8 @@ def test_printed_thresholds_route_every_derivation_patient_like_the_grown_tree(s
 
 
 def test_small_groups_are_flagged_and_counts_can_be_hidden(chosen) -> None:
+    """Small-cell disclosure: leaves on fewer patients than the threshold are flagged (common
+    practice in health statistics; thresholds of 5 or 10 by jurisdiction)."""
     small = min(leaf.n for leaf in chosen.leaves) + 1
     plan = plan_chart(chosen, options(small_cell=small))
     flagged = {leaf.id for leaf in chosen.leaves if leaf.n < small}

@@ -23,13 +23,14 @@ def test_palette_is_okabe_ito() -> None:
 
 def test_relative_luminance_and_contrast_follow_wcag_21() -> None:
     """W3C WCAG 2.1, definitions of relative luminance and contrast ratio: black 0, white 1,
-    black on white 21:1; sRGB channels below 0.03928 are linear (÷ 12.92)."""
+    black on white 21:1; sRGB channels below 0.03928 are linear (÷ 12.92) (from memory)."""
     assert relative_luminance("#000000") == 0.0
     assert relative_luminance("#FFFFFF") == pytest.approx(1.0)
     assert contrast_ratio("#000000", "#FFFFFF") == pytest.approx(21.0)
     assert contrast_ratio("#FFFFFF", "#000000") == contrast_ratio("#000000", "#FFFFFF")
     assert contrast_ratio("#123456", "#123456") == pytest.approx(1.0)
-    # Pure primaries, from the formula's coefficients 0.2126, 0.7152, 0.0722.
+    # Pure primaries, from the formula's coefficients 0.2126, 0.7152, 0.0722 (WCAG 2.1,
+    # from memory).
     assert relative_luminance("#FF0000") == pytest.approx(0.2126)
     assert relative_luminance("#00FF00") == pytest.approx(0.7152)
     assert relative_luminance("#0000FF") == pytest.approx(0.0722)

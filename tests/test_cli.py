@@ -3,39 +3,23 @@
 from __future__ import annotations
 
 import csv
-import hashlib
 import json
-import os
-import subprocess
-import sys
-from pathlib import Path
 
 import pandas as pd
 import pytest
 
-ROOT = Path(__file__).resolve().parents[1]
-DEMO = ROOT / "sample_data" / "breathless_ed.csv"
-DICTIONARY = ROOT / "sample_data" / "breathless_ed.dictionary.json"
-
-
-def run(*args, cwd=None):
-    env = dict(os.environ, PYTHONPATH=str(ROOT))
-    return subprocess.run([sys.executable, "-m", "gui", *map(str, args)], capture_output=True,
-                          text=True, cwd=cwd or ROOT, env=env, timeout=300)
-
-
-def _sha(path):
-    return hashlib.sha256(Path(path).read_bytes()).hexdigest()
+from tests.helpers import DEMO_CSV, DEMO_DICTIONARY, run_prunella, sha256_of
 
 
 @pytest.fixture(scope="module")
 def fitted(tmp_path_factory):
     out = tmp_path_factory.mktemp("fit")
-    before = _sha(DEMO)
-    result = run("fit", DEMO, "--outcome", "admitted", "--dictionary", DICTIONARY,
-                 "--model", out / "m.json", "--curve", out / "curve.csv", "--rules", out / "rules.txt")
+    before = sha256_of(DEMO_CSV)
+    result = run_prunella("fit", DEMO_CSV, "--outcome", "admitted", "--dictionary",
+                          DEMO_DICTIONARY, "--model", out / "m.json", "--curve", out / "curve.csv",
+                          "--rules", out / "rules.txt")
     assert result.returncode == 0, result.stderr
-    assert _sha(DEMO) == before
+    assert sha256_of(DEMO_CSV) == before
     return out, result
 
 
@@ -58,13 +42,14 @@ def test_fit_uses_the_dictionary_saved_beside_the_data_unless_told_not_to(fitted
     """As the app does: NAME.dictionary.json beside NAME.csv is read, and said so; its roles
     keep the columns known only after the outcome (length of stay, bed booked) out."""
     out, _ = fitted
-    beside = run("fit", DEMO, "--outcome", "admitted", "--model", tmp_path / "beside.json")
+    beside = run_prunella("fit", DEMO_CSV, "--outcome", "admitted",
+                          "--model", tmp_path / "beside.json")
     assert beside.returncode == 0, beside.stderr
     assert "breathless_ed.dictionary.json was used" in beside.stderr
     mine, given = (json.loads(p.read_text()) for p in (tmp_path / "beside.json", out / "m.json"))
     assert mine["nodes"] == given["nodes"]
-    guessed = run("fit", DEMO, "--outcome", "admitted", "--dictionary", "none",
-                  "--model", tmp_path / "guessed.json")
+    guessed = run_prunella("fit", DEMO_CSV, "--outcome", "admitted", "--dictionary", "none",
+                           "--model", tmp_path / "guessed.json")
     assert guessed.returncode == 0, guessed.stderr
     assert "was used" not in guessed.stderr
     # Guessing from the data alone offers every column, and the leakage guard speaks up.
@@ -73,23 +58,23 @@ def test_fit_uses_the_dictionary_saved_beside_the_data_unless_told_not_to(fitted
 
 def test_score_adds_box_and_prediction_and_never_touches_the_input(fitted, tmp_path):
     out, _ = fitted
-    before = _sha(DEMO)
-    result = run("score", out / "m.json", DEMO, "--out", tmp_path / "scored.csv")
+    before = sha256_of(DEMO_CSV)
+    result = run_prunella("score", out / "m.json", DEMO_CSV, "--out", tmp_path / "scored.csv")
     assert result.returncode == 0, result.stderr
-    assert _sha(DEMO) == before
+    assert sha256_of(DEMO_CSV) == before
     scored = pd.read_csv(tmp_path / "scored.csv")
     assert {"prunella_box", "prunella_prediction", "prunella_share_yes"} <= set(scored.columns)
-    assert len(scored) == len(pd.read_csv(DEMO))
+    assert len(scored) == len(pd.read_csv(DEMO_CSV))
 
 
 def test_score_refuses_to_overwrite_its_input(fitted, tmp_path):
     out, _ = fitted
     copy = tmp_path / "data.csv"
-    copy.write_bytes(DEMO.read_bytes())
-    before = _sha(copy)
-    result = run("score", out / "m.json", copy, "--out", copy)
+    copy.write_bytes(DEMO_CSV.read_bytes())
+    before = sha256_of(copy)
+    result = run_prunella("score", out / "m.json", copy, "--out", copy)
     assert result.returncode == 2 and "input file" in result.stderr
-    assert _sha(copy) == before
+    assert sha256_of(copy) == before
 
 
 def _bad(tmp_path, name, rows):
@@ -128,7 +113,7 @@ def test_bad_input_is_one_sentence_and_exit_2(tmp_path, case, expected):
         args += ["--size", "huge"]
     elif case == "bad option":
         args += ["--frobnicate"]
-    result = run(*args)
+    result = run_prunella(*args)
     assert result.returncode == 2, result.stdout + result.stderr
     assert expected in result.stderr
     assert "Traceback" not in result.stderr
@@ -137,9 +122,10 @@ def test_bad_input_is_one_sentence_and_exit_2(tmp_path, case, expected):
 
 
 def test_holdout_and_min_rule_and_regression(tmp_path):
-    result = run("fit", DEMO, "--outcome", "los_hours", "--task", "regression", "--dictionary",
-                 DICTIONARY, "--exclude", "admitted,bed_booked", "--holdout", "0.25", "--size",
-                 "min", "--folds", "5", "--model", tmp_path / "los.json")
+    result = run_prunella("fit", DEMO_CSV, "--outcome", "los_hours", "--task", "regression",
+                          "--dictionary", DEMO_DICTIONARY, "--exclude", "admitted,bed_booked",
+                          "--holdout", "0.25", "--size", "min", "--folds", "5",
+                          "--model", tmp_path / "los.json")
     assert result.returncode == 0, result.stderr
     model = json.loads((tmp_path / "los.json").read_text())
     assert model["task"] == "regression" and model["chosen"]["rule"] == "min"

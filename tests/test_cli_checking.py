@@ -3,41 +3,30 @@
 from __future__ import annotations
 
 import json
-import os
-import subprocess
-import sys
-from pathlib import Path
 
 import pytest
 from pypdf import PdfReader
 
-ROOT = Path(__file__).resolve().parents[1]
-SAMPLE = ROOT / "sample_data"
-
-
-def run(*args, cwd):
-    env = dict(os.environ, PYTHONPATH=str(ROOT))
-    return subprocess.run([sys.executable, "-m", "gui", *map(str, args)], cwd=cwd, env=env,
-                          capture_output=True, text=True, timeout=300)
+from tests.helpers import DEMO_CSV, DEMO_DICTIONARY, DEMO_XLSX, run_prunella
 
 
 @pytest.fixture(scope="module")
 def fitted(tmp_path_factory):
     folder = tmp_path_factory.mktemp("cli")
     model = folder / "admitted.json"
-    done = run("fit", SAMPLE / "breathless_ed.csv", "--outcome", "admitted", "--dictionary",
-               SAMPLE / "breathless_ed.dictionary.json", "--predictors",
-               "age,resp_rate,spo2,arrival_mode,crp", "--folds", "5", "--holdout", "0.2",
-               "--model", model, "--quiet", cwd=folder)
+    done = run_prunella("fit", DEMO_CSV, "--outcome", "admitted", "--dictionary",
+                        DEMO_DICTIONARY, "--predictors",
+                        "age,resp_rate,spo2,arrival_mode,crp", "--folds", "5", "--holdout", "0.2",
+                        "--model", model, "--quiet", cwd=folder)
     assert done.returncode == 0, done.stderr
     return folder, model
 
 
 def test_check_prints_measures_and_writes_results(fitted):
     folder, model = fitted
-    done = run("check", model, SAMPLE / "breathless_ed.xlsx", "--sheet", "visits", "--source",
-               "the whole demo file", "--out", folder / "results.json", "--checked-model",
-               folder / "checked.json", cwd=folder)
+    done = run_prunella("check", model, DEMO_XLSX, "--sheet", "visits", "--source",
+                        "the whole demo file", "--out", folder / "results.json", "--checked-model",
+                        folder / "checked.json", cwd=folder)
     assert done.returncode == 0, done.stderr
     for piece in ("Checked on: the whole demo file", "Sensitivity", "ROC area",
                   "Confusion matrix", "Calibration by outcome box"):
@@ -55,9 +44,9 @@ def test_report_reruns_the_derivation_and_writes_the_pdf(fitted):
     out = folder / "report.pdf"
     # The workbook holds the same rows as the CSV the model was fitted on, but other bytes:
     # the report warns about the fingerprint and re-derives the same tree.
-    done = run("report", model, SAMPLE / "breathless_ed.xlsx", "--external",
-               SAMPLE / "breathless_ed.csv", "--external-source", "demo CSV file",
-               "--bootstrap", "2", "--outer-folds", "2", "--out", out, cwd=folder)
+    done = run_prunella("report", model, DEMO_XLSX, "--external",
+                        DEMO_CSV, "--external-source", "demo CSV file",
+                        "--bootstrap", "2", "--outer-folds", "2", "--out", out, cwd=folder)
     assert done.returncode == 0, done.stderr
     assert "SHA-256" in done.stderr and "differs from the one the model was fitted on" in done.stderr
     assert "re-derived from the data differs" not in done.stderr
@@ -74,8 +63,8 @@ def test_report_reruns_the_derivation_and_writes_the_pdf(fitted):
 ])
 def test_bad_input_is_one_sentence_and_exit_2(fitted, args, says):
     folder, model = fitted
-    filled = [a.format(model=model, data=SAMPLE / "breathless_ed.csv") for a in args]
-    done = run(*filled, cwd=folder)
+    filled = [a.format(model=model, data=DEMO_CSV) for a in args]
+    done = run_prunella(*filled, cwd=folder)
     assert done.returncode == 2
     lines = done.stderr.strip().splitlines()
     assert len(lines) == 1 and says in lines[0] and "Traceback" not in done.stderr

@@ -8,7 +8,6 @@ from __future__ import annotations
 
 import csv
 import datetime as dt
-import hashlib
 import json
 import subprocess
 import sys
@@ -17,8 +16,9 @@ from pathlib import Path
 import openpyxl
 import pytest
 
-SAMPLE_DIR = Path(__file__).resolve().parents[1] / "sample_data"
-SCRIPT = SAMPLE_DIR / "make_demo_cohort.py"
+from tests.helpers import DEMO_CSV, DEMO_DICTIONARY, DEMO_XLSX, SAMPLE, sha256_of
+
+SCRIPT = SAMPLE / "make_demo_cohort.py"
 DATA_FILES = ["breathless_ed.csv", "breathless_ed.xlsx", "breathless_ed.dictionary.json"]
 EXPECTED_COLUMNS = [
     "visit_id", "patient_id", "campus", "arrival_date", "age", "sex",
@@ -27,10 +27,6 @@ EXPECTED_COLUMNS = [
 ]
 ROLES = {"outcome", "predictor", "patient_id", "site", "ignore"}
 KINDS = {"numeric", "binary", "ordinal", "nominal", "identifier", "date", "text"}
-
-
-def _sha256(path: Path) -> str:
-    return hashlib.sha256(path.read_bytes()).hexdigest()
 
 
 @pytest.fixture(scope="module")
@@ -43,20 +39,20 @@ def regenerated(tmp_path_factory: pytest.TempPathFactory) -> Path:
 
 @pytest.fixture(scope="module")
 def rows() -> list[dict[str, str]]:
-    with open(SAMPLE_DIR / "breathless_ed.csv", encoding="utf-8", newline="") as fh:
+    with open(DEMO_CSV, encoding="utf-8", newline="") as fh:
         return list(csv.DictReader(fh))
 
 
 @pytest.fixture(scope="module")
 def dictionary() -> dict:
-    return json.loads((SAMPLE_DIR / "breathless_ed.dictionary.json").read_text(encoding="utf-8"))
+    return json.loads((DEMO_DICTIONARY).read_text(encoding="utf-8"))
 
 
 # --- reproducibility ------------------------------------------------------------------------
 
 @pytest.mark.parametrize("name", DATA_FILES)
 def test_script_reproduces_committed_file_byte_for_byte(regenerated: Path, name: str) -> None:
-    assert _sha256(regenerated / name) == _sha256(SAMPLE_DIR / name), (
+    assert sha256_of(regenerated / name) == sha256_of(SAMPLE / name), (
         f"{name} differs from a fresh run of make_demo_cohort.py: rerun the script and commit"
     )
 
@@ -70,7 +66,7 @@ def test_script_refuses_missing_output_folder(tmp_path: Path) -> None:
 
 
 def test_csv_format() -> None:
-    raw = (SAMPLE_DIR / "breathless_ed.csv").read_bytes()
+    raw = (DEMO_CSV).read_bytes()
     raw.decode("utf-8")
     assert b"\r" not in raw
     assert raw.endswith(b"\n")
@@ -105,7 +101,7 @@ def test_values_in_range(rows: list[dict[str, str]]) -> None:
 
 
 def test_xlsx_holds_the_same_table(rows: list[dict[str, str]]) -> None:
-    wb = openpyxl.load_workbook(SAMPLE_DIR / "breathless_ed.xlsx", read_only=True)
+    wb = openpyxl.load_workbook(DEMO_XLSX, read_only=True)
     assert wb.sheetnames == ["visits", "about"]
     sheet = list(wb["visits"].iter_rows(values_only=True))
     assert list(sheet[0]) == EXPECTED_COLUMNS

@@ -7,25 +7,18 @@ planted structure, not the science.
 
 from __future__ import annotations
 
-from pathlib import Path
-
 import numpy as np
 import pytest
 
 from core.derive import DerivationRequest, choose_model, derive
 from core.design import DesignSpec
 from core.grow import TreeSettings
-from core.table import read_table
-from core.variables import DataDictionary
-
-DEMO = Path(__file__).resolve().parents[1] / "sample_data"
+from tests.helpers import demo_inputs
 
 
 @pytest.fixture(scope="module")
 def demo():
-    table = read_table(DEMO / "breathless_ed.csv")
-    dictionary = DataDictionary.load(DEMO / "breathless_ed.dictionary.json")
-    predictors = tuple(c.name for c in dictionary.columns if c.role == "predictor")
+    table, dictionary, predictors = demo_inputs()
     request = DerivationRequest(DesignSpec("admitted", predictors, patient_id="patient_id"))
     return derive(table, dictionary, request)
 

@@ -3,8 +3,6 @@ table shared by `prunella score` and the app's export."""
 
 from __future__ import annotations
 
-from pathlib import Path
-
 import numpy as np
 import pytest
 
@@ -13,17 +11,12 @@ from core.design import DesignSpec
 from core.explain import box_details, route_patient
 from core.intervals import wilson_interval
 from core.scoring import scored_table
-from core.table import read_table
-from core.variables import DataDictionary
-
-ROOT = Path(__file__).resolve().parents[1]
+from tests.helpers import demo_inputs
 
 
 @pytest.fixture(scope="module")
 def demo():
-    table = read_table(ROOT / "sample_data" / "breathless_ed.csv")
-    dictionary = DataDictionary.load(ROOT / "sample_data" / "breathless_ed.dictionary.json")
-    preds = tuple(c.name for c in dictionary.columns if c.role == "predictor")
+    table, dictionary, preds = demo_inputs()
     derivation = derive(table, dictionary,
                         DerivationRequest(DesignSpec("admitted", preds, patient_id="patient_id")))
     return table, derivation.model

@@ -8,11 +8,6 @@ and age carry the planted, real-looking signal.
 
 from __future__ import annotations
 
-import os
-import subprocess
-import sys
-from pathlib import Path
-
 import numpy as np
 import pandas as pd
 import pytest
@@ -28,14 +23,12 @@ from core.identity import (
 )
 from core.table import read_table
 from core.variables import infer_dictionary
-
-ROOT = Path(__file__).resolve().parents[1]
-DEMO = ROOT / "sample_data" / "breathless_ed.csv"
+from tests.helpers import DEMO_CSV, run_prunella
 
 
 @pytest.fixture(scope="module")
 def demo():
-    table = read_table(DEMO)
+    table = read_table(DEMO_CSV)
     dictionary, _ = infer_dictionary(table.frame)
     return table, dictionary
 
@@ -189,21 +182,15 @@ def test_identity_findings_ignore_clinical_columns(demo):
     assert identity_findings(table.frame, dictionary, clinical) == ()
 
 
-def _run(*args):
-    env = dict(os.environ, PYTHONPATH=str(ROOT))
-    return subprocess.run([sys.executable, "-m", "gui", *map(str, args)], capture_output=True,
-                          text=True, cwd=ROOT, env=env, timeout=300)
-
-
 def test_fit_shows_the_guards_and_leaves_identity_out(tmp_path):
     """`prunella fit` without a dictionary: leakage warnings on stderr, identity columns out,
     and a column named in --predictors stays in."""
-    frame = pd.read_csv(DEMO).iloc[:1200]
+    frame = pd.read_csv(DEMO_CSV).iloc[:1200]
     frame["email"] = [f"p{i}@example.org" for i in range(len(frame))]
     path = tmp_path / "cohort.csv"
     frame.to_csv(path, index=False)
-    result = _run("fit", path, "--outcome", "admitted", "--model", tmp_path / "m.json",
-                  "--folds", "5", "--quiet")
+    result = run_prunella("fit", path, "--outcome", "admitted", "--model", tmp_path / "m.json",
+                          "--folds", "5", "--quiet")
     assert result.returncode == 0, result.stderr
     assert "warning: Probable leakage: 'bed_booked'" in result.stderr
     assert "'email' seems to identify patients" in result.stderr
@@ -211,8 +198,8 @@ def test_fit_shows_the_guards_and_leaves_identity_out(tmp_path):
     model = json.loads((tmp_path / "m.json").read_text())
     offered = {p["name"] for p in model["predictors"]}
     assert "email" not in offered and "visit_id" not in offered and "spo2" in offered
-    explicit = _run("fit", path, "--outcome", "admitted", "--model", tmp_path / "m2.json",
-                    "--predictors", "spo2,age,visit_id", "--folds", "5", "--quiet")
+    explicit = run_prunella("fit", path, "--outcome", "admitted", "--model", tmp_path / "m2.json",
+                            "--predictors", "spo2,age,visit_id", "--folds", "5", "--quiet")
     assert explicit.returncode == 2  # named on purpose, then refused: it is an identifier
     assert "marked as identifier" in explicit.stderr and "Traceback" not in explicit.stderr
 

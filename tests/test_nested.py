@@ -2,10 +2,7 @@
 
 from __future__ import annotations
 
-from pathlib import Path
-
 import numpy as np
-import pandas as pd
 import pytest
 
 from core.derive import DerivationRequest, derive
@@ -14,28 +11,9 @@ from core.errors import Cancelled, InputError
 from core.grow import TreeSettings
 from core.nested import nested_cross_validate
 from core.resample import CVSettings
-from core.table import LoadedTable, Provenance, read_table
 from core.variables import ColumnSpec, DataDictionary
-from tests.waveform import waveform
-
-SAMPLE = Path(__file__).resolve().parents[1] / "sample_data"
-FEATURES = tuple(f"x{m}" for m in range(1, 22))
-CLASSES = ("1", "2", "3")
-WAVE_DICTIONARY = DataDictionary(tuple(ColumnSpec(f) for f in FEATURES) + (
-    ColumnSpec("wave", role="outcome", kind="nominal", levels=CLASSES),))
-
-
-def waveform_frame(n, seed):
-    """Waveform cases (tests/waveform.py) as a table: x1..x21 and the class '1', '2' or '3'."""
-    X, y = waveform(n, seed)
-    frame = pd.DataFrame(X, columns=list(FEATURES))
-    frame["wave"] = np.array(CLASSES, dtype=object)[y]
-    return frame
-
-
-def _wave_table(n, seed):
-    frame = waveform_frame(n, seed)
-    return LoadedTable(frame, Provenance("waveform.csv", None, "0" * 64, len(frame), frame.shape[1]))
+from tests.helpers import demo_inputs
+from tests.waveform import FEATURES, waveform_dictionary, waveform_table
 
 
 @pytest.mark.slow
@@ -49,8 +27,8 @@ def test_nested_error_estimate_is_close_to_fresh_error_on_waveform_data():
         request = DerivationRequest(DesignSpec("wave", FEATURES),
                                     tree=TreeSettings(priors="equal", seed=seed),
                                     cv=CVSettings(seed=seed))
-        derivation = derive(_wave_table(300, seed), WAVE_DICTIONARY, request)
-        fresh = waveform_frame(5000, 10_000 + seed)
+        derivation = derive(waveform_table(300, seed), waveform_dictionary(), request)
+        fresh = waveform_table(5000, 10_000 + seed).frame
         scored = derivation.model.apply(fresh)
         fresh_errors.append(np.mean(scored.prediction != fresh["wave"].to_numpy()))
         nested = nested_cross_validate(derivation.data, request)
@@ -62,8 +40,7 @@ def test_nested_error_estimate_is_close_to_fresh_error_on_waveform_data():
 
 @pytest.fixture(scope="module")
 def demo_data():
-    table = read_table(SAMPLE / "breathless_ed.csv")
-    dictionary = DataDictionary.load(SAMPLE / "breathless_ed.dictionary.json")
+    table, dictionary, _ = demo_inputs()
     predictors = ("age", "resp_rate", "spo2", "arrival_mode", "crp")
     request = DerivationRequest(DesignSpec("admitted", predictors, patient_id="patient_id"),
                                 cv=CVSettings(folds=5))

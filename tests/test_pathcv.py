@@ -104,7 +104,9 @@ def test_cv_risk_reported_beside_training_risk_and_choices():
     path = cross_validate_path(data, TreeSettings(min_leaf=5), CVSettings(repeats=3))
     assert path.n_folds == 30
     assert len(path.cv_risk) == len(path.train_risk) == len(path.leaves) == len(path.grid)
-    # Training risk never rises with more leaves; CV risk is honest, so above it for big trees.
+    # Training risk never rises with more leaves (common practice; the definition of the
+    # pruning sequence, Breiman et al. 1984, ch. 3 (from memory)); CV risk is honest, so
+    # above it for big trees.
     assert np.all(np.diff(path.train_risk) >= -1e-12)
     assert path.cv_risk[0] > path.train_risk[0]
     k_min, k_1se = path.min_index, path.one_se_index

@@ -22,20 +22,20 @@ from core.project import (
 from core.resample import CVSettings
 from core.table import file_sha256, read_table
 from core.variables import DataDictionary
+from tests.helpers import DEMO_CSV, demo_inputs
+
 
 ROOT = Path(__file__).resolve().parents[1]
-DEMO = ROOT / "sample_data" / "breathless_ed.csv"
-DEMO_DICT = ROOT / "sample_data" / "breathless_ed.dictionary.json"
 OLD_EXAMPLE = ROOT / "tests" / "data" / "project_v0_draft.prunella"
 
 
 @pytest.fixture(scope="module")
 def dictionary() -> DataDictionary:
-    return DataDictionary.load(DEMO_DICT)
+    return demo_inputs()[1]
 
 
-def _request(dictionary: DataDictionary, seed: int = 3) -> DerivationRequest:
-    preds = tuple(c.name for c in dictionary.columns if c.role == "predictor")
+def _request(seed: int = 3) -> DerivationRequest:
+    preds = demo_inputs()[2]
     return DerivationRequest(DesignSpec("admitted", preds, patient_id="patient_id"),
                              tree=TreeSettings(min_leaf=10, seed=seed),
                              cv=CVSettings(folds=5, seed=seed))
@@ -43,18 +43,18 @@ def _request(dictionary: DataDictionary, seed: int = 3) -> DerivationRequest:
 
 def _project(data: Path, dictionary: DataDictionary, **changes) -> Project:
     base = Project(data_path=str(data), data_sha256=file_sha256(data), dictionary=dictionary,
-                   request=_request(dictionary), size=4,
+                   request=_request(), size=4,
                    chart={"title": "Who is admitted?", "paper": "a4", "min_text": 9})
     return replace(base, **changes)
 
 
 def test_round_trip_keeps_everything(tmp_path, dictionary):
-    project = _project(DEMO, dictionary, model_fingerprint="ab" * 32)
+    project = _project(DEMO_CSV, dictionary, model_fingerprint="ab" * 32)
     target = tmp_path / "work.prunella"
     save_project(project, target)
     raw = json.loads(target.read_text(encoding="utf-8"))
     assert raw["format"] == PROJECT_FORMAT
-    assert raw["data"]["sha256"] == file_sha256(DEMO)
+    assert raw["data"]["sha256"] == file_sha256(DEMO_CSV)
     assert raw["seed"] == 3
     again = load_project(target)
     assert again == project
@@ -64,7 +64,7 @@ def test_round_trip_keeps_everything(tmp_path, dictionary):
 def test_data_found_beside_a_moved_project(tmp_path, dictionary):
     first = tmp_path / "first"
     first.mkdir()
-    shutil.copy(DEMO, first / "cohort.csv")
+    shutil.copy(DEMO_CSV, first / "cohort.csv")
     save_project(_project(first / "cohort.csv", dictionary), first / "p.prunella")
     moved = tmp_path / "moved"
     shutil.move(first, moved)
@@ -75,7 +75,7 @@ def test_data_found_beside_a_moved_project(tmp_path, dictionary):
 
 def test_changed_and_missing_data_file_are_detected(tmp_path, dictionary):
     data = tmp_path / "cohort.csv"
-    shutil.copy(DEMO, data)
+    shutil.copy(DEMO_CSV, data)
     project = _project(data, dictionary)
     assert check_data_file(project).same
     with open(data, "a", encoding="utf-8") as handle:
@@ -98,7 +98,7 @@ def test_old_draft_layout_is_upgraded():
     assert upgraded["size"] == 4
     assert upgraded["chart"]["title"].startswith("Who is admitted?")
     project = load_project(OLD_EXAMPLE)
-    assert Path(project.data_path).resolve() == DEMO.resolve()
+    assert Path(project.data_path).resolve() == DEMO_CSV.resolve()
     assert project.request.design.outcome == "admitted"
     assert project.size == 4 and project.seed == 0
     assert check_data_file(project).exists
@@ -125,7 +125,7 @@ def test_bad_files_are_refused_with_a_message(tmp_path, content, words):
 
 def test_inconsistent_seed_is_refused(tmp_path, dictionary):
     target = tmp_path / "p.prunella"
-    save_project(_project(DEMO, dictionary), target)
+    save_project(_project(DEMO_CSV, dictionary), target)
     raw = json.loads(target.read_text(encoding="utf-8"))
     raw["seed"] = 99
     target.write_text(json.dumps(raw), encoding="utf-8")
@@ -134,13 +134,13 @@ def test_inconsistent_seed_is_refused(tmp_path, dictionary):
 
 
 def test_with_seed_sets_both_seeds(dictionary):
-    project = _project(DEMO, dictionary).with_seed(11)
+    project = _project(DEMO_CSV, dictionary).with_seed(11)
     assert project.request.tree.seed == 11 and project.request.cv.seed == 11 and project.seed == 11
 
 
 def test_a_failed_save_leaves_the_previous_file(tmp_path, dictionary, monkeypatch):
     target = tmp_path / "p.prunella"
-    save_project(_project(DEMO, dictionary, size="1se"), target)
+    save_project(_project(DEMO_CSV, dictionary, size="1se"), target)
     before = target.read_bytes()
 
     def broken_replace(src, dst):
@@ -148,15 +148,15 @@ def test_a_failed_save_leaves_the_previous_file(tmp_path, dictionary, monkeypatc
 
     monkeypatch.setattr(os, "replace", broken_replace)
     with pytest.raises(OSError):
-        save_project(_project(DEMO, dictionary, size=7), target)
+        save_project(_project(DEMO_CSV, dictionary, size=7), target)
     assert target.read_bytes() == before
     assert [p.name for p in tmp_path.iterdir()] == ["p.prunella"]  # no temporary file left
 
 
 def test_reopened_project_recomputes_the_identical_tree(tmp_path, dictionary):
-    table = read_table(DEMO)
-    first = choose_model(derive(table, dictionary, _request(dictionary)), 4)
-    project = _project(DEMO, dictionary, model_fingerprint=first.model.fingerprint)
+    table = read_table(DEMO_CSV)
+    first = choose_model(derive(table, dictionary, _request()), 4)
+    project = _project(DEMO_CSV, dictionary, model_fingerprint=first.model.fingerprint)
     save_project(project, tmp_path / "p.prunella")
     again = load_project(tmp_path / "p.prunella")
     redone = choose_model(derive(read_table(again.data_path), again.dictionary, again.request),
@@ -169,7 +169,7 @@ def test_reopened_project_recomputes_the_identical_tree(tmp_path, dictionary):
 
 def _saved(tmp_path, dictionary) -> tuple[Path, dict]:
     target = tmp_path / "p.prunella"
-    save_project(_project(DEMO, dictionary), target)
+    save_project(_project(DEMO_CSV, dictionary), target)
     return target, json.loads(target.read_text(encoding="utf-8"))
 
 
@@ -265,7 +265,7 @@ def test_fields_of_the_wrong_type_are_refused_naming_the_field(tmp_path, diction
 
 def test_every_message_of_a_project_has_advice_in_the_catalogue(tmp_path, dictionary):
     data = tmp_path / "cohort.csv"
-    shutil.copy(DEMO, data)
+    shutil.copy(DEMO_CSV, data)
     project = _project(data, dictionary)
     messages = [check_data_file(project).message]
     data.write_text(data.read_text(encoding="utf-8") + "\n", encoding="utf-8")

@@ -3,8 +3,6 @@ compatibility of the frame with plain pandas, and what is (not) converted."""
 
 from __future__ import annotations
 
-from pathlib import Path
-
 import numpy as np
 import openpyxl
 import pandas as pd
@@ -14,19 +12,16 @@ from core.errors import InputError
 from core.table import list_sheets, read_table
 from core.values import parse_dates, parse_numbers, rows_phrase
 from core.variables import infer_dictionary
-
-ROOT = Path(__file__).resolve().parents[1]
-DEMO = ROOT / "sample_data" / "breathless_ed.csv"
+from tests.helpers import DEMO_CSV, DEMO_XLSX
 
 
 def test_demo_frame_is_what_pandas_reads():
     """read_table keeps pandas' own types and values for a clean file (others rely on it)."""
-    ours = read_table(DEMO).frame
-    plain = pd.read_csv(DEMO, keep_default_na=False, na_values=[""])
+    ours = read_table(DEMO_CSV).frame
+    plain = pd.read_csv(DEMO_CSV, keep_default_na=False, na_values=[""])
     pd.testing.assert_frame_equal(ours, plain)
-    book = read_table(ROOT / "sample_data" / "breathless_ed.xlsx", sheet="visits").frame
-    pd.testing.assert_frame_equal(book, pd.read_excel(ROOT / "sample_data" /
-                                                      "breathless_ed.xlsx", sheet_name="visits"))
+    book = read_table(DEMO_XLSX, sheet="visits").frame
+    pd.testing.assert_frame_equal(book, pd.read_excel(DEMO_XLSX, sheet_name="visits"))
 
 
 def test_row_numbers_follow_the_spreadsheet(tmp_path):
@@ -61,7 +56,7 @@ def test_first_visible_sheet_is_the_default(tmp_path):
     table = read_table(path)
     assert table.provenance.sheet == "data" and len(table.frame) == 5
     assert list_sheets(path) == ["hidden notes", "data"]
-    assert list_sheets(DEMO) == []
+    assert list_sheets(DEMO_CSV) == []
 
 
 def test_codes_with_leading_zeros_stay_text_in_workbooks(tmp_path):

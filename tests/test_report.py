@@ -4,7 +4,6 @@ from __future__ import annotations
 
 import io
 import re
-from pathlib import Path
 
 import pytest
 from matplotlib.figure import Figure
@@ -18,18 +17,14 @@ from core.report_figures import (
     calibration_figure, figure_png, pruning_curve_figure, roc_figure, stability_figure,
 )
 from core.resample import CVSettings
-from core.table import LoadedTable, read_table
+from core.table import LoadedTable
 from core.validate import check_table
-from core.variables import DataDictionary
-
-SAMPLE = Path(__file__).resolve().parents[1] / "sample_data"
+from tests.helpers import demo_inputs
 
 
 @pytest.fixture(scope="module")
 def contents():
-    table = read_table(SAMPLE / "breathless_ed.csv")
-    dictionary = DataDictionary.load(SAMPLE / "breathless_ed.dictionary.json")
-    predictors = tuple(c.name for c in dictionary.columns if c.role == "predictor")
+    table, dictionary, predictors = demo_inputs()
     frame = table.frame
     north = LoadedTable(frame[frame["campus"] == "North"].reset_index(drop=True), table.provenance)
     riverside = LoadedTable(frame[frame["campus"] == "Riverside"].reset_index(drop=True),

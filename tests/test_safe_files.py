@@ -27,6 +27,7 @@ from core.safe_files import (
 )
 from core.table import read_table
 from core.variables import ColumnSpec, DataDictionary, infer_dictionary
+from tests.helpers import run_prunella
 
 ROOT = Path(__file__).resolve().parents[1]
 
@@ -302,10 +303,8 @@ def test_prunella_score_output_is_neutralised(tmp_path, model):
                          "+header": ["a", "b", "c"]})
     source = tmp_path / "new.csv"
     data.to_csv(source, index=False)
-    env = dict(os.environ, PYTHONPATH=str(ROOT))
-    result = subprocess.run([sys.executable, "-m", "gui", "score", str(model_path), str(source),
-                             "--out", str(tmp_path / "scored.csv")], cwd=ROOT, env=env,
-                            capture_output=True, text=True, timeout=120)
+    result = run_prunella("score", model_path, source, "--out", tmp_path / "scored.csv",
+                          timeout=120)
     assert result.returncode == 0, result.stderr
     lines = (tmp_path / "scored.csv").read_text().splitlines()
     assert lines[0].startswith("spo2,mode,note,'+header,prunella_box")

@@ -6,8 +6,6 @@ found again, not as a reference for any clinical fact.
 
 from __future__ import annotations
 
-from pathlib import Path
-
 import numpy as np
 import pytest
 
@@ -17,16 +15,12 @@ from core.errors import Cancelled, InputError
 from core.model import Question
 from core.resample import CVSettings
 from core.stability import _Matcher, bootstrap_stability, resample_rows
-from core.table import read_table
-from core.variables import DataDictionary
-
-SAMPLE = Path(__file__).resolve().parents[1] / "sample_data"
+from tests.helpers import demo_inputs
 
 
 @pytest.fixture(scope="module")
 def derivation():
-    table = read_table(SAMPLE / "breathless_ed.csv")
-    dictionary = DataDictionary.load(SAMPLE / "breathless_ed.dictionary.json")
+    table, dictionary, _ = demo_inputs()
     predictors = ("age", "sex", "resp_rate", "spo2", "heart_rate", "arrival_mode", "crp")
     request = DerivationRequest(DesignSpec("admitted", predictors, patient_id="patient_id"),
                                 cv=CVSettings(folds=5))

@@ -6,7 +6,6 @@ scikit-learn's ``load_breast_cancer``): 569 cases, 212 malignant and 357 benign.
 
 from __future__ import annotations
 
-import hashlib
 import json
 
 import numpy as np
@@ -19,6 +18,7 @@ from core.design import DesignSpec
 from core.errors import InputError
 from core.table import list_sheets, read_table
 from core.variables import ColumnSpec, DataDictionary, infer_dictionary, merge_dictionary
+from tests.helpers import sha256_of
 
 
 @pytest.fixture(scope="module")
@@ -27,10 +27,6 @@ def cancer_frame():
     frame = data.frame.copy()
     frame["diagnosis"] = np.where(data.target == 0, "malignant", "benign")
     return frame.drop(columns=["target"])
-
-
-def _sha(path):
-    return hashlib.sha256(path.read_bytes()).hexdigest()
 
 
 @pytest.mark.parametrize("form", ["csv", "tsv", "semicolon", "xlsx"])
@@ -47,9 +43,9 @@ def test_breast_cancer_round_trip_keeps_shape_and_class_counts(tmp_path, cancer_
         with pd.ExcelWriter(path) as writer:
             pd.DataFrame({"note": ["cover sheet"]}).to_excel(writer, sheet_name="about", index=False)
             cancer_frame.to_excel(writer, sheet_name="cases", index=False)
-    before = _sha(path)
+    before = sha256_of(path)
     table = read_table(path, sheet="cases" if form == "xlsx" else None)
-    assert _sha(path) == before  # the source is never written
+    assert sha256_of(path) == before  # the source is never written
     assert table.frame.shape == (569, 31)
     assert table.provenance.sha256 == before
     assert table.provenance.n_rows == 569 and table.provenance.n_columns == 31

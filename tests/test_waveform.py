@@ -9,47 +9,25 @@ and the cross-validated estimate is within 0.06 of it.
 from __future__ import annotations
 
 import numpy as np
-import pandas as pd
 import pytest
 
 from core.derive import DerivationRequest, derive
 from core.design import DesignSpec
 from core.grow import TreeSettings
 from core.resample import CVSettings
-from core.table import LoadedTable, Provenance
-from core.variables import ColumnSpec, DataDictionary
-from tests.waveform import waveform
-
-NAMES = [f"x{m}" for m in range(1, 22)]
-CLASSES = ("class 1", "class 2", "class 3")
-
-
-def _table(X, y):
-    frame = pd.DataFrame(X, columns=NAMES)
-    frame["wave"] = np.array(CLASSES, dtype=object)[y]
-    provenance = Provenance(path="waveform", sheet=None, sha256="0" * 64, n_rows=len(frame),
-                            n_columns=frame.shape[1])
-    return LoadedTable(frame, provenance)
-
-
-def _dictionary():
-    columns = [ColumnSpec(n, kind="numeric") for n in NAMES]
-    columns.append(ColumnSpec("wave", role="outcome", kind="nominal", levels=CLASSES))
-    return DataDictionary(tuple(columns))
+from tests.waveform import FEATURES, waveform_dictionary, waveform_table
 
 
 @pytest.mark.slow
 def test_one_se_tree_error_on_fresh_cases_and_its_cv_estimate():
-    fresh_X, fresh_y = waveform(5000, seed=999)
-    fresh = _table(fresh_X, fresh_y).frame
+    fresh = waveform_table(5000, seed=999).frame
     errors, estimates = [], []
     for seed in range(4):
-        X, y = waveform(300, seed=seed)
         request = DerivationRequest(
-            design=DesignSpec(outcome="wave", predictors=tuple(NAMES), task="classification"),
+            design=DesignSpec(outcome="wave", predictors=FEATURES, task="classification"),
             tree=TreeSettings(min_leaf=3, priors="equal", seed=seed),
             cv=CVSettings(folds=10, seed=seed), size="1se")
-        model = derive(_table(X, y), _dictionary(), request).model
+        model = derive(waveform_table(300, seed), waveform_dictionary(), request).model
         predicted = model.apply(fresh).prediction
         errors.append(np.mean(predicted != fresh["wave"].to_numpy()))
         estimates.append(model.chosen["cv_risk"])

@@ -9,6 +9,13 @@ u·h2 + (1 - u)·h3 + ε, with u ~ U(0, 1), ε_m ~ N(0, 1) and equal priors. Bay
 from __future__ import annotations
 
 import numpy as np
+import pandas as pd
+
+from core.table import LoadedTable, Provenance
+from core.variables import ColumnSpec, DataDictionary
+
+FEATURES = tuple(f"x{m}" for m in range(1, 22))
+CLASSES = ("class 1", "class 2", "class 3")
 
 _M = np.arange(1, 22)
 _H1 = np.maximum(6 - np.abs(_M - 11), 0).astype(float)
@@ -26,3 +33,19 @@ def waveform(n: int, seed: int) -> tuple[np.ndarray, np.ndarray]:
     second = np.stack([_PAIRS[c][1] for c in y])
     X = u * first + (1 - u) * second + rng.normal(size=(n, 21))
     return X, y
+
+
+def waveform_table(n: int, seed: int) -> LoadedTable:
+    """``waveform(n, seed)`` as a table read from nowhere: x1..x21 and ``wave``, one of
+    CLASSES."""
+    X, y = waveform(n, seed)
+    frame = pd.DataFrame(X, columns=list(FEATURES))
+    frame["wave"] = np.array(CLASSES, dtype=object)[y]
+    provenance = Provenance("waveform.csv", None, "0" * 64, len(frame), frame.shape[1])
+    return LoadedTable(frame, provenance)
+
+
+def waveform_dictionary() -> DataDictionary:
+    """The 21 numeric features as predictors and ``wave`` as a nominal outcome."""
+    return DataDictionary(tuple(ColumnSpec(f, kind="numeric") for f in FEATURES) + (
+        ColumnSpec("wave", role="outcome", kind="nominal", levels=CLASSES),))

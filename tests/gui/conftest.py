@@ -14,10 +14,7 @@ from PySide6.QtCore import QSettings, QStandardPaths, Qt  # noqa: E402
 from PySide6.QtWidgets import QFileDialog, QMessageBox  # noqa: E402
 
 from gui.app import make_application  # noqa: E402
-
-ROOT = Path(__file__).resolve().parents[2]
-DEMO = ROOT / "sample_data" / "breathless_ed.csv"
-DEMO_DICTIONARY = ROOT / "sample_data" / "breathless_ed.dictionary.json"
+from tests.helpers import DEMO_CSV as DEMO, DEMO_DICTIONARY  # noqa: E402,F401 (the GUI tests')
 
 
 @pytest.fixture(scope="session")
