@@ -14,7 +14,7 @@ from PySide6.QtCore import QSettings, QStandardPaths, Qt  # noqa: E402
 from PySide6.QtWidgets import QFileDialog, QMessageBox  # noqa: E402
 
 from gui.app import make_application  # noqa: E402
-from tests.helpers import DEMO_CSV as DEMO, DEMO_DICTIONARY  # noqa: E402,F401 (the GUI tests')
+from tests.helpers import DEMO_CSV as DEMO  # noqa: E402
 
 
 @pytest.fixture(scope="session")

@@ -13,7 +13,7 @@ import pytest  # noqa: E402
 from pypdf import PdfReader  # noqa: E402
 from PySide6.QtCore import Qt  # noqa: E402
 
-from conftest import DEMO  # noqa: E402
+from tests.helpers import DEMO_CSV as DEMO  # noqa: E402
 from core.validate import check_heldout  # noqa: E402
 
 

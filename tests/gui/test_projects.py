@@ -13,7 +13,7 @@ import shutil  # noqa: E402
 from PySide6.QtCore import Qt  # noqa: E402
 from PySide6.QtWidgets import QMessageBox  # noqa: E402
 
-from conftest import DEMO, DEMO_DICTIONARY  # noqa: E402
+from tests.helpers import DEMO_CSV as DEMO, DEMO_DICTIONARY  # noqa: E402
 from core.project import PROJECT_FORMAT  # noqa: E402
 
 

@@ -13,7 +13,7 @@ from PySide6.QtCore import QMimeData, QPointF, QSettings, Qt, QUrl  # noqa: E402
 from PySide6.QtGui import QDropEvent  # noqa: E402
 from PySide6.QtWidgets import QApplication  # noqa: E402
 
-from conftest import DEMO  # noqa: E402
+from tests.helpers import DEMO_CSV as DEMO  # noqa: E402
 from core.cautions import CAUTIONS  # noqa: E402
 
 
