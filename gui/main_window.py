@@ -433,10 +433,10 @@ class MainWindow(QMainWindow):
         if not self._may_discard():
             event.ignore()
             return
-        for panel in (self.panels["size"], self.panels["data"], self.panels["chart"],
-                      self.panels["outcome"]):
-            if panel.job is not None and panel.job.running:
-                panel.job.cancel()
+        for panel in self.panels.values():
+            panel.stop_work()
+        if self._project_job is not None and self._project_job.running:
+            self._project_job.cancel()
         self.settings.setValue("window/geometry", self.saveGeometry())
         self.settings.sync()
         event.accept()

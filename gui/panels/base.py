@@ -10,6 +10,7 @@ from PySide6.QtWidgets import (
 )
 
 from core.messages import app_advice, app_wording
+from gui import workers
 from gui.session import STEP_TITLES, STEPS, Session
 
 
@@ -94,6 +95,7 @@ class Panel(QWidget):
     step = "data"
     intro = ""
     go_to = Signal(str)  # ask the window to show another step
+    job: workers.Job | None = None  # the step's latest background work, if it has any
 
     def __init__(self, session: Session, parent=None) -> None:
         super().__init__(parent)
@@ -146,6 +148,12 @@ class Panel(QWidget):
         else:
             self.no_tree.show_text("No tree yet: run step 3 to grow one.")
         return has_tree
+
+    def stop_work(self) -> None:
+        """Cancel the step's background work (the window calls this for every step on
+        closing, so no computation outlives it)."""
+        if self.job is not None and self.job.running:
+            self.job.cancel()
 
     def warn(self, text: str, title: str = "Prunella") -> None:
         """One clear message for the user (never a crash), with what to do about it."""

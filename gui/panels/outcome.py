@@ -128,7 +128,7 @@ class OutcomePanel(Panel):
 
     @property
     def job(self):
-        """The guards' latest check (the window cancels it on closing)."""
+        """The guards' latest check (Panel.stop_work cancels it when the window closes)."""
         return self.watch.job
 
     # --- from the session to the widgets ----------------------------------------------------

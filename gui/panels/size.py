@@ -420,6 +420,11 @@ class SizePanel(Panel):
             self.status.setText("Stopping after the current step…")
             self.cancel_button.setEnabled(False)
 
+    def stop_work(self) -> None:
+        super().stop_work()
+        if self._fit_job is not None and self._fit_job.running:
+            self._fit_job.cancel()
+
     @property
     def running(self) -> bool:
         return self._busy
