@@ -23,7 +23,7 @@ from core.report import ReportContents, write_report
 from core.report_figures import calibration_figure, roc_figure, stability_figure
 from core.stability import DEFAULT_RESAMPLES, bootstrap_stability
 from core.table import read_table
-from core.validate import check_heldout, check_table
+from core.validate import check_table
 from gui import workers
 from gui.panels.base import Banner, Panel, explain, warning_html
 from gui.panels.data import DATA_FILTER
@@ -275,8 +275,8 @@ class CheckingPanel(Panel):
         self._clear(self.stability_plot)
         chosen = self.session.chosen
         self.checks = []
-        if chosen is not None and chosen.heldout is not None:
-            self.checks.append(check_heldout(chosen))
+        if chosen is not None and chosen.heldout_check is not None:
+            self.checks.append(chosen.heldout_check)  # made by core when the size was chosen
         self.session.set_check(None)
         self.refresh()
         if chosen is not None and self._external_paths:

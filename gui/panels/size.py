@@ -41,6 +41,8 @@ RULE_WORDS = {"1se": "the smallest tree within one standard error of the lowest 
 def run_derivation(table, dictionary, request, size, progress=None, cancel=None):
     """Grow, prune and cross-validate (core.derive), then take the wanted size. In a worker."""
     derivation = derive(table, dictionary, request, progress=progress, cancel=cancel)
+    if size == request.size:  # derive chose this size already (and checked it on held-out rows)
+        return derivation, derivation
     try:
         chosen = choose_model(derivation, size)
     except InputError:  # a saved size that is not on this path: keep the 1-SE choice
