@@ -17,7 +17,7 @@ from core.cautions import CAUTION_TITLE, CAUTIONS
 from core.errors import InputError
 from core.project import PROJECT_SUFFIX, check_data_file, load_project, save_project
 from core.table import read_table
-from core.variables import infer_dictionary, merge_dictionary
+from core.variables import dictionary_for
 from gui import workers
 from gui.panels.base import heading_font, with_advice
 from gui.panels.chart import ChartPanel
@@ -39,13 +39,8 @@ def read_for_project(project, path: str):
     notes = list(table.provenance.warnings)
     dictionary = project.dictionary
     if dictionary is None or tuple(table.frame.columns) != dictionary.names:
-        inferred, more = infer_dictionary(table.frame)
+        dictionary, more = dictionary_for(table, dictionary)
         notes += more
-        if dictionary is not None:
-            dictionary, merged_notes = merge_dictionary(inferred, dictionary)
-            notes += merged_notes
-        else:
-            dictionary = inferred
     return table, dictionary, tuple(notes)
 
 
