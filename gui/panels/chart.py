@@ -5,6 +5,7 @@ and the model, its rules and a scored spreadsheet as files. The cautions stand b
 from __future__ import annotations
 
 from dataclasses import dataclass
+from html import escape
 from pathlib import Path
 
 from PySide6.QtCore import QPointF, QSize, Qt, QTemporaryDir, QTimer, Signal
@@ -23,7 +24,7 @@ from core.errors import InputError
 from core.safe_files import write_bytes_atomic, write_csv_safely, write_text_atomic
 from core.scoring import scored_table
 from gui import workers
-from gui.panels.base import Panel, explain, heading_font, side_by_side
+from gui.panels.base import Panel, explain, heading_font, side_by_side, warning_html
 from gui.widgets.pdf_preview import PdfPreview
 
 PAPERS = (("A4", "a4"), ("US Letter", "letter"), ("A3", "a3"), ("Tabloid", "tabloid"))
@@ -436,21 +437,28 @@ class ChartPanel(Panel):
         if not target:
             return
 
+        notes: list[str] = []
+
         def write() -> None:
-            table, notes = scored_table(self.session.model, self.session.table.frame)
+            table, raised = scored_table(self.session.model, self.session.table.frame)
             write_csv_safely(table, target)
+            notes.extend(raised)
 
-        self._write(write, target)
+        if self._write(write, target) and notes:
+            # What scoring had to decide about the values (as the command line prints it).
+            self.message.setText(f"<p>Saved {escape(Path(target).name)}.</p>"
+                                 + "".join(warning_html(n) for n in dict.fromkeys(notes)))
 
-    def _write(self, action, target: str) -> None:
+    def _write(self, action, target: str) -> bool:
         try:
             action()
         except InputError as exc:
             self.warn(str(exc))
-            return
+            return False
         except OSError as exc:
             self.warn(f"{Path(target).name} could not be saved ({exc.strerror}); choose another "
                       "folder.")
-            return
+            return False
         self.message.setText(f"Saved {Path(target).name}.")
+        return True
 
