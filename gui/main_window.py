@@ -19,7 +19,7 @@ from core.project import PROJECT_SUFFIX, check_data_file, load_project, save_pro
 from core.table import read_table
 from core.variables import dictionary_for
 from gui import workers
-from gui.panels.base import heading_font, with_advice
+from gui.panels.base import ask_save_path, heading_font, with_advice
 from gui.panels.chart import ChartPanel
 from gui.panels.checking import CheckingPanel
 from gui.panels.data import DATA_FILTER, DataPanel
@@ -337,23 +337,13 @@ class MainWindow(QMainWindow):
         return self._save_to(self.session.project_path)
 
     def save_as(self) -> bool:
-        start = self.session.project_path or ""
-        if not start and self.session.table is not None:
-            data = Path(self.session.table.provenance.path)
-            start = str(data.with_suffix(PROJECT_SUFFIX))
-        path, _ = QFileDialog.getSaveFileName(self, "Save the project", start, PROJECT_FILTER)
-        if not path:
-            return False
-        if not path.lower().endswith(PROJECT_SUFFIX):
-            path += PROJECT_SUFFIX
-        return self._save_to(path)
+        # Saving over the project itself is what Save does; only the data is protected.
+        path = ask_save_path(self, self.session, "Save the project", PROJECT_FILTER,
+                             PROJECT_SUFFIX, PROJECT_SUFFIX, start=self.session.project_path,
+                             protect_project=False)
+        return False if path is None else self._save_to(path)
 
     def _save_to(self, path: str) -> bool:
-        if self.session.table is not None and \
-                Path(path).resolve() == Path(self.session.table.provenance.path).resolve():
-            QMessageBox.warning(self, "Prunella", "That is the data file itself; choose another "
-                                "name for the project.")
-            return False
         try:
             save_project(self.session.to_project(), path)
         except OSError as exc:

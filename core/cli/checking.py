@@ -7,11 +7,11 @@ import sys
 
 from ..errors import InputError
 from ..model import TreeModel
-from ..safe_files import write_text_atomic
+from ..safe_files import refuse_overwrite, write_text_atomic
 from ..table import read_table
 from ..variables import DataDictionary, merge_dictionary
 from ..variables import dictionary_for
-from .common import dictionary_path, refuse_overwrite
+from .common import dictionary_path
 
 
 def add_parsers(sub) -> None:

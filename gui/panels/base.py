@@ -3,13 +3,17 @@ its content is out of date, and a way to ask the window to go to another step.""
 
 from __future__ import annotations
 
+from pathlib import Path
+
 from PySide6.QtCore import Qt, Signal
 from PySide6.QtGui import QFont
 from PySide6.QtWidgets import (
-    QFrame, QHBoxLayout, QLabel, QMessageBox, QPushButton, QSplitter, QVBoxLayout, QWidget,
+    QFileDialog, QFrame, QHBoxLayout, QLabel, QMessageBox, QPushButton, QSplitter, QVBoxLayout,
+    QWidget,
 )
 
 from core.messages import app_advice, app_wording
+from core.safe_files import names_an_input
 from gui import workers
 from gui.session import STEP_TITLES, STEPS, Session
 
@@ -59,6 +63,30 @@ def side_by_side(left: QWidget, right: QWidget, stretch: tuple[int, int],
         splitter.setSizes(list(sizes))
     splitter.setChildrenCollapsible(False)
     return splitter
+
+
+def ask_save_path(parent: QWidget, session: Session, caption: str, filter_text: str,
+                  ending: str, suffix: str | None = None, start: str | None = None,
+                  protect_project: bool = True) -> str | None:
+    """Ask where to save; None if the user cancels or names an input file (then says so).
+
+    The dialog starts at the data file's name with ``ending`` in place of its suffix (or at
+    ``start``); ``suffix`` is added when the name lacks it. The data file, and the project
+    file unless it is the one being saved, are never written over.
+    """
+    data = session.table.provenance.path if session.table is not None else None
+    if start is None:
+        start = "" if data is None else str(Path(data).with_name(Path(data).stem + ending))
+    path, _ = QFileDialog.getSaveFileName(parent, caption, start, filter_text)
+    if not path:
+        return None
+    if suffix and not path.lower().endswith(suffix):
+        path += suffix
+    if names_an_input(path, data, session.project_path if protect_project else None):
+        QMessageBox.warning(parent, "Prunella", "That is one of your input files (the data or "
+                            "the project); choose another name so it stays unchanged.")
+        return None
+    return path
 
 
 class Banner(QFrame):
@@ -154,6 +182,11 @@ class Panel(QWidget):
         closing, so no computation outlives it)."""
         if self.job is not None and self.job.running:
             self.job.cancel()
+
+    def ask_save_path(self, caption: str, filter_text: str, ending: str,
+                      suffix: str | None = None) -> str | None:
+        """Where to save one of this step's files (see the module function)."""
+        return ask_save_path(self, self.session, caption, filter_text, ending, suffix)
 
     def warn(self, text: str, title: str = "Prunella") -> None:
         """One clear message for the user (never a crash), with what to do about it."""

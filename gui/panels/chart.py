@@ -13,7 +13,7 @@ from PySide6.QtGui import QPainter
 from PySide6.QtPdf import QPdfDocument
 from PySide6.QtPrintSupport import QPrintDialog, QPrinter
 from PySide6.QtWidgets import (
-    QComboBox, QDialog, QDoubleSpinBox, QFileDialog, QFormLayout, QFrame, QGroupBox,
+    QComboBox, QDialog, QDoubleSpinBox, QFormLayout, QFrame, QGroupBox,
     QHBoxLayout, QLabel, QLineEdit, QPushButton, QScrollArea, QStackedWidget,
     QVBoxLayout, QWidget,
 )
@@ -337,23 +337,8 @@ class ChartPanel(Panel):
     # --- files ------------------------------------------------------------------------------
 
     def _save_name(self, caption: str, suffix: str, filter_text: str) -> str | None:
-        start = ""
-        if self.session.table is not None:
-            data = Path(self.session.table.provenance.path)
-            start = str(data.with_name(f"{data.stem}-{self.session.model.outcome.name}{suffix}"))
-        path, _ = QFileDialog.getSaveFileName(self, caption, start, filter_text)
-        if not path:
-            return None
-        if not path.lower().endswith(suffix):
-            path += suffix
-        inputs = [self.session.table.provenance.path] if self.session.table else []
-        if self.session.project_path:
-            inputs.append(self.session.project_path)
-        if any(Path(path).resolve() == Path(p).resolve() for p in inputs):
-            self.warn("That is one of your input files; choose another name so it stays "
-                      "unchanged.")
-            return None
-        return path
+        return self.ask_save_path(caption, filter_text,
+                                  f"-{self.session.model.outcome.name}{suffix}", suffix)
 
     def _with_pdf(self, action, title: str) -> None:
         """Run ``action`` on the current chart, drawing it first if it is not drawn yet."""

@@ -492,19 +492,9 @@ class CheckingPanel(Panel):
         chosen = self.session.chosen
         if chosen is None:
             return
-        start = ""
-        if self.session.table is not None:
-            data = Path(self.session.table.provenance.path)
-            start = str(data.with_name(f"{data.stem}-{chosen.model.outcome.name}-report.pdf"))
-        path, _ = QFileDialog.getSaveFileName(self, "Save the methods report", start,
-                                              "PDF (*.pdf)")
+        path = self.ask_save_path("Save the methods report", "PDF (*.pdf)",
+                                  f"-{chosen.model.outcome.name}-report.pdf", ".pdf")
         if not path:
-            return
-        if not path.lower().endswith(".pdf"):
-            path += ".pdf"
-        inputs = [self.session.table.provenance.path] if self.session.table else []
-        if any(Path(path).resolve() == Path(p).resolve() for p in inputs):
-            self.warn("That is the data file itself; choose another name for the report.")
             return
         derivation = self.session.chart_derivation()
         job = workers.Job(make_report, derivation, self._request(), tuple(self.checks),

@@ -308,18 +308,9 @@ class DataPanel(Panel):
     def save_dictionary(self) -> None:
         if self.session.dictionary is None:
             return
-        start = ""
-        if self.session.table is not None:
-            data = Path(self.session.table.provenance.path)
-            start = str(data.with_name(data.stem + ".dictionary.json"))
-        path, _ = QFileDialog.getSaveFileName(self, "Save the data dictionary", start,
-                                              DICTIONARY_FILTER)
+        path = self.ask_save_path("Save the data dictionary", DICTIONARY_FILTER,
+                                  ".dictionary.json")
         if not path:
-            return
-        if self.session.table is not None and \
-                Path(path).resolve() == Path(self.session.table.provenance.path).resolve():
-            self.warn("That is the data file itself; choose another name so the data stay "
-                      "unchanged.")
             return
         try:
             self.session.dictionary.save(path)
