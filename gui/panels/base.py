@@ -18,6 +18,20 @@ from gui import workers
 from gui.session import STEP_TITLES, STEPS, Session
 
 
+# How each size rule is said (the codes are core.pathcv's).
+SIZE_RULES = {"1se": "the smallest tree within one standard error (SE) of the lowest error",
+              "min": "the lowest cross-validated error", "user": "your choice"}
+
+
+def errors_beside(chosen: dict, sentence: bool = False) -> str:
+    """A size's cross-validated error ± SE with its training error beside it (from a model's
+    ``chosen`` record): the one wording, so training error is never shown alone."""
+    text = (f"cross-validated error {chosen['cv_risk']:.3f} ± {chosen['cv_se']:.3f} (one SE); "
+            f"training error {chosen['train_risk']:.3f} beside it, which always looks better "
+            "(it is measured on the patients the tree was grown on)")
+    return text[0].upper() + text[1:] if sentence else text
+
+
 def heading_font(widget: QWidget, factor: float = 1.45) -> QFont:
     font = QFont(widget.font())
     font.setPointSizeF(font.pointSizeF() * factor)

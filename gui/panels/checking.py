@@ -25,11 +25,8 @@ from core.stability import DEFAULT_RESAMPLES, bootstrap_stability
 from core.table import read_table
 from core.validate import check_table
 from gui import workers
-from gui.panels.base import Banner, Panel, explain, warning_html
+from gui.panels.base import SIZE_RULES, Banner, Panel, errors_beside, explain, warning_html
 from gui.panels.data import DATA_FILTER
-
-RULES = {"1se": "smallest within one standard error (SE) of the lowest error",
-         "min": "lowest cross-validated error", "user": "chosen by you"}
 
 
 def _table(rows: list[tuple[str, str]], header: tuple[str, str] | None = None) -> str:
@@ -43,11 +40,9 @@ def cross_validated_html(model) -> str:
     chosen, path = model.chosen, model.path
     folds = path.get("folds")
     return _table([
-        ("Size", f"{chosen['leaves']} outcome boxes ({RULES[chosen['rule']]})"),
+        ("Size", f"{chosen['leaves']} outcome boxes ({SIZE_RULES[chosen['rule']]})"),
         ("Error measured as", path["risk_measure"]),
-        ("Cross-validated error", f"{chosen['cv_risk']:.3f} ± {chosen['cv_se']:.3f} (one SE)"),
-        ("Training error, beside it", f"{chosen['train_risk']:.3f} (on the patients it was "
-                                      "grown on; always looks better)"),
+        ("Error", errors_beside(chosen, sentence=True)),
         ("How it was checked", path["cv"] + (f", {folds} fits on parts of the data" if folds else "")),
         ("Grown on", f"{model.n_rows:,} rows"),
     ])
@@ -454,9 +449,8 @@ class CheckingPanel(Panel):
                        f"</td><td align='right'>{f.test_risk:.3f}</td></tr>" for f in result.folds)
         cv = self.session.model.chosen
         self.nested_label.setText(
-            f"<p><b>{escape(result.summary())}</b></p><p>Beside it: cross-validated error "
-            f"{cv['cv_risk']:.3f} ± {cv['cv_se']:.3f} and training error {cv['train_risk']:.3f} "
-            "of the chosen size.</p>"
+            f"<p><b>{escape(result.summary())}</b></p><p>Beside it: "
+            f"{escape(errors_beside(cv))}, for the chosen size.</p>"
             "<table cellpadding='3' border='1' cellspacing='0'><tr><th>Outer part</th>"
             "<th>Patients tested</th><th>Size chosen inside</th><th>Error promised inside</th>"
             f"<th>Error on the outer part</th></tr>{rows}</table>"

@@ -21,7 +21,7 @@ from core.errors import InputError
 from core.messages import app_advice, app_wording
 from core.resample import CVSettings
 from gui import workers
-from gui.panels.base import Banner, Panel, explain, side_by_side
+from gui.panels.base import SIZE_RULES, Banner, Panel, errors_beside, explain, side_by_side
 from gui.widgets.curve import CurveCanvas, CurveData
 
 CRITERIA = {
@@ -34,8 +34,6 @@ PLANS = (
     ("One site at a time (leave-one-site-out)", "site"),
     ("One validation split", "split"),
 )
-RULE_WORDS = {"1se": "the smallest tree within one standard error of the lowest error",
-              "min": "the lowest cross-validated error", "user": "your choice"}
 
 
 def run_derivation(table, dictionary, request, size, progress=None, cancel=None):
@@ -586,10 +584,8 @@ class SizePanel(Panel):
         self.size_combo.setCurrentIndex(index)
         self.size_combo.blockSignals(blocker)
         self.choice.setText(
-            f"<b>Chosen: {chosen['leaves']} outcome boxes</b> ({RULE_WORDS[chosen['rule']]}). "
-            f"Cross-validated error {chosen['cv_risk']:.3f} ± {chosen['cv_se']:.3f} (SE); "
-            f"training error {chosen['train_risk']:.3f}, which always looks better. "
-            f"Checked by {model.path['cv']}.")
+            f"<b>Chosen: {chosen['leaves']} outcome boxes</b> ({SIZE_RULES[chosen['rule']]}). "
+            f"{errors_beside(chosen, sentence=True)}. Checked by {model.path['cv']}.")
 
     def choose_size(self, leaves: int) -> None:
         """Take another size from the same run (no refit): the tree view updates at once."""
