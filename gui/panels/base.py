@@ -8,8 +8,8 @@ from pathlib import Path
 from PySide6.QtCore import Qt, Signal
 from PySide6.QtGui import QFont
 from PySide6.QtWidgets import (
-    QFileDialog, QFrame, QHBoxLayout, QLabel, QMessageBox, QPushButton, QSplitter, QVBoxLayout,
-    QWidget,
+    QFileDialog, QFrame, QHBoxLayout, QLabel, QMessageBox, QPushButton, QScrollArea, QSplitter,
+    QVBoxLayout, QWidget,
 )
 
 from core.messages import app_advice, app_wording
@@ -101,6 +101,19 @@ def ask_save_path(parent: QWidget, session: Session, caption: str, filter_text: 
                             "the project); choose another name so it stays unchanged.")
         return None
     return path
+
+
+def scrolling(widget: QWidget, across: bool = False) -> QScrollArea:
+    """A part of a step that scrolls when the window is small: no frame of its own, Tab goes
+    to the controls inside (not the frame), and up and down only unless ``across``."""
+    scroll = QScrollArea()
+    scroll.setWidget(widget)
+    scroll.setWidgetResizable(True)
+    scroll.setFocusPolicy(Qt.NoFocus)
+    scroll.setFrameShape(QFrame.NoFrame)
+    if not across:
+        scroll.setHorizontalScrollBarPolicy(Qt.ScrollBarAlwaysOff)
+    return scroll
 
 
 class Banner(QFrame):

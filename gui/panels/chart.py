@@ -13,9 +13,8 @@ from PySide6.QtGui import QPainter
 from PySide6.QtPdf import QPdfDocument
 from PySide6.QtPrintSupport import QPrintDialog, QPrinter
 from PySide6.QtWidgets import (
-    QComboBox, QDialog, QDoubleSpinBox, QFormLayout, QFrame, QGroupBox,
-    QHBoxLayout, QLabel, QLineEdit, QPushButton, QScrollArea, QStackedWidget,
-    QVBoxLayout, QWidget,
+    QComboBox, QDialog, QDoubleSpinBox, QFormLayout, QGroupBox, QHBoxLayout, QLabel, QLineEdit,
+    QPushButton, QStackedWidget, QVBoxLayout, QWidget,
 )
 
 from core.cautions import CAUTION_TITLE, CAUTIONS
@@ -24,7 +23,7 @@ from core.errors import InputError
 from core.safe_files import write_bytes_atomic, write_csv_safely, write_text_atomic
 from core.scoring import scored_table
 from gui import workers
-from gui.panels.base import Panel, explain, heading_font, side_by_side, warning_html
+from gui.panels.base import Panel, explain, heading_font, scrolling, side_by_side, warning_html
 from gui.widgets.pdf_preview import PdfPreview
 
 PAPERS = (("A4", "a4"), ("US Letter", "letter"), ("A3", "a3"), ("Tabloid", "tabloid"))
@@ -156,12 +155,7 @@ class ChartPanel(Panel):
         left_layout.addWidget(cautions_widget())
         left_layout.addWidget(other)
         left_layout.addStretch(1)
-        scroll = QScrollArea()
-        scroll.setWidget(left)
-        scroll.setWidgetResizable(True)
-        scroll.setFocusPolicy(Qt.NoFocus)  # tab goes to the controls inside, not the frame
-        scroll.setFrameShape(QFrame.NoFrame)
-        scroll.setHorizontalScrollBarPolicy(Qt.ScrollBarAlwaysOff)
+        scroll = scrolling(left)
         scroll.setMinimumWidth(330)
 
         self.document = QPdfDocument(self)

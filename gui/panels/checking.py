@@ -13,7 +13,7 @@ from matplotlib.backends.backend_qtagg import FigureCanvasQTAgg
 from PySide6.QtCore import Qt
 from PySide6.QtWidgets import (
     QCheckBox, QFileDialog, QFrame, QGroupBox, QHBoxLayout, QLabel, QProgressBar, QPushButton,
-    QScrollArea, QSizePolicy, QSpinBox, QVBoxLayout, QWidget,
+    QSizePolicy, QSpinBox, QVBoxLayout, QWidget,
 )
 
 from core.cautions import UNCHECKED_BANNER, UNCHECKED_DETAIL
@@ -25,7 +25,9 @@ from core.stability import DEFAULT_RESAMPLES, bootstrap_stability
 from core.table import read_table
 from core.validate import check_table
 from gui import workers
-from gui.panels.base import SIZE_RULES, Banner, Panel, errors_beside, explain, warning_html
+from gui.panels.base import (
+    SIZE_RULES, Banner, Panel, errors_beside, explain, scrolling, warning_html,
+)
 from gui.panels.data import DATA_FILTER
 
 
@@ -236,11 +238,7 @@ class CheckingPanel(Panel):
         for box in (cv_box, checks_box, nested_box, stability_box, report_box):
             inner_layout.addWidget(box)
         inner_layout.addStretch(1)
-        scroll = QScrollArea()
-        scroll.setWidget(inner)
-        scroll.setWidgetResizable(True)
-        scroll.setFrameShape(QFrame.NoFrame)
-        scroll.setFocusPolicy(Qt.NoFocus)
+        scroll = scrolling(inner, across=True)  # wide tables and plots may scroll sideways
         self.add_tree_content(scroll)
         self.body.addLayout(work_row)
         self.body.addWidget(self.status)

@@ -340,8 +340,6 @@ class DataPanel(Panel):
         self.file_label.setToolTip(f"{p.path}\nSHA-256 (the file's fingerprint): {p.sha256}")
         notes = list(dict.fromkeys(list(p.warnings) + list(self.session.notes)))
         findings = [note_finding(n) for n in notes]
-        order = {"refused": 0, "warning": 1, "note": 2}
-        findings.sort(key=lambda f: order[f.severity])  # what to check first, first
         if not findings:
             findings = [Finding("note", "Nothing to check: every column was read without "
                                 "surprises.")]

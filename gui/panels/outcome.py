@@ -14,7 +14,7 @@ from PySide6.QtWidgets import (
 from core.design import DesignSpec, suggest_task
 from core.messages import app_advice, app_wording
 from core.variables import CATEGORY_KINDS, PREDICTOR_KINDS, positive_level
-from gui.guard_watch import GuardWatch
+from gui.guard_watch import GuardWatch, offered_columns
 from gui.panels.base import Panel, explain, side_by_side
 from gui.widgets.checklist import Checklist
 from gui.widgets.dictionary_model import KIND_WORDS
@@ -249,14 +249,15 @@ class OutcomePanel(Panel):
             return
         taken = set() if design is None else {design.outcome, design.patient_id, design.site}
         items = []
-        for spec in dictionary.columns:
-            if spec.kind in PREDICTOR_KINDS and spec.name not in taken:
-                tip = f"{spec.name}: {KIND_WORDS[spec.kind]}"
-                if spec.unit:
-                    tip += f", in {spec.unit}"
-                if spec.note:
-                    tip += f". {spec.note}"
-                items.append((spec.name, column_text(spec), tip))
+        specs = {spec.name: spec for spec in dictionary.columns}
+        for name in offered_columns(dictionary, design):
+            spec = specs[name]
+            tip = f"{spec.name}: {KIND_WORDS[spec.kind]}"
+            if spec.unit:
+                tip += f", in {spec.unit}"
+            if spec.note:
+                tip += f". {spec.note}"
+            items.append((spec.name, column_text(spec), tip))
         suggested = tuple(c.name for c in dictionary.by_role("predictor") if c.name not in taken)
         checked = () if design is None else design.predictors
         self.checklist.set_items(items, checked, suggested)
@@ -376,8 +377,7 @@ class OutcomePanel(Panel):
         if screen.error:
             rows.append(Finding("refused", "The checks could not be made: " + screen.error,
                                 None, kind="error"))
-        order = {"refused": 0, "warning": 1, "note": 2}
-        return sorted(rows, key=lambda r: order[r.severity])
+        return rows  # FindingsView puts the most serious first
 
     def show_guards(self) -> None:
         session = self.session

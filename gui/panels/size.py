@@ -9,19 +9,19 @@ from html import escape
 
 from PySide6.QtCore import Qt, Signal
 from PySide6.QtWidgets import (
-    QCheckBox, QComboBox, QFormLayout, QFrame, QGroupBox, QHBoxLayout, QLabel,
-    QProgressBar, QPushButton, QScrollArea, QSizePolicy, QSpinBox, QVBoxLayout,
-    QWidget,
+    QCheckBox, QComboBox, QFormLayout, QGroupBox, QHBoxLayout, QLabel, QProgressBar, QPushButton,
+    QSizePolicy, QSpinBox, QVBoxLayout, QWidget,
 )
 
 from core.chart import sizes_that_fit
 from core.chart.options import PAPER_NAMES, default_min_text
 from core.derive import choose_model, derive
 from core.errors import InputError
-from core.messages import app_advice, app_wording
 from core.resample import CVSettings
 from gui import workers
-from gui.panels.base import SIZE_RULES, Banner, Panel, errors_beside, explain, side_by_side
+from gui.panels.base import (
+    SIZE_RULES, Banner, Panel, errors_beside, explain, scrolling, side_by_side, with_advice,
+)
 from gui.widgets.curve import CurveCanvas, CurveData
 
 CRITERIA = {
@@ -169,12 +169,7 @@ class SizePanel(Panel):
         settings_layout.addWidget(grow_box)
         settings_layout.addWidget(check_box)
         settings_layout.addStretch(1)
-        scroll = QScrollArea()
-        scroll.setWidget(settings)
-        scroll.setWidgetResizable(True)
-        scroll.setFocusPolicy(Qt.NoFocus)  # tab goes to the controls inside, not the frame
-        scroll.setFrameShape(QFrame.NoFrame)
-        scroll.setHorizontalScrollBarPolicy(Qt.ScrollBarAlwaysOff)
+        scroll = scrolling(settings)
         left = QWidget()
         left_layout = QVBoxLayout(left)
         left_layout.setContentsMargins(0, 0, 0, 0)
@@ -446,9 +441,7 @@ class SizePanel(Panel):
         seconds = time.monotonic() - self._started
         text = f"Done in {seconds:.1f} s. {len(derivation.path.leaves)} sizes on the pruning path."
         for note in derivation.notes:
-            advice = app_advice(note)
-            text += " " + (app_wording(note) or note) + (f" (What to do: {advice})" if advice
-                                                         else "")
+            text += " " + with_advice(note)
         if expected is not None:
             if reproduced:
                 text += (" This is exactly the tree saved in the project (fingerprint "
