@@ -137,10 +137,8 @@ class MainWindow(QMainWindow):
         self.statusBar().addPermanentWidget(self.fingerprints)
 
         self._make_menus()
+        # Every change of data, design, result or chosen size emits state_changed (Session._touch).
         self.session.state_changed.connect(self.update_state)
-        self.session.result_changed.connect(self.update_state)
-        self.session.chosen_changed.connect(self.update_state)
-        self.session.data_changed.connect(self.update_state)
         self.steps.setCurrentRow(0)
         self._restore()
         self.update_state()

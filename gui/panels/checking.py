@@ -118,7 +118,7 @@ class CheckingPanel(Panel):
         self._busy = False
         self._pending_path: str | None = None
         self.checks: list = []  # ValidationResults for the chosen tree (held-out first)
-        self._external_paths: list[str] = []  # files checked on, redone when the size changes
+        self._external_path: str | None = None  # the file checked on, redone for a new size
         self.nested = None
         self.stability = None
 
@@ -255,7 +255,7 @@ class CheckingPanel(Panel):
 
     def _result_changed(self) -> None:
         if self.session.chosen is None:  # a new or reopened project: its own checks only
-            self._external_paths.clear()
+            self._external_path = None
             self._pending_path = None
         self._chosen_changed()
 
@@ -272,10 +272,9 @@ class CheckingPanel(Panel):
             self.checks.append(chosen.heldout_check)  # made by core when the size was chosen
         self.session.set_check(None)
         self.refresh()
-        if chosen is not None and self._external_paths:
-            # The latest file is checked again for the new tree, once the panel is free.
-            self._pending_path = self._external_paths[-1]
-            self._external_paths = []
+        if chosen is not None and self._external_path is not None:
+            # The file is checked again for the new tree, once the panel is free.
+            self._pending_path, self._external_path = self._external_path, None
             if not self._busy:
                 self._start_pending()
 
@@ -417,7 +416,7 @@ class CheckingPanel(Panel):
         if self.session.model is None or self._checking_model is not self.session.model:
             return  # the tree changed meanwhile; this check belongs to the old one
         self.checks = [r for r in self.checks if r.kind != "external"] + [result]
-        self._external_paths = [self.job.path]
+        self._external_path = self.job.path
         self.status.setText(f"Checked on {result.n:,} visits from {result.source}.")
         self._show_checks()
         self._chart_check_changed()

@@ -270,20 +270,24 @@ class OutcomePanel(Panel):
         name = self.outcome_combo.currentData()
         dictionary = self.session.dictionary
         if not name or dictionary is None:
-            self.session.set_design(None)
-            self._fill(None)
-            return
-        spec = dictionary.get(name)
-        old = self.session.design
-        task = suggest_task(spec)
-        predictors = tuple(p for p in (old.predictors if old else
-                                       tuple(c.name for c in dictionary.by_role("predictor")))
-                           if p != name)
-        design = DesignSpec(name, predictors, task=task,
-                            positive=self._default_positive(spec) if task == "classification" else None,
-                            patient_id=None if old is None or old.patient_id == name else old.patient_id,
-                            site=None if old is None or old.site == name else old.site)
-        self.session.set_design(design)
+            design = None
+        else:
+            spec = dictionary.get(name)
+            old = self.session.design
+            task = suggest_task(spec)
+            predictors = tuple(p for p in (old.predictors if old else
+                                           tuple(c.name for c in dictionary.by_role("predictor")))
+                               if p != name)
+            design = DesignSpec(
+                name, predictors, task=task,
+                positive=self._default_positive(spec) if task == "classification" else None,
+                patient_id=None if old is None or old.patient_id == name else old.patient_id,
+                site=None if old is None or old.site == name else old.site)
+        self._writing = True  # the form is filled once, below, not again by refresh()
+        try:
+            self.session.set_design(design)
+        finally:
+            self._writing = False
         self._fill(design)
 
     def _write_back(self, *_args) -> None:

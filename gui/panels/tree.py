@@ -59,7 +59,6 @@ class TreePanel(Panel):
     def __init__(self, session, parent=None) -> None:
         super().__init__(session, parent)
         self._fields: dict[str, QWidget] = {}
-        self._writing = False
 
         self.view = TreeView()
         self.view.setAccessibleName("The tree")

@@ -70,9 +70,6 @@ class CurveCanvas(FigureCanvasQTAgg):
         self._chosen = chosen
         self._redraw()
 
-    def paintEvent(self, event) -> None:  # noqa: N802
-        super().paintEvent(event)
-
     def legend_texts(self) -> list[str]:
         return [t.get_text() for legend in self.figure.legends for t in legend.get_texts()]
 
