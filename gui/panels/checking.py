@@ -465,8 +465,8 @@ class CheckingPanel(Panel):
     def _stability_done(self, result) -> None:
         self.stability = result
         rows = "".join(f"<tr><td>{escape(q.text)}</td><td align='right'>{q.box}</td>"
-                       f"<td align='right'>{q.anywhere / result.resamples:.0%}</td>"
-                       f"<td align='right'>{q.in_place / result.resamples:.0%}</td></tr>"
+                       f"<td align='right'>{q.share_anywhere:.0%}</td>"
+                       f"<td align='right'>{q.share_in_place:.0%}</td></tr>"
                        for q in result.questions)
         self.stability_label.setText(
             f"<p><b>{escape(result.summary())}</b></p>"
