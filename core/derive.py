@@ -7,6 +7,7 @@ each user path runs exactly the same code.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING
 
 import numpy as np
 import pandas as pd
@@ -23,6 +24,9 @@ from .table import LoadedTable
 from .thresholds import round_threshold
 from .values import parse_dates
 from .variables import DataDictionary
+
+if TYPE_CHECKING:  # validate reads Derivation objects, so it is imported only where needed
+    from .validate import ValidationResult
 
 
 @dataclass(frozen=True)
@@ -65,6 +69,8 @@ class Derivation:
     path: CrossValidatedPath = field(repr=False)
     model: TreeModel = field(repr=False)
     notes: tuple[str, ...] = ()
+    # The chosen tree's check on the held-out rows, made once here so no caller redoes it.
+    heldout_check: "ValidationResult | None" = field(default=None, repr=False)
 
 
 def derive(table: LoadedTable, dictionary: DataDictionary, request: DerivationRequest,
@@ -91,9 +97,9 @@ def derive(table: LoadedTable, dictionary: DataDictionary, request: DerivationRe
     model = build_model(path, index, rule, table, dictionary, request)
     derivation = Derivation(request, table, dictionary, data, heldout, path, model, tuple(notes))
     if heldout is not None:
-        model = _with_heldout_check(derivation)
+        model, check = _with_heldout_check(derivation)
         derivation = Derivation(request, table, dictionary, data, heldout, path, model,
-                                tuple(notes))
+                                tuple(notes), heldout_check=check)
     return derivation
 
 
@@ -106,10 +112,10 @@ def choose_model(derivation: Derivation, size: str | int) -> Derivation:
                         derivation.data, derivation.heldout, derivation.path, model,
                         derivation.notes)
     if derivation.heldout is not None:
-        model = _with_heldout_check(chosen)
+        model, check = _with_heldout_check(chosen)
         chosen = Derivation(derivation.request, derivation.table, derivation.dictionary,
                             derivation.data, derivation.heldout, derivation.path, model,
-                            derivation.notes)
+                            derivation.notes, heldout_check=check)
     return chosen
 
 
@@ -282,8 +288,10 @@ def _cohort(frame: pd.DataFrame, dictionary: DataDictionary, data: AnalysisData,
     return cohort
 
 
-def _with_heldout_check(derivation: Derivation) -> TreeModel:
-    """The chosen tree with its check on the rows set aside before growing recorded."""
+def _with_heldout_check(derivation: Derivation) -> tuple[TreeModel, "ValidationResult"]:
+    """The chosen tree with its check on the rows set aside before growing recorded, and
+    that check."""
     from .validate import check_heldout, with_validation  # validate reads Derivation objects
 
-    return with_validation(derivation.model, check_heldout(derivation))
+    check = check_heldout(derivation)
+    return with_validation(derivation.model, check), check

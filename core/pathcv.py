@@ -11,7 +11,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 from functools import cached_property
-from typing import Callable
+from typing import Callable, Sequence
 
 import numpy as np
 from joblib import Parallel, delayed
@@ -50,6 +50,13 @@ class GrownModel:
         return self.tree.estimator.decision_path(self.matrix).tocsc()
 
 
+def one_se_limit(cv_risk: Sequence[float] | np.ndarray, cv_se: Sequence[float] | np.ndarray,
+                 min_index: int) -> float:
+    """The 1-SE rule's limit: the lowest cross-validated error plus its standard error. Kept
+    apart so a saved model's path (lists, as in ``TreeModel.path``) is read the same way."""
+    return float(cv_risk[min_index] + cv_se[min_index])
+
+
 @dataclass(frozen=True)
 class CrossValidatedPath:
     """CV risk and its SE for every subtree of the full-data sequence."""
@@ -84,8 +91,7 @@ class CrossValidatedPath:
     @property
     def one_se_index(self) -> int:
         """The smallest tree whose CV risk is within one SE of the minimum (1-SE rule)."""
-        k = self.min_index
-        limit = self.cv_risk[k] + self.cv_se[k]
+        limit = one_se_limit(self.cv_risk, self.cv_se, self.min_index)
         return int(np.flatnonzero(self.cv_risk <= limit * (1 + 1e-12) + 1e-15).max())
 
     def index_for(self, size: str | int) -> tuple[int, str]:

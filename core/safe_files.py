@@ -182,3 +182,19 @@ def read_json_document(path: str | Path, kind: str, versions: tuple[int, ...] = 
         raise InputError(say("file.not_json", file=path.name, what=what, detail=detail)) from None
     check_format(data, kind, versions, path.name)
     return data
+
+
+# --- never writing over an input ----------------------------------------------------------
+
+
+def names_an_input(target: str | Path, *sources: str | Path | None) -> bool:
+    """True if ``target`` is one of the existing input files (the same file by any path)."""
+    return any(source and Path(source).exists()
+               and Path(target).resolve() == Path(source).resolve() for source in sources)
+
+
+def refuse_overwrite(target: str | None, *sources: str) -> None:
+    """Refuse an output path that names one of the inputs."""
+    if target is not None and names_an_input(target, *sources):
+        raise InputError(f"{target} is an input file; choose another name for the output "
+                         "so the input stays unchanged.")

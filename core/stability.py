@@ -57,6 +57,17 @@ class QuestionRecurrence:
     text: str
     anywhere: int
     in_place: int
+    resamples: int  # how many refits it was counted over (at least one)
+
+    @property
+    def share_anywhere(self) -> float:
+        """Share of the refits that asked this question anywhere in the tree."""
+        return self.anywhere / self.resamples
+
+    @property
+    def share_in_place(self) -> float:
+        """Share of the refits that asked it in the same place (same path from the top)."""
+        return self.in_place / self.resamples
 
 
 @dataclass(frozen=True)
@@ -253,7 +264,7 @@ def bootstrap_stability(data: AnalysisData, request: "DerivationRequest", model:
     uses = sorted((PredictorUse(c, labels[c], first[c], asked[c]) for c in names),
                   key=lambda u: (-u.first, -u.anywhere, names.index(u.column)))
     questions = tuple(QuestionRecurrence(n.id, n.question.column, n.text, anywhere[n.id],
-                                         in_place[n.id]) for n in model.nodes if not n.leaf)
+                                         in_place[n.id], resamples) for n in model.nodes if not n.leaf)
     return Stability(resamples=resamples, patient_level=patient_level, seed=seed,
                      tolerance=tolerance, predictors=tuple(uses), questions=questions,
                      leaves=tuple(sorted(sizes)), no_question=no_question)

@@ -302,10 +302,15 @@ def dictionary_beside(path: str | Path) -> Path | None:
     return None
 
 
-def dictionary_for(table, dictionary_path: str | Path | None = None) -> tuple[DataDictionary, list[str]]:
-    """The dictionary of a loaded table: inferred from its cells, overridden column by column
-    by a saved dictionary file if one is given; with the notes of both steps."""
+def dictionary_for(table, dictionary_path: str | Path | DataDictionary | None = None,
+                   ) -> tuple[DataDictionary, list[str]]:
+    """The dictionary of a loaded table: inferred from its cells (notes naming rows), overridden
+    column by column by a saved dictionary (a file, or one already in hand such as a
+    project's) if one is given; with the notes of both steps."""
     inferred, notes = infer_dictionary(table.frame, table.row_numbers)
+    if isinstance(dictionary_path, DataDictionary):
+        merged, more = merge_dictionary(inferred, dictionary_path)
+        return merged, notes + more
     if dictionary_path:
         merged, more = merge_dictionary(inferred, DataDictionary.load(dictionary_path))
         return merged, [say("dictionary.used", file=Path(dictionary_path).name)] + notes + more

@@ -51,10 +51,10 @@ class Screen:
                                                  if f.severity != "note")
 
 
-def offered_columns(dictionary: DataDictionary, design: DesignSpec) -> tuple[str, ...]:
+def offered_columns(dictionary: DataDictionary, design: DesignSpec | None) -> tuple[str, ...]:
     """The columns step 2 offers as predictors (what a tree can ask about, minus the outcome,
-    the patient identifier and the site)."""
-    taken = {design.outcome, design.patient_id, design.site}
+    the patient identifier and the site; all of them before an outcome is chosen)."""
+    taken = set() if design is None else {design.outcome, design.patient_id, design.site}
     return tuple(c.name for c in dictionary.columns
                  if c.kind in PREDICTOR_KINDS and c.name not in taken)
 

@@ -17,9 +17,9 @@ from core.cautions import CAUTION_TITLE, CAUTIONS
 from core.errors import InputError
 from core.project import PROJECT_SUFFIX, check_data_file, load_project, save_project
 from core.table import read_table
-from core.variables import infer_dictionary, merge_dictionary
+from core.variables import dictionary_for
 from gui import workers
-from gui.panels.base import heading_font, with_advice
+from gui.panels.base import ask_save_path, heading_font, with_advice
 from gui.panels.chart import ChartPanel
 from gui.panels.checking import CheckingPanel
 from gui.panels.data import DATA_FILTER, DataPanel
@@ -39,13 +39,8 @@ def read_for_project(project, path: str):
     notes = list(table.provenance.warnings)
     dictionary = project.dictionary
     if dictionary is None or tuple(table.frame.columns) != dictionary.names:
-        inferred, more = infer_dictionary(table.frame)
+        dictionary, more = dictionary_for(table, dictionary)
         notes += more
-        if dictionary is not None:
-            dictionary, merged_notes = merge_dictionary(inferred, dictionary)
-            notes += merged_notes
-        else:
-            dictionary = inferred
     return table, dictionary, tuple(notes)
 
 
@@ -142,10 +137,8 @@ class MainWindow(QMainWindow):
         self.statusBar().addPermanentWidget(self.fingerprints)
 
         self._make_menus()
+        # Every change of data, design, result or chosen size emits state_changed (Session._touch).
         self.session.state_changed.connect(self.update_state)
-        self.session.result_changed.connect(self.update_state)
-        self.session.chosen_changed.connect(self.update_state)
-        self.session.data_changed.connect(self.update_state)
         self.steps.setCurrentRow(0)
         self._restore()
         self.update_state()
@@ -342,23 +335,13 @@ class MainWindow(QMainWindow):
         return self._save_to(self.session.project_path)
 
     def save_as(self) -> bool:
-        start = self.session.project_path or ""
-        if not start and self.session.table is not None:
-            data = Path(self.session.table.provenance.path)
-            start = str(data.with_suffix(PROJECT_SUFFIX))
-        path, _ = QFileDialog.getSaveFileName(self, "Save the project", start, PROJECT_FILTER)
-        if not path:
-            return False
-        if not path.lower().endswith(PROJECT_SUFFIX):
-            path += PROJECT_SUFFIX
-        return self._save_to(path)
+        # Saving over the project itself is what Save does; only the data is protected.
+        path = ask_save_path(self, self.session, "Save the project", PROJECT_FILTER,
+                             PROJECT_SUFFIX, PROJECT_SUFFIX, start=self.session.project_path,
+                             protect_project=False)
+        return False if path is None else self._save_to(path)
 
     def _save_to(self, path: str) -> bool:
-        if self.session.table is not None and \
-                Path(path).resolve() == Path(self.session.table.provenance.path).resolve():
-            QMessageBox.warning(self, "Prunella", "That is the data file itself; choose another "
-                                "name for the project.")
-            return False
         try:
             save_project(self.session.to_project(), path)
         except OSError as exc:
@@ -433,10 +416,10 @@ class MainWindow(QMainWindow):
         if not self._may_discard():
             event.ignore()
             return
-        for panel in (self.panels["size"], self.panels["data"], self.panels["chart"],
-                      self.panels["outcome"]):
-            if panel.job is not None and panel.job.running:
-                panel.job.cancel()
+        for panel in self.panels.values():
+            panel.stop_work()
+        if self._project_job is not None and self._project_job.running:
+            self._project_job.cancel()
         self.settings.setValue("window/geometry", self.saveGeometry())
         self.settings.sync()
         event.accept()

@@ -8,7 +8,8 @@ from typing import TYPE_CHECKING
 from ..chart.options import ORIENTATIONS, PAPER_SIZES, ChartOptions, default_min_text
 from ..errors import InputError
 from ..model import TreeModel
-from .common import csv_list, refuse_overwrite
+from ..safe_files import refuse_overwrite
+from .common import csv_list
 
 if TYPE_CHECKING:
     from ..derive import Derivation

@@ -8,13 +8,12 @@ import sys
 from ..errors import InputError
 from ..model import TreeModel
 from ..nested import DEFAULT_OUTER_FOLDS
-from ..safe_files import write_text_atomic
+from ..safe_files import refuse_overwrite, write_text_atomic
 from ..stability import DEFAULT_RESAMPLES
 from ..table import read_table
-from ..variables import DataDictionary, merge_dictionary
-from ..variables import dictionary_for
+from ..variables import DataDictionary, dictionary_for, merge_dictionary
 from ..words import short_fingerprint
-from .common import dictionary_path, refuse_overwrite
+from .common import dictionary_path
 
 
 def add_parsers(sub) -> None:

@@ -1,12 +1,9 @@
-"""What every subcommand shares: one-sentence errors with exit status 2, list options, and
-never writing over an input file."""
+"""What every subcommand shares: one-sentence errors with exit status 2, list options, and the
+dictionary file to use (never writing over an input is core.safe_files.refuse_overwrite)."""
 
 from __future__ import annotations
 
 import argparse
-from pathlib import Path
-
-from ..errors import InputError
 
 EXIT_BAD_INPUT = 2
 
@@ -19,16 +16,6 @@ class Parser(argparse.ArgumentParser):
 def csv_list(text: str | None) -> tuple[str, ...]:
     """'a, b,c' as ('a', 'b', 'c')."""
     return tuple(part.strip() for part in text.split(",") if part.strip()) if text else ()
-
-
-def refuse_overwrite(target: str | None, *sources: str) -> None:
-    """Refuse an output path that names one of the inputs."""
-    if target is None:
-        return
-    for source in sources:
-        if Path(source).exists() and Path(target).resolve() == Path(source).resolve():
-            raise InputError(f"{target} is an input file; choose another name for the output "
-                             "so the input stays unchanged.")
 
 
 DICTIONARY_HELP = ("data dictionary (JSON or CSV) with roles, kinds, labels, units; default: "

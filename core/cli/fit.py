@@ -16,12 +16,12 @@ from ..design import DesignSpec
 from ..errors import InputError
 from ..messages import distinct_messages, explain
 from ..model import TreeModel
-from ..safe_files import write_csv_safely, write_text_atomic
+from ..safe_files import refuse_overwrite, write_csv_safely, write_text_atomic
 from ..table import read_table
 from ..variables import DataDictionary
 from .chart import add_fit_chart_options, fit_chart
 from ..variables import dictionary_for
-from .common import DICTIONARY_HELP, csv_list, dictionary_path, refuse_overwrite
+from .common import DICTIONARY_HELP, csv_list, dictionary_path
 
 if TYPE_CHECKING:  # scikit-learn loads only when a tree is grown, so bad input is refused fast
     from ..derive import Derivation, DerivationRequest

@@ -3,14 +3,33 @@ its content is out of date, and a way to ask the window to go to another step.""
 
 from __future__ import annotations
 
+from pathlib import Path
+
 from PySide6.QtCore import Qt, Signal
 from PySide6.QtGui import QFont
 from PySide6.QtWidgets import (
-    QFrame, QHBoxLayout, QLabel, QMessageBox, QPushButton, QSplitter, QVBoxLayout, QWidget,
+    QFileDialog, QFrame, QHBoxLayout, QLabel, QMessageBox, QPushButton, QScrollArea, QSplitter,
+    QVBoxLayout, QWidget,
 )
 
 from core.messages import app_advice, app_wording
+from core.safe_files import names_an_input
+from gui import workers
 from gui.session import STEP_TITLES, STEPS, Session
+
+
+# How each size rule is said (the codes are core.pathcv's).
+SIZE_RULES = {"1se": "the smallest tree within one standard error (SE) of the lowest error",
+              "min": "the lowest cross-validated error", "user": "your choice"}
+
+
+def errors_beside(chosen: dict, sentence: bool = False) -> str:
+    """A size's cross-validated error ± SE with its training error beside it (from a model's
+    ``chosen`` record): the one wording, so training error is never shown alone."""
+    text = (f"cross-validated error {chosen['cv_risk']:.3f} ± {chosen['cv_se']:.3f} (one SE); "
+            f"training error {chosen['train_risk']:.3f} beside it, which always looks better "
+            "(it is measured on the patients the tree was grown on)")
+    return text[0].upper() + text[1:] if sentence else text
 
 
 def heading_font(widget: QWidget, factor: float = 1.45) -> QFont:
@@ -60,6 +79,43 @@ def side_by_side(left: QWidget, right: QWidget, stretch: tuple[int, int],
     return splitter
 
 
+def ask_save_path(parent: QWidget, session: Session, caption: str, filter_text: str,
+                  ending: str, suffix: str | None = None, start: str | None = None,
+                  protect_project: bool = True) -> str | None:
+    """Ask where to save; None if the user cancels or names an input file (then says so).
+
+    The dialog starts at the data file's name with ``ending`` in place of its suffix (or at
+    ``start``); ``suffix`` is added when the name lacks it. The data file, and the project
+    file unless it is the one being saved, are never written over.
+    """
+    data = session.table.provenance.path if session.table is not None else None
+    if start is None:
+        start = "" if data is None else str(Path(data).with_name(Path(data).stem + ending))
+    path, _ = QFileDialog.getSaveFileName(parent, caption, start, filter_text)
+    if not path:
+        return None
+    if suffix and not path.lower().endswith(suffix):
+        path += suffix
+    if names_an_input(path, data, session.project_path if protect_project else None):
+        QMessageBox.warning(parent, "Prunella", "That is one of your input files (the data or "
+                            "the project); choose another name so it stays unchanged.")
+        return None
+    return path
+
+
+def scrolling(widget: QWidget, across: bool = False) -> QScrollArea:
+    """A part of a step that scrolls when the window is small: no frame of its own, Tab goes
+    to the controls inside (not the frame), and up and down only unless ``across``."""
+    scroll = QScrollArea()
+    scroll.setWidget(widget)
+    scroll.setWidgetResizable(True)
+    scroll.setFocusPolicy(Qt.NoFocus)
+    scroll.setFrameShape(QFrame.NoFrame)
+    if not across:
+        scroll.setHorizontalScrollBarPolicy(Qt.ScrollBarAlwaysOff)
+    return scroll
+
+
 class Banner(QFrame):
     """A notice across the top of a panel: text (with a symbol, never colour alone) and a button."""
 
@@ -94,6 +150,7 @@ class Panel(QWidget):
     step = "data"
     intro = ""
     go_to = Signal(str)  # ask the window to show another step
+    job: workers.Job | None = None  # the step's latest background work, if it has any
 
     def __init__(self, session: Session, parent=None) -> None:
         super().__init__(parent)
@@ -146,6 +203,17 @@ class Panel(QWidget):
         else:
             self.no_tree.show_text("No tree yet: run step 3 to grow one.")
         return has_tree
+
+    def stop_work(self) -> None:
+        """Cancel the step's background work (the window calls this for every step on
+        closing, so no computation outlives it)."""
+        if self.job is not None and self.job.running:
+            self.job.cancel()
+
+    def ask_save_path(self, caption: str, filter_text: str, ending: str,
+                      suffix: str | None = None) -> str | None:
+        """Where to save one of this step's files (see the module function)."""
+        return ask_save_path(self, self.session, caption, filter_text, ending, suffix)
 
     def warn(self, text: str, title: str = "Prunella") -> None:
         """One clear message for the user (never a crash), with what to do about it."""

@@ -5,6 +5,7 @@ and the model, its rules and a scored spreadsheet as files. The cautions stand b
 from __future__ import annotations
 
 from dataclasses import dataclass
+from html import escape
 from pathlib import Path
 
 from PySide6.QtCore import QPointF, QSize, Qt, QTemporaryDir, QTimer, Signal
@@ -12,9 +13,8 @@ from PySide6.QtGui import QPainter
 from PySide6.QtPdf import QPdfDocument
 from PySide6.QtPrintSupport import QPrintDialog, QPrinter
 from PySide6.QtWidgets import (
-    QComboBox, QDialog, QDoubleSpinBox, QFileDialog, QFormLayout, QFrame, QGroupBox,
-    QHBoxLayout, QLabel, QLineEdit, QPushButton, QScrollArea, QStackedWidget,
-    QVBoxLayout, QWidget,
+    QComboBox, QDialog, QDoubleSpinBox, QFormLayout, QGroupBox, QHBoxLayout, QLabel, QLineEdit,
+    QPushButton, QStackedWidget, QVBoxLayout, QWidget,
 )
 
 from core.cautions import CAUTION_TITLE, CAUTIONS
@@ -23,7 +23,7 @@ from core.errors import InputError
 from core.safe_files import write_bytes_atomic, write_csv_safely, write_text_atomic
 from core.scoring import scored_table
 from gui import workers
-from gui.panels.base import Panel, explain, heading_font, side_by_side
+from gui.panels.base import Panel, explain, heading_font, scrolling, side_by_side, warning_html
 from gui.widgets.pdf_preview import PdfPreview
 
 PAPERS = (("A4", "a4"), ("US Letter", "letter"), ("A3", "a3"), ("Tabloid", "tabloid"))
@@ -147,12 +147,7 @@ class ChartPanel(Panel):
         left_layout.addWidget(cautions_widget())
         left_layout.addWidget(other)
         left_layout.addStretch(1)
-        scroll = QScrollArea()
-        scroll.setWidget(left)
-        scroll.setWidgetResizable(True)
-        scroll.setFocusPolicy(Qt.NoFocus)  # tab goes to the controls inside, not the frame
-        scroll.setFrameShape(QFrame.NoFrame)
-        scroll.setHorizontalScrollBarPolicy(Qt.ScrollBarAlwaysOff)
+        scroll = scrolling(left)
         scroll.setMinimumWidth(330)
 
         self.document = QPdfDocument(self)
@@ -328,23 +323,8 @@ class ChartPanel(Panel):
     # --- files ------------------------------------------------------------------------------
 
     def _save_name(self, caption: str, suffix: str, filter_text: str) -> str | None:
-        start = ""
-        if self.session.table is not None:
-            data = Path(self.session.table.provenance.path)
-            start = str(data.with_name(f"{data.stem}-{self.session.model.outcome.name}{suffix}"))
-        path, _ = QFileDialog.getSaveFileName(self, caption, start, filter_text)
-        if not path:
-            return None
-        if not path.lower().endswith(suffix):
-            path += suffix
-        inputs = [self.session.table.provenance.path] if self.session.table else []
-        if self.session.project_path:
-            inputs.append(self.session.project_path)
-        if any(Path(path).resolve() == Path(p).resolve() for p in inputs):
-            self.warn("That is one of your input files; choose another name so it stays "
-                      "unchanged.")
-            return None
-        return path
+        return self.ask_save_path(caption, filter_text,
+                                  f"-{self.session.model.outcome.name}{suffix}", suffix)
 
     def _with_pdf(self, action, title: str) -> None:
         """Run ``action`` on the current chart, drawing it first if it is not drawn yet."""
@@ -428,21 +408,28 @@ class ChartPanel(Panel):
         if not target:
             return
 
+        notes: list[str] = []
+
         def write() -> None:
-            table, notes = scored_table(self.session.model, self.session.table.frame)
+            table, raised = scored_table(self.session.model, self.session.table.frame)
             write_csv_safely(table, target)
+            notes.extend(raised)
 
-        self._write(write, target)
+        if self._write(write, target) and notes:
+            # What scoring had to decide about the values (as the command line prints it).
+            self.message.setText(f"<p>Saved {escape(Path(target).name)}.</p>"
+                                 + "".join(warning_html(n) for n in dict.fromkeys(notes)))
 
-    def _write(self, action, target: str) -> None:
+    def _write(self, action, target: str) -> bool:
         try:
             action()
         except InputError as exc:
             self.warn(str(exc))
-            return
+            return False
         except OSError as exc:
             self.warn(f"{Path(target).name} could not be saved ({exc.strerror}); choose another "
                       "folder.")
-            return
+            return False
         self.message.setText(f"Saved {Path(target).name}.")
+        return True
 

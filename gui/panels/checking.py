@@ -13,7 +13,7 @@ from matplotlib.backends.backend_qtagg import FigureCanvasQTAgg
 from PySide6.QtCore import Qt
 from PySide6.QtWidgets import (
     QCheckBox, QFileDialog, QFrame, QGroupBox, QHBoxLayout, QLabel, QProgressBar, QPushButton,
-    QScrollArea, QSizePolicy, QSpinBox, QVBoxLayout, QWidget,
+    QSizePolicy, QSpinBox, QVBoxLayout, QWidget,
 )
 
 from core.cautions import UNCHECKED_BANNER, UNCHECKED_DETAIL
@@ -23,13 +23,12 @@ from core.report import ReportContents, write_report
 from core.report_figures import calibration_figure, roc_figure, stability_figure
 from core.stability import DEFAULT_RESAMPLES, bootstrap_stability
 from core.table import read_table
-from core.validate import check_heldout, check_table
+from core.validate import check_table
 from gui import workers
-from gui.panels.base import Banner, Panel, explain, warning_html
+from gui.panels.base import (
+    SIZE_RULES, Banner, Panel, errors_beside, explain, scrolling, warning_html,
+)
 from gui.panels.data import DATA_FILTER
-
-RULES = {"1se": "smallest within one standard error (SE) of the lowest error",
-         "min": "lowest cross-validated error", "user": "chosen by you"}
 
 
 def _table(rows: list[tuple[str, str]], header: tuple[str, str] | None = None) -> str:
@@ -43,11 +42,9 @@ def cross_validated_html(model) -> str:
     chosen, path = model.chosen, model.path
     folds = path.get("folds")
     return _table([
-        ("Size", f"{chosen['leaves']} outcome boxes ({RULES[chosen['rule']]})"),
+        ("Size", f"{chosen['leaves']} outcome boxes ({SIZE_RULES[chosen['rule']]})"),
         ("Error measured as", path["risk_measure"]),
-        ("Cross-validated error", f"{chosen['cv_risk']:.3f} ± {chosen['cv_se']:.3f} (one SE)"),
-        ("Training error, beside it", f"{chosen['train_risk']:.3f} (on the patients it was "
-                                      "grown on; always looks better)"),
+        ("Error", errors_beside(chosen, sentence=True)),
         ("How it was checked", path["cv"] + (f", {folds} fits on parts of the data" if folds else "")),
         ("Grown on", f"{model.n_rows:,} rows"),
     ])
@@ -121,7 +118,7 @@ class CheckingPanel(Panel):
         self._busy = False
         self._pending_path: str | None = None
         self.checks: list = []  # ValidationResults for the chosen tree (held-out first)
-        self._external_paths: list[str] = []  # files checked on, redone when the size changes
+        self._external_path: str | None = None  # the file checked on, redone for a new size
         self.nested = None
         self.stability = None
 
@@ -241,11 +238,7 @@ class CheckingPanel(Panel):
         for box in (cv_box, checks_box, nested_box, stability_box, report_box):
             inner_layout.addWidget(box)
         inner_layout.addStretch(1)
-        scroll = QScrollArea()
-        scroll.setWidget(inner)
-        scroll.setWidgetResizable(True)
-        scroll.setFrameShape(QFrame.NoFrame)
-        scroll.setFocusPolicy(Qt.NoFocus)
+        scroll = scrolling(inner, across=True)  # wide tables and plots may scroll sideways
         self.add_tree_content(scroll)
         self.body.addLayout(work_row)
         self.body.addWidget(self.status)
@@ -262,7 +255,7 @@ class CheckingPanel(Panel):
 
     def _result_changed(self) -> None:
         if self.session.chosen is None:  # a new or reopened project: its own checks only
-            self._external_paths.clear()
+            self._external_path = None
             self._pending_path = None
         self._chosen_changed()
 
@@ -275,14 +268,13 @@ class CheckingPanel(Panel):
         self._clear(self.stability_plot)
         chosen = self.session.chosen
         self.checks = []
-        if chosen is not None and chosen.heldout is not None:
-            self.checks.append(check_heldout(chosen))
+        if chosen is not None and chosen.heldout_check is not None:
+            self.checks.append(chosen.heldout_check)  # made by core when the size was chosen
         self.session.set_check(None)
         self.refresh()
-        if chosen is not None and self._external_paths:
-            # The latest file is checked again for the new tree, once the panel is free.
-            self._pending_path = self._external_paths[-1]
-            self._external_paths = []
+        if chosen is not None and self._external_path is not None:
+            # The file is checked again for the new tree, once the panel is free.
+            self._pending_path, self._external_path = self._external_path, None
             if not self._busy:
                 self._start_pending()
 
@@ -424,7 +416,7 @@ class CheckingPanel(Panel):
         if self.session.model is None or self._checking_model is not self.session.model:
             return  # the tree changed meanwhile; this check belongs to the old one
         self.checks = [r for r in self.checks if r.kind != "external"] + [result]
-        self._external_paths = [self.job.path]
+        self._external_path = self.job.path
         self.status.setText(f"Checked on {result.n:,} visits from {result.source}.")
         self._show_checks()
         self._chart_check_changed()
@@ -454,9 +446,8 @@ class CheckingPanel(Panel):
                        f"</td><td align='right'>{f.test_risk:.3f}</td></tr>" for f in result.folds)
         cv = self.session.model.chosen
         self.nested_label.setText(
-            f"<p><b>{escape(result.summary())}</b></p><p>Beside it: cross-validated error "
-            f"{cv['cv_risk']:.3f} ± {cv['cv_se']:.3f} and training error {cv['train_risk']:.3f} "
-            "of the chosen size.</p>"
+            f"<p><b>{escape(result.summary())}</b></p><p>Beside it: "
+            f"{escape(errors_beside(cv))}, for the chosen size.</p>"
             "<table cellpadding='3' border='1' cellspacing='0'><tr><th>Outer part</th>"
             "<th>Patients tested</th><th>Size chosen inside</th><th>Error promised inside</th>"
             f"<th>Error on the outer part</th></tr>{rows}</table>"
@@ -474,8 +465,8 @@ class CheckingPanel(Panel):
     def _stability_done(self, result) -> None:
         self.stability = result
         rows = "".join(f"<tr><td>{escape(q.text)}</td><td align='right'>{q.box}</td>"
-                       f"<td align='right'>{q.anywhere / result.resamples:.0%}</td>"
-                       f"<td align='right'>{q.in_place / result.resamples:.0%}</td></tr>"
+                       f"<td align='right'>{q.share_anywhere:.0%}</td>"
+                       f"<td align='right'>{q.share_in_place:.0%}</td></tr>"
                        for q in result.questions)
         self.stability_label.setText(
             f"<p><b>{escape(result.summary())}</b></p>"
@@ -492,19 +483,9 @@ class CheckingPanel(Panel):
         chosen = self.session.chosen
         if chosen is None:
             return
-        start = ""
-        if self.session.table is not None:
-            data = Path(self.session.table.provenance.path)
-            start = str(data.with_name(f"{data.stem}-{chosen.model.outcome.name}-report.pdf"))
-        path, _ = QFileDialog.getSaveFileName(self, "Save the methods report", start,
-                                              "PDF (*.pdf)")
+        path = self.ask_save_path("Save the methods report", "PDF (*.pdf)",
+                                  f"-{chosen.model.outcome.name}-report.pdf", ".pdf")
         if not path:
-            return
-        if not path.lower().endswith(".pdf"):
-            path += ".pdf"
-        inputs = [self.session.table.provenance.path] if self.session.table else []
-        if any(Path(path).resolve() == Path(p).resolve() for p in inputs):
-            self.warn("That is the data file itself; choose another name for the report.")
             return
         derivation = self.session.chart_derivation()
         job = workers.Job(make_report, derivation, self._request(), tuple(self.checks),

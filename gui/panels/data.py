@@ -16,7 +16,7 @@ from core.errors import InputError
 from core.messages import app_advice, app_wording
 from core.messages import explain as catalogue_entry
 from core.table import EXCEL_SUFFIXES, list_sheets, read_table
-from core.variables import DataDictionary, dictionary_beside, dictionary_for, infer_dictionary
+from core.variables import DataDictionary, dictionary_beside, dictionary_for
 from gui import workers
 from gui.panels.base import Panel, explain, heading_font
 from gui.widgets.dictionary_model import (
@@ -243,13 +243,13 @@ class DataPanel(Panel):
     def _reading_over(self) -> None:
         self._set_busy(False)
 
-    def _set_busy(self, busy: bool) -> None:
+    def _set_busy(self, busy: bool, what: str = "") -> None:
         self.busy.setVisible(busy)
         for widget in (self.open_button, self.big_open, self.demo_button, self.sheet_combo,
-                       self.recent_button):
+                       self.recent_button, self.load_dictionary_button, self.guess_button):
             widget.setEnabled(not busy)
         if busy:
-            self.file_label.setText(f"Reading {Path(self._reading).name}…")
+            self.file_label.setText(what or f"Reading {Path(self._reading).name}…")
 
     def _show_sheet_choice(self, visible: bool) -> None:
         self.sheet_label.setVisible(visible)
@@ -277,41 +277,45 @@ class DataPanel(Panel):
             self.load_dictionary_file(path)
 
     def load_dictionary_file(self, path: str) -> None:
-        try:
-            dictionary, notes = dictionary_for(self.session.table, path)
-        except InputError as exc:
-            self.warn(str(exc), "The dictionary could not be read")
+        """Read a saved dictionary over the one inferred from the data, in the background."""
+        self._start_dictionary(path, f"Reading {Path(path).name}…")
+
+    def guess_again(self) -> None:
+        """Infer the dictionary afresh from the data, in the background."""
+        self._start_dictionary(None, "Guessing each column again from the data…")
+
+    def _start_dictionary(self, path: str | None, what: str) -> None:
+        table = self.session.table
+        if table is None or (self.job is not None and self.job.running):
             return
-        self.session.set_data(self.session.table, dictionary,
-                              tuple(self.session.table.provenance.warnings) + tuple(notes))
+        self.job = workers.Job(dictionary_for, table, path, takes_progress=False)
+        self.job.signals.done.connect(lambda result: self._dictionary_read(table, result))
+        self.job.signals.failed.connect(self._dictionary_failed)
+        self.job.signals.finished.connect(self._reading_over)
+        self._set_busy(True, what)
+        workers.start(self.job)
+
+    def _dictionary_read(self, table, result) -> None:
+        if self.session.table is not table:
+            return  # another file was opened meanwhile; this dictionary belongs to the old one
+        dictionary, notes = result
+        self.session.set_data(table, dictionary, tuple(table.provenance.warnings) + tuple(notes))
+
+    def _dictionary_failed(self, message: str) -> None:
+        self.warn(message, "The dictionary could not be read")
+        self.refresh()  # the file line said what was being read
 
     def save_dictionary(self) -> None:
         if self.session.dictionary is None:
             return
-        start = ""
-        if self.session.table is not None:
-            data = Path(self.session.table.provenance.path)
-            start = str(data.with_name(data.stem + ".dictionary.json"))
-        path, _ = QFileDialog.getSaveFileName(self, "Save the data dictionary", start,
-                                              DICTIONARY_FILTER)
+        path = self.ask_save_path("Save the data dictionary", DICTIONARY_FILTER,
+                                  ".dictionary.json")
         if not path:
-            return
-        if self.session.table is not None and \
-                Path(path).resolve() == Path(self.session.table.provenance.path).resolve():
-            self.warn("That is the data file itself; choose another name so the data stay "
-                      "unchanged.")
             return
         try:
             self.session.dictionary.save(path)
         except OSError as exc:
             self.warn(f"The dictionary could not be saved ({exc.strerror}); choose another folder.")
-
-    def guess_again(self) -> None:
-        if self.session.table is None:
-            return
-        dictionary, notes = infer_dictionary(self.session.table.frame)
-        self.session.set_data(self.session.table, dictionary,
-                              tuple(self.session.table.provenance.warnings) + tuple(notes))
 
     # --- showing ----------------------------------------------------------------------------
 
@@ -336,8 +340,6 @@ class DataPanel(Panel):
         self.file_label.setToolTip(f"{p.path}\nSHA-256 (the file's fingerprint): {p.sha256}")
         notes = list(dict.fromkeys(list(p.warnings) + list(self.session.notes)))
         findings = [note_finding(n) for n in notes]
-        order = {"refused": 0, "warning": 1, "note": 2}
-        findings.sort(key=lambda f: order[f.severity])  # what to check first, first
         if not findings:
             findings = [Finding("note", "Nothing to check: every column was read without "
                                 "surprises.")]

@@ -14,7 +14,7 @@ from PySide6.QtWidgets import (
 from core.design import DesignSpec, suggest_task
 from core.messages import app_advice, app_wording
 from core.variables import CATEGORY_KINDS, PREDICTOR_KINDS, positive_level
-from gui.guard_watch import GuardWatch
+from gui.guard_watch import GuardWatch, offered_columns
 from gui.panels.base import Panel, explain, side_by_side
 from gui.widgets.checklist import Checklist
 from gui.widgets.dictionary_model import KIND_WORDS
@@ -128,7 +128,7 @@ class OutcomePanel(Panel):
 
     @property
     def job(self):
-        """The guards' latest check (the window cancels it on closing)."""
+        """The guards' latest check (Panel.stop_work cancels it when the window closes)."""
         return self.watch.job
 
     # --- from the session to the widgets ----------------------------------------------------
@@ -249,14 +249,15 @@ class OutcomePanel(Panel):
             return
         taken = set() if design is None else {design.outcome, design.patient_id, design.site}
         items = []
-        for spec in dictionary.columns:
-            if spec.kind in PREDICTOR_KINDS and spec.name not in taken:
-                tip = f"{spec.name}: {KIND_WORDS[spec.kind]}"
-                if spec.unit:
-                    tip += f", in {spec.unit}"
-                if spec.note:
-                    tip += f". {spec.note}"
-                items.append((spec.name, column_text(spec), tip))
+        specs = {spec.name: spec for spec in dictionary.columns}
+        for name in offered_columns(dictionary, design):
+            spec = specs[name]
+            tip = f"{spec.name}: {KIND_WORDS[spec.kind]}"
+            if spec.unit:
+                tip += f", in {spec.unit}"
+            if spec.note:
+                tip += f". {spec.note}"
+            items.append((spec.name, column_text(spec), tip))
         suggested = tuple(c.name for c in dictionary.by_role("predictor") if c.name not in taken)
         checked = () if design is None else design.predictors
         self.checklist.set_items(items, checked, suggested)
@@ -269,20 +270,24 @@ class OutcomePanel(Panel):
         name = self.outcome_combo.currentData()
         dictionary = self.session.dictionary
         if not name or dictionary is None:
-            self.session.set_design(None)
-            self._fill(None)
-            return
-        spec = dictionary.get(name)
-        old = self.session.design
-        task = suggest_task(spec)
-        predictors = tuple(p for p in (old.predictors if old else
-                                       tuple(c.name for c in dictionary.by_role("predictor")))
-                           if p != name)
-        design = DesignSpec(name, predictors, task=task,
-                            positive=self._default_positive(spec) if task == "classification" else None,
-                            patient_id=None if old is None or old.patient_id == name else old.patient_id,
-                            site=None if old is None or old.site == name else old.site)
-        self.session.set_design(design)
+            design = None
+        else:
+            spec = dictionary.get(name)
+            old = self.session.design
+            task = suggest_task(spec)
+            predictors = tuple(p for p in (old.predictors if old else
+                                           tuple(c.name for c in dictionary.by_role("predictor")))
+                               if p != name)
+            design = DesignSpec(
+                name, predictors, task=task,
+                positive=self._default_positive(spec) if task == "classification" else None,
+                patient_id=None if old is None or old.patient_id == name else old.patient_id,
+                site=None if old is None or old.site == name else old.site)
+        self._writing = True  # the form is filled once, below, not again by refresh()
+        try:
+            self.session.set_design(design)
+        finally:
+            self._writing = False
         self._fill(design)
 
     def _write_back(self, *_args) -> None:
@@ -376,8 +381,7 @@ class OutcomePanel(Panel):
         if screen.error:
             rows.append(Finding("refused", "The checks could not be made: " + screen.error,
                                 None, kind="error"))
-        order = {"refused": 0, "warning": 1, "note": 2}
-        return sorted(rows, key=lambda r: order[r.severity])
+        return rows  # FindingsView puts the most serious first
 
     def show_guards(self) -> None:
         session = self.session

@@ -9,19 +9,19 @@ from html import escape
 
 from PySide6.QtCore import Qt, Signal
 from PySide6.QtWidgets import (
-    QCheckBox, QComboBox, QFormLayout, QFrame, QGroupBox, QHBoxLayout, QLabel,
-    QProgressBar, QPushButton, QScrollArea, QSizePolicy, QSpinBox, QVBoxLayout,
-    QWidget,
+    QCheckBox, QComboBox, QFormLayout, QGroupBox, QHBoxLayout, QLabel, QProgressBar, QPushButton,
+    QSizePolicy, QSpinBox, QVBoxLayout, QWidget,
 )
 
 from core.chart import sizes_that_fit
 from core.chart.options import PAPER_NAMES, default_min_text
 from core.derive import choose_model, derive
 from core.errors import InputError
-from core.messages import app_advice, app_wording
 from core.resample import CVSettings
 from gui import workers
-from gui.panels.base import Banner, Panel, explain, side_by_side
+from gui.panels.base import (
+    SIZE_RULES, Banner, Panel, errors_beside, explain, scrolling, side_by_side, with_advice,
+)
 from gui.widgets.curve import CurveCanvas, CurveData
 
 CRITERIA = {
@@ -34,13 +34,13 @@ PLANS = (
     ("One site at a time (leave-one-site-out)", "site"),
     ("One validation split", "split"),
 )
-RULE_WORDS = {"1se": "the smallest tree within one standard error of the lowest error",
-              "min": "the lowest cross-validated error", "user": "your choice"}
 
 
 def run_derivation(table, dictionary, request, size, progress=None, cancel=None):
     """Grow, prune and cross-validate (core.derive), then take the wanted size. In a worker."""
     derivation = derive(table, dictionary, request, progress=progress, cancel=cancel)
+    if size == request.size:  # derive chose this size already (and checked it on held-out rows)
+        return derivation, derivation
     try:
         chosen = choose_model(derivation, size)
     except InputError:  # a saved size that is not on this path: keep the 1-SE choice
@@ -169,12 +169,7 @@ class SizePanel(Panel):
         settings_layout.addWidget(grow_box)
         settings_layout.addWidget(check_box)
         settings_layout.addStretch(1)
-        scroll = QScrollArea()
-        scroll.setWidget(settings)
-        scroll.setWidgetResizable(True)
-        scroll.setFocusPolicy(Qt.NoFocus)  # tab goes to the controls inside, not the frame
-        scroll.setFrameShape(QFrame.NoFrame)
-        scroll.setHorizontalScrollBarPolicy(Qt.ScrollBarAlwaysOff)
+        scroll = scrolling(settings)
         left = QWidget()
         left_layout = QVBoxLayout(left)
         left_layout.setContentsMargins(0, 0, 0, 0)
@@ -420,6 +415,11 @@ class SizePanel(Panel):
             self.status.setText("Stopping after the current step…")
             self.cancel_button.setEnabled(False)
 
+    def stop_work(self) -> None:
+        super().stop_work()
+        if self._fit_job is not None and self._fit_job.running:
+            self._fit_job.cancel()
+
     @property
     def running(self) -> bool:
         return self._busy
@@ -441,9 +441,7 @@ class SizePanel(Panel):
         seconds = time.monotonic() - self._started
         text = f"Done in {seconds:.1f} s. {len(derivation.path.leaves)} sizes on the pruning path."
         for note in derivation.notes:
-            advice = app_advice(note)
-            text += " " + (app_wording(note) or note) + (f" (What to do: {advice})" if advice
-                                                         else "")
+            text += " " + with_advice(note)
         if expected is not None:
             if reproduced:
                 text += (" This is exactly the tree saved in the project (fingerprint "
@@ -576,10 +574,8 @@ class SizePanel(Panel):
         self.size_combo.setCurrentIndex(index)
         self.size_combo.blockSignals(blocker)
         self.choice.setText(
-            f"<b>Chosen: {chosen['leaves']} outcome boxes</b> ({RULE_WORDS[chosen['rule']]}). "
-            f"Cross-validated error {chosen['cv_risk']:.3f} ± {chosen['cv_se']:.3f} (SE); "
-            f"training error {chosen['train_risk']:.3f}, which always looks better. "
-            f"Checked by {model.path['cv']}.")
+            f"<b>Chosen: {chosen['leaves']} outcome boxes</b> ({SIZE_RULES[chosen['rule']]}). "
+            f"{errors_beside(chosen, sentence=True)}. Checked by {model.path['cv']}.")
 
     def choose_size(self, leaves: int) -> None:
         """Take another size from the same run (no refit): the tree view updates at once."""

@@ -7,13 +7,13 @@ from html import escape
 
 from PySide6.QtCore import Qt
 from PySide6.QtWidgets import (
-    QComboBox, QFormLayout, QGroupBox, QHBoxLayout, QLabel, QLineEdit, QPushButton, QScrollArea,
-    QSizePolicy, QSplitter, QTextBrowser, QToolButton, QVBoxLayout, QWidget,
+    QComboBox, QFormLayout, QGroupBox, QHBoxLayout, QLabel, QLineEdit, QPushButton, QSizePolicy,
+    QSplitter, QTextBrowser, QToolButton, QVBoxLayout, QWidget,
 )
 
 from core.explain import box_details, route_patient
 from core.thresholds import format_number
-from gui.panels.base import Panel, explain, side_by_side, warning_html
+from gui.panels.base import Panel, explain, scrolling, side_by_side, warning_html
 from gui.widgets.tree_view import TreeView
 
 NOT_RECORDED = "(not recorded)"
@@ -59,7 +59,6 @@ class TreePanel(Panel):
     def __init__(self, session, parent=None) -> None:
         super().__init__(session, parent)
         self._fields: dict[str, QWidget] = {}
-        self._writing = False
 
         self.view = TreeView()
         self.view.setAccessibleName("The tree")
@@ -104,12 +103,7 @@ class TreePanel(Panel):
         lookup_layout.addWidget(self.result)
         lookup_layout.addWidget(self.clear_button, 0, Qt.AlignLeft)
         lookup_layout.addStretch(1)
-        scroll = QScrollArea()
-        scroll.setWidget(lookup_inner)
-        scroll.setWidgetResizable(True)
-        scroll.setHorizontalScrollBarPolicy(Qt.ScrollBarAlwaysOff)
-        scroll.setFrameShape(QScrollArea.NoFrame)
-        scroll.setFocusPolicy(Qt.NoFocus)
+        scroll = scrolling(lookup_inner)
         self.result.setSizePolicy(QSizePolicy.Ignored, QSizePolicy.Preferred)
         lookup_box = QGroupBox("Look up one patient")
         lookup_box.setToolTip("Only the questions this tree asks are needed; leave a value "

@@ -15,6 +15,8 @@ from matplotlib.ticker import FuncFormatter, LogLocator, NullFormatter
 from PySide6.QtCore import Signal
 from PySide6.QtWidgets import QSizePolicy
 
+from core.pathcv import one_se_limit
+
 
 # Okabe & Ito (2008) colour-blind-safe colours; every series also differs by marker/line.
 CV_COLOUR = "#0072B2"
@@ -70,9 +72,6 @@ class CurveCanvas(FigureCanvasQTAgg):
         self._chosen = chosen
         self._redraw()
 
-    def paintEvent(self, event) -> None:  # noqa: N802
-        super().paintEvent(event)
-
     def legend_texts(self) -> list[str]:
         return [t.get_text() for legend in self.figure.legends for t in legend.get_texts()]
 
@@ -105,8 +104,8 @@ class CurveCanvas(FigureCanvasQTAgg):
                     ax.axvspan(value * 0.93, value * 1.07, color=FIT_SHADE, alpha=0.18, lw=0,
                                label=self._fit_label if first else None)
                     first = False
-        limit = data.cv_risk[data.leaves == data.min_leaves][0] + \
-            data.cv_se[data.leaves == data.min_leaves][0]
+        limit = one_se_limit(data.cv_risk, data.cv_se,
+                             int(np.flatnonzero(data.leaves == data.min_leaves)[0]))
         ax.axhline(limit, color="#555555", lw=0.8, ls=":", label="Lowest error + 1 SE")
         ax.errorbar(x, data.cv_risk, yerr=data.cv_se, fmt="o-", color=CV_COLOUR, ms=4, lw=1.2,
                     capsize=2, elinewidth=0.8, label="Cross-validated error (±1 SE)")

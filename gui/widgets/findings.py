@@ -16,6 +16,9 @@ BACKGROUNDS = {"refused": "#fde3e1", "warning": "#fff4d6", "note": "#eef2f5"}
 BORDERS = {"refused": "#b3261e", "warning": "#b88a00", "note": "#c5ced6"}
 
 
+SEVERITY_ORDER = {"refused": 0, "warning": 1, "note": 2}  # what to check first, first
+
+
 @dataclass(frozen=True)
 class Finding:
     """One row: how serious, what was found, what to do, and an optional button."""
@@ -99,6 +102,9 @@ class FindingsView(QWidget):
         layout.addWidget(self.scroll, 1)
 
     def show_findings(self, status: str, findings: list[Finding]) -> None:
+        """Show the findings, the most serious first (refused, then warnings, then notes; in
+        the given order within each)."""
+        findings = sorted(findings, key=lambda f: SEVERITY_ORDER[f.severity])
         self.status.setText(status)
         self.status.setVisible(bool(status))
         for row in self.rows:

@@ -26,7 +26,7 @@ def cell_text(value) -> str:
         if math.isfinite(value) and value == int(value) and abs(value) < 1e15:
             return str(int(value))
         return f"{value:.6g}"
-    if value is pd.NaT or (isinstance(value, float) and math.isnan(value)):
+    if value is pd.NaT:  # float NaN was handled above
         return ""
     if isinstance(value, pd.Timestamp):
         return value.date().isoformat() if value == value.normalize() else value.isoformat()

@@ -290,6 +290,3 @@ class TreeView(QGraphicsView):
         super().resizeEvent(event)
         if self.model is not None and not self._user_zoomed:
             self.fit()
-
-    def paintEvent(self, event) -> None:  # noqa: N802
-        super().paintEvent(event)

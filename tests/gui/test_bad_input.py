@@ -57,14 +57,14 @@ def test_broken_project_shows_a_message(window, dialogs, tmp_path, content, word
     assert window.session.table is None and window.isVisible()
 
 
-def test_broken_dictionary_shows_a_message(demo, dialogs, tmp_path):
+def test_broken_dictionary_shows_a_message(demo, dialogs, tmp_path, qtbot):
     window = demo
     before = window.session.dictionary
     bad = tmp_path / "bad.dictionary.json"
     bad.write_text('{"format": "prunella-dictionary/1", "columns": [{"role": "x"}]}',
                    encoding="utf-8")
-    window.panels["data"].load_dictionary_file(str(bad))
-    assert any("no 'name'" in t for t in dialogs.texts("warning"))
+    window.panels["data"].load_dictionary_file(str(bad))  # read in the background
+    qtbot.waitUntil(lambda: any("no 'name'" in t for t in dialogs.texts("warning")), timeout=15000)
     assert window.session.dictionary == before
 
 
