@@ -6,7 +6,7 @@ each user path runs exactly the same code.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from typing import TYPE_CHECKING
 
 import numpy as np
@@ -95,12 +95,8 @@ def derive(table: LoadedTable, dictionary: DataDictionary, request: DerivationRe
                                cancel=cancel)
     index, rule = path.index_for(request.size)
     model = build_model(path, index, rule, table, dictionary, request)
-    derivation = Derivation(request, table, dictionary, data, heldout, path, model, tuple(notes))
-    if heldout is not None:
-        model, check = _with_heldout_check(derivation)
-        derivation = Derivation(request, table, dictionary, data, heldout, path, model,
-                                tuple(notes), heldout_check=check)
-    return derivation
+    return _checked(Derivation(request, table, dictionary, data, heldout, path, model,
+                               tuple(notes)))
 
 
 def choose_model(derivation: Derivation, size: str | int) -> Derivation:
@@ -108,15 +104,7 @@ def choose_model(derivation: Derivation, size: str | int) -> Derivation:
     index, rule = derivation.path.index_for(size)
     model = build_model(derivation.path, index, rule, derivation.table, derivation.dictionary,
                         derivation.request)
-    chosen = Derivation(derivation.request, derivation.table, derivation.dictionary,
-                        derivation.data, derivation.heldout, derivation.path, model,
-                        derivation.notes)
-    if derivation.heldout is not None:
-        model, check = _with_heldout_check(chosen)
-        chosen = Derivation(derivation.request, derivation.table, derivation.dictionary,
-                            derivation.data, derivation.heldout, derivation.path, model,
-                            derivation.notes, heldout_check=check)
-    return chosen
+    return _checked(replace(derivation, model=model, heldout_check=None))
 
 
 # --- building the plain model ---------------------------------------------------------------
@@ -288,10 +276,12 @@ def _cohort(frame: pd.DataFrame, dictionary: DataDictionary, data: AnalysisData,
     return cohort
 
 
-def _with_heldout_check(derivation: Derivation) -> tuple[TreeModel, "ValidationResult"]:
-    """The chosen tree with its check on the rows set aside before growing recorded, and
-    that check."""
+def _checked(derivation: Derivation) -> Derivation:
+    """The run with the chosen tree checked on the rows set aside before growing (if any):
+    the check kept beside the model and recorded in it."""
+    if derivation.heldout is None:
+        return derivation
     from .validate import check_heldout, with_validation  # validate reads Derivation objects
 
     check = check_heldout(derivation)
-    return with_validation(derivation.model, check), check
+    return replace(derivation, model=with_validation(derivation.model, check), heldout_check=check)

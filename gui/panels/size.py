@@ -63,7 +63,6 @@ class SizePanel(Panel):
         self._fit_job: workers.Job | None = None
         self._fit_waiting = False
         self._fit_sizes = None  # (key, sizes, label) for the shading of the curve
-        self.fit_sizes: tuple[int, ...] | None = None
         self._writing = False
         self._started = 0.0
 
@@ -512,6 +511,11 @@ class SizePanel(Panel):
             return None, ""
         return self._fit_sizes[1], self._fit_sizes[2]
 
+    @property
+    def fit_sizes(self) -> tuple[int, ...] | None:
+        """The sizes shaded on the curve as fitting the chosen paper (None until known)."""
+        return None if self._fit_sizes is None else self._fit_sizes[1]
+
     def _fit_key(self):
         # Every chart setting: the title and subtitle change what fits, too.
         return (id(self.session.derivation), tuple(sorted(self.session.chart.items())))
@@ -546,7 +550,6 @@ class SizePanel(Panel):
         name = PAPER_NAMES.get(paper, paper.upper())
         label = f"Fits on {name} at {text:g} pt"
         self._fit_sizes = (job.key, tuple(int(n) for n in sizes), label)
-        self.fit_sizes = self._fit_sizes[1]
         self.fit_note.setText(f"Shaded: sizes that print legibly on one {name} page with text of "
                               f"at least {text:g} pt (paper and text size are set on step 6)."
                               + ("" if sizes else " None does: choose larger paper or smaller "
