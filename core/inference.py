@@ -21,7 +21,7 @@ from .messages import catalogue, say
 from .values import (
     missing_texts, parse_dates, parse_numbers, profile_cells, rows_phrase, yes_no_levels,
 )
-from .variables import MAX_NOMINAL_LEVELS, ColumnSpec, DataDictionary, _natural_key
+from .variables import MAX_NOMINAL_LEVELS, ColumnSpec, DataDictionary, canonical_levels
 
 _ORDINAL_HINT = re.compile(r"(level|grade|score|stage|class|category|triage|scale|rank)", re.I)
 _SITE_HINT = re.compile(r"(site|campus|hospital|centre|center|clinic|facility)", re.I)
@@ -150,11 +150,8 @@ def _infer(name: str, values: pd.Series, rows) -> tuple[ColumnSpec, list[str]]:
 
 
 def _levels(by_text: dict[str, int]) -> list[str]:
-    """Levels from counted texts: case variants merged under their commonest spelling."""
-    chosen: dict[str, str] = {}
-    for spelling in sorted(by_text, key=lambda t: -by_text[t]):  # commonest first
-        chosen.setdefault(spelling.casefold(), spelling)
-    return sorted(chosen.values(), key=_natural_key)
+    """Levels from counted texts (see variables.canonical_levels)."""
+    return canonical_levels(sorted(by_text, key=lambda t: -by_text[t]))  # commonest first
 
 
 _DATE_STYLES = (("year first", r"^\d{4}[-/.]\d{1,2}[-/.]\d{1,2}"),

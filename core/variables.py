@@ -12,7 +12,7 @@ from __future__ import annotations
 import csv
 import io
 import json
-from collections.abc import Sequence
+from collections.abc import Iterable, Sequence
 from dataclasses import asdict, dataclass, field, replace
 from pathlib import Path
 
@@ -202,11 +202,12 @@ class DataDictionary:
         return cls(tuple(ColumnSpec.from_dict(r) for r in rows))
 
 
-def _canonical_levels(text: pd.Series) -> list[str]:
-    """Distinct levels, merging case variants under their most frequent spelling."""
+def canonical_levels(spellings: Iterable[str]) -> list[str]:
+    """Levels from spellings given commonest first: case variants merged under their
+    commonest spelling, in natural order (numbers by value, then words)."""
     chosen: dict[str, str] = {}
-    for spelling in counted(text)[0]:  # most frequent first
-        chosen.setdefault(str(spelling).casefold(), str(spelling))
+    for spelling in spellings:
+        chosen.setdefault(spelling.casefold(), spelling)
     return sorted(chosen.values(), key=_natural_key)
 
 
@@ -271,7 +272,7 @@ def typed_column(values: pd.Series, spec: ColumnSpec) -> TypedColumn:
         levels = spec.levels
         if not levels:
             present = level_text(values[~is_missing_text(values, spec.missing_codes)])
-            levels = tuple(_canonical_levels(present))
+            levels = tuple(canonical_levels(str(v) for v in counted(present)[0]))
             spec = replace(spec, levels=levels)
         cat, notes = parse_levels(values, levels, spec.missing_codes, spec.name)
         return TypedColumn(spec, codes=np.asarray(cat.codes, dtype=np.int32), notes=notes)
