@@ -208,6 +208,8 @@ _INFER = [
 ]
 
 _FILES = [
+    ("cli.output_is_input", "refused", "{target} is an input file; choose another name for the "
+     "output so the input stays unchanged.", "Write results to a new file."),
     ("file.missing", "refused", "No {what} file at {path}; check the path.",
      "Check the spelling of the path."),
     ("file.too_big", "refused", "{file} is {mb} MB, far larger than any Prunella {what} file; "

@@ -118,8 +118,6 @@ ELSEWHERE = [
      "pruning path are {sizes}.", "Pick one of the listed sizes.", "core/pathcv.py"),
     ("pathcv.size_word", "refused", "The tree size must be '1se', 'min' or a number of leaves, "
      "not {size!r}.", "Use 1se, min or a number.", "core/pathcv.py"),
-    ("cli.output_is_input", "refused", "{target} is an input file; choose another name for the "
-     "output so the input stays unchanged.", "Write results to a new file.", "core/cli/common.py"),
     ("cli.priors", "refused", "--priors must be observed, equal, or numbers separated by "
      "commas (one per class).", "For example --priors 0.7,0.3.", "core/cli/fit.py"),
     ("cli.size", "refused", "--size must be 1se, min or a number of leaves.",

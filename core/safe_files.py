@@ -196,5 +196,4 @@ def names_an_input(target: str | Path, *sources: str | Path | None) -> bool:
 def refuse_overwrite(target: str | None, *sources: str) -> None:
     """Refuse an output path that names one of the inputs."""
     if target is not None and names_an_input(target, *sources):
-        raise InputError(f"{target} is an input file; choose another name for the output "
-                         "so the input stays unchanged.")
+        raise InputError(say("cli.output_is_input", target=target))
