@@ -23,6 +23,10 @@ SAMPLE = ROOT / "sample_data"
 DEMO_CSV = SAMPLE / "breathless_ed.csv"
 DEMO_XLSX = SAMPLE / "breathless_ed.xlsx"
 DEMO_DICTIONARY = SAMPLE / "breathless_ed.dictionary.json"
+# The largest tree of the demo's admission pruning sequence that A4 and US Letter hold at 9 pt
+# with the present chart layout. Its 1-SE tree (7 outcome boxes) needs A3 or Tabloid until the
+# layout holds more.
+DEMO_A4_LEAVES = 4
 
 
 @lru_cache(maxsize=None)
@@ -34,6 +38,30 @@ def demo_inputs() -> tuple[LoadedTable, DataDictionary, tuple[str, ...]]:
     dictionary = DataDictionary.load(DEMO_DICTIONARY)
     predictors = tuple(c.name for c in dictionary.columns if c.role == "predictor")
     return table, dictionary, predictors
+
+
+# The demo's planted admission boxes, written out from sample_data/README.md (not taken from
+# the generator, so a change there is caught), each with whether most of its visits are admitted.
+DEMO_PLANTED_BOXES = {
+    "low SpO2, aged 70+ or triage 1-2": True,
+    "low SpO2, under 70, triage 3-5": False,
+    "fast breathing, ambulance or transfer": True,
+    "fast breathing, walked in or GP referral": False,
+    "slower breathing, recorded CRP above 100": True,
+    "slower breathing, the rest": False,
+}
+
+
+def demo_planted_box(frame: pd.DataFrame) -> pd.Series:
+    """The planted admission box (a DEMO_PLANTED_BOXES key) of each visit of the demo table."""
+    low_spo2 = frame["spo2"] <= 91
+    fast = frame["resp_rate"] > 24
+    brought = frame["arrival_mode"].isin(["ambulance", "inter-hospital transfer"])
+    crp = pd.to_numeric(frame["crp"], errors="coerce")  # blank = not recorded: never high
+    names = list(DEMO_PLANTED_BOXES)
+    box = np.select([low_spo2 & ((frame["age"] >= 70) | (frame["triage_level"] <= 2)), low_spo2,
+                     fast & brought, fast, crp > 100], names[:5], default=names[5])
+    return pd.Series(box, index=frame.index)
 
 
 def run_prunella(*args, cwd=ROOT, timeout: float = 300) -> subprocess.CompletedProcess:

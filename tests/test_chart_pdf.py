@@ -23,7 +23,7 @@ from core.chart.options import default_min_text
 from core.chart.pdf import draw
 from core.chart.style import contrast_ratio
 from core.model import column_values
-from tests.helpers import demo_inputs
+from tests.helpers import DEMO_A4_LEAVES, demo_inputs
 
 DATE = dt.date(2025, 3, 14)
 
@@ -67,7 +67,8 @@ def page_text(pdf: bytes) -> str:
 
 @pytest.fixture(scope="module")
 def chosen():
-    return demo.admitted().model
+    """A demo tree that prints on every paper (A4 and Letter hold fewer boxes than A3)."""
+    return demo.admitted_size(DEMO_A4_LEAVES).model
 
 
 @pytest.fixture(scope="module")
@@ -175,8 +176,9 @@ def test_observed_rates_and_wilson_intervals_are_the_model_counts(chosen, chosen
         assert f"95% CI {100 * low:.0f}–{100 * high:.0f}%" in inside
 
 
-def test_side_panel_shows_cross_validated_error_beside_training_error(chosen, chosen_pdf) -> None:
-    text = page_text(chosen_pdf)
+def test_side_panel_shows_cross_validated_error_beside_training_error() -> None:
+    chosen = demo.admitted().model  # the 1-SE tree, on the paper it fits
+    text = page_text(render_chart(chosen, options(paper="a3")))
     chosen_risk = chosen.chosen
     cv = f"Cross-validated error rate: {100 * chosen_risk['cv_risk']:.1f}% " \
          f"(SE {100 * chosen_risk['cv_se']:.1f}%)"
@@ -220,7 +222,7 @@ def test_a_held_out_check_from_derive_is_printed() -> None:
     run = derive(table, dictionary, DerivationRequest(
         DesignSpec("admitted", predictors, patient_id="patient_id"), cv=CVSettings(folds=3),
         holdout=0.25))
-    text = page_text(render_chart(run.model, options()))
+    text = page_text(render_chart(run.model, options(paper="a3")))  # its 1-SE tree: 7 boxes
     check = run.model.extra["validation"]
     assert UNCHECKED_BANNER not in text
     assert flat(check["summary"]) in text
@@ -334,7 +336,7 @@ def _grown_tree_cells(derivation) -> np.ndarray:
     return cells
 
 
-@pytest.mark.parametrize("size", [None, 7])
+@pytest.mark.parametrize("size", [None, 8])
 def test_printed_thresholds_route_every_derivation_patient_like_the_grown_tree(size) -> None:
     """The numbers printed on the page, read back from the PDF, send every derivation row to
     the same group of rows as scikit-learn's grown tree cut back to the chosen size; and each
@@ -432,7 +434,8 @@ def test_relative_bands_follow_the_cohort_rate(chosen) -> None:
 # --- geometry of the whole page -------------------------------------------------------------------
 
 
-@pytest.mark.parametrize("paper,size", [("a4", None), ("letter", None), ("a3", 7), ("a4", 1)])
+@pytest.mark.parametrize("paper,size", [("a4", DEMO_A4_LEAVES), ("letter", DEMO_A4_LEAVES),
+                                        ("a3", None), ("a4", 1)])
 def test_nothing_leaves_the_printable_area_or_overlaps(paper: str, size) -> None:
     model = demo.admitted().model if size is None else demo.admitted_size(size).model
     plan = plan_chart(model, options(paper=paper))
@@ -454,7 +457,7 @@ def test_nothing_leaves_the_printable_area_or_overlaps(paper: str, size) -> None
         assert printable.y <= line.baseline <= printable.bottom
 
 
-def test_the_qr_code_reads_back_as_the_model_fingerprint(chosen_pdf, tmp_path) -> None:
+def test_the_qr_code_reads_back_as_the_model_fingerprint(chosen, chosen_pdf, tmp_path) -> None:
     """Decoded by an independent reader (zbar), when the machine has it."""
     import shutil
     import subprocess
@@ -467,8 +470,7 @@ def test_the_qr_code_reads_back_as_the_model_fingerprint(chosen_pdf, tmp_path) -
                     str(tmp_path / "chart")], check=True)
     read = subprocess.run(["zbarimg", "-q", "--raw", str(tmp_path / "chart.png")],
                           capture_output=True, text=True)
-    fingerprint = demo.admitted().model.fingerprint
-    assert read.stdout.strip() == f"sha256:{fingerprint}"
+    assert read.stdout.strip() == f"sha256:{chosen.fingerprint}"
 
 
 def test_a_bare_model_and_a_recorded_or_not_question_still_print(chosen) -> None:

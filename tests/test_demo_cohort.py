@@ -14,9 +14,12 @@ import sys
 from pathlib import Path
 
 import openpyxl
+import pandas as pd
 import pytest
 
-from tests.helpers import DEMO_CSV, DEMO_DICTIONARY, DEMO_XLSX, SAMPLE, sha256_of
+from tests.helpers import (
+    DEMO_CSV, DEMO_DICTIONARY, DEMO_PLANTED_BOXES, DEMO_XLSX, SAMPLE, demo_planted_box, sha256_of,
+)
 
 SCRIPT = SAMPLE / "make_demo_cohort.py"
 DATA_FILES = ["breathless_ed.csv", "breathless_ed.xlsx", "breathless_ed.dictionary.json"]
@@ -41,6 +44,11 @@ def regenerated(tmp_path_factory: pytest.TempPathFactory) -> Path:
 def rows() -> list[dict[str, str]]:
     with open(DEMO_CSV, encoding="utf-8", newline="") as fh:
         return list(csv.DictReader(fh))
+
+
+@pytest.fixture(scope="module")
+def frame() -> pd.DataFrame:
+    return pd.read_csv(DEMO_CSV, keep_default_na=False, na_values=[""])
 
 
 @pytest.fixture(scope="module")
@@ -172,11 +180,31 @@ def test_low_spo2_is_the_strong_split(rows: list[dict[str, str]]) -> None:
     assert 0.30 <= _rate(rows) <= 0.40
 
 
-def test_riverside_admits_more_in_the_moderate_box(rows: list[dict[str, str]]) -> None:
-    moderate = [r for r in rows if int(r["spo2"]) >= 92 and int(r["resp_rate"]) > 24]
-    north = [r for r in moderate if r["campus"] == "North"]
-    riverside = [r for r in moderate if r["campus"] == "Riverside"]
-    assert _rate(riverside) - _rate(north) >= 0.15
+def test_each_planted_box_falls_on_its_side_of_one_half(frame: pd.DataFrame) -> None:
+    # Boxes that part at a question lie on opposite sides of a 50 % rate at both campuses, so a
+    # tree pruned by misclassification cost keeps every planted question.
+    admitted = frame["admitted"] == "yes"
+    box = demo_planted_box(frame)
+    for campus in ("North", "Riverside"):
+        for name, mostly_admitted in DEMO_PLANTED_BOXES.items():
+            inside = admitted[(box == name) & (frame["campus"] == campus)]
+            assert len(inside) >= 50, (campus, name)
+            rate = inside.mean()
+            assert (rate >= 0.6) if mostly_admitted else (rate <= 0.42), (campus, name, rate)
+
+
+def test_riverside_admits_more_in_the_moderate_box(frame: pd.DataFrame) -> None:
+    admitted = frame["admitted"] == "yes"
+    box = demo_planted_box(frame)
+
+    def rate(name: str, campus: str) -> float:
+        return admitted[(box == name) & (frame["campus"] == campus)].mean()
+
+    moderate = "fast breathing, walked in or GP referral"
+    assert rate(moderate, "Riverside") - rate(moderate, "North") >= 0.15
+    # ... and a few more from the large low-risk box.
+    low = "slower breathing, the rest"
+    assert rate(low, "Riverside") - rate(low, "North") >= 0.02
 
 
 def test_bed_booked_is_a_near_copy_of_the_outcome(rows: list[dict[str, str]]) -> None:
@@ -188,6 +216,9 @@ def test_bed_booked_is_a_near_copy_of_the_outcome(rows: list[dict[str, str]]) ->
 def test_crp_often_missing(rows: list[dict[str, str]]) -> None:
     share = sum(r["crp"] == "" for r in rows) / len(rows)
     assert 0.2 <= share <= 0.45
+    # SpO2, by contrast, is recorded at every visit: the planted tree asks one predictor that
+    # is sometimes blank (CRP) and one that never is.
+    assert all(r["spo2"] != "" for r in rows)
 
     def missing_share(subset: list[dict[str, str]]) -> float:
         return sum(r["crp"] == "" for r in subset) / len(subset)

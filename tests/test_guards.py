@@ -2,8 +2,8 @@
 
 The demo cohort is invented; its planted structure (sample_data/README.md) is what these
 checks rely on, not any clinical fact: `bed_booked` agrees with `admitted` for 98 % of visits
-and is recorded after the decision, `los_hours` is measured after it, and SpO2, breathing rate
-and age carry the planted, real-looking signal.
+and is recorded after the decision, `los_hours` is measured after it, and SpO2, breathing rate,
+age, triage level, arrival and CRP carry the planted, real-looking signal.
 """
 
 from __future__ import annotations

@@ -37,7 +37,7 @@ def no_network(monkeypatch):
 
 
 def test_the_whole_workflow_opens_no_socket(no_network, tmp_path):
-    from core.chart import write_chart
+    from core.chart import ChartOptions, write_chart
     from core.derive import DerivationRequest, derive
     from core.design import DesignSpec
     from core.guards import guard_design
@@ -70,7 +70,7 @@ def test_the_whole_workflow_opens_no_socket(no_network, tmp_path):
                               bootstrap=2)
     write_report(contents, tmp_path / "report.pdf")
     assert (tmp_path / "report.pdf").read_bytes().startswith(b"%PDF")
-    write_chart(model, tmp_path / "chart.pdf")
+    write_chart(model, tmp_path / "chart.pdf", ChartOptions(paper="a3"))  # 7 boxes: A3 holds them
     assert (tmp_path / "chart.pdf").read_bytes().startswith(b"%PDF")
     assert no_network == []
 

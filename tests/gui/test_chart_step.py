@@ -16,6 +16,7 @@ from PySide6.QtWidgets import QDialog  # noqa: E402
 
 from core.cautions import CAUTIONS  # noqa: E402
 from core.chart import sizes_that_fit  # noqa: E402
+from tests.helpers import DEMO_A4_LEAVES  # noqa: E402
 
 A4 = (595.28, 841.89)  # ISO 216, in points (REFERENCES.md)
 LETTER = (612.0, 792.0)  # ANSI/ASME Y14.1
@@ -31,6 +32,7 @@ def charted(demo, run, qtbot):
     window = demo
     window.panels["size"].folds.setValue(5)
     run(window)
+    window.panels["size"].choose_size(DEMO_A4_LEAVES)  # the 1-SE tree needs A3
     window.go_to("chart")
     chart = window.panels["chart"]
     qtbot.waitUntil(lambda: not chart.preview_busy and chart.pdf_path is not None, timeout=30000)

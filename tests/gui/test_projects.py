@@ -54,16 +54,18 @@ def _reopen(qtbot, path):
 
 def test_saved_project_reopens_to_the_identical_tree(window, qtbot, run, dialogs, tmp_path):
     data = _copy_demo(tmp_path / "work")
+    # A size the user picked on the curve: 17 boxes is on this run's pruning path and is
+    # neither its 1-SE (4) nor its lowest-error (6) choice.
     first = _grow_and_save(window, qtbot, run, dialogs, data, tmp_path / "work" / "admit",
-                           size_leaves=7)
+                           size_leaves=17)
     target = tmp_path / "work" / "admit.prunella"
     raw = json.loads(target.read_text(encoding="utf-8"))
-    assert raw["format"] == PROJECT_FORMAT and raw["size"] == 7 and raw["seed"] == 11
+    assert raw["format"] == PROJECT_FORMAT and raw["size"] == 17 and raw["seed"] == 11
     assert raw["request"]["tree"]["miss_cost"] == 2.0
     assert raw["model_fingerprint"] == first.fingerprint
     again = _reopen(qtbot, target)
     assert again.session.model.fingerprint == first.fingerprint
-    assert again.session.model.chosen["leaves"] == 7
+    assert again.session.model.chosen["leaves"] == 17
     assert "exactly the tree saved" in again.panels["size"].status.text()
     assert again.session.chart["title"] == "Who is admitted?" and again.session.chart["paper"] == "a3"
     assert again.panels["chart"].paper_combo.currentData() == "a3"

@@ -56,9 +56,11 @@ def test_open_choose_run_pick_size_and_export(demo, qtbot, run, dialogs, tmp_pat
     # Back to the 1-SE choice with its button.
     qtbot.mouseClick(size.one_se_button, Qt.LeftButton)
     assert session.model.chosen["rule"] == "1se"
-    # Step 6: the chart, exported as a one-page PDF, and the other exports.
+    # Step 6: the chart, exported as a one-page PDF, and the other exports. The 1-SE tree (7
+    # outcome boxes) is printed on A3, which the app names when A4 is too small for it.
     window.go_to("chart")
     chart = window.panels["chart"]
+    chart.paper_combo.setCurrentIndex(chart.paper_combo.findData("a3"))
     qtbot.waitUntil(lambda: not chart.preview_busy and chart.pdf_path is not None, timeout=30000)
     dialogs.save_name = str(tmp_path / "admitted-chart.pdf")
     qtbot.mouseClick(chart.export_button, Qt.LeftButton)
