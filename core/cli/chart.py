@@ -5,7 +5,7 @@ from __future__ import annotations
 import sys
 from typing import TYPE_CHECKING
 
-from ..chart.options import ORIENTATIONS, PAPER_SIZES, ChartOptions, default_min_text
+from ..chart.options import FORMS, ORIENTATIONS, PAPER_SIZES, ChartOptions, default_min_text
 from ..errors import InputError
 from ..model import TreeModel
 from ..safe_files import refuse_overwrite
@@ -27,6 +27,9 @@ def add_paper_options(parser) -> None:
 
 def add_fit_chart_options(fit) -> None:
     fit.add_argument("--chart", help="also print the chosen tree as a one-page PDF chart")
+    fit.add_argument("--chart-form", dest="form", default=_DEFAULTS.form, choices=FORMS,
+                     help="the chart as a tree of boxes and arrows, or as numbered rules, one "
+                     "row per outcome box (default: tree)")
     add_paper_options(fit)
 
 
@@ -34,6 +37,9 @@ def add_parsers(sub) -> None:
     chart = sub.add_parser("chart", help="print a saved model as a one-page PDF decision chart")
     chart.add_argument("model", help="model JSON written by 'prunella fit'")
     chart.add_argument("--out", required=True, help="where to write the PDF")
+    chart.add_argument("--form", default=_DEFAULTS.form, choices=FORMS,
+                       help="tree: boxes and arrows (default); rules: one row per outcome box "
+                       "with its route in words, for a tree too large to draw legibly")
     add_paper_options(chart)
     chart.add_argument("--subtitle", help="subtitle: the population and outcome definition "
                        "(default: the outcome and the derivation cohort)")
@@ -72,12 +78,13 @@ def chart_options_from_args(args):
                         min_text=getattr(args, "min_text", None),
                         small_cell=getattr(args, "small_cell", _DEFAULTS.small_cell),
                         hide_counts=getattr(args, "hide_counts", False), band_cuts=cuts,
-                        printed=printed).checked()
+                        printed=printed, form=getattr(args, "form", _DEFAULTS.form)).checked()
 
 
 def _chart_note(plan, path: str) -> str:
+    what = "rows" if plan.tree is None else "tree"
     return (f"Wrote the chart to {path} ({plan.options.paper_name} "
-            f"{'landscape' if plan.landscape else 'portrait'}, tree text {plan.tree.size:g} pt).")
+            f"{'landscape' if plan.landscape else 'portrait'}, {what} text {plan.text_size:g} pt).")
 
 
 def run_chart(args) -> int:
