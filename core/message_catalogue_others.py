@@ -167,7 +167,8 @@ ELSEWHERE = [
      "tree or larger paper.", "Choose a smaller tree, or larger paper.", ""),
     ("chart.too_large", "refused", "The tree has {leaves} outcome boxes and does not fit on one "
      "{paper} page ({where}) with text of at least {size} pt. {advice}",
-     "Choose the smaller size the message names, or larger paper.", "core/chart/fitting.py"),
+     "Choose the smaller size the message names, larger paper, or the numbered-rules form.",
+     ""),
     ("validate.no_heldout", "refused", "No patients were set aside before growing; set a "
      "held-out share (for example 0.25) and run the derivation again.",
      "Set a held-out share, or check the tree on another file.", "core/validate.py"),

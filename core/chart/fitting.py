@@ -45,7 +45,9 @@ class ChartTooLarge(InputError):
                      if tree_fits(model, options, measure, collapsed)), None)
 
     def __str__(self) -> str:
-        return too_large_message(len(self._model.leaves), self.largest_fitting, self._options)
+        model = self._model
+        return too_large_message(len(model.leaves), self.largest_fitting, self._options,
+                                 recorded=len(model.leaves) == 1 or bool(recorded_collapse(model)))
 
 
 def plan_chart(model: TreeModel, options: ChartOptions | None = None,
@@ -172,23 +174,28 @@ def _most_leaves(paper: str, size: float, measure: Measure) -> int:
     return max(1, int((w - 2 * m) * (h - 2 * m) / area) + 1)
 
 
-def too_large_message(leaves: int, fitting: int | None, options: ChartOptions) -> str:
-    """The refusal, naming the largest size that fits and larger paper."""
+def too_large_message(leaves: int, fitting: int | None, options: ChartOptions,
+                      recorded: bool = True) -> str:
+    """The refusal, naming the largest size that fits, larger paper and the rules form.
+    ``recorded`` is False for a model file that does not record its pruning sequence."""
     paper = options.paper_name
     where = {"auto": "portrait or landscape"}.get(options.orientation, options.orientation)
-    text = (f"The tree has {leaves} outcome boxes and does not fit on one {paper} page "
-            f"({where}) with text of at least {options.min_text:g} pt. ")
     if fitting is not None:
-        text += (f"The largest tree of its pruning sequence that fits has {fitting} outcome "
-                 f"boxes: choose that size (--size {fitting}, or on the pruning curve)")
+        advice = (f"The largest tree of its pruning sequence that fits has {fitting} outcome "
+                  f"boxes: choose that size (--size {fitting}, or on the pruning curve)")
+    elif not recorded:
+        advice = ("The model file does not record its pruning sequence (an older Prunella "
+                  "saved it), so no smaller size can be named: fit it again to find one")
     else:
-        text += "No smaller tree of its pruning sequence fits either: check the minimum text size"
+        advice = "No smaller tree of its pruning sequence fits either: check the minimum text size"
     larger = LARGER_PAPER.get(options.paper)
     if larger:
-        text += f", or print on larger paper ({PAPER_NAMES[larger]})."
+        advice += f", print on larger paper ({PAPER_NAMES[larger]})"
     else:
-        text += f"; {paper} is already among the largest papers Prunella prints on (A3, Tabloid)."
-    return text
+        advice += f" ({paper} is already among the largest papers Prunella prints on)"
+    advice += ", or print the same tree as numbered rules (--form rules)."
+    return say("chart.too_large", leaves=leaves, paper=paper, where=where,
+               size=f"{options.min_text:g}", advice=advice)
 
 
 def sizes_that_fit(derivation: "Derivation", options: ChartOptions | None = None,

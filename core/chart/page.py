@@ -331,13 +331,13 @@ def plan_page(text: ChartText, options: ChartOptions, measure: Measure,
     A layout is exactly proportional to its text size (every length is a multiple of it,
     wrap widths included), so one layout at the minimum tells the largest size that fits."""
     floor = options.min_text
-    frames = [frame for frame in frames(text, options, measure) if not frame.panel_overflows]
+    candidates = [frame for frame in frames(text, options, measure) if not frame.panel_overflows]
     best, best_key = None, None
     for direction, wraps, beside in itertools.product(_directions(options), WRAPS, (False, True)):
         if beside and direction != "down":
             continue
         # The tree's layout does not depend on the page around it: one per direction and wrap.
-        fitting = [f for f in frames if not _too_deep(text.tree, direction, floor, measure,
+        fitting = [f for f in candidates if not _too_deep(text.tree, direction, floor, measure,
                                                        f.tree_area)]
         if not fitting:
             continue

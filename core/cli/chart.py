@@ -23,13 +23,13 @@ def add_paper_options(parser) -> None:
     parser.add_argument("--orientation", default=_DEFAULTS.orientation, choices=ORIENTATIONS,
                         help="page orientation (default: chosen for the tree's shape)")
     parser.add_argument("--title", help="chart title (default: the outcome)")
+    parser.add_argument("--form", default=_DEFAULTS.form, choices=FORMS,
+                        help="tree: boxes and arrows (default); rules: one row per outcome box "
+                        "with its route in words, for a tree too large to draw legibly")
 
 
 def add_fit_chart_options(fit) -> None:
     fit.add_argument("--chart", help="also print the chosen tree as a one-page PDF chart")
-    fit.add_argument("--chart-form", dest="form", default=_DEFAULTS.form, choices=FORMS,
-                     help="the chart as a tree of boxes and arrows, or as numbered rules, one "
-                     "row per outcome box (default: tree)")
     add_paper_options(fit)
 
 
@@ -37,9 +37,6 @@ def add_parsers(sub) -> None:
     chart = sub.add_parser("chart", help="print a saved model as a one-page PDF decision chart")
     chart.add_argument("model", help="model JSON written by 'prunella fit'")
     chart.add_argument("--out", required=True, help="where to write the PDF")
-    chart.add_argument("--form", default=_DEFAULTS.form, choices=FORMS,
-                       help="tree: boxes and arrows (default); rules: one row per outcome box "
-                       "with its route in words, for a tree too large to draw legibly")
     add_paper_options(chart)
     chart.add_argument("--subtitle", help="subtitle: the population and outcome definition "
                        "(default: the outcome and the derivation cohort)")
