@@ -44,10 +44,16 @@ class ChartTooLarge(InputError):
         return next((leaves for leaves, collapsed in smaller_trees(model)[1:]
                      if tree_fits(model, options, measure, collapsed)), None)
 
+    @cached_property
+    def rules_fit(self) -> bool:
+        """Whether the same tree prints on the page as numbered rules."""
+        return tree_fits(self._model, replace(self._options, form="rules"), self._measure)
+
     def __str__(self) -> str:
         model = self._model
         return too_large_message(len(model.leaves), self.largest_fitting, self._options,
-                                 recorded=len(model.leaves) == 1 or bool(recorded_collapse(model)))
+                                 recorded=len(model.leaves) == 1 or bool(recorded_collapse(model)),
+                                 rules=self.rules_fit)
 
 
 def plan_chart(model: TreeModel, options: ChartOptions | None = None,
@@ -175,9 +181,10 @@ def _most_leaves(paper: str, size: float, measure: Measure) -> int:
 
 
 def too_large_message(leaves: int, fitting: int | None, options: ChartOptions,
-                      recorded: bool = True) -> str:
-    """The refusal, naming the largest size that fits, larger paper and the rules form.
-    ``recorded`` is False for a model file that does not record its pruning sequence."""
+                      recorded: bool = True, rules: bool = False) -> str:
+    """The refusal, naming the largest size that fits, larger paper and, when the same tree
+    fits as numbered rules (``rules``), that form. ``recorded`` is False for a model file that
+    does not record its pruning sequence."""
     paper = options.paper_name
     where = {"auto": "portrait or landscape"}.get(options.orientation, options.orientation)
     if fitting is not None:
@@ -190,10 +197,10 @@ def too_large_message(leaves: int, fitting: int | None, options: ChartOptions,
         advice = "No smaller tree of its pruning sequence fits either: check the minimum text size"
     larger = LARGER_PAPER.get(options.paper)
     if larger:
-        advice += f", print on larger paper ({PAPER_NAMES[larger]})"
+        advice += f"{',' if rules else ', or'} print on larger paper ({PAPER_NAMES[larger]})"
     else:
         advice += f" ({paper} is already among the largest papers Prunella prints on)"
-    advice += ", or print the same tree as numbered rules (--form rules)."
+    advice += ", or print the same tree as numbered rules (--form rules)." if rules else "."
     return say("chart.too_large", leaves=leaves, paper=paper, where=where,
                size=f"{options.min_text:g}", advice=advice)
 

@@ -100,7 +100,7 @@ def plan_rules(model: TreeModel, text: ChartText, options: ChartOptions,
     the rows fit no arrangement at the minimum text size."""
     floor = options.min_text
     best, best_key = None, None
-    for frame, columns in itertools.product(frames(text, options, measure), (1, 2)):
+    for frame, columns in itertools.product(frames(text, options, measure), (1, 2, 3)):
         if frame.panel_overflows or _rows(model, text.tree, frame, frame.tree_area, floor,
                                           columns, measure) is None:
             continue

@@ -102,9 +102,10 @@ def fit_chart(args, derivation: Derivation) -> None:
     options = chart_options_from_args(args)
     try:
         plan = write_chart(derivation.model, args.chart, options)
-    except ChartTooLarge:
+    except ChartTooLarge as refused:
         sizes = sizes_that_fit(derivation, options)
-        message = too_large_message(len(derivation.model.leaves), max(sizes, default=None), options)
+        message = too_large_message(len(derivation.model.leaves), max(sizes, default=None), options,
+                                    rules=refused.rules_fit)
         raise InputError(f"The model was saved to {args.model}, but no chart was printed. "
                          + message) from None
     if not args.quiet:
