@@ -149,6 +149,10 @@ def build_model(path: CrossValidatedPath, index: int, rule: str, table: LoadedTa
         "folds": path.n_folds,
         "min_leaves": int(sequence.leaves[path.min_index]),
         "one_se_leaves": int(sequence.leaves[path.one_se_index]),
+        # Each box's collapse α (None for outcome boxes): the smaller trees of the sequence
+        # are this tree's boxes collapsed at each α, so a saved model knows them itself.
+        "collapse_alpha": [float(sequence.collapse[node]) if internal[node] else None
+                           for node, _ in order],
     }
     chosen = {"leaves": int(sequence.leaves[index]), "rule": rule,
               "cv_risk": float(path.cv_risk[index]), "cv_se": float(path.cv_se[index]),

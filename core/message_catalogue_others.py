@@ -160,9 +160,15 @@ ELSEWHERE = [
     ("chart.band_cuts", "refused", "Give one or two increasing band cut-points, e.g. 10,30 "
      "(percent for rates, outcome units for means).", "For example --bands 10,30.",
      "core/chart/options.py"),
+    ("chart.form", "refused", "Chart form {given!r} is not one of {choices}.",
+     "Use tree (boxes and arrows) or rules (one row per outcome box).", ""),
+    ("chart.rules_too_large", "refused", "Even as numbered rules, the tree's {leaves} outcome "
+     "boxes do not fit on one {paper} page with text of at least {size} pt; choose a smaller "
+     "tree or larger paper.", "Choose a smaller tree, or larger paper.", ""),
     ("chart.too_large", "refused", "The tree has {leaves} outcome boxes and does not fit on one "
      "{paper} page ({where}) with text of at least {size} pt. {advice}",
-     "Choose the smaller size the message names, or larger paper.", "core/chart/fitting.py"),
+     "Choose the smaller size the message names, larger paper, or the numbered-rules form.",
+     ""),
     ("validate.no_heldout", "refused", "No patients were set aside before growing; set a "
      "held-out share (for example 0.25) and run the derivation again.",
      "Set a held-out share, or check the tree on another file.", "core/validate.py"),

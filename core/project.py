@@ -41,7 +41,7 @@ class Project:
     dictionary: DataDictionary | None = None
     request: DerivationRequest | None = None
     size: str | int = "1se"  # "1se", "min" or a number of leaves
-    chart: dict = field(default_factory=dict)  # title, subtitle, paper, orientation, min_text
+    chart: dict = field(default_factory=dict)  # title, subtitle, paper, orientation, min_text, form
     model_fingerprint: str | None = None  # of the tree chosen when saved
 
     @property

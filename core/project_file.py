@@ -104,6 +104,7 @@ def validate_project_dict(data: dict, file: str = "The project") -> None:
         chart.text("paper")
         chart.text("orientation")
         chart.number("min_text", 0)
+        chart.text("form", choices=("tree", "rules"))
     top.text("model_fingerprint")
     top.text("saved_by")
 

@@ -28,7 +28,7 @@ STEP_TITLES = {
     "chart": "The chart",
 }
 DEFAULT_CHART = {"title": None, "subtitle": None, "paper": "a4", "orientation": "auto",
-                 "min_text": None}  # None: the chart's own default
+                 "min_text": None, "form": "tree"}  # None: the chart's own default
 
 
 class Session(QObject):
@@ -135,7 +135,8 @@ class Session(QObject):
                             orientation=chart.get("orientation") or "auto",
                             title=chart.get("title") or None,
                             subtitle=chart.get("subtitle") or None,
-                            min_text=chart.get("min_text"))
+                            min_text=chart.get("min_text"),
+                            form=chart.get("form") or "tree")
 
     def set_chart(self, **options) -> None:
         merged = {**self.chart, **options}

@@ -6,13 +6,10 @@ core/intervals.py, which tests/test_metrics.py checks against published values.
 
 from __future__ import annotations
 
-from dataclasses import replace
-
 import pytest
 
 import _chart_demo as demo
 from core.chart.bands import box_value
-from core.chart.content import expected_text
 from core.intervals import wilson_interval
 from core.model import ANSWERS, Question
 
@@ -47,14 +44,6 @@ def test_derived_outcome_text_is_the_shared_phrase_with_counts(which: str) -> No
     for leaf in model.leaves:
         assert leaf.text.startswith(model.expected_outcome(leaf) + " ("), leaf.text
         assert f"{leaf.n} patients" in leaf.text
-        assert expected_text(model, leaf) == model.expected_outcome(leaf)
-
-
-def test_an_older_model_file_is_printed_in_its_own_words() -> None:
-    model = demo.admitted().model
-    leaf = model.leaves[0]
-    old = replace(leaf, text=f"{model.outcome.display}: {leaf.prediction} expected (40% of 9 patients)")
-    assert expected_text(model, old) == f"{model.outcome.display}: {leaf.prediction} expected"
 
 
 def test_which_branch_takes_a_value_not_recorded() -> None:
@@ -68,16 +57,18 @@ def test_which_branch_takes_a_value_not_recorded() -> None:
 
 
 def test_rules_and_chart_agree_on_branch_labels() -> None:
+    """The arrows say YES or NO as the rules do; the question box says which answer a value
+    that is not recorded takes, as the rules' "(or not recorded)" does."""
     from core.chart import ChartOptions
     from core.chart.content import NOT_RECORDED, chart_text
 
     model = demo.admitted().model
-    labels = chart_text(model, ChartOptions().checked()).tree.labels
+    spec = chart_text(model, ChartOptions().checked()).tree
     for leaf in model.leaves:
         for step in model.steps_to(leaf.id):
-            paras = [p.text for p in labels[(step.box, step.to)]]
-            assert paras[0] == step.answer
-            assert (NOT_RECORDED in paras) == step.includes_missing
+            assert [p.text for p in spec.labels[(step.box, step.to)]] == [step.answer]
+            notes = [p.text for p in spec.boxes[step.box].body[1:]]
+            assert (f"{NOT_RECORDED}: {step.answer}" in notes) == step.includes_missing
 
 
 def test_the_report_title_page_prints_risks_and_fingerprints_as_elsewhere() -> None:

@@ -116,8 +116,8 @@ def check_tidy(spec: TreeSpec, layout, tol: float = 1e-6) -> None:
             assert y0 == pytest.approx(p.bottom) and p.x < x0 < p.right
             assert y1 == pytest.approx(c.y) and x1 == pytest.approx(c.cx)
             assert p.bottom < arrow.label.y and arrow.label.bottom < c.y
-            assert c.x - tol <= arrow.label.x and arrow.label.right <= c.right + tol or \
-                arrow.label.w > c.w
+            # beside the drop, on its outer side: YES to the left, NO to the right
+            assert (arrow.label.right < x1) if arrow.branch == 0 else (arrow.label.x > x1)
         else:
             assert x0 == pytest.approx(p.right) and p.y < y0 < p.bottom
             assert x1 == pytest.approx(c.x) and y1 == pytest.approx(c.cy)

@@ -18,7 +18,7 @@ import _chart_demo as demo
 from core import __version__
 from core.cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER
 from core.chart import ChartOptions, plan_chart, render_chart
-from core.chart.content import expected_text
+from core.chart.content import NOT_RECORDED
 from core.chart.options import default_min_text
 from core.chart.pdf import draw
 from core.chart.style import contrast_ratio
@@ -140,19 +140,18 @@ def test_every_question_answer_and_outcome_can_be_extracted(chosen, chosen_pdf) 
         # (from memory).
         assert inside.startswith(str(node.id))
         if node.leaf:
-            assert node.text.startswith(expected_text(chosen, node) + " (")
-            assert expected_text(chosen, node) in inside
+            # The outcome is named in the title and key, not in every box.
+            assert f"Expect {node.prediction}" in inside
+            assert chosen.outcome.display not in inside
             assert f"of {node.n:,} visits" in inside  # rows are visits: patients came back
             assert "95% CI" in inside
         else:
             assert node.text in inside
+            branch = [k for k in range(2) if node.question.takes_missing(k)]
+            assert (f"{NOT_RECORDED}: {'YES' if branch == [0] else 'NO'}" in inside) == bool(branch)
     for arrow in plan.tree.arrows:
         label = flat(text_inside(arrow.label, frags))
-        question = chosen.node(arrow.parent).question
-        answer = "YES" if arrow.branch == 0 else "NO"
-        missing = question.missing_goes == ("yes" if arrow.branch == 0 else "no")
-        assert label == (f"{answer} or not recorded" if missing and question.kind != "missing"
-                         else answer)
+        assert label == ("YES" if arrow.branch == 0 else "NO")
     assert text.count("YES") >= len(plan.tree.arrows) // 2
     for sentence in CAUTIONS:
         assert sentence in text
@@ -283,9 +282,10 @@ def _printed_tree(model, pdf: bytes, paper: str):
         inside = flat(text_inside(plan.tree.boxes[node.id].rect, frags))
         assert inside.startswith(f"{node.id} ")
         question = inside[len(str(node.id)) + 1:]
-        labels = {a.branch: flat(text_inside(a.label, frags)) for a in plan.tree.arrows
-                  if a.parent == node.id}
-        missing = "yes" if "not recorded" in labels[0] else "no"
+        missing = "no"  # the box's own line says where a value not recorded goes
+        note = re.search(rf" {NOT_RECORDED}: (YES|NO)$", question)
+        if note:
+            missing, question = note.group(1).lower(), question[:note.start()]
         above = re.fullmatch(r"(.+) above (-?[\d.]+)\s*(\S*)\?", question)
         if above and above.group(1) in by_label:
             printed[node.id] = (by_label[above.group(1)].name, "above", float(above.group(2)),
@@ -395,7 +395,8 @@ def test_a_regression_chart_shows_means_with_intervals() -> None:
     pdf = render_chart(model, options())
     text = page_text(pdf)
     for leaf in model.leaves:
-        assert expected_text(model, leaf) in text
+        low, high = model.mean_interval(leaf)
+        assert f"Mean {leaf.mean:.3g}" in text
     assert "Cross-validated mean squared error" in text and "Training mean squared error" in text
     assert "95% CI" in text and "hours" in text
     assert any(word in text for word in ("LOWER", "HIGHER"))
@@ -409,7 +410,7 @@ def test_a_three_class_chart_bands_by_the_expected_class() -> None:
     for leaf in model.leaves:
         inside = flat(text_inside(plan.tree.boxes[leaf.id].rect, frags))
         assert inside.split()[1:4] == str(leaf.prediction).split()[:3]  # the band word
-        assert expected_text(model, leaf) in inside
+        assert f"Expect {leaf.prediction}" in inside
 
 
 def test_absolute_band_cut_points(chosen) -> None:
@@ -491,6 +492,7 @@ def test_a_bare_model_and_a_recorded_or_not_question_still_print(chosen) -> None
     frags = fragments(pdf)
     labels = {a.branch: flat(text_inside(a.label, frags)) for a in plan.tree.arrows if a.parent == 1}
     assert labels == {0: "YES", 1: "NO"}
+    assert NOT_RECORDED not in flat(text_inside(plan.tree.boxes[1].rect, frags))
     text = page_text(pdf)
     assert "C-reactive protein (CRP) not recorded?" in text
     assert "Data unknown" in text and UNCHECKED_BANNER in text

@@ -12,6 +12,9 @@ from typing import Mapping
 
 from .text import CAP, LEADING, Line, Measure, balanced_wrap
 
+QUESTION_STRETCH = 1.25  # a question may widen by a quarter to save a line
+
+
 @dataclass(frozen=True)
 class Para:
     """A paragraph of box text; ``scale`` multiplies the tree text size."""
@@ -49,6 +52,8 @@ class LayoutStyle:
     direction: str = "down"  # "down" (top-down) or "right" (left-to-right)
     question_em: float = 16.0  # wrap width of question text, in units of the text size
     outcome_em: float = 14.0
+    stacked_labels: bool = False  # top-down: "YES" above "or not recorded", not beside it
+    leaves_beside: bool = False  # top-down: a question's one outcome box drawn beside it
 
 
 # --- box geometry ----------------------------------------------------------------------
@@ -80,13 +85,13 @@ def _wrapped(paras: tuple[Para, ...], width_em: float, s: float, measure: Measur
 def size_boxes(spec: TreeSpec, style: LayoutStyle, measure: Measure) -> dict[int, SizedBox]:
     s = style.size
     pad_x, pad_y, gap = 0.6 * s, 0.45 * s, 0.45 * s
-    # Questions may widen by half to save a line (a shorter level pitch for the whole tree).
-    wrapped = {i: _wrapped(b.body, style.question_em, s, measure, 1.5) if b.kind == "question"
+    wrapped = {i: _wrapped(b.body, style.question_em, s, measure, QUESTION_STRETCH)
+               if b.kind == "question"
                else _wrapped(b.body, style.outcome_em, s, measure, 1.0)
                for i, b in spec.boxes.items()}
 
     def badge_radius(box: BoxSpec) -> float:
-        return max(0.78 * s, measure(box.number, True, 0.95 * s) / 2 + 0.25 * s)
+        return max(0.78 * s, measure(box.number, True, s) / 2 + 0.22 * s)
 
     # Outcome boxes share one width (a calm row of cards); a question box is as wide as its
     # own wrapped text. Either way a box's size depends only on its own content.
@@ -126,7 +131,8 @@ def size_boxes(spec: TreeSpec, style: LayoutStyle, measure: Measure) -> dict[int
             badge = (pad_x * 0.6 + r, strip / 2, r)
             centre = w / 2
             top = strip + pad_y
-        lines = [Line(box.number, True, round(0.95 * s, 3), badge[0], badge[1] + CAP * 0.95 * s)]
+        # The number is tree text too: never below the tree's size (the legibility floor).
+        lines = [Line(box.number, True, s, badge[0], badge[1] + CAP * s)]
         if box.heading is not None:
             hs = s * box.heading.scale
             lines.append(Line(box.heading.text, box.heading.bold, hs, badge[0] + r + gap,

@@ -6,7 +6,6 @@ Everything here is plain text built from the model; the layout and the PDF only 
 from __future__ import annotations
 
 import math
-import re
 from dataclasses import dataclass
 
 from .. import __version__
@@ -19,7 +18,9 @@ from .options import ChartOptions
 
 HOW_TO_READ = ("How to read: start at box 1. Answer each question; follow YES or NO until "
                "you reach an outcome box.")
-NOT_RECORDED = "or not recorded"
+HOW_TO_READ_RULES = ("How to read: find the row whose answers all hold for the patient; its "
+                     "outcome box is the tree's answer. Exactly one row fits each patient.")
+NOT_RECORDED = "If not recorded"  # a question's own line: which answer a missing value takes
 
 
 @dataclass(frozen=True)
@@ -68,20 +69,6 @@ def _count(n: int, model: TreeModel) -> str:
     return plural(n, {"visits": "visit", "patients": "patient"}[word], word)
 
 
-# Older model files word an outcome "Admitted: yes expected (...)": what the chart prints is
-# what the model file says, so the counts at its end are cut off, not the words rebuilt.
-_COUNTS_NOTE = re.compile(r" \([^()]*\)$")
-
-
-def expected_text(model: TreeModel, node: Node) -> str:
-    """The expected outcome in words, as the model file words it (without the counts in
-    brackets at its end, which the box prints its own way)."""
-    phrase = model.expected_outcome(node)
-    if not (node.leaf and node.text) or node.text.startswith(phrase + " ("):
-        return phrase
-    return _COUNTS_NOTE.sub("", node.text)
-
-
 def span(low: str, high: str) -> str:
     """An interval as clinicians print it: 77–83%, or '−2 to 3' when a sign would blur it."""
     return f"{low} to {high}" if low.startswith(("-", "−")) or high.startswith(("-", "−")) \
@@ -89,19 +76,23 @@ def span(low: str, high: str) -> str:
 
 
 def outcome_paras(model: TreeModel, node: Node, options: ChartOptions) -> tuple[Para, ...]:
-    """Expected outcome, observed rate (or mean) and how many it rests on, its 95% interval."""
-    paras = [Para(expected_text(model, node), bold=True)]
+    """What an outcome box says, in a few short lines: the expected outcome (or mean), the
+    rate and how many it rests on, the 95% interval. The outcome itself is named once, in the
+    title and the key, not in every box. Built here alone, so that what a box says changes in
+    one place."""
     count = "" if options.hide_counts else _count(node.n, model)
     if model.task == "regression":
         low, high = model.mean_interval(node)
+        paras = [Para(f"Mean {number(float(node.mean), model.outcome.unit)}", bold=True),
+                 Para(f"95% CI {span(number(low), number(high, model.outcome.unit))}")]
         if count:
             paras.append(Para(count))
-        paras.append(Para(f"95% CI {span(number(low), number(high, model.outcome.unit))}"))
     else:
         share = model.box_share(node)
         rate = percent(share.value or 0.0)
-        paras.append(Para(f"{rate} of {count}" if count else f"Rate {rate}"))
-        paras.append(Para(f"95% CI {span(percent(share.low or 0.0)[:-1], percent(share.high or 1.0))}"))
+        paras = [Para(f"Expect {node.prediction}", bold=True),
+                 Para(f"{rate} of {count}" if count else f"Rate {rate}"),
+                 Para(f"95% CI {span(percent(share.low or 0.0)[:-1], percent(share.high or 1.0))}")]
     if node.n < options.small_cell:
         paras.append(Para("Small group", bold=True))
     return tuple(paras)
@@ -123,14 +114,17 @@ def tree_spec(model: TreeModel, options: ChartOptions,
             boxes[node.id] = BoxSpec("outcome", str(node.id), outcome_paras(model, node, options),
                                      heading=Para(band.word, bold=True))
             continue
-        boxes[node.id] = BoxSpec("question", str(node.id), (Para(node.text, bold=True, scale=1.1),))
-        children[node.id] = node.children
         question = node.question
+        body = [Para(node.text, bold=True, scale=1.1)]
+        # Where a value that is not recorded goes, said in the question box itself, so that
+        # the arrows carry one short word each.
+        missing = [ANSWERS[k] for k in range(2) if question.takes_missing(k)]
+        if missing:
+            body.append(Para(f"{NOT_RECORDED}: {missing[0]}"))
+        boxes[node.id] = BoxSpec("question", str(node.id), tuple(body))
+        children[node.id] = node.children
         for k, child in enumerate(node.children):
-            paras = [Para(ANSWERS[k], bold=True)]
-            if question.takes_missing(k):
-                paras.append(Para(NOT_RECORDED))
-            labels[(node.id, child)] = tuple(paras)
+            labels[(node.id, child)] = (Para(ANSWERS[k], bold=True),)
         stack.extend(reversed(node.children))
     return TreeSpec(model.root.id, children, boxes, labels), band_of
 
@@ -269,12 +263,16 @@ def _key(model: TreeModel, bands: Banding, options: ChartOptions) -> PanelSectio
         items.append(PanelItem(f"Dashed: under {options.small_cell} {count_word(model)}, "
                                "so the rate is uncertain", dashed=True))
     if model.task == "regression":
-        what = f"Mean: average {model.outcome.display.lower()}; 95% CI: t interval, kept within the observed range."
+        what = (f"Mean: average {model.outcome.display.lower()}, with its 95% CI (t interval, "
+                "kept within the observed range).")
     elif model.positive is not None:
-        what = f"Rate: share {rate_phrase(model)}; 95% CI: Wilson interval."
+        what = (f"Expect: the outcome the tree predicts. Rate: share {rate_phrase(model)}, "
+                "with its 95% CI (Wilson).")
     else:
-        what = "Rate: share with the expected outcome; 95% CI: Wilson interval."
-    items.append(PanelItem(f"{what} “{NOT_RECORDED}”: where a missing value goes."))
+        what = ("Expect: the outcome the tree predicts. Rate: share with that outcome, with "
+                "its 95% CI (Wilson).")
+    missing = "(or not recorded)" if options.form == "rules" else NOT_RECORDED
+    items.append(PanelItem(f"{what} “{missing}”: the way to go when the value is missing."))
     return PanelSection("Key", tuple(items), kind="key")
 
 
@@ -294,11 +292,12 @@ def chart_text(model: TreeModel, options: ChartOptions) -> ChartText:
     data = model.extra.get("data", {})
     footer = (f"Model {model.short_fingerprint}  ·  Data {short_fingerprint(data.get('sha256', '')) or 'unknown'}"
               f"  ·  Printed {options.printed.isoformat()}  ·  Prunella {__version__}",
-              "The model fingerprint (SHA-256 of the model file, also in the QR code) names "
-              "the exact tree on this chart.")
+              "The model fingerprint (SHA-256 of the model's canonical JSON: keys sorted, no "
+              "spaces; also in the QR code) names the exact tree on this chart.")
     return ChartText(title=options.title or default_title(model),
                      subtitle=options.subtitle if options.subtitle is not None
                      else default_subtitle(model),
-                     how_to_read=HOW_TO_READ, banner=banner, tree=spec, bands=band_of,
+                     how_to_read=HOW_TO_READ_RULES if options.form == "rules" else HOW_TO_READ,
+                     banner=banner, tree=spec, bands=band_of,
                      small=small, sections=tuple(sections), footer=footer,
                      fingerprint=model.fingerprint)

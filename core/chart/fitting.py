@@ -2,11 +2,10 @@
 
 A tree that cannot be printed at the minimum text size is refused, naming the largest tree of
 its pruning sequence that fits. With a whole derivation at hand (the app, ``prunella fit``)
-the candidates are built by :func:`core.derive.choose_model`. From a saved model alone (``prunella
-chart``) they are its own weakest-link prunings: every smaller tree of the sequence is a
-pruning of the chosen one, and the optimal subtrees for larger α are the chosen tree's own
-optimal prunings, so the node risks the model keeps (counts, priors and costs, or SDs) are
-enough to find them with core/prune.py.
+the candidates are built from its pruning path by :func:`core.derive.build_model`. From a
+saved model alone (``prunella chart``) they are its own prunings: every smaller tree of the
+sequence is the chosen tree with the boxes whose collapse α (recorded in the model file's
+path) lies at or below that tree's α made outcome boxes.
 """
 
 from __future__ import annotations
@@ -15,12 +14,9 @@ from dataclasses import replace
 from functools import cached_property, lru_cache
 from typing import TYPE_CHECKING
 
-import numpy as np
-
 from ..errors import InputError
-from ..grow import ClassCosts, growth_class_weights
+from ..messages import say
 from ..model import TreeModel
-from ..prune import collapse_alphas
 from .content import chart_text
 from .layout import BoxSpec, LayoutStyle, Measure, Para, TreeSpec, layout_tree, reportlab_measure
 from .options import LARGER_PAPER, PAPER_NAMES, ChartOptions, margin_for, page_size
@@ -48,15 +44,32 @@ class ChartTooLarge(InputError):
         return next((leaves for leaves, collapsed in smaller_trees(model)[1:]
                      if tree_fits(model, options, measure, collapsed)), None)
 
+    @cached_property
+    def rules_fit(self) -> bool:
+        """Whether the same tree prints on the page as numbered rules."""
+        return tree_fits(self._model, replace(self._options, form="rules"), self._measure)
+
     def __str__(self) -> str:
-        return too_large_message(len(self._model.leaves), self.largest_fitting, self._options)
+        model = self._model
+        return too_large_message(len(model.leaves), self.largest_fitting, self._options,
+                                 recorded=len(model.leaves) == 1 or bool(recorded_collapse(model)),
+                                 rules=self.rules_fit)
 
 
 def plan_chart(model: TreeModel, options: ChartOptions | None = None,
                measure: Measure = reportlab_measure) -> ChartPlan:
     """Where everything of ``model``'s chart goes; raises ChartTooLarge if it cannot fit."""
     options = (options or ChartOptions()).checked()
-    plan = plan_page(chart_text(model, options), options, measure)
+    text = chart_text(model, options)
+    if options.form == "rules":
+        from .rules import plan_rules
+
+        plan = plan_rules(model, text, options, measure)
+        if plan is None:
+            raise InputError(say("chart.rules_too_large", leaves=len(model.leaves),
+                                 paper=options.paper_name, size=f"{options.min_text:g}"))
+        return plan
+    plan = plan_page(text, options, measure)
     if plan is None:
         raise ChartTooLarge(model, options, measure)
     return plan
@@ -66,6 +79,11 @@ def tree_fits(model: TreeModel, options: ChartOptions, measure: Measure = report
               collapsed: frozenset[int] = frozenset()) -> bool:
     """Whether ``model`` (pruned at the ``collapsed`` boxes) fits at the minimum text size."""
     options = options.checked()
+    if options.form == "rules":
+        from .rules import plan_rules
+
+        model = pruned_model(model, collapsed) if collapsed else model
+        return plan_rules(model, chart_text(model, options), options, measure) is not None
     if _leaf_count(model, collapsed) > _most_leaves(options.paper, options.min_text, measure):
         return False
     if collapsed:
@@ -103,19 +121,14 @@ def pruned_model(model: TreeModel, collapsed: frozenset[int]) -> TreeModel:
 
 def smaller_trees(model: TreeModel) -> list[tuple[int, frozenset[int]]]:
     """The model's tree and every smaller tree of its pruning sequence, largest first, each as
-    (number of outcome boxes, internal boxes collapsed into outcome boxes)."""
-    internal = [n for n in model.nodes if not n.leaf]
-    if not internal:
-        return [(1, frozenset())]
-    left = np.full(len(model.nodes), -1, dtype=np.int64)
-    right = np.full(len(model.nodes), -1, dtype=np.int64)
-    for n in internal:  # core/prune.py's convention: right = YES (value above), left = NO
-        right[n.id - 1], left[n.id - 1] = n.children[0] - 1, n.children[1] - 1
-    collapse = collapse_alphas(left, right, node_risks(model))
-    alphas = sorted({0.0} | {float(collapse[n.id - 1]) for n in internal})
+    (number of outcome boxes, question boxes collapsed into outcome boxes). A model file that
+    does not record its boxes' collapse α (an older one) yields its own tree alone."""
+    collapse = recorded_collapse(model)
+    if not collapse:
+        return [(len(model.leaves), frozenset())]
     trees, seen = [], set()
-    for alpha in alphas:
-        collapsed = frozenset(n.id for n in internal if collapse[n.id - 1] <= alpha)
+    for alpha in sorted({0.0} | set(collapse.values())):
+        collapsed = frozenset(box for box, at in collapse.items() if at <= alpha)
         leaves = _leaf_count(model, collapsed)
         if leaves not in seen:
             seen.add(leaves)
@@ -123,33 +136,20 @@ def smaller_trees(model: TreeModel) -> list[tuple[int, frozenset[int]]]:
     return trees
 
 
-def node_risks(model: TreeModel) -> np.ndarray:
-    """Each box's risk R(t) as the pruning used it (per patient of the derivation data)."""
-    total = float(model.n_rows)
-    if model.task == "regression":
-        return np.array([(n.sd or 0.0) ** 2 * max(n.n - 1, 1) / total for n in model.nodes])
-    counts = np.array([n.counts for n in model.nodes], dtype=float)
-    k = len(model.classes)
-    costs = model.extra.get("costs") or {"priors": (counts[0] / counts[0].sum()).tolist(),
-                                         "loss": (1 - np.eye(k)).tolist()}
-    priors, loss = np.asarray(costs["priors"], float), np.asarray(costs["loss"], float)
-    totals = counts[0]
-    tree = model.extra.get("settings", {}).get("tree", {})
-    if tree.get("risk", "cost") == "cost":
-        with np.errstate(divide="ignore", invalid="ignore"):
-            weight = np.where(totals > 0, priors * totals.sum() / totals, 0.0)
-        return ClassCosts(priors, loss, weight).node_costs(counts, totals).min(axis=1)
-    # Impurity risk: the grower's weighted impurity × weighted share of the root.
-    y = np.repeat(np.arange(k), totals.astype(int))
-    weights = growth_class_weights(ClassCosts(priors, loss, np.ones(k)), y)
-    weighted = counts * np.array([weights[j] for j in range(k)])
-    share = weighted / np.maximum(weighted.sum(axis=1, keepdims=True), 1e-300)
-    if tree.get("criterion") in ("entropy", "log_loss"):
-        with np.errstate(divide="ignore", invalid="ignore"):
-            impurity = -np.nansum(np.where(share > 0, share * np.log(share), 0.0), axis=1)
-    else:
-        impurity = 1 - (share ** 2).sum(axis=1)
-    return impurity * weighted.sum(axis=1) / weighted[0].sum()
+def recorded_collapse(model: TreeModel) -> dict[int, float]:
+    """Each question box's collapse α as the model file records it ({} when it does not, or
+    when the record does not match the boxes)."""
+    record = model.path.get("collapse_alpha")
+    if not isinstance(record, list) or len(record) != len(model.nodes):
+        return {}
+    collapse = {}
+    for node, alpha in zip(model.nodes, record):
+        if node.leaf:
+            continue
+        if not isinstance(alpha, (int, float)) or isinstance(alpha, bool) or alpha != alpha:
+            return {}
+        collapse[node.id] = float(alpha)
+    return collapse
 
 
 def _leaf_count(model: TreeModel, collapsed: frozenset[int]) -> int:
@@ -180,23 +180,29 @@ def _most_leaves(paper: str, size: float, measure: Measure) -> int:
     return max(1, int((w - 2 * m) * (h - 2 * m) / area) + 1)
 
 
-def too_large_message(leaves: int, fitting: int | None, options: ChartOptions) -> str:
-    """The refusal, naming the largest size that fits and larger paper."""
+def too_large_message(leaves: int, fitting: int | None, options: ChartOptions,
+                      recorded: bool = True, rules: bool = False) -> str:
+    """The refusal, naming the largest size that fits, larger paper and, when the same tree
+    fits as numbered rules (``rules``), that form. ``recorded`` is False for a model file that
+    does not record its pruning sequence."""
     paper = options.paper_name
     where = {"auto": "portrait or landscape"}.get(options.orientation, options.orientation)
-    text = (f"The tree has {leaves} outcome boxes and does not fit on one {paper} page "
-            f"({where}) with text of at least {options.min_text:g} pt. ")
     if fitting is not None:
-        text += (f"The largest tree of its pruning sequence that fits has {fitting} outcome "
-                 f"boxes: choose that size (--size {fitting}, or on the pruning curve)")
+        advice = (f"The largest tree of its pruning sequence that fits has {fitting} outcome "
+                  f"boxes: choose that size (--size {fitting}, or on the pruning curve)")
+    elif not recorded:
+        advice = ("The model file does not record its pruning sequence (an older Prunella "
+                  "saved it), so no smaller size can be named: fit it again to find one")
     else:
-        text += "No smaller tree of its pruning sequence fits either: check the minimum text size"
+        advice = "No smaller tree of its pruning sequence fits either: check the minimum text size"
     larger = LARGER_PAPER.get(options.paper)
     if larger:
-        text += f", or print on larger paper ({PAPER_NAMES[larger]})."
+        advice += f"{',' if rules else ', or'} print on larger paper ({PAPER_NAMES[larger]})"
     else:
-        text += f"; {paper} is already among the largest papers Prunella prints on (A3, Tabloid)."
-    return text
+        advice += f" ({paper} is already among the largest papers Prunella prints on)"
+    advice += ", or print the same tree as numbered rules (--form rules)." if rules else "."
+    return say("chart.too_large", leaves=leaves, paper=paper, where=where,
+               size=f"{options.min_text:g}", advice=advice)
 
 
 def sizes_that_fit(derivation: "Derivation", options: ChartOptions | None = None,
@@ -206,24 +212,34 @@ def sizes_that_fit(derivation: "Derivation", options: ChartOptions | None = None
     counts and small-group flags that change what the boxes and panel hold), in the order of
     the path (largest first).
 
-    Candidates come from :func:`core.derive.choose_model`; trees with more boxes than the
-    page could hold packed edge to edge, or deeper than any arrangement allows, are
-    skipped before they are built."""
-    from ..derive import choose_model
+    Candidates are built from the path with :func:`core.derive.build_model`, as
+    :func:`core.derive.choose_model` builds them, but without checking each on the held-out
+    patients: a candidate carries the chosen tree's check in its place, worded alike, so
+    its side panel is the one it will print. Trees with more boxes than the page could hold
+    packed edge to edge, or deeper than any arrangement allows, are skipped before they are
+    built."""
+    from ..derive import build_model
 
     if options is not None and not isinstance(options, ChartOptions):
         raise TypeError("sizes_that_fit takes the chart's ChartOptions, e.g. "
                         "ChartOptions(paper='a3'), not a paper name")
     options = (options or ChartOptions()).checked()
-    most = _most_leaves(options.paper, options.min_text, measure)
-    deepest = deepest_possible(chart_text(derivation.model, options), options, measure)
+    if options.form == "rules":  # rows: no bound from the tree's drawing
+        most = deepest = len(derivation.model.nodes) + max(int(v) for v in derivation.path.leaves)
+    else:
+        most = _most_leaves(options.paper, options.min_text, measure)
+        deepest = deepest_possible(chart_text(derivation.model, options), options, measure)
     path = derivation.path
+    checked = derivation.model.extra.get("validation")
     depths = _subtree_depths(path)
     sizes = []
     for index, leaves in enumerate(int(v) for v in path.leaves):
         if leaves in sizes or leaves > most or depths[index] > deepest:
             continue
-        model = choose_model(derivation, leaves).model
+        model = build_model(path, *path.index_for(leaves), derivation.table,
+                            derivation.dictionary, derivation.request)
+        if checked:
+            model = replace(model, extra={**model.extra, "validation": checked})
         if tree_fits(model, options, measure):
             sizes.append(leaves)
     return sizes

@@ -52,6 +52,11 @@ class PlacedArrow:
     label: Rect
     label_lines: tuple[Line, ...]
 
+    @property
+    def beside(self) -> bool:
+        """The child is drawn level with its parent, beside it (one straight arrow)."""
+        return len(self.points) == 2
+
     def moved(self, dx: float, dy: float) -> "PlacedArrow":
         return PlacedArrow(self.parent, self.child, self.branch,
                            tuple((x + dx, y + dy) for x, y in self.points),
@@ -141,12 +146,20 @@ def _separation(right: Profile, left: Profile, gap: float) -> float:
 
 
 def _tidy(spec: TreeSpec, across: Mapping[int, float], along: Mapping[int, float],
-          connector: float, gap: float, margin: float) -> tuple[dict[int, float], dict[int, float]]:
+          connector: float, gap: float, margin: float,
+          beside: Mapping[int, tuple[float, float, float]] | None = None,
+          ) -> tuple[dict[int, float], dict[int, float]]:
     """Breadth centre and depth start of every box, relative to the root.
 
     Non-layered tidy drawing (van der Ploeg 2014, after Reingold & Tilford 1981 and Walker
     1990): children start one connector length beyond their parent's far side, so a long box
-    only pushes aside what lies beside it; outlines are compared along the depth axis."""
+    only pushes aside what lies beside it; outlines are compared along the depth axis.
+
+    ``beside`` names outcome boxes drawn level with their parent, to its side (YES to the
+    left, NO to the right), each with (the least length of its side arrow, and the depth
+    range its arrow label takes, from the parent's start); the parent is then centred over
+    its other child alone, whose subtree may run on below the outcome box."""
+    beside = beside or {}
 
     def place(node: int):
         half, size = across[node] / 2, along[node]
@@ -161,7 +174,8 @@ def _tidy(spec: TreeSpec, across: Mapping[int, float], along: Mapping[int, float
         left: Profile = []
         right: Profile = []
         offsets = []
-        for child in kids:
+        below = [k for k in kids if k not in beside]
+        for child in below:
             c, d, cl, cr = place(child)
             shift = _separation(right, _shifted(cl, start, 0.0), gap) if right else 0.0
             offsets.append(shift)
@@ -172,18 +186,48 @@ def _tidy(spec: TreeSpec, across: Mapping[int, float], along: Mapping[int, float
         mid = (offsets[0] + offsets[-1]) / 2
         centres = {k: v - mid for k, v in centres.items()}
         centres[node], depths[node] = 0.0, 0.0
-        # The arrows between the parent and its children: nothing else may come into them.
-        reach_lo = min(centres[k] - across[k] / 2 for k in kids)
-        reach_hi = max(centres[k] + across[k] / 2 for k in kids)
+        # The arrows between the parent and its children below: nothing else may come into them.
+        reach_lo = min(centres[k] - across[k] / 2 for k in below)
+        reach_hi = max(centres[k] + across[k] / 2 for k in below)
         zone = (size, start)
         left = _combine(_combine(own_left, [(zone[0], zone[1], reach_lo)], min),
                         _shifted(left, 0.0, -mid), min)
         right = _combine(_combine(own_right, [(zone[0], zone[1], reach_hi)], max),
                          _shifted(right, 0.0, -mid), max)
+        for k in kids:
+            if k not in beside:
+                continue
+            arrow, label_lo, label_hi = beside[k]
+            depth_range = (min(-margin, label_lo), along[k] + margin)
+            width = across[k]
+            if k == kids[0]:  # YES: to the left, clear of everything on that side
+                clear = -_separation([(*depth_range, 0.0)], left, gap)
+                inner = min(-half - arrow, clear)
+                centres[k] = inner - width / 2
+                left = _combine(_combine(left, [(label_lo, label_hi, inner)], min),
+                                [(*depth_range, inner - width)], min)
+            else:  # NO: to the right
+                clear = _separation(right, [(*depth_range, 0.0)], gap)
+                inner = max(half + arrow, clear)
+                centres[k] = inner + width / 2
+                right = _combine(_combine(right, [(label_lo, label_hi, inner)], max),
+                                 [(*depth_range, inner + width)], max)
+            depths[k] = 0.0
         return centres, depths, left, right
 
     centres, depths, _, _ = place(spec.root)
     return centres, depths
+
+
+def beside_parent(spec: TreeSpec) -> set[int]:
+    """Outcome boxes that may be drawn beside their parent: the one outcome box of a question
+    whose other answer leads to a further question."""
+    boxes = set()
+    for kids in spec.children.values():
+        leaves = [k for k in kids if k not in spec.children]
+        if len(leaves) == 1 and len(kids) == 2:
+            boxes.add(leaves[0])
+    return boxes
 
 
 def layout_tree(spec: TreeSpec, style: LayoutStyle, measure: Measure = reportlab_measure,
@@ -197,19 +241,35 @@ def layout_tree(spec: TreeSpec, style: LayoutStyle, measure: Measure = reportlab
         raise ValueError("direction must be 'down' or 'right'")
     s, down = style.size, style.direction == "down"
     sized = size_boxes(spec, style, measure)
-    labels = {key: size_label(paras, s, measure, down) for key, paras in spec.labels.items()}
+    labels = {key: size_label(paras, s, measure, down and not style.stacked_labels)
+              for key, paras in spec.labels.items()}
     parent_of = {c: p for p, kids in spec.children.items() for c in kids}
+    stem, arrow, label_pad = 0.6 * s, 0.9 * s, 0.2 * s
+    side = beside_parent(spec) if style.leaves_beside and down else set()
     across, along = {}, {}
     for i, box in sized.items():
         own = box.w if down else box.h
-        if i in parent_of:  # a box's arrow label lies in its breadth, just before it
+        if i in parent_of and i not in side:  # the label lies in its breadth, just before it
             lw, lh, _ = labels[(parent_of[i], i)]
-            own = max(own, lw if down else lh)
+            # top-down, beside the arrow's drop: on the outer side of the child's centre
+            own = max(own, 2 * (lw + label_pad) if down else lh)
         across[i], along[i] = own, (box.h if down else box.w)
-    stem, arrow, label_pad = 0.6 * s, 0.9 * s, 0.2 * s
-    label_depth = max(((lh if down else lw) for lw, lh, _ in labels.values()), default=0.0)
-    connector = (stem + label_depth + 2 * label_pad + arrow) * depth_stretch
-    centres, depths = _tidy(spec, across, along, connector, 1.25 * s, 0.4 * s)
+    label_depth = max(((lh if down else lw) for key, (lw, lh, _) in labels.items()
+                       if key[1] not in side), default=0.0)
+    # Top-down, a label stands beside the arrow's drop, between the bus and the child, so the
+    # drop is as long as the label is high; left to right it lies along the last stretch.
+    if down:
+        connector = (stem + label_depth + 2 * label_pad) * depth_stretch
+    else:
+        connector = (stem + label_depth + 2 * label_pad + arrow) * depth_stretch
+    # A box beside its parent: its arrow runs level from the parent's point, its label
+    # above the arrow, so the arrow is at least as long as the label.
+    placed_beside = {}
+    for i in side:
+        lw, lh, _ = labels[(parent_of[i], i)]
+        level = along[parent_of[i]] / 2
+        placed_beside[i] = (lw + 2 * label_pad + arrow, level - label_pad - lh, level)
+    centres, depths = _tidy(spec, across, along, connector, 1.25 * s, 0.4 * s, placed_beside)
     centres = {k: v * breadth_stretch for k, v in centres.items()}
 
     boxes: dict[int, PlacedBox] = {}
@@ -230,11 +290,18 @@ def layout_tree(spec: TreeSpec, style: LayoutStyle, measure: Measure = reportlab
         for k, child in enumerate(kids):
             cb = boxes[child]
             lw, lh, llines = labels[(parent, child)]
-            if down:
+            if child in side:  # level with the parent, from its pointed end
+                y = pb.rect.cy
+                start, end = (pb.rect.x, cb.rect.right) if k == 0 else (pb.rect.right, cb.rect.x)
+                points = ((start, y), (end, y))
+                head = arrow if end > start else -arrow  # the label keeps clear of the head
+                lx, ly = (start + end - head) / 2 - lw / 2, y - label_pad - lh
+            elif down:
                 points = ((pb.rect.cx, pb.rect.bottom), (pb.rect.cx, bus), (cb.rect.cx, bus),
                           (cb.rect.cx, cb.rect.y))
-                zone = (bus + cb.rect.y - arrow) / 2
-                lx, ly = cb.rect.cx - lw / 2, zone - lh / 2
+                # YES to the left of its drop, NO to the right: outward, away from the stem
+                lx = cb.rect.cx - label_pad - lw if k == 0 else cb.rect.cx + label_pad
+                ly = (bus + cb.rect.y) / 2 - lh / 2
             else:
                 points = ((pb.rect.right, pb.rect.cy), (bus, pb.rect.cy), (bus, cb.rect.cy),
                           (cb.rect.x, cb.rect.cy))

@@ -11,6 +11,7 @@ import math
 from dataclasses import dataclass, replace
 
 from ..errors import InputError
+from ..messages import say
 
 _MM = 72 / 25.4
 
@@ -27,6 +28,7 @@ _BASE_PAPER = {"a4": "a4", "letter": "letter", "a3": "a4", "tabloid": "letter"}
 BASE_MIN_TEXT = 9.0  # points, on A4 and Letter: the legibility floor at arm's length
 ORIENTATIONS = ("auto", "portrait", "landscape")
 DIRECTIONS = ("auto", "down", "right")
+FORMS = ("tree", "rules")  # the tree drawn as boxes and arrows, or as numbered rows
 # Outcome boxes resting on fewer patients are flagged on the chart and in the report
 # (common practice: 5 or 10).
 SMALL_GROUP = 10
@@ -73,6 +75,7 @@ class ChartOptions:
     band_cuts: tuple[float, ...] | None = None  # absolute cut-points (percent, or outcome units)
     band_ratio: float = 1.25  # relative bands: HIGHER at ≥ ratio × the cohort's rate
     printed: dt.date | None = None  # the date printed on the chart (default: today)
+    form: str = "tree"  # tree | rules: each outcome box as a row with its route in words
 
     def checked(self) -> "ChartOptions":
         """The options with defaults filled in, or one clear InputError."""
@@ -83,6 +86,8 @@ class ChartOptions:
         if self.direction not in DIRECTIONS:
             raise InputError(f"Direction {self.direction!r} is not one of "
                              + ", ".join(DIRECTIONS) + ".")
+        if self.form not in FORMS:
+            raise InputError(say("chart.form", given=self.form, choices=", ".join(FORMS)))
         floor = default_min_text(paper)
         min_text = floor if self.min_text is None else float(self.min_text)
         if not 6 <= min_text <= 40:

@@ -23,7 +23,7 @@ from .style import TypeScale
 
 MAX_TREE_SCALE = 1.5  # tree text up to 1.5 × the minimum when the tree leaves room
 WRAPS = ((12.0, 11.0), (14.0, 13.0), (18.0, 15.0))  # (question, outcome) wrap widths in em
-QR_EM = 4.6  # QR code side in units of the body size
+QR_EM = 4.2  # QR code side in units of the body size (about 13 mm at 9 pt)
 
 
 @dataclass(frozen=True)
@@ -51,22 +51,25 @@ class ChartPlan:
     header: tuple[Line, ...]
     banner: Rect | None
     banner_lines: tuple[Line, ...]
-    tree_area: Rect
-    tree: TreeLayout
+    tree_area: Rect  # where the tree (or the rows of the rules form) goes
+    tree: TreeLayout | None  # None for the rules form
+    rules: tuple  # the rules form's rows (core/chart/rules.py), () for a tree
+    text_size: float  # the size of the tree's (or the rows') text
     panel: tuple[PanelBlock, ...]
     footer: tuple[Line, ...]
     qr: Rect
 
     @property
-    def direction(self) -> str:
-        return self.tree.direction
+    def direction(self) -> str | None:
+        return None if self.tree is None else self.tree.direction
 
 
 class _Frame:
-    """Header, panel and footer for one orientation and panel placement."""
+    """Header, panel and footer for one orientation and panel placement, the cautions across
+    the page or among the other sections."""
 
     def __init__(self, text: ChartText, options: ChartOptions, landscape: bool, placement: str,
-                 measure: Measure):
+                 cautions_across: bool, measure: Measure):
         self.width, self.height = page_size(options.paper, landscape)
         m = margin_for(options.paper)
         self.printable = Rect(m, m, self.width - 2 * m, self.height - 2 * m)
@@ -75,19 +78,27 @@ class _Frame:
         b, cw = scale.body, self.printable.w
 
         header: list[Line] = []
-        y = self._lines(header, text.title, m, m, cw, True, scale.title) + 0.2 * b
+        # On a wide page the banner stands beside the title, not below it: the tree keeps
+        # the height, which a wide page has least of.
+        beside = landscape and text.banner is not None
+        title_w = 0.55 * cw if beside else cw
+        y = self._lines(header, text.title, m, m, title_w, True, scale.title) + 0.2 * b
         if text.subtitle:
-            y = self._lines(header, text.subtitle, m, y, cw, False, scale.subtitle)
+            y = self._lines(header, text.subtitle, m, y, title_w, False, scale.subtitle)
         y += 0.5 * b
         self.banner, self.banner_lines = None, ()
         if text.banner:
             pad, inner = 0.45 * b, []
             runs = [(text.banner[0] + ".", True), (text.banner[1], False)]
-            bottom = self._runs(inner, runs, m + pad, y + pad, cw - 2 * pad, b)
-            self.banner = Rect(m, y, cw, bottom + pad - y)
+            left, top, width = (m + title_w + b, m, cw - title_w - b) if beside else (m, y, cw)
+            bottom = self.runs(inner, runs, left + pad, top + pad, width - 2 * pad, b)
+            self.banner = Rect(left, top, width, bottom + pad - top)
             self.banner_lines = tuple(inner)
-            y = self.banner.bottom + 0.5 * b
-        y = self._lines(header, text.how_to_read, m, y, cw, True, b)
+            if not beside:
+                y = self.banner.bottom + 0.5 * b
+        y = self._lines(header, text.how_to_read, m, y, title_w, True, b)
+        if beside:
+            y = max(y, self.banner.bottom)
         self.header = tuple(header)
         self.header_bottom = y + 0.9 * b
 
@@ -103,10 +114,12 @@ class _Frame:
 
         gap = 1.2 * b
         column_em = 15 * b
-        # The cautions run across the whole page just above the footer; the other sections
-        # go in columns below the tree or in one column beside it.
+        # The cautions run across the whole page just above the footer, or join the other
+        # sections: in columns below the tree, or in one column beside it.
         cautions = [sec for sec in text.sections if sec.kind == "caution"]
         others = [sec for sec in text.sections if sec.kind != "caution"]
+        if not cautions_across:
+            others, cautions = others + cautions, []
         bottom = footer_top - gap
         self.panel = ()
         for sec in cautions:
@@ -132,7 +145,7 @@ class _Frame:
             self.panel_overflows = lowest > bottom + 1e-6
             self.tree_area = Rect(m, top, cw - col_w - 2 * gap, bottom - 0.5 * gap - top)
 
-    def _runs(self, out: list[Line], runs: list[tuple[str, bool]], x: float, y: float,
+    def runs(self, out: list[Line], runs: list[tuple[str, bool]], x: float, y: float,
               width: float, size: float) -> float:
         """Wrap a paragraph whose words are bold or not (a bold headline running into its
         explanation); returns the y below the last line."""
@@ -286,14 +299,20 @@ def deepest_possible(text: ChartText, options: ChartOptions, measure: Measure) -
     panels whose wording differs a little from ``text``'s."""
     floor, deepest = options.min_text, 0
     slack = 3 * floor * LEADING
-    for landscape, placement in itertools.product(_orientations(options), ("bottom", "side")):
-        frame = _Frame(text, options, landscape, placement, measure)
+    for frame in frames(text, options, measure):
         area = frame.tree_area
         for direction in _directions(options):
             level, outcome = _smallest_level(direction, floor, measure)
             room = (area.h if direction == "down" else area.w) + slack
             deepest = max(deepest, int((room - outcome) // level))
     return deepest
+
+
+def frames(text: ChartText, options: ChartOptions, measure: Measure) -> list[_Frame]:
+    """Every arrangement of the page around the tree."""
+    return [_Frame(text, options, landscape, placement, across, measure)
+            for landscape, placement, across in itertools.product(
+                _orientations(options), ("bottom", "side"), (True, False))]
 
 
 def _orientations(options: ChartOptions) -> tuple[bool, ...]:
@@ -312,17 +331,17 @@ def plan_page(text: ChartText, options: ChartOptions, measure: Measure,
     A layout is exactly proportional to its text size (every length is a multiple of it,
     wrap widths included), so one layout at the minimum tells the largest size that fits."""
     floor = options.min_text
-    frames = [frame for landscape, placement in
-              itertools.product(_orientations(options), ("bottom", "side"))
-              if not (frame := _Frame(text, options, landscape, placement, measure)).panel_overflows]
+    candidates = [frame for frame in frames(text, options, measure) if not frame.panel_overflows]
     best, best_key = None, None
-    for direction, wraps in itertools.product(_directions(options), WRAPS):
+    for direction, wraps, beside in itertools.product(_directions(options), WRAPS, (False, True)):
+        if beside and direction != "down":
+            continue
         # The tree's layout does not depend on the page around it: one per direction and wrap.
-        fitting = [f for f in frames if not _too_deep(text.tree, direction, floor, measure,
+        fitting = [f for f in candidates if not _too_deep(text.tree, direction, floor, measure,
                                                        f.tree_area)]
         if not fitting:
             continue
-        style = LayoutStyle(floor, direction, *wraps)
+        style = LayoutStyle(floor, direction, *wraps, leaves_beside=beside)
         layout = layout_tree(text.tree, style, measure)
         for frame in fitting:
             area = frame.tree_area
@@ -361,9 +380,15 @@ def _finish(text: ChartText, options: ChartOptions, frame: _Frame, layout: TreeL
                           0.0, 1.0, 0.05) or layout
     placed = layout.moved(area.x + (area.w - layout.width) / 2,
                           area.y + (area.h - layout.height) / 2)
-    scale = TypeScale(body=options.min_text)
+    return finished_plan(text, options, frame, placed, (), layout.size)
+
+
+def finished_plan(text: ChartText, options: ChartOptions, frame: _Frame,
+                  tree: TreeLayout | None, rules: tuple, size: float) -> ChartPlan:
+    """The page of ``frame`` holding a placed tree, or the rows of the rules form."""
     return ChartPlan(text=text, options=options, width=frame.width, height=frame.height,
                      landscape=frame.width > frame.height, placement=frame.placement,
-                     printable=frame.printable, scale=scale, header=frame.header,
-                     banner=frame.banner, banner_lines=frame.banner_lines, tree_area=area,
-                     tree=placed, panel=frame.panel, footer=frame.footer, qr=frame.qr)
+                     printable=frame.printable, scale=TypeScale(body=options.min_text),
+                     header=frame.header, banner=frame.banner, banner_lines=frame.banner_lines,
+                     tree_area=frame.tree_area, tree=tree, rules=rules, text_size=size,
+                     panel=frame.panel, footer=frame.footer, qr=frame.qr)

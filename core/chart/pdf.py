@@ -193,20 +193,27 @@ def paint(c: pdfcanvas.Canvas, plan: ChartPlan) -> set[tuple[str, str]]:
     """Draw the whole chart of ``plan`` onto canvas ``c`` in page coordinates (the caller may
     translate or scale first, as the methods report does); returns the (ink, fill) pairs."""
     p = _Painter(c, plan.height)
-    b, s = plan.scale.body, plan.tree.size
+    b, s = plan.scale.body, plan.text_size
     for line in plan.header:
         p.text(line, style.INK if line.bold else style.SOFT_INK, style.WHITE)
     if plan.banner is not None:
         p.rect(plan.banner, style.UNCHECKED_FILL, style.UNCHECKED_EDGE, 2.0, radius=0.4 * b)
         for line in plan.banner_lines:
             p.text(line, style.INK, style.UNCHECKED_FILL)
-    for arrow in plan.tree.arrows:
-        _arrow(p, arrow, s)
-    for box in plan.tree.boxes.values():
-        if box.kind == "question":
-            _question(p, box, s)
-        else:
-            _outcome(p, box, plan, s)
+    if plan.tree is not None:
+        for arrow in plan.tree.arrows:
+            _arrow(p, arrow, s)
+        for box in plan.tree.boxes.values():
+            if box.kind == "question":
+                _question(p, box, s)
+            else:
+                _outcome(p, box, plan, s)
+    for k, row in enumerate(plan.rules):  # the rules form: a box and its route per row
+        if k and row.rect.y > plan.rules[k - 1].rect.y:  # a thin rule between rows
+            p.hline(row.rect.x, row.rect.right, row.rect.y - 0.4 * s, style.RULE, 0.4)
+        _outcome(p, row.box, plan, s)
+        for line in row.route:
+            p.text(line, style.INK, style.WHITE)
     area, pr = plan.tree_area, plan.printable
     if plan.placement == "bottom":
         top = min(blk.rect.y for blk in plan.panel) - 0.9 * b

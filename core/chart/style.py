@@ -183,11 +183,11 @@ class TypeScale:
 
     @property
     def title(self) -> float:
-        return round(self.body * 2.0, 2)
+        return round(self.body * 1.7, 2)
 
     @property
     def subtitle(self) -> float:
-        return round(self.body * 1.1, 2)
+        return self.body
 
     @property
     def heading(self) -> float:

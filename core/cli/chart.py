@@ -5,7 +5,7 @@ from __future__ import annotations
 import sys
 from typing import TYPE_CHECKING
 
-from ..chart.options import ORIENTATIONS, PAPER_SIZES, ChartOptions, default_min_text
+from ..chart.options import FORMS, ORIENTATIONS, PAPER_SIZES, ChartOptions, default_min_text
 from ..errors import InputError
 from ..model import TreeModel
 from ..safe_files import refuse_overwrite
@@ -23,6 +23,9 @@ def add_paper_options(parser) -> None:
     parser.add_argument("--orientation", default=_DEFAULTS.orientation, choices=ORIENTATIONS,
                         help="page orientation (default: chosen for the tree's shape)")
     parser.add_argument("--title", help="chart title (default: the outcome)")
+    parser.add_argument("--form", default=_DEFAULTS.form, choices=FORMS,
+                        help="tree: boxes and arrows (default); rules: one row per outcome box "
+                        "with its route in words, for a tree too large to draw legibly")
 
 
 def add_fit_chart_options(fit) -> None:
@@ -72,12 +75,13 @@ def chart_options_from_args(args):
                         min_text=getattr(args, "min_text", None),
                         small_cell=getattr(args, "small_cell", _DEFAULTS.small_cell),
                         hide_counts=getattr(args, "hide_counts", False), band_cuts=cuts,
-                        printed=printed).checked()
+                        printed=printed, form=getattr(args, "form", _DEFAULTS.form)).checked()
 
 
 def _chart_note(plan, path: str) -> str:
+    what = "rows" if plan.tree is None else "tree"
     return (f"Wrote the chart to {path} ({plan.options.paper_name} "
-            f"{'landscape' if plan.landscape else 'portrait'}, tree text {plan.tree.size:g} pt).")
+            f"{'landscape' if plan.landscape else 'portrait'}, {what} text {plan.text_size:g} pt).")
 
 
 def run_chart(args) -> int:
@@ -98,9 +102,10 @@ def fit_chart(args, derivation: Derivation) -> None:
     options = chart_options_from_args(args)
     try:
         plan = write_chart(derivation.model, args.chart, options)
-    except ChartTooLarge:
+    except ChartTooLarge as refused:
         sizes = sizes_that_fit(derivation, options)
-        message = too_large_message(len(derivation.model.leaves), max(sizes, default=None), options)
+        message = too_large_message(len(derivation.model.leaves), max(sizes, default=None), options,
+                                    rules=refused.rules_fit)
         raise InputError(f"The model was saved to {args.model}, but no chart was printed. "
                          + message) from None
     if not args.quiet:

@@ -29,6 +29,7 @@ from gui.widgets.pdf_preview import PdfPreview
 PAPERS = (("A4", "a4"), ("US Letter", "letter"), ("A3", "a3"), ("Tabloid", "tabloid"))
 ORIENTATIONS = (("Best fit for the tree", "auto"), ("Portrait (upright)", "portrait"),
                 ("Landscape (sideways)", "landscape"))
+FORMS = (("Tree of boxes and arrows", "tree"), ("Numbered rules, one row per box", "rules"))
 
 
 @dataclass(frozen=True)
@@ -96,6 +97,11 @@ class ChartPanel(Panel):
                                          "whichever suits the tree's shape.")
         for words, code in ORIENTATIONS:
             self.orientation_combo.addItem(words, code)
+        self.form_combo = explain(QComboBox(), "The tree drawn as boxes and arrows, or as "
+                                  "numbered rules: each outcome box as a row beside the answers "
+                                  "that lead to it, for a tree too large to draw legibly.")
+        for words, code in FORMS:
+            self.form_combo.addItem(words, code)
         self.min_text = explain(QDoubleSpinBox(), "No text on the chart is smaller than this "
                                 "(in points); a tree too big to fit at this size is refused.")
         self.min_text.setRange(5.5, 40.0)  # 5.5 stands for "usual": core refuses below 6
@@ -110,6 +116,7 @@ class ChartPanel(Panel):
         form.addRow("Paper:", self.paper_combo)
         form.addRow("Orientation:", self.orientation_combo)
         form.addRow("Smallest text:", self.min_text)
+        form.addRow("Form:", self.form_combo)
 
         self.export_button = explain(QPushButton("Export PDF…"), "Save the chart as a PDF file.")
         self.print_button = explain(QPushButton("Print…"), "Print the chart through the "
@@ -182,6 +189,7 @@ class ChartPanel(Panel):
         self.paper_combo.currentIndexChanged.connect(self._write_back)
         self.orientation_combo.currentIndexChanged.connect(self._write_back)
         self.min_text.valueChanged.connect(self._write_back)
+        self.form_combo.currentIndexChanged.connect(self._write_back)
         session.chart_changed.connect(self.refresh_options)
         session.chart_changed.connect(self.schedule_preview)
         session.check_changed.connect(self.schedule_preview)
@@ -197,7 +205,7 @@ class ChartPanel(Panel):
             return
         chart = self.session.chart
         widgets = (self.title_edit, self.subtitle_edit, self.paper_combo,
-                   self.orientation_combo, self.min_text)
+                   self.orientation_combo, self.min_text, self.form_combo)
         for widget in widgets:
             widget.blockSignals(True)
         self.title_edit.setText(chart.get("title") or "")
@@ -206,6 +214,7 @@ class ChartPanel(Panel):
         self.orientation_combo.setCurrentIndex(
             max(0, self.orientation_combo.findData(chart.get("orientation"))))
         self.min_text.setValue(chart.get("min_text") or self.min_text.minimum())
+        self.form_combo.setCurrentIndex(max(0, self.form_combo.findData(chart.get("form"))))
         for widget in widgets:
             widget.blockSignals(False)
 
@@ -219,7 +228,8 @@ class ChartPanel(Panel):
             subtitle=self.subtitle_edit.text().strip() or None,
             paper=self.paper_combo.currentData(),
             orientation=self.orientation_combo.currentData(),
-            min_text=None if text_size == self.min_text.minimum() else float(text_size))
+            min_text=None if text_size == self.min_text.minimum() else float(text_size),
+            form=self.form_combo.currentData())
         self._writing = False
 
     # --- the preview ------------------------------------------------------------------------
