@@ -21,7 +21,7 @@ from pathlib import Path
 import pandas as pd
 
 from .errors import InputError
-from .messages import say
+from .messages.message import say
 
 # OWASP "CSV Injection": a cell starting with one of these is run as a formula by spreadsheets.
 _FORMULA_STARTS = ("=", "+", "-", "@", "\t", "\r")

@@ -14,9 +14,8 @@ from dataclasses import dataclass, replace
 
 from PySide6.QtCore import QObject, QTimer
 
-from core.design import DesignSpec
-from core.guards import GuardFinding, GuardReport, guard_design, identity_findings
-from core.variables import PREDICTOR_KINDS, DataDictionary
+from core.design import DesignSpec, GuardFinding, GuardReport, guard_design, identity_findings
+from core.dictionary import PREDICTOR_KINDS, DataDictionary
 from gui import workers
 
 DELAY_MS = 250  # wait this long after the last change before checking

@@ -14,10 +14,10 @@ from PySide6.QtWidgets import (
 
 from core import __version__
 from core.cautions import CAUTION_TITLE, CAUTIONS
+from core.data import read_table
+from core.dictionary import dictionary_for
 from core.errors import InputError
 from core.project import PROJECT_SUFFIX, check_data_file, load_project, save_project
-from core.table import read_table
-from core.variables import dictionary_for
 from gui import workers
 from gui.panels.base import ask_save_path, heading_font, with_advice
 from gui.panels.chart import ChartPanel

@@ -10,13 +10,11 @@ from dataclasses import replace
 from PySide6.QtCore import QObject, Signal
 
 from core.chart import ChartOptions
-from core.derive import Derivation, DerivationRequest
+from core.data import LoadedTable
 from core.design import DesignSpec
-from core.grow import TreeSettings
+from core.dictionary import DataDictionary
 from core.project import Project
-from core.resample import CVSettings
-from core.table import LoadedTable
-from core.variables import DataDictionary
+from core.sizing import CVSettings, Derivation, DerivationRequest, TreeSettings
 
 STEPS = ("data", "outcome", "size", "tree", "checking", "chart")
 STEP_TITLES = {
@@ -185,7 +183,7 @@ class Session(QObject):
         """The chosen run, its model carrying the check the chart should print."""
         if self.chosen is None or self.check is None:
             return self.chosen
-        from core.validate import with_validation
+        from core.checking import with_validation
 
         return replace(self.chosen, model=with_validation(self.chosen.model, self.check))
 

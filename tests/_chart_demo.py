@@ -7,12 +7,12 @@ from __future__ import annotations
 
 from dataclasses import replace
 from functools import lru_cache
+
 import pandas as pd
 
-from core.derive import DerivationRequest, choose_model, derive
 from core.design import DesignSpec
-from core.resample import CVSettings
-from core.variables import ColumnSpec, DataDictionary
+from core.dictionary import ColumnSpec, DataDictionary
+from core.sizing import CVSettings, DerivationRequest, choose_model, derive
 from tests.helpers import demo_inputs
 
 

@@ -23,11 +23,11 @@ from pathlib import Path
 
 import numpy as np
 
-from core.derive import Derivation, DerivationRequest, choose_model, derive
+from core.sizing import Derivation, DerivationRequest, choose_model, derive
 from core.design import DesignSpec
-from core.model import Node, Question, TreeModel, question_text
-from core.table import read_table
-from core.variables import ColumnSpec, DataDictionary, infer_dictionary
+from core.model.tree import Node, Question, TreeModel, question_text
+from core.data import read_table
+from core.dictionary import ColumnSpec, DataDictionary, infer_dictionary
 
 _FOLDER = tempfile.TemporaryDirectory(prefix="prunella-references-")
 

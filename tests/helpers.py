@@ -13,9 +13,9 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from core.data import LoadedTable, read_table
 from core.design import DesignSpec, prepare_analysis
-from core.table import LoadedTable, read_table
-from core.variables import DataDictionary, infer_dictionary
+from core.dictionary import DataDictionary, infer_dictionary
 
 ROOT = Path(__file__).resolve().parents[1]
 SAMPLE = ROOT / "sample_data"

@@ -25,16 +25,13 @@ import openpyxl
 import pandas as pd
 import pytest
 
-from core.derive import DerivationRequest, derive
-from core.design import DesignSpec
+from core.data import read_table
+from core.data.cells import parse_dates
+from core.design import DesignSpec, guard_design
+from core.dictionary import infer_dictionary
 from core.errors import InputError
-from core.grow import TreeSettings
-from core.guards import guard_design
 from core.messages import explain
-from core.resample import CVSettings
-from core.table import read_table
-from core.values import parse_dates
-from core.variables import infer_dictionary
+from core.sizing import CVSettings, DerivationRequest, TreeSettings, derive
 from tests.helpers import run_prunella, sha256_of
 
 HEADER = ["age", "spo2", "resp_rate", "sex", "admitted"]
@@ -308,7 +305,7 @@ def _text_numbers(p):
 
 
 def _limits_ok(table, dictionary):
-    from core.variables import typed_column
+    from core.dictionary import typed_column
     values = typed_column(table.frame["crp"], dictionary.get("crp")).numbers
     return values[0] == 5.0 and values[1] == 100.0 and np.isnan(values).sum() == 0
 

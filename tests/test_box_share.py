@@ -10,8 +10,8 @@ import pytest
 
 import _chart_demo as demo
 from core.chart.bands import box_value
-from core.intervals import wilson_interval
-from core.model import ANSWERS, Question
+from core.checking.intervals import wilson_interval
+from core.model.tree import ANSWERS, Question
 
 
 def test_a_yes_no_box_shares_the_positive_class() -> None:
@@ -72,9 +72,9 @@ def test_rules_and_chart_agree_on_branch_labels() -> None:
 
 
 def test_the_report_title_page_prints_risks_and_fingerprints_as_elsewhere() -> None:
-    from core.report_performance import risk_text
-    from core.report_sections import _title_page
-    from core.report_style import Styles
+    from core.report.performance import risk_text
+    from core.report.sections import _title_page
+    from core.report.style import Styles
 
     for which in ("admitted", "length_of_stay"):
         model = getattr(demo, which)().model

@@ -22,7 +22,7 @@ from core.chart.content import NOT_RECORDED
 from core.chart.options import default_min_text
 from core.chart.pdf import draw
 from core.chart.style import contrast_ratio
-from core.model import column_values
+from core.model.tree import column_values
 from tests.helpers import DEMO_A4_LEAVES, demo_inputs
 
 DATE = dt.date(2025, 3, 14)
@@ -163,7 +163,7 @@ def test_every_question_answer_and_outcome_can_be_extracted(chosen, chosen_pdf) 
 def test_observed_rates_and_wilson_intervals_are_the_model_counts(chosen, chosen_pdf) -> None:
     """Wilson (1927) score interval, as core.intervals computes it; checked here against the
     counts the model holds, so the printed numbers are the model's."""
-    from core.intervals import wilson_interval
+    from core.checking.intervals import wilson_interval
 
     plan = plan_chart(chosen, options())
     frags = fragments(chosen_pdf)
@@ -214,9 +214,8 @@ def test_validation_results_replace_the_unchecked_banner(chosen) -> None:
 def test_a_held_out_check_from_derive_is_printed() -> None:
     """core.derive's own held-out check (no 'summary' key) still prints its measures."""
     table, dictionary, predictors = demo_inputs()
-    from core.derive import DerivationRequest, derive
     from core.design import DesignSpec
-    from core.resample import CVSettings
+    from core.sizing import CVSettings, DerivationRequest, derive
 
     run = derive(table, dictionary, DerivationRequest(
         DesignSpec("admitted", predictors, patient_id="patient_id"), cv=CVSettings(folds=3),

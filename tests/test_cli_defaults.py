@@ -3,10 +3,9 @@
 from __future__ import annotations
 
 from core.chart.options import ORIENTATIONS, PAPER_SIZES, ChartOptions, default_min_text
+from core.checking import DEFAULT_OUTER_FOLDS, DEFAULT_RESAMPLES
 from core.cli import build_parser
 from core.cli.chart import chart_options_from_args
-from core.nested import DEFAULT_OUTER_FOLDS
-from core.stability import DEFAULT_RESAMPLES
 
 
 def _sub(name: str):

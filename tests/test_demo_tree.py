@@ -10,9 +10,8 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from core.derive import DerivationRequest, choose_model, derive
 from core.design import DesignSpec
-from core.grow import TreeSettings
+from core.sizing import DerivationRequest, TreeSettings, choose_model, derive
 from tests.helpers import DEMO_PLANTED_BOXES, demo_inputs, demo_planted_box
 
 

@@ -6,11 +6,10 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from core.derive import DerivationRequest, derive
+from core.checking.intervals import wilson_interval
 from core.design import DesignSpec
-from core.explain import box_details, route_patient
-from core.intervals import wilson_interval
-from core.scoring import scored_table
+from core.model import box_details, route_patient, scored_table
+from core.sizing import DerivationRequest, derive
 from tests.helpers import demo_inputs
 
 

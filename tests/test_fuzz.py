@@ -16,13 +16,12 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import pytest
-from hypothesis import HealthCheck, given, settings
-from hypothesis import strategies as st
+from hypothesis import HealthCheck, given, settings, strategies as st
 
+from core.data import read_table
+from core.dictionary import PREDICTOR_KINDS, infer_dictionary, typed_column
 from core.errors import InputError
 from core.model import TreeModel
-from core.table import read_table
-from core.variables import PREDICTOR_KINDS, infer_dictionary, typed_column
 
 FUZZ = settings(deadline=None, database=None, derandomize=True,
                 suppress_health_check=[HealthCheck.too_slow, HealthCheck.data_too_large])
@@ -181,9 +180,8 @@ JSON = st.recursive(st.one_of(st.none(), st.booleans(), st.integers(-3, 10**6),
 
 @pytest.fixture(scope="module")
 def model_dict():
-    from core.derive import DerivationRequest, derive
     from core.design import DesignSpec
-    from core.resample import CVSettings
+    from core.sizing import CVSettings, DerivationRequest, derive
 
     rng = np.random.default_rng(0)
     n = 120

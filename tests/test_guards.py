@@ -1,4 +1,4 @@
-"""Leakage, identity, repeat-visit and rare-class guards (core/guards.py, core/identity.py).
+"""Leakage, identity, repeat-visit and rare-class guards (core/design/guards.py, core/dictionary/identity.py).
 
 The demo cohort is invented; its planted structure (sample_data/README.md) is what these
 checks rely on, not any clinical fact: `bed_booked` agrees with `admitted` for 98 % of visits
@@ -12,17 +12,17 @@ import numpy as np
 import pandas as pd
 import pytest
 
+from core.data import read_table
 from core.design import DesignSpec, prepare_analysis
-from core.errors import InputError
-from core.guards import (
+from core.design.guards import (
     LEAKAGE_AUC, guard_design, identity_findings, leakage_findings, outcome_findings,
     repeat_visit_findings,
 )
-from core.identity import (
+from core.dictionary import infer_dictionary
+from core.dictionary.identity import (
     identity_by_contents, identity_by_header, looks_like_record_numbers, normalised_header,
 )
-from core.table import read_table
-from core.variables import infer_dictionary
+from core.errors import InputError
 from tests.helpers import DEMO_CSV, run_prunella
 
 

@@ -7,11 +7,11 @@ from pathlib import Path
 
 import pytest
 
-from core.derive import DerivationRequest, choose_model, derive
+from core.checking import check_heldout
+from core.data import read_table
 from core.design import DesignSpec
-from core.table import read_table
-from core.validate import check_heldout
-from core.variables import DataDictionary
+from core.dictionary import DataDictionary
+from core.sizing import DerivationRequest, choose_model, derive
 
 SAMPLE = Path(__file__).resolve().parents[1] / "sample_data"
 

@@ -1,4 +1,4 @@
-"""Measures with intervals (core/metrics.py) against published examples and scikit-learn."""
+"""Measures with intervals (core/checking/metrics.py) against published examples and scikit-learn."""
 
 from __future__ import annotations
 
@@ -12,7 +12,7 @@ from sklearn.metrics import (
 )
 from statsmodels.stats.proportion import proportion_confint
 
-from core.metrics import (
+from core.checking.metrics import (
     DerivationBox, classification_measures, delong_se, hanley_mcneil_se, proportion,
     regression_measures, roc,
 )
@@ -63,7 +63,7 @@ def test_roc_area_and_se_match_hanley_mcneil_ct_example():
 
 def test_delong_se_equals_its_definition_by_pairs():
     # DeLong, DeLong & Clarke-Pearson (1988): placements from all positive–negative pairs,
-    # ties counted half; compared with the midrank shortcut used in core/metrics.py.
+    # ties counted half; compared with the midrank shortcut used in core/checking/metrics.py.
     rng = np.random.default_rng(7)
     truth = rng.random(80) < 0.4
     score = np.round(rng.normal(truth * 0.8, 1), 1)  # rounding makes ties

@@ -8,13 +8,12 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from core.derive import DerivationRequest, choose_model, derive
+from core.data import LoadedTable, Provenance
 from core.design import DesignSpec
+from core.dictionary import ColumnSpec, DataDictionary
 from core.errors import InputError
-from core.grow import TreeSettings
-from core.model import MODEL_FORMAT, TreeModel
-from core.table import LoadedTable, Provenance
-from core.variables import ColumnSpec, DataDictionary
+from core.model.tree import MODEL_FORMAT, TreeModel
+from core.sizing import DerivationRequest, TreeSettings, choose_model, derive
 
 
 def _clinic(n=1200, seed=0):
@@ -174,7 +173,7 @@ def test_a_small_skewed_box_never_shows_an_impossible_mean_interval():
     model = derive(table, dictionary, request).model
     low_end, high_end = model.extra["cohort"]["outcome_range"]
     assert (low_end, high_end) == (2.0, 900.0)
-    from core.intervals import mean_interval
+    from core.checking.intervals import mean_interval
 
     raw_lows = [mean_interval(n.mean, n.sd, n.n)[0] for n in model.leaves]
     assert min(raw_lows) < 0  # the unclipped interval would print a negative stay

@@ -1,17 +1,15 @@
-"""Nested cross-validation of the whole procedure (core/nested.py)."""
+"""Nested cross-validation of the whole procedure (core/checking/nested.py)."""
 
 from __future__ import annotations
 
 import numpy as np
 import pytest
 
-from core.derive import DerivationRequest, derive
+from core.checking import nested_cross_validate
 from core.design import DesignSpec, prepare_analysis
+from core.dictionary import ColumnSpec, DataDictionary
 from core.errors import Cancelled, InputError
-from core.grow import TreeSettings
-from core.nested import nested_cross_validate
-from core.resample import CVSettings
-from core.variables import ColumnSpec, DataDictionary
+from core.sizing import CVSettings, DerivationRequest, TreeSettings, derive
 from tests.helpers import demo_inputs
 from tests.waveform import FEATURES, waveform_dictionary, waveform_table
 
@@ -49,7 +47,7 @@ def demo_data():
 
 def test_outer_folds_keep_patients_together_and_cover_everyone(demo_data, monkeypatch):
     data, request = demo_data
-    import core.nested as nested_module
+    import core.checking.nested as nested_module
 
     seen = []
     original = nested_module._outer_fold

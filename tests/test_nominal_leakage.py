@@ -11,12 +11,10 @@ import numpy as np
 import pandas as pd
 import pytest
 
-import core.pathcv as pathcv
+import core.sizing.cross_validated_path as pathcv
 from core.design import DesignSpec, fit_encoding, prepare_analysis
-from core.grow import TreeSettings
-from core.pathcv import cross_validate_path
-from core.resample import CVSettings
-from core.variables import ColumnSpec, DataDictionary
+from core.dictionary import ColumnSpec, DataDictionary
+from core.sizing import CVSettings, TreeSettings, cross_validate_path
 
 
 def _noise_data(seed=0, n=400, levels=200):

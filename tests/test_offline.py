@@ -38,16 +38,14 @@ def no_network(monkeypatch):
 
 def test_the_whole_workflow_opens_no_socket(no_network, tmp_path):
     from core.chart import ChartOptions, write_chart
-    from core.derive import DerivationRequest, derive
-    from core.design import DesignSpec
-    from core.guards import guard_design
+    from core.checking import check_table
+    from core.data import read_table
+    from core.design import DesignSpec, guard_design
+    from core.dictionary import DataDictionary, infer_dictionary, merge_dictionary
     from core.model import TreeModel
     from core.report import prepare_report, write_report
-    from core.resample import CVSettings
     from core.safe_files import write_csv_safely
-    from core.table import read_table
-    from core.validate import check_table
-    from core.variables import DataDictionary, infer_dictionary, merge_dictionary
+    from core.sizing import CVSettings, DerivationRequest, derive
     from tests.helpers import DEMO_CSV, DEMO_DICTIONARY, DEMO_XLSX  # imported under the guard too
 
     table = read_table(DEMO_XLSX, sheet="visits")

@@ -15,9 +15,9 @@ import pytest
 from sklearn.datasets import load_breast_cancer, load_diabetes
 
 from core.errors import Cancelled, InputError
-from core.grow import TreeSettings, growth_class_weights, make_estimator
-from core.pathcv import cross_validate_path
-from core.resample import CVSettings, fold_plan
+from core.sizing import cross_validate_path
+from core.sizing.folds import CVSettings, fold_plan
+from core.sizing.grow import TreeSettings, growth_class_weights, make_estimator
 from tests.helpers import analysis_from_arrays
 
 
@@ -71,7 +71,7 @@ def _regression_data(n=300, seed=0):
 
 def test_k_fold_costs_one_fit_per_fold_plus_one(monkeypatch):
     """k-fold needs k fits and leave-one-out n, plus the full-data tree (common practice)."""
-    import core.pathcv as pathcv
+    import core.sizing.cross_validated_path as pathcv
 
     calls = []
     real = pathcv.grow_tree

@@ -11,19 +11,16 @@ from pathlib import Path
 
 import pytest
 
-from core.derive import DerivationRequest, choose_model, derive
+from core.data import file_sha256, read_table
 from core.design import DesignSpec
+from core.dictionary import DataDictionary
 from core.errors import InputError
 from core.messages import explain
-from core.grow import TreeSettings
-from core.project import (
+from core.project.project import (
     PROJECT_FORMAT, Project, check_data_file, load_project, save_project, upgrade_project,
 )
-from core.resample import CVSettings
-from core.table import file_sha256, read_table
-from core.variables import DataDictionary
+from core.sizing import CVSettings, DerivationRequest, TreeSettings, choose_model, derive
 from tests.helpers import DEMO_CSV, demo_inputs
-
 
 ROOT = Path(__file__).resolve().parents[1]
 OLD_EXAMPLE = ROOT / "tests" / "data" / "project_v0_draft.prunella"

@@ -19,8 +19,8 @@ import pytest
 from sklearn.datasets import load_breast_cancer, load_diabetes
 from sklearn.tree import DecisionTreeClassifier, DecisionTreeRegressor
 
-from core.grow import TreeSettings, class_costs, grow_tree
-from core.prune import collapse_alphas, parents_of, pruning_sequence
+from core.sizing.grow import TreeSettings, class_costs, grow_tree
+from core.sizing.prune import collapse_alphas, parents_of, pruning_sequence
 
 
 def _sklearn_path(estimator, X, y):

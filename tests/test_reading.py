@@ -8,10 +8,10 @@ import openpyxl
 import pandas as pd
 import pytest
 
+from core.data import list_sheets, read_table
+from core.data.cells import parse_dates, parse_numbers, rows_phrase
+from core.dictionary import infer_dictionary
 from core.errors import InputError
-from core.table import list_sheets, read_table
-from core.values import parse_dates, parse_numbers, rows_phrase
-from core.variables import infer_dictionary
 from tests.helpers import DEMO_CSV, DEMO_XLSX
 
 

@@ -12,15 +12,14 @@ from pypdf import PdfReader
 from core.cautions import CAUTIONS, UNCHECKED_BANNER
 from core.chart import ChartOptions
 from core.chart.fitting import tree_fits
-from core.derive import DerivationRequest, derive
+from core.checking import check_table
+from core.data import LoadedTable
 from core.design import DesignSpec
 from core.report import SECTIONS, ReportContents, prepare_report, render_report, write_report
-from core.report_figures import (
+from core.report.figures import (
     calibration_figure, figure_png, pruning_curve_figure, roc_figure, stability_figure,
 )
-from core.resample import CVSettings
-from core.table import LoadedTable
-from core.validate import check_table
+from core.sizing import CVSettings, DerivationRequest, derive
 from tests.helpers import demo_inputs
 
 
@@ -92,8 +91,8 @@ def test_tripod_table_maps_the_items_that_apply_to_sections_that_exist(contents)
     derived and validated tree must report — data source, participants, outcome, predictors,
     sample size, missing data, model building, performance measures, validation, limitations
     (the list in REFERENCES.md) — each point to a section of the report that exists."""
-    from core.report_sections import section
-    from core.report_tripod import tripod_rows
+    from core.report.sections import section
+    from core.report.tripod import tripod_rows
 
     rows = {item: where for item, _, where in tripod_rows(contents, section)}
     must = {"4a": "Data source", "5b": "Participants", "6a": "Outcome and predictors",
@@ -135,7 +134,7 @@ def test_no_page_ends_with_a_heading(contents, written):
 def test_a_heading_joins_the_block_kept_together_after_it():
     from reportlab.platypus import KeepTogether, Paragraph, Spacer
 
-    from core.report_style import Styles, keep_headings_with_next
+    from core.report.style import Styles, keep_headings_with_next
 
     s = Styles()
     heading, figure = Paragraph("7. The chosen tree", s.h1), Spacer(10, 500)

@@ -17,16 +17,15 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from core.derive import DerivationRequest, derive
+from core.data import read_table
 from core.design import DesignSpec
+from core.dictionary import ColumnSpec, DataDictionary, infer_dictionary
 from core.errors import InputError
 from core.model import TreeModel
-from core.resample import CVSettings
 from core.safe_files import (
     MAX_JSON_BYTES, neutralise_cell, read_json_document, write_csv_safely, write_text_atomic,
 )
-from core.table import read_table
-from core.variables import ColumnSpec, DataDictionary, infer_dictionary
+from core.sizing import CVSettings, DerivationRequest, derive
 from tests.helpers import run_prunella
 
 ROOT = Path(__file__).resolve().parents[1]

@@ -5,8 +5,8 @@ from __future__ import annotations
 
 import numpy as np
 
-from core.pathcv import one_se_limit
-from core.stability import QuestionRecurrence
+from core.checking.stability import QuestionRecurrence
+from core.sizing import one_se_limit
 
 
 def test_one_se_limit_is_the_lowest_error_plus_its_se():

@@ -1,4 +1,4 @@
-"""Bootstrap stability of the chosen tree (core/stability.py).
+"""Bootstrap stability of the chosen tree (core/checking/stability.py).
 
 The demo cohort is invented; it serves to check that the planted first question (SpO2) is
 found again, not as a reference for any clinical fact.
@@ -9,12 +9,11 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from core.derive import DerivationRequest, derive
+from core.checking.stability import _Matcher, bootstrap_stability, resample_rows
 from core.design import DesignSpec
 from core.errors import Cancelled, InputError
 from core.model import Question
-from core.resample import CVSettings
-from core.stability import _Matcher, bootstrap_stability, resample_rows
+from core.sizing import CVSettings, DerivationRequest, derive
 from tests.helpers import demo_inputs
 
 

@@ -13,11 +13,11 @@ import pandas as pd
 import pytest
 from sklearn.datasets import load_breast_cancer
 
-from core.derive import DerivationRequest, derive
+from core.data import list_sheets, read_table
 from core.design import DesignSpec
+from core.dictionary import ColumnSpec, DataDictionary, infer_dictionary, merge_dictionary
 from core.errors import InputError
-from core.table import list_sheets, read_table
-from core.variables import ColumnSpec, DataDictionary, infer_dictionary, merge_dictionary
+from core.sizing import DerivationRequest, derive
 from tests.helpers import sha256_of
 
 

@@ -7,7 +7,7 @@ import math
 import pytest
 from hypothesis import given, settings, strategies as st
 
-from core.thresholds import format_number, round_threshold
+from core.model.thresholds import format_number, round_threshold
 
 
 @pytest.mark.parametrize("lo,hi,expected", [

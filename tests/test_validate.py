@@ -1,4 +1,4 @@
-"""Checking a tree on separate patients (core/validate.py).
+"""Checking a tree on separate patients (core/checking/new_patients.py).
 
 The demo cohort is invented (sample_data/README.md); it is used here to check that the code
 finds what the generator planted, not as a reference for any clinical fact.
@@ -11,13 +11,12 @@ import json
 import numpy as np
 import pytest
 
-from core.derive import DerivationRequest, choose_model, derive
+from core.checking.new_patients import check_heldout, check_table, match_columns, with_validation
+from core.data import LoadedTable
 from core.design import DesignSpec
 from core.errors import InputError
-from core.grow import TreeSettings
 from core.model import TreeModel
-from core.table import LoadedTable
-from core.validate import check_heldout, check_table, match_columns, with_validation
+from core.sizing import DerivationRequest, TreeSettings, choose_model, derive
 from tests.helpers import demo_inputs
 
 

@@ -11,10 +11,8 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from core.derive import DerivationRequest, derive
 from core.design import DesignSpec
-from core.grow import TreeSettings
-from core.resample import CVSettings
+from core.sizing import CVSettings, DerivationRequest, TreeSettings, derive
 from tests.waveform import FEATURES, waveform_dictionary, waveform_table
 
 

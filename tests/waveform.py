@@ -11,8 +11,8 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-from core.table import LoadedTable, Provenance
-from core.variables import ColumnSpec, DataDictionary
+from core.data import LoadedTable, Provenance
+from core.dictionary import ColumnSpec, DataDictionary
 
 FEATURES = tuple(f"x{m}" for m in range(1, 22))
 CLASSES = ("class 1", "class 2", "class 3")

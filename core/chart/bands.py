@@ -11,7 +11,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from ..model import Node, TreeModel
+from ..model.tree import Node, TreeModel
 from .style import BandStyle, band_style, class_style
 
 
@@ -73,7 +73,7 @@ def number(value: float, unit: str = "") -> str:
 
 def rate_phrase(model: TreeModel) -> str:
     """Who the rate counts, e.g. 'admitted to hospital' (yes/no outcomes) or 'class ward'."""
-    from ..values import YES_WORDS
+    from ..data.cells import YES_WORDS
 
     positive = model.positive
     label = model.outcome.display

@@ -15,15 +15,15 @@ from functools import cached_property, lru_cache
 from typing import TYPE_CHECKING
 
 from ..errors import InputError
-from ..messages import say
-from ..model import TreeModel
+from ..messages.message import say
+from ..model.tree import TreeModel
 from .content import chart_text
 from .layout import BoxSpec, LayoutStyle, Measure, Para, TreeSpec, layout_tree, reportlab_measure
 from .options import LARGER_PAPER, PAPER_NAMES, ChartOptions, margin_for, page_size
 from .page import ChartPlan, deepest_possible, plan_page
 
 if TYPE_CHECKING:
-    from ..derive import Derivation
+    from ..sizing.derivation import Derivation
 
 
 class ChartTooLarge(InputError):
@@ -218,7 +218,7 @@ def sizes_that_fit(derivation: "Derivation", options: ChartOptions | None = None
     its side panel is the one it will print. Trees with more boxes than the page could hold
     packed edge to edge, or deeper than any arrangement allows, are skipped before they are
     built."""
-    from ..derive import build_model
+    from ..sizing.derivation import build_model
 
     if options is not None and not isinstance(options, ChartOptions):
         raise TypeError("sizes_that_fit takes the chart's ChartOptions, e.g. "

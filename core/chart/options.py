@@ -11,7 +11,7 @@ import math
 from dataclasses import dataclass, replace
 
 from ..errors import InputError
-from ..messages import say
+from ..messages.message import say
 
 _MM = 72 / 25.4
 

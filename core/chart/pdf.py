@@ -15,7 +15,7 @@ from reportlab.lib.colors import HexColor
 from reportlab.pdfgen import canvas as pdfcanvas
 
 from .. import __version__
-from ..model import TreeModel
+from ..model.tree import TreeModel
 from ..safe_files import write_bytes_atomic
 from . import style
 from .layout import Line, PlacedArrow, PlacedBox, Rect

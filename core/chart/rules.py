@@ -13,7 +13,7 @@ import itertools
 import math
 from dataclasses import dataclass
 
-from ..model import TreeModel
+from ..model.tree import TreeModel
 from .boxes import LayoutStyle, TreeSpec, size_boxes
 from .content import ChartText
 from .layout import PlacedBox

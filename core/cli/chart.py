@@ -7,12 +7,12 @@ from typing import TYPE_CHECKING
 
 from ..chart.options import FORMS, ORIENTATIONS, PAPER_SIZES, ChartOptions, default_min_text
 from ..errors import InputError
-from ..model import TreeModel
+from ..model.tree import TreeModel
 from ..safe_files import refuse_overwrite
 from .common import csv_list
 
 if TYPE_CHECKING:
-    from ..derive import Derivation
+    from ..sizing.derivation import Derivation
 
 _DEFAULTS = ChartOptions()  # the command line's defaults are the chart's own
 

@@ -5,13 +5,13 @@ from __future__ import annotations
 
 import sys
 
+from ..checking.nested import DEFAULT_OUTER_FOLDS
+from ..checking.stability import DEFAULT_RESAMPLES
+from ..data.table import read_table
+from ..dictionary.columns import DataDictionary, dictionary_for, merge_dictionary
 from ..errors import InputError
-from ..model import TreeModel
-from ..nested import DEFAULT_OUTER_FOLDS
+from ..model.tree import TreeModel
 from ..safe_files import refuse_overwrite, write_text_atomic
-from ..stability import DEFAULT_RESAMPLES
-from ..table import read_table
-from ..variables import DataDictionary, dictionary_for, merge_dictionary
 from ..words import short_fingerprint
 from .common import dictionary_path
 
@@ -52,7 +52,7 @@ def add_parsers(sub) -> None:
 def run_check(args) -> int:
     import json
 
-    from ..validate import check_table, with_validation
+    from ..checking.new_patients import check_table, with_validation
 
     refuse_overwrite(args.out, args.data, args.model)
     refuse_overwrite(args.checked_model, args.data, args.model)
@@ -80,9 +80,9 @@ def model_dictionary(table, model: TreeModel, dictionary_file: str | None) -> Da
 def run_report(args) -> int:
     import datetime as dt
 
-    from ..derive import DerivationRequest, choose_model, derive
-    from ..report import prepare_report, write_report
-    from ..validate import check_table
+    from ..checking.new_patients import check_table
+    from ..report.rendering import prepare_report, write_report
+    from ..sizing.derivation import DerivationRequest, choose_model, derive
 
     inputs = [args.data, args.model] + ([args.external] if args.external else [])
     refuse_overwrite(args.out, *inputs)

@@ -12,19 +12,18 @@ import pandas as pd
 
 from .. import __version__
 from ..cautions import CAUTION_TITLE, caution_text
-from ..design import DesignSpec
+from ..data.table import read_table
+from ..design.analysis import DesignSpec
+from ..dictionary.columns import DataDictionary, dictionary_for
 from ..errors import InputError
-from ..messages import distinct_messages, explain
-from ..model import TreeModel
+from ..messages.message import distinct_messages, explain
+from ..model.tree import TreeModel
 from ..safe_files import refuse_overwrite, write_csv_safely, write_text_atomic
-from ..table import read_table
-from ..variables import DataDictionary
 from .chart import add_fit_chart_options, fit_chart
-from ..variables import dictionary_for
 from .common import DICTIONARY_HELP, csv_list, dictionary_path
 
 if TYPE_CHECKING:  # scikit-learn loads only when a tree is grown, so bad input is refused fast
-    from ..derive import Derivation, DerivationRequest
+    from ..sizing.derivation import Derivation, DerivationRequest
 
 
 def add_parsers(sub) -> None:
@@ -74,9 +73,9 @@ def add_parsers(sub) -> None:
 
 def request_from_args(args, dictionary: DataDictionary) -> DerivationRequest:
     """The derivation request described by ``prunella fit`` options."""
-    from ..derive import DerivationRequest
-    from ..grow import TreeSettings
-    from ..resample import CVSettings
+    from ..sizing.derivation import DerivationRequest
+    from ..sizing.folds import CVSettings
+    from ..sizing.grow import TreeSettings
 
     if args.outcome not in dictionary:
         dictionary.get(args.outcome)  # raises the "no such column" message
@@ -131,7 +130,7 @@ def run_fit(args) -> int:
     shown = _print_notes(list(table.provenance.warnings) + notes)
     request = request_from_args(args, dictionary)
     request = _guarded(args, table, dictionary, request)
-    from ..derive import derive
+    from ..sizing.derivation import derive
 
     derivation = derive(table, dictionary, request, jobs=args.jobs)
     model = derivation.model
@@ -149,7 +148,7 @@ def run_fit(args) -> int:
 
 
 def _print_notes(notes: list[str], already: list[str] | None = None) -> list[str]:
-    """Print each note once on stderr as 'warning:' or 'note:' (core/message_catalogue.py);
+    """Print each note once on stderr as 'warning:' or 'note:' (core/messages/catalogue.py);
     a finding already shown with its rows is not repeated."""
     already = list(already or [])
     fresh = [n for n in distinct_messages(already + notes) if n not in already]
@@ -164,7 +163,7 @@ def _guarded(args, table, dictionary: DataDictionary, request: DerivationRequest
     """Run the identity, leakage, repeat-visit and rare-class guards; print their findings.
 
     Identity columns are left out unless named in --predictors."""
-    from ..guards import guard_design
+    from ..design.guards import guard_design
 
     report = guard_design(table.frame, dictionary, request.design,
                           keep=csv_list(args.predictors), grouped=request.cv.grouped,
@@ -204,7 +203,7 @@ def run_score(args) -> int:
     refuse_overwrite(args.out, args.data, args.model)
     model = TreeModel.load(args.model)
     table = read_table(args.data, sheet=args.sheet)
-    from ..scoring import scored_table
+    from ..model.scoring import scored_table
 
     out, notes = scored_table(model, table.frame)
     write_csv_safely(out, args.out)

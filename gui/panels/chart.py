@@ -20,8 +20,8 @@ from PySide6.QtWidgets import (
 from core.cautions import CAUTION_TITLE, CAUTIONS
 from core.chart import ChartOptions, ChartTooLarge, write_chart
 from core.errors import InputError
+from core.model import scored_table
 from core.safe_files import write_bytes_atomic, write_csv_safely, write_text_atomic
-from core.scoring import scored_table
 from gui import workers
 from gui.panels.base import Panel, explain, heading_font, scrolling, side_by_side, warning_html
 from gui.widgets.pdf_preview import PdfPreview

@@ -17,13 +17,14 @@ from PySide6.QtWidgets import (
 )
 
 from core.cautions import UNCHECKED_BANNER, UNCHECKED_DETAIL
-from core.metrics import ClassificationMeasures
-from core.nested import DEFAULT_OUTER_FOLDS, nested_cross_validate
-from core.report import ReportContents, write_report
-from core.report_figures import calibration_figure, roc_figure, stability_figure
-from core.stability import DEFAULT_RESAMPLES, bootstrap_stability
-from core.table import read_table
-from core.validate import check_table
+from core.checking import (
+    DEFAULT_OUTER_FOLDS, DEFAULT_RESAMPLES, ClassificationMeasures, bootstrap_stability,
+    check_table, nested_cross_validate,
+)
+from core.data import read_table
+from core.report import (
+    ReportContents, calibration_figure, roc_figure, stability_figure, write_report,
+)
 from gui import workers
 from gui.panels.base import (
     SIZE_RULES, Banner, Panel, errors_beside, explain, scrolling, warning_html,

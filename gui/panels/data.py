@@ -12,11 +12,10 @@ from PySide6.QtWidgets import (
     QTabWidget, QToolButton, QVBoxLayout, QWidget,
 )
 
+from core.data import EXCEL_SUFFIXES, list_sheets, read_table
+from core.dictionary import DataDictionary, dictionary_beside, dictionary_for
 from core.errors import InputError
-from core.messages import app_advice, app_wording
-from core.messages import explain as catalogue_entry
-from core.table import EXCEL_SUFFIXES, list_sheets, read_table
-from core.variables import DataDictionary, dictionary_beside, dictionary_for
+from core.messages import app_advice, app_wording, explain as catalogue_entry
 from gui import workers
 from gui.panels.base import Panel, explain, heading_font
 from gui.widgets.dictionary_model import (

@@ -12,8 +12,8 @@ from PySide6.QtWidgets import (
 )
 
 from core.design import DesignSpec, suggest_task
+from core.dictionary import CATEGORY_KINDS, PREDICTOR_KINDS, positive_level
 from core.messages import app_advice, app_wording
-from core.variables import CATEGORY_KINDS, PREDICTOR_KINDS, positive_level
 from gui.guard_watch import GuardWatch, offered_columns
 from gui.panels.base import Panel, explain, side_by_side
 from gui.widgets.checklist import Checklist

@@ -15,9 +15,8 @@ from PySide6.QtWidgets import (
 
 from core.chart import sizes_that_fit
 from core.chart.options import PAPER_NAMES, default_min_text
-from core.derive import choose_model, derive
 from core.errors import InputError
-from core.resample import CVSettings
+from core.sizing import CVSettings, choose_model, derive
 from gui import workers
 from gui.panels.base import (
     SIZE_RULES, Banner, Panel, errors_beside, explain, scrolling, side_by_side, with_advice,

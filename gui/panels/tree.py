@@ -11,8 +11,7 @@ from PySide6.QtWidgets import (
     QSplitter, QTextBrowser, QToolButton, QVBoxLayout, QWidget,
 )
 
-from core.explain import box_details, route_patient
-from core.thresholds import format_number
+from core.model import box_details, format_number, route_patient
 from gui.panels.base import Panel, explain, scrolling, side_by_side, warning_html
 from gui.widgets.tree_view import TreeView
 

@@ -15,7 +15,7 @@ from matplotlib.ticker import FuncFormatter, LogLocator, NullFormatter
 from PySide6.QtCore import Signal
 from PySide6.QtWidgets import QSizePolicy
 
-from core.pathcv import one_se_limit
+from core.sizing import one_se_limit
 
 
 # Okabe & Ito (2008) colour-blind-safe colours; every series also differs by marker/line.

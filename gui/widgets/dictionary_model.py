@@ -9,8 +9,8 @@ from __future__ import annotations
 from PySide6.QtCore import QAbstractTableModel, QModelIndex, Qt, Signal
 from PySide6.QtWidgets import QComboBox, QStyledItemDelegate
 
+from core.dictionary import KINDS, ROLES, DataDictionary
 from core.errors import InputError
-from core.variables import KINDS, ROLES, DataDictionary
 
 ROLE_WORDS = {
     "outcome": "outcome",

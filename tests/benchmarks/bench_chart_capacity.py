@@ -27,7 +27,7 @@ ROOT = Path(__file__).resolve().parents[2]
 sys.path[:0] = [str(ROOT), str(ROOT / "tests")]
 
 from core.chart import ChartOptions, tree_fits  # noqa: E402
-from core.derive import choose_model  # noqa: E402
+from core.sizing import choose_model  # noqa: E402
 
 import chart_references as refs  # noqa: E402
 

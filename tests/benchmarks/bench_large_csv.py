@@ -4,7 +4,7 @@ Run:  .venv/bin/python tests/benchmarks/bench_large_csv.py [--rows N] [--keep]
 
 Writes an invented 1,000,000-row × 50-column CSV to /tmp (about 255 MB; kept between runs
 with --keep), then, in fresh child processes so that memory figures are their own, reads it
-with ``core.table.read_table`` and infers its dictionary with ``infer_dictionary``, printing
+with ``core.data.table.read_table`` and infers its dictionary with ``infer_dictionary``, printing
 the time of each step and the process's peak resident size (getrusage), and then, in a second
 run, the peak of Python allocations (tracemalloc, which also sees NumPy's). Columns mix what clinical files
 hold: whole and decimal numbers, gaps, a -99 code, lab limits like "<5", yes/no in several
@@ -71,8 +71,8 @@ def measure(path: Path, trace: bool) -> None:
 
     With ``trace``, Python allocations are traced (tracemalloc slows object-heavy work a lot,
     so the times of that run are not the ones to quote)."""
-    from core.table import read_table
-    from core.variables import infer_dictionary
+    from core.data import read_table
+    from core.dictionary import infer_dictionary
 
     if trace:
         tracemalloc.start()

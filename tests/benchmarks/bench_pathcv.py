@@ -26,10 +26,10 @@ import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
 
-import core.pathcv as pathcv  # noqa: E402
-from core.grow import TreeSettings, growth_class_weights, make_estimator  # noqa: E402
-from core.pathcv import cross_validate_path  # noqa: E402
-from core.resample import CVSettings, fold_plan  # noqa: E402
+import core.sizing.cross_validated_path as pathcv  # noqa: E402
+from core.sizing import cross_validate_path  # noqa: E402
+from core.sizing.folds import CVSettings, fold_plan  # noqa: E402
+from core.sizing.grow import TreeSettings, growth_class_weights, make_estimator  # noqa: E402
 from tests.helpers import analysis_from_arrays  # noqa: E402
 
 
@@ -46,7 +46,7 @@ def floor_seconds(data, settings, cv) -> float:
     """K+1 plain fits with the same settings: the cost any exact CART CV must pay."""
     X = np.column_stack([p.numbers for p in data.predictors]).astype(np.float32)
     folds = fold_plan(cv, data.n, y=data.y)
-    from core.grow import class_costs
+    from core.sizing.grow import class_costs
 
     costs = class_costs(settings, data.y, 2)
     start = time.perf_counter()
@@ -59,7 +59,7 @@ def floor_seconds(data, settings, cv) -> float:
 def naive_seconds(data, settings, cv, grid_size=50, measured_folds=2) -> float:
     """Refit per α on a 50-α grid for two folds, scaled to all folds (plus the full-data path)."""
     X = np.column_stack([p.numbers for p in data.predictors]).astype(np.float32)
-    from core.grow import class_costs
+    from core.sizing.grow import class_costs
 
     costs = class_costs(settings, data.y, 2)
     folds = fold_plan(cv, data.n, y=data.y)

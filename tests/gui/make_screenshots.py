@@ -24,7 +24,7 @@ def _identity_cohort(path: Path) -> None:
     import numpy as np
     import pandas as pd
 
-    from core.variables import infer_dictionary
+    from core.dictionary import infer_dictionary
 
     rng = np.random.default_rng(3)
     n = 240

@@ -8,13 +8,13 @@ import os
 os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 
 import pandas as pd  # noqa: E402
-from matplotlib.backends.backend_qtagg import FigureCanvasQTAgg  # noqa: E402
 import pytest  # noqa: E402
+from matplotlib.backends.backend_qtagg import FigureCanvasQTAgg  # noqa: E402
 from pypdf import PdfReader  # noqa: E402
 from PySide6.QtCore import Qt  # noqa: E402
 
+from core.checking import check_heldout  # noqa: E402
 from tests.helpers import DEMO_CSV as DEMO  # noqa: E402
-from core.validate import check_heldout  # noqa: E402
 
 
 def _labels(panel) -> str:

@@ -7,11 +7,11 @@ import os
 
 os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 
+from conftest import DEMO  # noqa: E402
 from PySide6.QtCore import Qt  # noqa: E402
 
-from conftest import DEMO  # noqa: E402
+from core.data import read_table  # noqa: E402
 from core.project import load_project  # noqa: E402
-from core.table import read_table  # noqa: E402
 
 
 def test_guess_again_runs_in_the_background_and_names_rows(demo, qtbot):

@@ -23,7 +23,7 @@ import pytest  # noqa: E402
 from PySide6.QtCore import Qt  # noqa: E402
 
 import gui.guard_watch as guard_watch  # noqa: E402
-from core.variables import infer_dictionary  # noqa: E402
+from core.dictionary import infer_dictionary  # noqa: E402
 from gui.widgets.checklist import NAME_ROLE  # noqa: E402
 
 GUARD_TIMEOUT = 30000

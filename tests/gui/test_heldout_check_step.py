@@ -9,13 +9,13 @@ os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 
 import traceback  # noqa: E402
 
-import core.validate  # noqa: E402
+import core.checking.new_patients  # noqa: E402
 
 
 def test_one_heldout_check_per_run(demo, run, monkeypatch):
     window = demo
     calls = []
-    real = core.validate.check_heldout
+    real = core.checking.new_patients.check_heldout
 
     def counted(derivation):
         # The chart's size fitting builds candidate trees of its own; only the checks of the
@@ -24,7 +24,7 @@ def test_one_heldout_check_per_run(demo, run, monkeypatch):
             calls.append(derivation.model.chosen["leaves"])
         return real(derivation)
 
-    monkeypatch.setattr(core.validate, "check_heldout", counted)
+    monkeypatch.setattr(core.checking.new_patients, "check_heldout", counted)
     size = window.panels["size"]
     size.folds.setValue(5)
     size.holdout.setValue(25)

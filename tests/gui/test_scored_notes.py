@@ -11,7 +11,7 @@ from dataclasses import replace  # noqa: E402
 
 from PySide6.QtCore import Qt  # noqa: E402
 
-from core.scoring import scored_table  # noqa: E402
+from core.model import scored_table  # noqa: E402
 from gui.panels.base import warning_html  # noqa: E402
 
 

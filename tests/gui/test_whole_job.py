@@ -13,8 +13,8 @@ import pandas as pd  # noqa: E402
 from pypdf import PdfReader  # noqa: E402
 from PySide6.QtCore import Qt  # noqa: E402
 
-from core.derive import choose_model  # noqa: E402
 from core.model import TreeModel  # noqa: E402
+from core.sizing import choose_model  # noqa: E402
 
 
 def _choose_outcome(window, name: str) -> None:

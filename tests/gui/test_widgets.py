@@ -12,12 +12,12 @@ import pandas as pd  # noqa: E402
 from PySide6.QtCore import Qt  # noqa: E402
 from PySide6.QtWidgets import QTableView  # noqa: E402
 
-from tests.helpers import DEMO_DICTIONARY  # noqa: E402
-from core.variables import DataDictionary  # noqa: E402
+from core.dictionary import DataDictionary  # noqa: E402
 from gui.widgets.checklist import Checklist  # noqa: E402
 from gui.widgets.curve import CurveCanvas, CurveData  # noqa: E402
 from gui.widgets.dictionary_model import DictionaryModel  # noqa: E402
 from gui.widgets.frame_model import FrameModel, cell_text  # noqa: E402
+from tests.helpers import DEMO_DICTIONARY  # noqa: E402
 
 
 class CountingModel(FrameModel):

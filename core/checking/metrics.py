@@ -1,0 +1,376 @@
+"""How well a tree does on a set of patients: measures with 95% intervals.
+
+Point values come from scikit-learn's metrics; only the intervals and standard errors are
+written here: Wilson score intervals for proportions (core/checking/intervals.py), the Hanley & McNeil
+(1982) and DeLong, DeLong & Clarke-Pearson (1988) standard errors of the ROC area, and
+Student-t intervals for box means. Everything is returned as plain frozen dataclasses so the
+app, the command line and the report show the same numbers.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from functools import lru_cache
+
+import numpy as np
+from scipy import stats
+from sklearn.metrics import (
+    brier_score_loss, confusion_matrix, mean_absolute_error, mean_squared_error,
+    r2_score, roc_auc_score, roc_curve,
+)
+
+from .intervals import mean_interval, wilson_interval
+
+LEVEL = 0.95
+_wilson = lru_cache(maxsize=4096)(wilson_interval)  # the chart planner asks for the same boxes often
+_Z = float(stats.norm.ppf(0.5 + LEVEL / 2))
+
+
+# --- building blocks --------------------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class Proportion:
+    """k of n, with its Wilson 95% interval."""
+
+    k: int
+    n: int
+    value: float | None
+    low: float | None
+    high: float | None
+
+    def text(self) -> str:
+        """'84% (79–88%)', or 'not estimable' when there is nobody to count."""
+        if self.value is None:
+            return "not estimable (no patients)"
+        return f"{_pct(self.value)} ({_pct(self.low, sign=False)}–{_pct(self.high)})"
+
+
+def proportion(k: int, n: int) -> Proportion:
+    """A proportion with its Wilson interval (value None when n is 0)."""
+    k, n = int(k), int(n)
+    if n == 0:
+        return Proportion(k, n, None, None, None)
+    low, high = _wilson(k, n, LEVEL)
+    return Proportion(k, n, k / n, low, high)
+
+
+def _pct(value: float, sign: bool = True) -> str:
+    text = f"{100 * value:.0f}"
+    return text + "%" if sign else text
+
+
+@dataclass(frozen=True)
+class RocCurve:
+    """ROC curve of a score and its area with a 95% interval."""
+
+    fpr: tuple[float, ...]  # 1 - specificity at each cut
+    tpr: tuple[float, ...]  # sensitivity at each cut
+    cuts: tuple[float, ...]  # score at or above which a patient counts as positive
+    auc: float
+    se_hanley_mcneil: float
+    se_delong: float
+    low: float
+    high: float
+    method: str  # which SE the interval uses
+    n_positive: int
+    n_negative: int
+
+    def text(self) -> str:
+        return f"{self.auc:.2f} ({self.low:.2f}–{self.high:.2f})"
+
+
+def hanley_mcneil_se(auc: float, n_positive: int, n_negative: int) -> float:
+    """SE of the ROC area (Hanley & McNeil 1982, Radiology 143:29–36, their equation 2)."""
+    q1 = auc / (2 - auc)
+    q2 = 2 * auc * auc / (1 + auc)
+    var = (auc * (1 - auc) + (n_positive - 1) * (q1 - auc * auc)
+           + (n_negative - 1) * (q2 - auc * auc)) / (n_positive * n_negative)
+    return float(math.sqrt(max(var, 0.0)))
+
+
+def delong_se(truth: np.ndarray, score: np.ndarray) -> float:
+    """SE of the empirical ROC area by DeLong, DeLong & Clarke-Pearson (1988), ties counted half.
+
+    Uses midranks (Sun & Xu 2014): each positive's placement is the share of negatives it
+    outscores, each negative's the share of positives that outscore it.
+    """
+    truth = np.asarray(truth, dtype=bool)
+    pos, neg = score[truth], score[~truth]
+    m, n = len(pos), len(neg)
+    if m < 2 or n < 2:
+        return float("nan")
+    ranks = stats.rankdata(np.concatenate([pos, neg]))
+    v10 = (ranks[:m] - stats.rankdata(pos)) / n
+    v01 = 1 - (ranks[m:] - stats.rankdata(neg)) / m
+    return float(math.sqrt(np.var(v10, ddof=1) / m + np.var(v01, ddof=1) / n))
+
+
+def roc(truth: np.ndarray, score: np.ndarray) -> RocCurve | None:
+    """ROC curve and area of ``score`` for the yes/no ``truth``; None if one group is empty.
+
+    The interval is AUC ± 1.96 SE (clipped to 0–1) with DeLong's SE, which allows for the
+    many ties a tree's few leaf probabilities make; Hanley & McNeil's SE is kept beside it
+    (and used when a group has fewer than two patients).
+    """
+    truth = np.asarray(truth, dtype=bool)
+    score = np.asarray(score, dtype=float)
+    m, n = int(truth.sum()), int((~truth).sum())
+    if m == 0 or n == 0:
+        return None
+    auc = float(roc_auc_score(truth, score))
+    fpr, tpr, cuts = roc_curve(truth, score, drop_intermediate=False)
+    se_hm = hanley_mcneil_se(auc, m, n)
+    se_dl = delong_se(truth, score)
+    method, se = ("DeLong", se_dl) if math.isfinite(se_dl) else ("Hanley-McNeil", se_hm)
+    cuts = np.where(np.isfinite(cuts), cuts, np.nan)
+    return RocCurve(tuple(fpr.tolist()), tuple(tpr.tolist()), tuple(cuts.tolist()), auc, se_hm,
+                    se_dl, max(0.0, auc - _Z * se), min(1.0, auc + _Z * se), method, m, n)
+
+
+@dataclass(frozen=True)
+class DerivationBox:
+    """What an outcome box said at derivation: patients, class counts or mean and SD."""
+
+    box: int
+    n: int
+    counts: tuple[int, ...] = ()
+    mean: float | None = None
+    sd: float | None = None
+
+
+@dataclass(frozen=True)
+class CalibrationRow:
+    """One outcome box: the derivation rate (or mean) against what the new patients showed."""
+
+    box: int
+    label: str  # the class whose rate is compared, or the outcome for regression
+    derivation_n: int
+    derivation_value: float  # rate of ``label`` or mean at derivation
+    n: int  # new patients in the box
+    observed: float | None  # their rate or mean (None when nobody reached the box)
+    low: float | None
+    high: float | None
+    agrees: bool | None  # derivation value inside the observed interval
+
+    def observed_text(self, percent: bool = True) -> str:
+        if self.observed is None:
+            return "no patients"
+        if percent:
+            return f"{_pct(self.observed)} ({_pct(self.low, False)}–{_pct(self.high)})"
+        if self.low is None:
+            return f"{self.observed:.3g} (one patient)"
+        return f"{self.observed:.3g} ({self.low:.3g} to {self.high:.3g})"
+
+
+# --- classification ---------------------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class ClassResult:
+    """One class against the rest."""
+
+    label: str
+    n_with: int  # patients who had this class
+    sensitivity: Proportion
+    specificity: Proportion
+    ppv: Proportion
+    npv: Proportion
+    roc: RocCurve | None
+    brier: float
+
+
+@dataclass(frozen=True)
+class ClassificationMeasures:
+    """Classification performance on a set of patients."""
+
+    n: int
+    classes: tuple[str, ...]
+    positive: str | None
+    confusion: tuple[tuple[int, ...], ...]  # rows: true class, columns: predicted class
+    accuracy: Proportion
+    cost: float  # mean misclassification cost per patient (loss × prior weight)
+    cost_se: float
+    brier: float  # two classes: of the positive probability; more: summed over classes
+    per_class: tuple[ClassResult, ...]  # two classes: the positive class only
+    auc_macro: float | None  # several classes: mean of the one-vs-rest areas
+    calibration: tuple[CalibrationRow, ...]
+    task: str = "classification"
+
+    @property
+    def headline(self) -> ClassResult | None:
+        return self.per_class[0] if self.positive is not None and self.per_class else None
+
+    def summary(self) -> str:
+        """One printable line of the main measures with their intervals."""
+        head = self.headline
+        if head is not None:
+            parts = [f"Sensitivity {head.sensitivity.text()}",
+                     f"specificity {head.specificity.text()}"]
+            if head.roc is not None:
+                parts.append(f"AUC {head.roc.text()}")
+            return ", ".join(parts)
+        parts = [f"Accuracy {self.accuracy.text()}"]
+        if self.auc_macro is not None:
+            parts.append(f"mean one-vs-rest AUC {self.auc_macro:.2f}")
+        parts.append(f"cost {self.cost:.3f} per patient")
+        return ", ".join(parts)
+
+    def rows(self) -> list[tuple[str, str]]:
+        """(measure, value with interval) lines for a table."""
+        lines = [("Patients", str(self.n)), ("Accuracy", self.accuracy.text()),
+                 ("Misclassification cost per patient", f"{self.cost:.3f} (SE {self.cost_se:.3f})"),
+                 ("Brier score", f"{self.brier:.3f}")]
+        for result in self.per_class:
+            name = f" ({result.label})" if self.positive is None or len(self.per_class) > 1 else ""
+            lines += [(f"Sensitivity{name}", result.sensitivity.text()),
+                      (f"Specificity{name}", result.specificity.text()),
+                      (f"Positive predictive value{name}", result.ppv.text()),
+                      (f"Negative predictive value{name}", result.npv.text())]
+            if result.roc is not None:
+                lines.append((f"ROC area{name}", f"{result.roc.text()} ({result.roc.method})"))
+        if self.auc_macro is not None:
+            lines.append(("Mean one-vs-rest ROC area", f"{self.auc_macro:.2f}"))
+        return lines
+
+
+def classification_measures(y: np.ndarray, predicted: np.ndarray, probabilities: np.ndarray,
+                            classes: tuple[str, ...], loss: np.ndarray | None = None,
+                            case_weight: np.ndarray | None = None,
+                            leaves: np.ndarray | None = None,
+                            boxes: tuple[DerivationBox, ...] = ()) -> ClassificationMeasures:
+    """Measures for true classes ``y`` and predicted classes (both class indices).
+
+    ``probabilities`` (patients × classes) are the derivation shares of each class in the box
+    each patient reached; they make the ROC curves and the Brier score. ``loss`` and
+    ``case_weight`` give the cost of each mistake as in core/sizing/cross_validated_path.py (loss × prior weight;
+    0-1 loss by default). With ``leaves`` and ``boxes``, each box is checked for calibration.
+    """
+    y = np.asarray(y, dtype=np.int64)
+    predicted = np.asarray(predicted, dtype=np.int64)
+    probabilities = np.asarray(probabilities, dtype=float)
+    k = len(classes)
+    labels = list(range(k))
+    n = len(y)
+    matrix = confusion_matrix(y, predicted, labels=labels) if n else np.zeros((k, k), int)
+    correct = int(np.trace(matrix))
+    accuracy = proportion(correct, n)
+    loss = 1.0 - np.eye(k) if loss is None else np.asarray(loss, dtype=float)
+    case_weight = np.ones(k) if case_weight is None else np.asarray(case_weight, dtype=float)
+    per_case = loss[y, predicted] * case_weight[y]
+    cost = float(per_case.mean()) if n else float("nan")
+    cost_se = float(per_case.std() / math.sqrt(n)) if n else float("nan")
+    two = k == 2
+    if n == 0:
+        brier = float("nan")
+    elif two:
+        brier = float(brier_score_loss(y == 1, probabilities[:, 1]))
+    else:
+        brier = float(brier_score_loss(y, probabilities, labels=labels))
+    results = []
+    for c in ([1] if two else labels):
+        results.append(_one_class(classes[c], y == c, predicted == c, probabilities[:, c]))
+    auc_macro = None
+    if not two and n:
+        present = [r.roc.auc for r in results if r.roc is not None]
+        auc_macro = float(np.mean(present)) if present else None
+    calibration = ()
+    if leaves is not None and boxes:
+        calibration = _class_calibration(y, np.asarray(leaves), boxes, classes)
+    return ClassificationMeasures(
+        n=n, classes=tuple(classes), positive=classes[1] if two else None,
+        confusion=tuple(tuple(int(v) for v in row) for row in matrix), accuracy=accuracy,
+        cost=cost, cost_se=cost_se, brier=brier, per_class=tuple(results), auc_macro=auc_macro,
+        calibration=calibration)
+
+
+def _one_class(label: str, truth: np.ndarray, said: np.ndarray, score: np.ndarray) -> ClassResult:
+    tp = int((truth & said).sum())
+    fn = int((truth & ~said).sum())
+    fp = int((~truth & said).sum())
+    tn = int((~truth & ~said).sum())
+    brier = float(np.mean((score - truth) ** 2)) if truth.size else float("nan")
+    return ClassResult(label=label, n_with=tp + fn, sensitivity=proportion(tp, tp + fn),
+                       specificity=proportion(tn, tn + fp), ppv=proportion(tp, tp + fp),
+                       npv=proportion(tn, tn + fn), roc=roc(truth, score), brier=brier)
+
+
+def _class_calibration(y, leaves, boxes, classes) -> tuple[CalibrationRow, ...]:
+    rows = []
+    compared = [1] if len(classes) == 2 else range(len(classes))
+    for c in compared:
+        for box in boxes:
+            here = leaves == box.box
+            m = int(here.sum())
+            rate = box.counts[c] / max(box.n, 1)
+            k = int((y[here] == c).sum())
+            p = proportion(k, m)
+            agrees = None if p.value is None else bool(p.low <= rate <= p.high)
+            rows.append(CalibrationRow(box.box, classes[c], box.n, rate, m, p.value, p.low,
+                                       p.high, agrees))
+    return tuple(rows)
+
+
+# --- regression -------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class RegressionMeasures:
+    """Regression performance on a set of patients."""
+
+    n: int
+    rmse: float
+    mae: float
+    r2: float
+    mean_error: float  # observed minus predicted, on average (positive: the tree predicts low)
+    calibration: tuple[CalibrationRow, ...]
+    unit: str = ""
+    task: str = "regression"
+
+    def summary(self) -> str:
+        unit = f" {self.unit}" if self.unit else ""
+        return (f"RMSE {self.rmse:.3g}{unit}, MAE {self.mae:.3g}{unit}, R² {self.r2:.2f} "
+                f"({self.n} patients)")
+
+    def rows(self) -> list[tuple[str, str]]:
+        unit = f" {self.unit}" if self.unit else ""
+        return [("Patients", str(self.n)), ("Root mean squared error", f"{self.rmse:.3g}{unit}"),
+                ("Mean absolute error", f"{self.mae:.3g}{unit}"), ("R²", f"{self.r2:.3f}"),
+                ("Mean of observed − predicted", f"{self.mean_error:.3g}{unit}")]
+
+
+def regression_measures(y: np.ndarray, predicted: np.ndarray, leaves: np.ndarray | None = None,
+                        boxes: tuple[DerivationBox, ...] = (), label: str = "",
+                        unit: str = "") -> RegressionMeasures:
+    """RMSE, MAE and R² (scikit-learn), and per box the derivation mean against the observed
+    mean with its Student-t 95% interval."""
+    y = np.asarray(y, dtype=float)
+    predicted = np.asarray(predicted, dtype=float)
+    n = len(y)
+    if n:
+        rmse = float(math.sqrt(mean_squared_error(y, predicted)))
+        mae = float(mean_absolute_error(y, predicted))
+        r2 = float(r2_score(y, predicted)) if n > 1 else float("nan")
+        bias = float(np.mean(y - predicted))
+    else:
+        rmse = mae = r2 = bias = float("nan")
+    rows = []
+    if leaves is not None:
+        leaves = np.asarray(leaves)
+        for box in boxes:
+            values = y[leaves == box.box]
+            m = len(values)
+            if m == 0:
+                rows.append(CalibrationRow(box.box, label, box.n, box.mean, 0, None, None, None, None))
+                continue
+            mean = float(values.mean())
+            sd = float(values.std(ddof=1)) if m > 1 else float("nan")
+            low, high = mean_interval(mean, sd, m, LEVEL, within=(float(y.min()), float(y.max())))
+            agrees = bool(low <= box.mean <= high) if m > 1 else None
+            rows.append(CalibrationRow(box.box, label, box.n, box.mean, m, mean,
+                                       low if m > 1 else None, high if m > 1 else None, agrees))
+    return RegressionMeasures(n, rmse, mae, r2, bias, tuple(rows), unit)
+
+
+Measures = ClassificationMeasures | RegressionMeasures

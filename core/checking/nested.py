@@ -1,0 +1,155 @@
+"""The honest error of the whole procedure: nested cross-validation.
+
+The cross-validated risk of the chosen tree is slightly optimistic, because the same folds
+also chose its size. Nested cross-validation repeats the whole procedure inside each outer
+fold — grow, cross-validate the pruning path with the same settings, choose the size by the
+same rule — and measures the chosen tree on the outer fold's patients, who took no part in
+any of it. Outer folds keep each patient's visits together when an identifier is set.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from typing import TYPE_CHECKING
+
+import numpy as np
+from joblib import Parallel, delayed
+
+from ..design.analysis import AnalysisData
+from ..errors import Cancelled, InputError
+from ..sizing.cross_validated_path import (
+    CancelFlag, Progress, case_losses, cross_validate_path, path_nodes,
+)
+from ..sizing.folds import CVSettings, fold_plan
+from ..sizing.grow import class_costs
+from .metrics import Measures, classification_measures, regression_measures
+
+if TYPE_CHECKING:
+    from ..sizing.derivation import DerivationRequest
+
+DEFAULT_OUTER_FOLDS = 5
+
+
+@dataclass(frozen=True)
+class NestedFold:
+    """One outer fold: the size the inner procedure chose and how it did on the outer part."""
+
+    fold: int
+    n_train: int
+    n_test: int
+    leaves: int  # size chosen inside the fold
+    inner_cv_risk: float  # what the inner cross-validation promised for that size
+    test_risk: float  # what the outer patients showed
+
+
+@dataclass(frozen=True)
+class NestedResult:
+    """Nested cross-validation of the whole procedure."""
+
+    description: str  # the outer plan in words
+    size_rule: str  # how the size was chosen inside each fold
+    risk_measure: str
+    risk: float  # mean loss per outer test case (same measure as the pruning path's CV risk)
+    risk_se: float
+    n: int
+    folds: tuple[NestedFold, ...]
+    measures: Measures  # from the pooled outer predictions (no calibration by box)
+
+    def summary(self) -> str:
+        """One printable line."""
+        sizes = sorted(f.leaves for f in self.folds)
+        size_text = (f"{sizes[0]}" if sizes[0] == sizes[-1] else f"{sizes[0]}–{sizes[-1]}")
+        return (f"Nested risk {self.risk:.3f} ± {self.risk_se:.3f} ({self.risk_measure}; "
+                f"{self.description}; {size_text} leaves chosen inside the folds)")
+
+
+def _size_rule(size) -> str:
+    if size in ("1se", "1-se"):
+        return "1-SE rule"
+    if size == "min":
+        return "minimum cross-validated risk"
+    return f"at most {size} leaves"
+
+
+def _outer_fold(data: AnalysisData, request: "DerivationRequest", costs, train, test,
+                cancel: CancelFlag | None):
+    inner = data.subset(train)
+    path = cross_validate_path(inner, request.tree, request.cv, jobs=1, cancel=cancel)
+    index, _ = path.index_for(request.size)
+    grown = path.grown
+    tree = grown.tree
+    X = grown.encoding.matrix(data, test)
+    nodes = path_nodes(tree, grown.sequence.collapse, X, np.array([path.grid[index]]))
+    losses = case_losses(tree, nodes, data.y[test], costs)[:, 0].astype(float)
+    nodes = nodes[:, 0]
+    if data.task == "classification":
+        counts = tree.class_counts[nodes].astype(float)
+        probabilities = counts / np.maximum(counts.sum(axis=1, keepdims=True), 1)
+    else:
+        probabilities = None
+    return (test, tree.label[nodes], probabilities, losses, int(path.leaves[index]),
+            float(path.cv_risk[index]), len(train))
+
+
+def nested_cross_validate(data: AnalysisData, request: "DerivationRequest",
+                          outer_folds: int = DEFAULT_OUTER_FOLDS, seed: int | None = None,
+                          jobs: int = 1, progress: Progress | None = None,
+                          cancel: CancelFlag | None = None) -> NestedResult:
+    """Nested cross-validation of the derivation ``request`` on ``data``.
+
+    Outer folds: ``outer_folds``-fold, stratified by class, patients kept together when
+    ``data`` has an identifier (and the request's CV keeps them together). Inside each outer
+    fold the request's own tree, CV and size settings are used. ``progress(done, total)`` is
+    called after each outer fold; ``cancel()`` returning True raises :class:`Cancelled`.
+    ``jobs`` runs outer folds in parallel (each inner CV then runs on one core).
+    """
+    def check_cancel():
+        if cancel is not None and cancel():
+            raise Cancelled()
+
+    if outer_folds < 2:
+        raise InputError("Nested cross-validation needs at least 2 outer folds.")
+    seed = request.cv.seed if seed is None else seed
+    outer = CVSettings(plan="kfold", folds=outer_folds, grouped=request.cv.grouped,
+                       stratified=True, seed=seed + 1)  # other folds than the inner CV's
+    strat = data.y if data.task == "classification" else None
+    folds = fold_plan(outer, data.n, y=strat, groups=data.groups)
+    costs = (class_costs(request.tree, data.y, len(data.classes))
+             if data.task == "classification" else None)
+    check_cancel()
+    total = len(folds)
+    if jobs == 1:
+        results = (_outer_fold(data, request, costs, f.train, f.test, cancel) for f in folds)
+    else:
+        results = Parallel(n_jobs=jobs, return_as="generator")(
+            delayed(_outer_fold)(data, request, costs, f.train, f.test, None) for f in folds)
+    predicted = np.zeros(data.n, dtype=float if data.task == "regression" else np.int64)
+    probabilities = (np.zeros((data.n, len(data.classes)))
+                     if data.task == "classification" else None)
+    losses = np.zeros(data.n)
+    fold_results = []
+    for number, (test, label, probs, loss, leaves, inner_risk, n_train) in enumerate(results, 1):
+        check_cancel()
+        predicted[test] = label
+        if probabilities is not None:
+            probabilities[test] = probs
+        losses[test] = loss
+        fold_results.append(NestedFold(number, n_train, len(test), leaves, inner_risk,
+                                       float(loss.mean())))
+        if progress:
+            progress(number, total)
+    if data.task == "classification":
+        measures = classification_measures(data.y, predicted, probabilities, data.classes,
+                                           loss=costs.loss, case_weight=costs.case_weight)
+        risk_measure = "expected misclassification cost per patient"
+    else:
+        measures = regression_measures(data.y, predicted, label=data.outcome.display,
+                                       unit=data.outcome.unit)
+        risk_measure = "mean squared error"
+    grouped = outer.grouped and data.groups is not None
+    description = f"{outer.describe(grouped)} outside; {request.cv.describe(grouped)} inside"
+    return NestedResult(description=description, size_rule=_size_rule(request.size),
+                        risk_measure=risk_measure, risk=float(losses.mean()),
+                        risk_se=float(losses.std() / math.sqrt(data.n)), n=data.n,
+                        folds=tuple(fold_results), measures=measures)

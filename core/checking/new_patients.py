@@ -1,0 +1,414 @@
+"""Checking a chosen tree on patients it never saw.
+
+Two sources of separate patients: the part of the derivation file set aside before growing
+(core/sizing/derivation.py makes it when ``DerivationRequest.holdout`` is set), or an external spreadsheet
+from another campus or period. An external file's columns are matched to the model by name,
+with an account of what is missing or extra; its outcome is read with the model's own outcome
+definition; levels the tree never saw at derivation are routed as not recorded and counted.
+
+The result is a plain dataclass with every measure (core/checking/metrics.py); ``to_validation_dict``
+gives the short record that the model file, the chart and the app share
+(``model.extra["validation"]``).
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from dataclasses import asdict, dataclass, replace
+from pathlib import Path
+from typing import TYPE_CHECKING
+
+import numpy as np
+import pandas as pd
+
+from ..data.cells import is_missing_text
+from ..data.table import LoadedTable
+from ..dictionary.columns import ColumnSpec, typed_column
+from ..errors import InputError
+from ..model.tree import TreeModel, column_values
+from .metrics import (
+    ClassificationMeasures, DerivationBox, Measures, RegressionMeasures, classification_measures,
+    regression_measures,
+)
+
+if TYPE_CHECKING:  # derive.py calls into this module, so no import at run time
+    from ..sizing.derivation import Derivation
+
+
+@dataclass(frozen=True)
+class ColumnReport:
+    """How an external file's columns were matched to the model's."""
+
+    matched: tuple[str, ...]  # model columns found under the same name
+    renamed: tuple[tuple[str, str], ...]  # (file column, model column): same name but for case/spaces
+    missing_offered: tuple[str, ...]  # offered to the grower but not asked by the tree: harmless
+    extra: tuple[str, ...]  # file columns the model does not use
+
+    def lines(self) -> list[str]:
+        """The account in words, one sentence per point."""
+        lines = [f"{len(self.matched) + len(self.renamed)} of the model's columns were found."]
+        for found, wanted in self.renamed:
+            lines.append(f"Column {found!r} was taken as {wanted!r} (the names differ only in "
+                         "capitals or spaces).")
+        if self.missing_offered:
+            lines.append("Not in the file, but not asked by the tree (no effect): "
+                         + ", ".join(self.missing_offered) + ".")
+        if self.extra:
+            shown = ", ".join(self.extra[:12]) + (" ..." if len(self.extra) > 12 else "")
+            lines.append(f"{len(self.extra)} column(s) of the file are not used by the model: "
+                         f"{shown}.")
+        return lines
+
+
+@dataclass(frozen=True)
+class ValidationResult:
+    """A chosen tree checked on separate patients."""
+
+    source: str  # where the patients came from, in words
+    kind: str  # "held-out" or "external"
+    n: int  # visits with a recorded outcome that were checked
+    n_rows: int  # rows offered (in the file, or set aside)
+    n_excluded: int  # rows left out because the outcome was not recorded or not a known class
+    patients: int | None  # distinct patients among the checked visits, when an identifier is known
+    measures: Measures
+    columns: ColumnReport | None  # external files only
+    unseen_levels: tuple[tuple[str, int], ...]  # (column, cells routed as not recorded)
+    warnings: tuple[str, ...]
+    model_fingerprint: str
+    data_sha256: str | None = None
+
+    @property
+    def summary(self) -> str:
+        """One printable line, e.g. 'Sensitivity 84% (79–88%), specificity 71% (68–74%), ...'."""
+        return self.measures.summary()
+
+    @property
+    def calibration_outside(self) -> tuple[int, ...]:
+        """Boxes whose derivation rate or mean lies outside the new patients' 95% interval."""
+        return tuple(sorted({r.box for r in self.measures.calibration if r.agrees is False}))
+
+    def to_validation_dict(self) -> dict:
+        """The shared record for ``model.extra["validation"]`` (JSON-safe)."""
+        m = self.measures
+        record = {"source": self.source, "n": self.n, "summary": self.summary, "kind": self.kind,
+                  "patients": self.patients, "model_fingerprint": self.model_fingerprint,
+                  "calibration_outside": list(self.calibration_outside)}
+        if self.data_sha256:
+            record["data_sha256"] = self.data_sha256
+        # Plain numbers under the keys the first held-out check used (accuracy, risk,
+        # mean_squared_error); [value, low, high] triples for the measures with intervals.
+        if isinstance(m, RegressionMeasures):
+            record.update(mean_squared_error=m.rmse ** 2, rmse=m.rmse, mae=m.mae, r2=m.r2,
+                          mean_error=m.mean_error)
+        else:
+            record.update(accuracy=m.accuracy.value, accuracy_interval=[m.accuracy.low,
+                                                                        m.accuracy.high],
+                          risk=m.cost, risk_se=m.cost_se, brier=m.brier)
+            if m.headline is not None:
+                head = m.headline
+                record.update(sensitivity=_triple(head.sensitivity),
+                              specificity=_triple(head.specificity), ppv=_triple(head.ppv),
+                              npv=_triple(head.npv))
+                if head.roc is not None:
+                    record["auc"] = [head.roc.auc, head.roc.low, head.roc.high]
+                    record["auc_method"] = head.roc.method
+            elif m.auc_macro is not None:
+                record["auc_macro"] = m.auc_macro
+        if self.warnings:
+            record["warnings"] = list(self.warnings)
+        return _json_safe(record)
+
+    def to_dict(self) -> dict:
+        """Everything, JSON-safe (for ``prunella check --out``)."""
+        data = asdict(self)
+        data["summary"] = self.summary
+        data["calibration_outside"] = list(self.calibration_outside)
+        return _json_safe(data)
+
+    def text(self) -> str:
+        """A printable account: source, columns, warnings, measures, calibration by box."""
+        m = self.measures
+        patients = f" ({self.patients} patients)" if self.patients else ""
+        lines = [f"Checked on: {self.source}", f"Visits checked: {self.n}{patients}"]
+        if self.n_excluded:
+            lines.append(f"Left out: {self.n_excluded} of {self.n_rows} rows (outcome not "
+                         "recorded or not a class the tree knows).")
+        if self.columns is not None:
+            lines += self.columns.lines()
+        lines += [f"Warning: {w}" for w in self.warnings]
+        lines += ["", f"{'measure':<40} value (95% interval)"]
+        lines += [f"{name:<40} {value}" for name, value in m.rows()]
+        if isinstance(m, ClassificationMeasures):
+            lines += ["", "Confusion matrix (rows: observed, columns: tree's prediction)"]
+            width = max(len(c) for c in m.classes) + 2
+            lines.append(" " * width + "".join(f"{c:>{width}}" for c in m.classes))
+            for label, row in zip(m.classes, m.confusion):
+                lines.append(f"{label:<{width}}" + "".join(f"{v:>{width}}" for v in row))
+        if m.calibration:
+            percent = isinstance(m, ClassificationMeasures)
+            what = "rate" if percent else "mean"
+            lines += ["", f"Calibration by outcome box (derivation {what} against the observed "
+                      f"{what} with its 95% interval)"]
+            for r in m.calibration:
+                derived = f"{r.derivation_value:.0%}" if percent else f"{r.derivation_value:.3g}"
+                flag = {True: "", False: "  <- outside", None: ""}[r.agrees]
+                lines.append(f"  box {r.box:>3} {r.label:<14} derivation {derived:>6} of "
+                             f"{r.derivation_n:<5} new {r.observed_text(percent)} of {r.n}{flag}")
+        return "\n".join(lines)
+
+
+def _triple(p) -> list:
+    return [p.value, p.low, p.high]
+
+
+def _json_safe(value):
+    if isinstance(value, float):
+        return value if math.isfinite(value) else None
+    if isinstance(value, dict):
+        return {k: _json_safe(v) for k, v in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [_json_safe(v) for v in value]
+    if isinstance(value, np.generic):
+        return _json_safe(value.item())
+    return value
+
+
+# --- measuring a model ------------------------------------------------------------------------
+
+
+def boxes_of(model: TreeModel) -> tuple[DerivationBox, ...]:
+    """Each outcome box as it stood at derivation."""
+    return tuple(DerivationBox(leaf.id, leaf.n, tuple(leaf.counts), leaf.mean, leaf.sd)
+                 for leaf in model.leaves)
+
+
+def case_weights(model: TreeModel) -> tuple[np.ndarray | None, np.ndarray | None]:
+    """Loss matrix and per-class case weight (prior × N / N_j of the derivation patients),
+    the weighting core/sizing/cross_validated_path.py uses, so a checked cost compares with the CV risk."""
+    costs = model.extra.get("costs")
+    if not costs or model.task != "classification":
+        return None, None
+    counts = np.asarray(model.root.counts, dtype=float)
+    priors = np.asarray(costs["priors"], dtype=float)
+    weight = np.where(counts > 0, priors * counts.sum() / np.maximum(counts, 1), 0.0)
+    return np.asarray(costs["loss"], dtype=float), weight
+
+
+def measure_model(model: TreeModel, y: np.ndarray, leaves: np.ndarray) -> Measures:
+    """Measures of ``model`` for outcomes ``y`` (class index or value) and reached boxes."""
+    leaves = np.asarray(leaves)
+    boxes = boxes_of(model)
+    if model.task == "regression":
+        return regression_measures(y, model.predictions(leaves), leaves, boxes,
+                                   label=model.outcome.display, unit=model.outcome.unit)
+    k = len(model.classes)
+    share = np.zeros((len(model.nodes) + 1, k))
+    label = np.zeros(len(model.nodes) + 1, dtype=np.int64)
+    for leaf in model.leaves:
+        share[leaf.id] = np.asarray(leaf.counts, dtype=float) / max(leaf.n, 1)
+        label[leaf.id] = model.classes.index(leaf.prediction)
+    loss, weight = case_weights(model)
+    return classification_measures(y, label[leaves], share[leaves], model.classes, loss=loss,
+                                   case_weight=weight, leaves=leaves, boxes=boxes)
+
+
+def _seen_levels(model: TreeModel) -> dict[str, set[str]]:
+    seen: dict[str, set[str]] = {}
+    for node in model.nodes:
+        q = node.question
+        if q is not None and q.kind == "in":
+            seen.setdefault(q.column, set()).update(q.yes_levels + q.no_levels)
+    return seen
+
+
+def _route(model: TreeModel, values: dict[str, np.ndarray], n: int,
+           unknown: dict[str, int]) -> tuple[np.ndarray, tuple[tuple[str, int], ...]]:
+    """Boxes reached, and per column how many cells hold a level the tree never saw."""
+    counts = dict(unknown)
+    for column, levels in _seen_levels(model).items():
+        cells = values[column]
+        present = ~pd.isna(cells)
+        never = present & ~np.isin(cells.astype(object), list(levels))
+        counts[column] = counts.get(column, 0) + int(never.sum())
+    return model.route(values, n), tuple((c, k) for c, k in sorted(counts.items()) if k)
+
+
+def _unseen_warning(unseen: tuple[tuple[str, int], ...], model: TreeModel) -> list[str]:
+    if not unseen:
+        return []
+    parts = ", ".join(f"{model.spec(c).display} {k}" for c, k in unseen)
+    total = sum(k for _, k in unseen)
+    return [f"{total} cell(s) hold a level the tree never saw at derivation and were routed as "
+            f"not recorded ({parts})."]
+
+
+# --- the held-out part ------------------------------------------------------------------------
+
+
+def check_heldout(derivation: "Derivation") -> ValidationResult:
+    """Check the derivation's chosen tree on the rows set aside before growing."""
+    model, heldout = derivation.model, derivation.heldout
+    if heldout is None:
+        raise InputError("No patients were set aside before growing; set a held-out share "
+                         "(for example 0.25) and run the derivation again.")
+    asked = set(model.columns_asked())
+    values = {t.spec.name: column_values(t.numbers, t.codes, t.spec) for t in heldout.predictors
+              if t.spec.name in asked}
+    leaves, unseen = _route(model, values, heldout.n, {})
+    share = derivation.request.holdout
+    source = (f"held-out part of {model.extra.get('data', {}).get('file', 'the derivation file')} "
+              f"({share:.0%} of patients set aside before growing)")
+    patients = int(np.unique(heldout.groups).size) if heldout.groups is not None else None
+    return ValidationResult(
+        source=source, kind="held-out", n=heldout.n, n_rows=heldout.n, n_excluded=0,
+        patients=patients, measures=measure_model(model, heldout.y, leaves), columns=None,
+        unseen_levels=unseen, warnings=tuple(_unseen_warning(unseen, model)),
+        model_fingerprint=_fingerprint_without_validation(model), data_sha256=derivation.table.provenance.sha256)
+
+
+# --- an external file -------------------------------------------------------------------------
+
+
+def _key(name: str) -> str:
+    return re.sub(r"\s+", "", str(name)).casefold()
+
+
+def match_columns(model: TreeModel, columns) -> tuple[ColumnReport, dict[str, str]]:
+    """Match a file's columns to the model's by name (then ignoring case and spaces).
+
+    Returns the account and the mapping file column → model column. Raises InputError naming
+    every column the tree asks about that the file lacks.
+    """
+    columns = [str(c) for c in columns]
+    settings = model.extra.get("settings", {}).get("design", {})
+    wanted = [model.outcome.name] + [p.name for p in model.predictors]
+    wanted += [c for c in (settings.get("patient_id"), settings.get("site")) if c]
+    exact = set(columns)
+    by_key: dict[str, list[str]] = {}
+    for c in columns:
+        by_key.setdefault(_key(c), []).append(c)
+    mapping, matched, renamed, absent = {}, [], [], []
+    for name in dict.fromkeys(wanted):
+        if name in exact:
+            mapping[name] = name
+            matched.append(name)
+        elif len(by_key.get(_key(name), [])) == 1:
+            found = by_key[_key(name)][0]
+            mapping[found] = name
+            renamed.append((found, name))
+        else:
+            absent.append(name)
+    asked = set(model.columns_asked())
+    missing_asked = [c for c in absent if c in asked]
+    if model.outcome.name in absent:
+        raise InputError(f"The file has no column {model.outcome.name!r} ({model.outcome.display}), "
+                         "the outcome the tree predicts; add it or rename the outcome column.")
+    if missing_asked:
+        raise InputError("The file lacks column(s) the tree asks about: "
+                         + ", ".join(f"{c!r} ({model.spec(c).display})" for c in missing_asked)
+                         + "; add them, named as in the derivation data.")
+    offered = [c for c in absent if c not in asked and c != model.outcome.name
+               and c in {p.name for p in model.predictors}]
+    extra = tuple(c for c in columns if c not in mapping)
+    return ColumnReport(tuple(matched), tuple(renamed), tuple(offered), extra), mapping
+
+
+def outcome_values(model: TreeModel, cells: pd.Series) -> tuple[np.ndarray, np.ndarray, list[str]]:
+    """The outcome read with the model's own definition: values, rows kept, notes."""
+    spec = model.outcome
+    notes: list[str] = []
+    if model.task == "regression":
+        numeric = spec if spec.kind == "numeric" else ColumnSpec(spec.name, kind="numeric",
+                                                                 label=spec.label)
+        y = typed_column(cells, numeric).numbers
+        keep = ~np.isnan(y)
+    else:
+        if spec.kind not in ("binary", "ordinal", "nominal") or not spec.levels:
+            spec = replace(spec, kind="nominal", levels=tuple(model.classes))
+        typed = typed_column(cells, spec)
+        names = np.array(list(spec.levels) + [None], dtype=object)[typed.codes]
+        index = {c: i for i, c in enumerate(model.classes)}
+        y = np.array([index.get(v, -1) for v in names], dtype=np.int64)
+        present = ~is_missing_text(cells, spec.missing_codes)
+        strange = present & (y < 0)
+        if strange.any():
+            examples = ", ".join(repr(v) for v in pd.unique(cells[strange].astype(str))[:3])
+            notes.append(f"{int(strange.sum())} row(s) have an outcome that is not one of the "
+                         f"tree's classes ({', '.join(model.classes)}), e.g. {examples}; they "
+                         "were left out.")
+        keep = y >= 0
+    return y[keep], keep, notes
+
+
+def check_table(model: TreeModel, table: LoadedTable, source: str | None = None) -> ValidationResult:
+    """Check ``model`` on the rows of an external table (another campus or period)."""
+    frame = table.frame
+    report, mapping = match_columns(model, frame.columns)
+    frame = frame.rename(columns=mapping)[[c for c in mapping.values()]].reset_index(drop=True)
+    y, keep, notes = outcome_values(model, frame[model.outcome.name])
+    n_rows = len(frame)
+    if not keep.any():
+        raise InputError(f"No row of the file has a recorded {model.outcome.display} that the "
+                         "tree can be checked against; check the outcome column.")
+    no_outcome = int((~keep).sum())
+    if no_outcome:
+        notes.insert(0, f"{no_outcome} of {n_rows} row(s) without a usable outcome were left out.")
+    rows = frame.loc[keep].reset_index(drop=True)
+    values, unknown = {}, {}
+    for column in model.columns_asked():
+        spec = model.spec(column)
+        typed = typed_column(rows[column], spec)
+        values[column] = column_values(typed.numbers, typed.codes, spec)
+        if typed.codes is not None:
+            present = ~is_missing_text(rows[column], spec.missing_codes)
+            unknown[column] = int((present & (typed.codes < 0)).sum())
+        else:
+            notes.extend(typed.notes)
+    leaves, unseen = _route(model, values, len(rows), unknown)
+    notes.extend(_unseen_warning(unseen, model))
+    notes = list(table.provenance.warnings) + notes
+    design = model.extra.get("settings", {}).get("design", {})
+    patient = design.get("patient_id")
+    patients = None
+    if patient and patient in rows.columns:
+        patients = int(rows[patient].astype("string").str.strip().dropna().nunique())
+    if source is None:
+        name = Path(table.provenance.path).name
+        sheet = f", sheet {table.provenance.sheet}" if table.provenance.sheet else ""
+        source = f"external file {name}{sheet}"
+    return ValidationResult(
+        source=source, kind="external", n=len(rows), n_rows=n_rows, n_excluded=no_outcome,
+        patients=patients, measures=measure_model(model, y, leaves), columns=report,
+        unseen_levels=unseen, warnings=tuple(notes), model_fingerprint=_fingerprint_without_validation(model),
+        data_sha256=table.provenance.sha256)
+
+
+def with_validation(model: TreeModel, result: ValidationResult) -> TreeModel:
+    """The same model with ``extra["validation"]`` recording this check (the chart prints it
+    instead of the 'not yet checked' banner)."""
+    if result.model_fingerprint != _fingerprint_without_validation(model):
+        raise InputError("This check was made on another tree than the one given; check the "
+                         "tree again before recording the result.")
+    extra = dict(model.extra)
+    extra["validation"] = result.to_validation_dict()
+    return replace(model, extra=extra)
+
+
+def _fingerprint_without_validation(model: TreeModel) -> str:
+    if "validation" not in model.extra:
+        return model.fingerprint
+    extra = {k: v for k, v in model.extra.items() if k != "validation"}
+    return replace(model, extra=extra).fingerprint
+
+
+def training_measures(derivation: "Derivation") -> Measures:
+    """The chosen tree measured on the very patients it was grown on (resubstitution).
+
+    Optimistic by construction: show it only beside the cross-validated and checked measures.
+    """
+    model, data = derivation.model, derivation.data
+    asked = set(model.columns_asked())
+    values = {t.spec.name: column_values(t.numbers, t.codes, t.spec) for t in data.predictors
+              if t.spec.name in asked}
+    return measure_model(model, data.y, model.route(values, data.n))

@@ -1,0 +1,185 @@
+"""Reading a text table (CSV, TSV, semicolon- or bar-separated) with pandas' C parser.
+
+The layout — encoding, delimiter, decimal mark, where the header is — is worked out from the
+first 256 KB with the standard ``csv`` module, then pandas reads the whole file in one pass
+with numeric inference (no per-cell Python). The whole file is checked to be UTF-8 before it
+is read as such; otherwise Windows-1252 or Latin-1 is used, and the warning says on which line
+the first other character is.
+"""
+
+from __future__ import annotations
+
+import codecs
+import csv
+import io
+import re
+import warnings as warnings_module
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from ..errors import InputError
+from ..messages.message import say
+from .table import _binary_share, _first_line, _header_index, _span, _tidy
+
+_DELIMITERS = (",", ";", "\t", "|")
+_DELIMITER_NAMES = {",": "commas", ";": "semicolons", "\t": "tabs", "|": "bars (|)"}
+
+
+def _detect_encoding(head: bytes, path: Path) -> tuple[str, list[str]]:
+    if head.startswith(b"\xef\xbb\xbf"):
+        return "utf-8-sig", []
+    if head.startswith((b"\xff\xfe", b"\xfe\xff")):
+        return "utf-16", [say("read.utf16", file=path.name)]
+    bad = _first_bad_byte(path, "utf-8")
+    if bad is None:
+        return "utf-8", []
+    line = _line_of_offset(path, bad)
+    if _first_bad_byte(path, "cp1252") is None:
+        return "cp1252", [say("read.cp1252", file=path.name, line=line)]
+    return "latin-1", [say("read.latin1", file=path.name, line=line)]
+
+
+def _first_bad_byte(path: Path, encoding: str) -> int | None:
+    """Offset of the first byte that does not decode, or None if the whole file decodes."""
+    decoder = codecs.getincrementaldecoder(encoding)()
+    offset = 0
+    with open(path, "rb") as handle:
+        for block in iter(lambda: handle.read(1 << 22), b""):
+            try:
+                decoder.decode(block)
+            except UnicodeDecodeError as exc:
+                return offset + max(exc.start, 0)
+            offset += len(block)
+    try:
+        decoder.decode(b"", final=True)
+    except UnicodeDecodeError:
+        return offset
+    return None
+
+
+def _line_of_offset(path: Path, offset: int) -> int:
+    with open(path, "rb") as handle:
+        return handle.read(offset).count(b"\n") + 1
+
+
+def _layout(sample: str, truncated: bool, path: Path) -> dict:
+    """Delimiter, header position and decimal mark of a text table, from its first records."""
+    best = None
+    for delimiter in _DELIMITERS:
+        try:
+            records = list(csv.reader(io.StringIO(sample, newline=""), delimiter=delimiter))
+        except csv.Error:
+            continue
+        if truncated and len(records) > 1:
+            records = records[:-1]  # the sample may end inside the last record
+        filled = [r for r in records if any(c.strip() for c in r)]
+        if not filled:
+            raise InputError(say("read.zero_bytes", file=path.name))
+        widths = pd.Series([len(r) for r in filled[:200]])
+        width = int(widths.mode().max())
+        share = float((widths == width).mean())
+        score = (share if width > 1 else 0.0, width)
+        if best is None or score > best[0]:
+            best = (score, delimiter, records, width)
+    if best is None:
+        raise InputError(say("read.unparseable", file=path.name, detail="no delimiter fits"))
+    _, delimiter, records, width = best
+    header_index = _header_index(records, width, path)
+    header = records[header_index]
+    data = [r for r in records[header_index + 1:] if any(c.strip() for c in r)][:200]
+    decimal = "."
+    if delimiter != ",":
+        cells = [c.strip() for r in data for c in r]
+        commas = sum(1 for c in cells if re.fullmatch(r"[+-]?\d+,\d+", c))
+        points = sum(1 for c in cells if re.fullmatch(r"[+-]?\d+\.\d+", c))
+        if commas and commas >= points:
+            decimal = ","
+    return {"delimiter": delimiter, "header_index": header_index, "header": header,
+            "records": records[header_index + 1:header_index + 201],
+            "decimal": decimal, "header_row": header_index + 1,
+            "titles": [r for r in records[:header_index] if any(c.strip() for c in r)]}
+
+
+def read_text(path: Path, head: bytes):
+    """A text table's frame, spreadsheet row numbers, layout and warnings."""
+    if head.strip(b" \t\r\n\x00\xef\xbb\xbf") == b"":
+        raise InputError(say("read.blank", file=path.name))
+    if not head.startswith((b"\xff\xfe", b"\xfe\xff")) and (b"\x00" in head[:8192]):
+        raise InputError(say("read.binary", file=path.name))
+    if _binary_share(head) > 0.01:
+        raise InputError(say("read.binary", file=path.name))
+    lowered = head[:512].lstrip().lower()
+    if lowered.startswith((b"<!doctype html", b"<html", b"<table", b"<?xml")):
+        raise InputError(say("read.html", file=path.name))
+    encoding, warnings = _detect_encoding(head, path)
+    sample = head.decode("utf-16" if encoding == "utf-16" else encoding, errors="ignore")
+    sample = sample.lstrip("\ufeff")
+    truncated = path.stat().st_size > len(head)
+    layout = _layout(sample, truncated, path)
+    layout["encoding"] = encoding
+    if path.suffix.lower() == ".xls":
+        warnings.append(say("read.xls_text", file=path.name))
+    if layout["titles"]:
+        warnings.append(say("read.title_rows", where=path.name,
+                            lines=_span(1, layout["header_index"]),
+                            title=" ".join(c.strip() for c in layout["titles"][0] if c.strip())[:60],
+                            header_row=layout["header_row"]))
+    delimiter, decimal = layout["delimiter"], layout["decimal"]
+    if delimiter != "," or decimal != ".":
+        warnings.append(say("read.layout", file=path.name,
+                            delimiter=_DELIMITER_NAMES[delimiter],
+                            decimal="a comma" if decimal == "," else "a point"))
+    options = dict(sep=delimiter, decimal=decimal, encoding=encoding, index_col=False,
+                   keep_default_na=False, na_values=[""], skip_blank_lines=False, engine="c",
+                   low_memory=False, encoding_errors="replace")
+    try:
+        with warnings_module.catch_warnings(record=True) as caught:
+            warnings_module.simplefilter("always", pd.errors.ParserWarning)
+            frame = pd.read_csv(path, header=layout["header_index"], **options)
+        if any(issubclass(w.category, pd.errors.ParserWarning) for w in caught):
+            # Data rows wider than the header: pandas would drop the extra cells silently.
+            frame = _wider_than_header(path, layout, options, delimiter)
+    except pd.errors.EmptyDataError:
+        raise InputError(say("read.blank", file=path.name)) from None
+    except pd.errors.ParserError as exc:
+        raise InputError(_parser_message(path, exc, delimiter)) from None
+    except MemoryError:
+        raise InputError(say("read.too_big", file=path.name)) from None
+    except (UnicodeDecodeError, ValueError, OverflowError) as exc:
+        raise InputError(say("read.unparseable", file=path.name, detail=_first_line(exc))) from None
+    header = list(layout["header"])
+    if len(header) != frame.shape[1]:
+        header = ["" if str(c).startswith("Unnamed:") else str(c) for c in frame.columns]
+    rows = np.arange(len(frame)) + layout["header_row"] + 1
+    frame, rows, tidy = _tidy(frame, header, rows, path.name)
+    return frame, rows, layout, warnings + tidy
+
+
+def _wider_than_header(path: Path, layout: dict, options: dict, delimiter: str) -> pd.DataFrame:
+    """Read again with room for every cell; extra cells must be empty (trailing delimiters)."""
+    width = len(layout["header"])
+    widest = max([len(r) for r in layout["records"]] + [width])
+    frame = pd.read_csv(path, header=None, skiprows=layout["header_index"] + 1,
+                        names=list(range(widest)), **options)
+    extra = frame.iloc[:, width:].notna().any(axis=1).to_numpy()
+    if extra.any():
+        first = int(np.flatnonzero(extra)[0])
+        saw = int(frame.iloc[first].notna().to_numpy().nonzero()[0].max()) + 1
+        raise InputError(say("read.ragged", file=path.name, line=layout["header_row"] + 1 + first,
+                             saw=saw, expected=width, delimiter=_DELIMITER_NAMES[delimiter]))
+    return frame.iloc[:, :width]
+
+
+def _parser_message(path: Path, exc: Exception, delimiter: str) -> str:
+    text = str(exc)
+    match = re.search(r"Expected (\d+) fields in line (\d+), saw (\d+)", text)
+    if match:
+        expected, line, saw = match.groups()
+        return say("read.ragged", file=path.name, line=line, saw=saw, expected=expected,
+                   delimiter=_DELIMITER_NAMES[delimiter])
+    match = re.search(r"EOF inside string starting at row (\d+)", text)
+    if match:
+        return say("read.open_quote", file=path.name, line=int(match.group(1)) + 1)
+    return say("read.unparseable", file=path.name, detail=_first_line(exc))

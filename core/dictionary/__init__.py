@@ -1,0 +1,9 @@
+"""The data dictionary: what each column is, inferred from the cells or saved beside the data."""
+
+from ..package_face import lazy_face
+
+__getattr__, __dir__, __all__ = lazy_face(__name__, {
+    "columns": ("CATEGORY_KINDS", "KINDS", "PREDICTOR_KINDS", "ROLES", "ColumnSpec",
+        "DataDictionary", "dictionary_beside", "dictionary_for", "infer_dictionary",
+        "merge_dictionary", "positive_level", "typed_column"),
+})

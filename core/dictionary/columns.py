@@ -1,0 +1,318 @@
+"""The data dictionary: what each column is, in the user's words.
+
+For every column: its role (outcome, predictor, patient identifier, site, ignore), its kind
+(numeric, binary, ordinal with a level order, nominal, identifier, date, free text), a display
+label, a unit, extra missing-value codes and, for categories, the levels. Sensible defaults are
+inferred from the data; the user overrides any of them, and the dictionary is saved beside the
+data as JSON or CSV.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+from collections.abc import Iterable, Sequence
+from dataclasses import asdict, dataclass, field, replace
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from ..data.cells import (
+    YES_WORDS, counted, is_missing_text, level_text, parse_levels, parse_numbers,
+)
+from ..errors import InputError
+from ..messages.message import say
+
+ROLES = ("outcome", "predictor", "patient_id", "site", "ignore")
+KINDS = ("numeric", "binary", "ordinal", "nominal", "identifier", "date", "text")
+CATEGORY_KINDS = ("binary", "ordinal", "nominal")
+PREDICTOR_KINDS = ("numeric",) + CATEGORY_KINDS
+DICTIONARY_FORMAT = "prunella-dictionary/1"
+DICTIONARY_VERSIONS = (1,)  # versions this Prunella reads
+MAX_NOMINAL_LEVELS = 40
+
+
+
+def _text_list(value, key: str, name: str) -> tuple[str, ...]:
+    if value is None:
+        return ()
+    if isinstance(value, str):
+        return tuple(v for v in value.split("|") if v != "")
+    if not isinstance(value, (list, tuple)) or \
+            not all(isinstance(v, (str, int, float)) and not isinstance(v, bool) for v in value):
+        raise InputError(say("dictionary.bad_field", column=name, key=key,
+                             expected="a list of texts"))
+    return tuple(str(v) for v in value)
+
+
+@dataclass(frozen=True)
+class ColumnSpec:
+    """One column of the data dictionary."""
+
+    name: str
+    role: str = "predictor"
+    kind: str = "numeric"
+    label: str = ""
+    unit: str = ""
+    missing_codes: tuple[str, ...] = ()
+    levels: tuple[str, ...] = ()
+    positive: str | None = None
+    note: str = ""
+
+    def __post_init__(self) -> None:
+        if self.role not in ROLES:
+            raise InputError(f"Column {self.name!r}: role {self.role!r} is not one of "
+                             + ", ".join(ROLES) + ".")
+        if self.kind not in KINDS:
+            raise InputError(f"Column {self.name!r}: kind {self.kind!r} is not one of "
+                             + ", ".join(KINDS) + ".")
+        if len(set(self.levels)) != len(self.levels):
+            twice = sorted({lv for lv in self.levels if self.levels.count(lv) > 1})
+            raise InputError(say("dictionary.repeated_levels", column=self.name,
+                                 levels=", ".join(repr(lv) for lv in twice)))
+
+    @property
+    def display(self) -> str:
+        return self.label or self.name
+
+    def to_dict(self) -> dict:
+        data = asdict(self)
+        data["missing_codes"] = list(self.missing_codes)
+        data["levels"] = list(self.levels)
+        return data
+
+    @classmethod
+    def from_dict(cls, data: dict) -> "ColumnSpec":
+        """An entry from saved data; wrong types are refused naming the column and field."""
+        if not isinstance(data, dict):
+            raise InputError(say("dictionary.entry_not_object", found=type(data).__name__))
+        if not isinstance(data.get("name"), str) or not data["name"]:
+            raise InputError("A column in the data dictionary has no 'name'; add one.")
+        name = data["name"]
+        known = {f for f in cls.__dataclass_fields__}
+        clean = {k: v for k, v in data.items() if k in known}
+        for key in ("missing_codes", "levels"):
+            if key in clean:
+                clean[key] = _text_list(clean[key], key, name)
+        for key in ("role", "kind", "label", "unit", "note", "positive"):
+            value = clean.get(key)
+            if value is not None and not isinstance(value, str):
+                raise InputError(say("dictionary.bad_field", column=name, key=key,
+                                     expected="a text"))
+        for key in ("label", "unit", "note"):
+            if clean.get(key) is None:
+                clean[key] = ""
+        for key in ("role", "kind"):
+            if clean.get(key) in ("", None):
+                clean.pop(key, None)
+        if clean.get("positive") in ("", None):
+            clean["positive"] = None
+        return cls(**clean)
+
+
+@dataclass(frozen=True)
+class DataDictionary:
+    """The whole dictionary, in column order."""
+
+    columns: tuple[ColumnSpec, ...]
+
+    def __post_init__(self) -> None:
+        names = [c.name for c in self.columns]
+        if len(set(names)) != len(names):
+            dup = sorted({n for n in names if names.count(n) > 1})
+            raise InputError("The data dictionary lists " + ", ".join(map(repr, dup))
+                             + " more than once; keep one entry per column.")
+
+    @property
+    def names(self) -> tuple[str, ...]:
+        return tuple(c.name for c in self.columns)
+
+    def __contains__(self, name: str) -> bool:
+        return name in self.names
+
+    def get(self, name: str) -> ColumnSpec:
+        for spec in self.columns:
+            if spec.name == name:
+                return spec
+        raise InputError(f"There is no column called {name!r}; the columns are: "
+                         + ", ".join(repr(n) for n in self.names[:30])
+                         + (" ..." if len(self.names) > 30 else "") + ".")
+
+    def with_column(self, name: str, **changes) -> "DataDictionary":
+        """A copy with one column's entry changed."""
+        self.get(name)
+        return DataDictionary(tuple(replace(c, **changes) if c.name == name else c
+                                    for c in self.columns))
+
+    def by_role(self, role: str) -> tuple[ColumnSpec, ...]:
+        return tuple(c for c in self.columns if c.role == role)
+
+    def to_dict(self) -> dict:
+        return {"format": DICTIONARY_FORMAT, "columns": [c.to_dict() for c in self.columns]}
+
+    @classmethod
+    def from_dict(cls, data: dict, name: str = "The data dictionary") -> "DataDictionary":
+        """A dictionary from parsed JSON; refuses other files, other versions, wrong types."""
+        from ..safe_files import check_format
+
+        check_format(data, "dictionary", DICTIONARY_VERSIONS, name)
+        columns = data.get("columns", [])
+        if not isinstance(columns, list):
+            raise InputError(say("dictionary.columns_not_list", file=name))
+        return cls(tuple(ColumnSpec.from_dict(c) for c in columns))
+
+    def save(self, path: str | Path) -> None:
+        """Save as JSON (``.json``) or CSV (any other suffix), atomically."""
+        from ..safe_files import write_text_atomic
+
+        path = Path(path)
+        if path.suffix.lower() == ".json":
+            write_text_atomic(path, json.dumps(self.to_dict(), indent=2, ensure_ascii=False) + "\n")
+            return
+        rows = [["name", "role", "kind", "label", "unit", "missing_codes", "levels", "positive",
+                 "note"]]
+        for c in self.columns:
+            rows.append([c.name, c.role, c.kind, c.label, c.unit, "|".join(c.missing_codes),
+                         "|".join(c.levels), c.positive or "", c.note])
+        buffer = io.StringIO()
+        csv.writer(buffer, lineterminator="\n").writerows(rows)
+        write_text_atomic(path, buffer.getvalue())
+
+    @classmethod
+    def load(cls, path: str | Path) -> "DataDictionary":
+        """Load a dictionary saved as JSON or CSV."""
+        path = Path(path)
+        if not path.exists():
+            raise InputError(f"No data dictionary at {path}; check the path.")
+        if path.suffix.lower() == ".json":
+            from ..safe_files import read_json_document
+
+            data = read_json_document(path, "dictionary", DICTIONARY_VERSIONS)
+            return cls.from_dict(data, path.name)
+        try:
+            text = path.read_text(encoding="utf-8-sig")
+            rows = list(csv.DictReader(io.StringIO(text, newline="")))
+        except (UnicodeDecodeError, OSError, csv.Error):
+            raise InputError(say("dictionary.csv_unreadable", file=path.name)) from None
+        if not rows or "name" not in rows[0]:
+            raise InputError(f"{path.name} has no 'name' column; a dictionary CSV needs the "
+                             "columns name, role, kind, label, unit, missing_codes, levels.")
+        return cls(tuple(ColumnSpec.from_dict(r) for r in rows))
+
+
+def canonical_levels(spellings: Iterable[str]) -> list[str]:
+    """Levels from spellings given commonest first: case variants merged under their
+    commonest spelling, in natural order (numbers by value, then words)."""
+    chosen: dict[str, str] = {}
+    for spelling in spellings:
+        chosen.setdefault(spelling.casefold(), spelling)
+    return sorted(chosen.values(), key=_natural_key)
+
+
+def _natural_key(level: str):
+    try:
+        return (0, float(level), level)
+    except ValueError:
+        return (1, 0.0, level.casefold())
+
+
+def infer_dictionary(frame: pd.DataFrame, row_numbers: Sequence[int] | np.ndarray | None = None,
+                     ) -> tuple[DataDictionary, list[str]]:
+    """Infer a dictionary entry for every column; returns the dictionary and notes.
+
+    ``row_numbers`` (e.g. ``LoadedTable.row_numbers``) lets the notes say which rows.
+    Implemented in core/dictionary/inference.py.
+    """
+    from .inference import infer_dictionary as infer
+
+    return infer(frame, row_numbers)
+
+
+def merge_dictionary(inferred: DataDictionary, given: DataDictionary) -> tuple[DataDictionary, list[str]]:
+    """Entries from a saved dictionary override the inferred ones, column by column."""
+    notes = []
+    given_names = set(given.names)
+    merged = tuple(given.get(c.name) if c.name in given_names else c for c in inferred.columns)
+    absent = [n for n in given.names if n not in inferred]
+    if absent:
+        notes.append(say("dictionary.absent_columns",
+                         columns=", ".join(map(repr, absent[:20]))
+                         + (" …" if len(absent) > 20 else "")))
+    return DataDictionary(merged), notes
+
+
+# --- typed values ---------------------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class TypedColumn:
+    """One column's values ready for analysis."""
+
+    spec: ColumnSpec
+    numbers: np.ndarray | None = field(default=None, repr=False)  # numeric kind
+    codes: np.ndarray | None = field(default=None, repr=False)  # category kinds, -1 = missing
+    notes: tuple[str, ...] = ()
+
+    @property
+    def missing(self) -> np.ndarray:
+        if self.numbers is not None:
+            return np.isnan(self.numbers)
+        return self.codes < 0
+
+
+def typed_column(values: pd.Series, spec: ColumnSpec) -> TypedColumn:
+    """Parse one column according to its dictionary entry."""
+    # Notes name the column by its header, as the user finds it in the spreadsheet.
+    if spec.kind == "numeric":
+        parsed = parse_numbers(values, spec.missing_codes, spec.name)
+        return TypedColumn(spec, numbers=parsed.values, notes=parsed.notes)
+    if spec.kind in CATEGORY_KINDS:
+        levels = spec.levels
+        if not levels:
+            present = level_text(values[~is_missing_text(values, spec.missing_codes)])
+            levels = tuple(canonical_levels(str(v) for v in counted(present)[0]))
+            spec = replace(spec, levels=levels)
+        cat, notes = parse_levels(values, levels, spec.missing_codes, spec.name)
+        return TypedColumn(spec, codes=np.asarray(cat.codes, dtype=np.int32), notes=notes)
+    raise InputError(f"Column {spec.display!r} is of kind {spec.kind!r}, which cannot be used "
+                     "in a tree; set its kind to numeric, binary, ordinal or nominal.")
+
+
+def positive_level(spec: ColumnSpec) -> str:
+    """The positive class of a binary outcome: as set, else 'yes'/'1'/the second level."""
+    if spec.positive:
+        if spec.positive not in spec.levels:
+            raise InputError(f"The positive class {spec.positive!r} is not a level of "
+                             f"{spec.display!r} (levels: {', '.join(spec.levels)}).")
+        return spec.positive
+    for level in spec.levels:
+        if level.casefold() in YES_WORDS:
+            return level
+    return spec.levels[-1]
+
+
+def dictionary_beside(path: str | Path) -> Path | None:
+    """A dictionary saved next to the data as NAME.dictionary.json (or .csv), if there is one."""
+    path = Path(path)
+    for suffix in (".dictionary.json", ".dictionary.csv"):
+        candidate = path.with_name(path.stem + suffix)
+        if candidate.is_file():
+            return candidate
+    return None
+
+
+def dictionary_for(table, dictionary_path: str | Path | DataDictionary | None = None,
+                   ) -> tuple[DataDictionary, list[str]]:
+    """The dictionary of a loaded table: inferred from its cells (notes naming rows), overridden
+    column by column by a saved dictionary (a file, or one already in hand such as a
+    project's) if one is given; with the notes of both steps."""
+    inferred, notes = infer_dictionary(table.frame, table.row_numbers)
+    if isinstance(dictionary_path, DataDictionary):
+        merged, more = merge_dictionary(inferred, dictionary_path)
+        return merged, notes + more
+    if dictionary_path:
+        merged, more = merge_dictionary(inferred, DataDictionary.load(dictionary_path))
+        return merged, [say("dictionary.used", file=Path(dictionary_path).name)] + notes + more
+    return inferred, notes

@@ -1,0 +1,225 @@
+"""Sensible data-dictionary defaults inferred from the cells (see core/dictionary/columns.py).
+
+Each column gets a kind and a role, and a note for every decision a user should know about
+(and the rows concerned, when the caller passes the spreadsheet row numbers). Columns that
+identify patients (core/dictionary/identity.py) are left out of the predictors. Numeric columns are judged
+on their numbers and text columns on their distinct texts, so a million rows cost little more
+than a thousand.
+"""
+
+from __future__ import annotations
+
+import re
+from collections.abc import Sequence
+from dataclasses import replace
+
+import numpy as np
+import pandas as pd
+
+from ..data.cells import (
+    missing_texts, parse_dates, parse_numbers, profile_cells, rows_phrase, yes_no_levels,
+)
+from ..messages.message import catalogue, say
+from .columns import MAX_NOMINAL_LEVELS, ColumnSpec, DataDictionary, canonical_levels
+from .identity import identity_hint, looks_like_record_numbers
+
+_ORDINAL_HINT = re.compile(r"(level|grade|score|stage|class|category|triage|scale|rank)", re.I)
+_SITE_HINT = re.compile(r"(site|campus|hospital|centre|center|clinic|facility)", re.I)
+_PATIENT_HINT = re.compile(r"(patient|person|subject|mrn|nhs|medical.?record|client)", re.I)
+_ID_HINT = re.compile(r"(^id$|_id$|^id_|\bid\b|number|record|^no$|code$)", re.I)
+_UNIT_IN_HEADER = re.compile(r"^(?P<label>.*?)\s*[\(\[](?P<unit>[^\)\]]{1,20})[\)\]]\s*$")
+_SENTINELS = (-9, -99, -999, -9999)
+_FEW_WORDS = 5  # a numeric column may hold up to this many different words (read as missing)
+
+
+def _label_and_unit(name: str) -> tuple[str, str]:
+    match = _UNIT_IN_HEADER.match(name)
+    if match and match.group("label"):
+        label, unit = match.group("label"), match.group("unit").strip()
+    else:
+        label, unit = name, ""
+    label = re.sub(r"[_\.]+", " ", label).strip()
+    if label and label == label.lower():
+        label = label[0].upper() + label[1:]
+    return label or name, unit
+
+
+def infer_column(name: str, values: pd.Series,
+                 rows: Sequence[int] | np.ndarray | None = None) -> tuple[ColumnSpec, list[str]]:
+    """A sensible dictionary entry for one column, and notes on what was decided and why.
+
+    ``rows`` (optional) are the spreadsheet row numbers of the cells, for the notes.
+    """
+    rows = None if rows is None or len(rows) != len(values) else np.asarray(rows)
+    spec, notes = _infer(name, values, rows)
+    if spec.role == "patient_id" or spec.note in ("no recorded values", "constant"):
+        return spec, notes
+    hint = identity_hint(name, values)
+    if hint is not None:
+        if spec.kind == "identifier":  # the privacy reason says more than "unique per row"
+            notes = [n for n in notes if n != say("infer.identifier", column=name)]
+        notes.append(say("infer.identity", column=name, reason=hint.reason))
+        spec = replace(spec, role="ignore", note=f"identity: {hint.what}")
+    return spec, notes
+
+
+def _infer(name: str, values: pd.Series, rows) -> tuple[ColumnSpec, list[str]]:
+    notes: list[str] = []
+    label, unit = _label_and_unit(name)
+    base = dict(name=name, label=label, unit=unit)
+    if pd.api.types.is_datetime64_any_dtype(values.dtype):
+        if values.notna().any():
+            return ColumnSpec(kind="date", role="ignore", note="date", **base), notes
+        notes.append(say("infer.all_missing", column=name))
+        return ColumnSpec(kind="numeric", role="ignore", note="no recorded values", **base), notes
+    numeric_dtype = pd.api.types.is_numeric_dtype(values.dtype) and \
+        not pd.api.types.is_bool_dtype(values.dtype)
+    profile = None if numeric_dtype else profile_cells(values)
+    numbers = parse_numbers(values, label=name, rows=rows, profile=profile)
+    if numeric_dtype:
+        n_present = int(values.notna().sum())
+    else:
+        missing_u = missing_texts(profile.texts)
+        n_present = int(profile.counts[~missing_u].sum())
+    if n_present == 0:
+        notes.append(say("infer.all_missing", column=name))
+        return ColumnSpec(kind="numeric", role="ignore", note="no recorded values", **base), notes
+    readable_share = 1.0 - numbers.n_unreadable / n_present
+    finite = numbers.values[np.isfinite(numbers.values)]
+    few_words = 0 < numbers.n_unreadable_texts <= _FEW_WORDS and pd.unique(finite).size > 10
+    if readable_share >= 0.95 and not few_words:
+        return _numeric(name, base, numbers, n_present, notes, rows)
+    if readable_share >= 0.5 and few_words:
+        words = tuple(numbers.unreadable_texts)
+        notes.append(say("infer.numbers_and_words", column=name,
+                         words=", ".join(repr(w) for w in words),
+                         n=numbers.n_unreadable, rows=rows_phrase(numbers.unreadable_rows
+                                                                  if rows is not None else None)))
+        # The words are now missing codes, so the "not numbers" note no longer applies.
+        not_numbers = catalogue()["values.not_numbers"].pattern()
+        notes.extend(n for n in numbers.notes if not not_numbers.match(n))
+        return ColumnSpec(kind="numeric", missing_codes=words, **base), notes
+
+    # Texts: counted per distinct trimmed text, and per spelling regardless of capitals.
+    by_text: dict[str, int] = {}
+    for text, count, gone in zip(profile.texts, profile.counts, missing_u):
+        if not gone and count:
+            by_text[text] = by_text.get(text, 0) + int(count)
+    by_folded: dict[str, int] = {}
+    for text, count in by_text.items():
+        key = text.casefold()
+        by_folded[key] = by_folded.get(key, 0) + count
+    levels_seen = sorted(by_folded, key=lambda k: -by_folded[k])
+    n_unique = len(by_text)
+    distinct = pd.Series(list(by_text), dtype=object)
+    if len(levels_seen) == 1:
+        notes.append(say("infer.constant", column=name))
+        return ColumnSpec(kind="nominal", role="ignore", note="constant",
+                          levels=tuple(_levels(by_text)), **base), notes
+    if len(levels_seen) == 2 or (len(levels_seen) <= 20 and yes_no_levels(levels_seen)):
+        if yes_no_levels(levels_seen):
+            if len(by_text) > 2:
+                notes.append(say("infer.yes_no_spellings", column=name,
+                                 spellings=", ".join(repr(s) for s in list(by_text)[:6])))
+            return ColumnSpec(kind="binary", levels=("no", "yes"), positive=None, **base), notes
+        role = "site" if _SITE_HINT.search(name) else "predictor"
+        return ColumnSpec(kind="binary", levels=tuple(_levels(by_text)), role=role,
+                          **base), notes
+    if n_unique >= 0.95 * n_present and n_present >= 20:
+        if _mostly_dates(distinct):
+            return _date(name, base, distinct, notes)
+        notes.append(say("infer.identifier", column=name))
+        return ColumnSpec(kind="identifier", role="ignore", **base), notes
+    if _mostly_dates(distinct):
+        return _date(name, base, distinct, notes)
+    if _PATIENT_HINT.search(name) and n_unique < n_present:
+        notes.append(say("infer.patient_id", column=name))
+        return ColumnSpec(kind="identifier", role="patient_id", **base), notes
+    if len(by_folded) > MAX_NOMINAL_LEVELS:
+        notes.append(say("infer.too_many_levels", column=name, n=len(by_folded),
+                         limit=MAX_NOMINAL_LEVELS))
+        return ColumnSpec(kind="text", role="ignore", **base), notes
+    levels = _levels(by_text)
+    if 0.5 < readable_share < 0.95 and numbers.n_unreadable < n_present:
+        word_rows = rows_phrase(numbers.unreadable_rows) if rows is not None else ""
+        notes.append(say("infer.mixed_categories", column=name, rows=word_rows))
+    role = "site" if _SITE_HINT.search(name) and len(levels) >= 2 else "predictor"
+    if len(levels) < len(by_text):
+        notes.append(say("infer.capitals", column=name))
+    return ColumnSpec(kind="nominal", levels=tuple(levels), role=role, **base), notes
+
+
+def _levels(by_text: dict[str, int]) -> list[str]:
+    """Levels from counted texts (see variables.canonical_levels)."""
+    return canonical_levels(sorted(by_text, key=lambda t: -by_text[t]))  # commonest first
+
+
+_DATE_STYLES = (("year first", r"^\d{4}[-/.]\d{1,2}[-/.]\d{1,2}"),
+                ("day or month first", r"^\d{1,2}[-/.]\d{1,2}[-/.]\d{2,4}"),
+                ("month name", r"[A-Za-z]{3}"))
+
+
+def _date(name: str, base: dict, text: pd.Series, notes: list[str]):
+    """A date column (left out of the predictors); several writing styles are reported."""
+    uniques = pd.Series(pd.unique(text.iloc[:: max(1, len(text) // 5000)]), dtype=object)
+    styles = []
+    for style, pattern in _DATE_STYLES:
+        hits = uniques[uniques.str.contains(pattern, regex=True)]
+        if len(hits):
+            styles.append(str(hits.iloc[0]))
+    if len(styles) > 1:
+        notes.append(say("infer.date_formats", column=name,
+                         examples=", ".join(repr(s) for s in styles)))
+    return ColumnSpec(kind="date", role="ignore", note="date", **base), notes
+
+
+def _mostly_dates(text: pd.Series) -> bool:
+    sample = text.iloc[:: max(1, len(text) // 5000)]
+    if sample.str.contains(r"\d[-/.]\d|\d{1,2} [A-Za-z]{3}", regex=True).mean() <= 0.9:
+        return False
+    uniques = pd.Series(pd.unique(sample))
+    return parse_dates(uniques).notna().mean() >= 0.9
+
+
+def _numeric(name: str, base: dict, numbers, n_present: int, notes: list[str], rows):
+    finite = numbers.values[np.isfinite(numbers.values)]
+    distinct = np.sort(pd.unique(finite))  # hashing: cheaper than sorting a million values
+    if len(distinct) <= 1:
+        notes.append(say("infer.constant", column=name))
+        return ColumnSpec(kind="numeric", role="ignore", note="constant", **base), notes
+    if len(distinct) == 2 and set(distinct.tolist()) <= {0.0, 1.0}:
+        return ColumnSpec(kind="binary", levels=("0", "1"), **base), notes
+    whole = bool(np.all(distinct == np.round(distinct)))
+    # A negative code such as -99 in a column whose other values are all >= 0.
+    sentinels = tuple(str(int(v)) for v in distinct[np.isin(distinct, _SENTINELS)]
+                      if not (finite[finite != v] < 0).any()
+                      and np.sum(finite == v) < 0.5 * len(finite))
+    if sentinels:
+        code = float(sentinels[0])
+        where = None if rows is None else rows[np.flatnonzero(numbers.values == code)]
+        notes.append(say("infer.sentinel", column=name, code=", ".join(sentinels),
+                         n=int(np.sum(finite == code)), rows=rows_phrase(where)))
+    if whole and len(distinct) <= 10 and _ORDINAL_HINT.search(name):
+        levels = tuple(str(int(v)) for v in distinct if str(int(v)) not in sentinels)
+        return ColumnSpec(kind="ordinal", levels=levels, missing_codes=sentinels,
+                          **base), notes
+    if looks_like_record_numbers(numbers.values, n_present, bool(_ID_HINT.search(name))):
+        notes.append(say("infer.record_numbers", column=name))
+        return ColumnSpec(kind="identifier", role="ignore", **base), notes
+    notes.extend(numbers.notes)
+    return ColumnSpec(kind="numeric", missing_codes=sentinels, **base), notes
+
+
+def infer_dictionary(frame: pd.DataFrame,
+                     row_numbers: Sequence[int] | np.ndarray | None = None,
+                     ) -> tuple[DataDictionary, list[str]]:
+    """Infer a dictionary entry for every column; returns the dictionary and notes.
+
+    ``row_numbers`` (e.g. ``LoadedTable.row_numbers``) lets the notes say which rows.
+    """
+    specs, notes = [], []
+    for name in frame.columns:
+        spec, col_notes = infer_column(str(name), frame[name], row_numbers)
+        specs.append(spec)
+        notes.extend(col_notes)
+    return DataDictionary(tuple(specs)), notes

@@ -1,0 +1,7 @@
+"""``python -m core.messages`` prints the README's table of messages (a test keeps it in step)."""
+
+import sys
+
+from .message import markdown_table
+
+sys.stdout.write(markdown_table())

@@ -1,0 +1,319 @@
+"""The wording of every message (see core/messages/message.py): (code, severity, template, advice[, source]).
+
+Severity: "refused" — the step stops and nothing is computed; "warning" — the step went on,
+but look at this before trusting the result; "note" — recorded so nothing happens silently.
+A template's {rows} is a row list such as " (rows 4, 9 and 22)", or empty; {where} names
+the file (and sheet).
+"""
+
+from __future__ import annotations
+
+from .catalogue_others import ELSEWHERE
+
+_READ = [
+    ("read.no_file", "refused", "No file at {path}; check the path and the file name.",
+     "Check the spelling of the path; on the command line put paths with spaces in quotes."),
+    ("read.folder", "refused", "{path} is a folder; choose a spreadsheet file inside it.",
+     "Choose the file itself, not the folder that holds it."),
+    ("read.cannot_open", "refused",
+     "{file} cannot be opened ({reason}); check that you may read it and that no other "
+     "program has it locked, then try again.",
+     "Close the file in other programs, or copy it to a folder you can read."),
+    ("read.zero_bytes", "refused", "{file} is empty (it holds no data); choose the file that "
+     "holds the table.", "The file has no bytes at all: the export or the copy failed. Export "
+     "the table again."),
+    ("read.blank", "refused", "{file} holds only blank lines; choose the file that holds the "
+     "table.", "Export the table again; check that the right sheet was saved."),
+    ("read.binary", "refused", "{file} does not look like a text spreadsheet (it holds binary "
+     "data); open the original file or save it as CSV from the spreadsheet program.",
+     "The file is not CSV even though its name says so. Open it in the program that made it "
+     "and save it as CSV (UTF-8) or XLSX."),
+    ("read.other_file", "refused", "{file} is {what}, not a spreadsheet; choose the CSV, TSV "
+     "or XLSX file that holds the table.", "Choose the data file itself; unpack archives first."),
+    ("read.html", "refused", "{file} is a web page (HTML), not a spreadsheet; open it in the "
+     "spreadsheet program and save it as CSV or XLSX.",
+     "Some systems export 'Excel' files that are really web pages. Save them again as XLSX."),
+    ("read.workbook_with_text_name", "refused", "{file} is an Excel workbook saved under a "
+     "text name; rename it to end in .xlsx, or save it from the spreadsheet program as CSV.",
+     "Rename the file so that it ends in .xlsx."),
+    ("read.text_with_workbook_name", "refused", "{file} is a text file, not an Excel "
+     "workbook; rename it to end in .csv (or .txt) and open it again.",
+     "Rename the file so that its ending matches what it holds."),
+    ("read.encrypted", "refused", "{file} is protected with a password; remove the protection "
+     "in the spreadsheet program (or save an unprotected copy) and open the copy.",
+     "Prunella never asks for passwords. Save an unprotected copy in a safe place."),
+    ("read.ole", "refused", "{file} is an old-style .xls workbook or is protected with a "
+     "password; save it as .xlsx (without a password) in the spreadsheet program.",
+     "Save the workbook as 'Excel Workbook (.xlsx)' without a password."),
+    ("read.text_has_no_sheets", "refused", "{file} is a text file and has no sheets; leave "
+     "out the sheet name.", "Only XLSX workbooks have sheets; leave out --sheet."),
+    ("read.utf16", "note", "{file} is UTF-16 encoded; it was read as such.",
+     "Nothing to do."),
+    ("read.cp1252", "warning", "{file} is not UTF-8 (first other character on line {line}); "
+     "it was read as Windows-1252 (Western European). If accented letters look wrong, save "
+     "the file as CSV UTF-8 and open it again.",
+     "Check accented letters in the preview; save as 'CSV UTF-8' to be sure."),
+    ("read.latin1", "warning", "{file} is not UTF-8 (first other character on line {line}); "
+     "it was read as Latin-1. If letters look wrong, save the file as CSV UTF-8 and open it "
+     "again.", "Save as 'CSV UTF-8' in the spreadsheet program."),
+    ("read.xls_text", "warning", "{file} is named .xls but holds a text table; it was read as "
+     "text. Check the preview, or save it as .xlsx in the spreadsheet program.",
+     "Some systems export text under an .xls name; check the columns look right."),
+    ("read.layout", "note", "{file} was read with {delimiter} between cells and {decimal} as "
+     "the decimal mark.", "Check the preview if the numbers look wrong."),
+    ("read.title_rows", "warning", "{where}: {lines} hold a title ({title!r}), not column "
+     "names; the header was taken from row {header_row}. If that is wrong, delete the title "
+     "rows in the spreadsheet.", "Check that the right row was taken as the header."),
+    ("read.no_header", "refused", "{where}: row {row}, where the column names should be, holds "
+     "only numbers ({examples}); add a row of column names at the top of the table.",
+     "Every column needs a name in the first row of the table."),
+    ("read.ragged", "refused", "{file}: line {line} has {saw} cells but the header has "
+     "{expected}. The table uses {delimiter} between cells; check that line for an extra "
+     "delimiter (a text cell holding one must be in double quotes) and save again.",
+     "Open the file in a text editor at that line, or save the sheet again as CSV."),
+    ("read.open_quote", "refused", "{file}: a double quote opened on line {line} is never "
+     "closed, so the rest of the file would be one cell; close or remove that quote and save "
+     "again.", "Look for a stray \" in that line of the file."),
+    ("read.unparseable", "refused", "{file} could not be read as a table ({detail}); save the "
+     "sheet again as CSV (UTF-8) or XLSX and open that.",
+     "Re-export the table from the program that made it."),
+    ("read.too_big", "refused", "{file} is too large for this computer's memory; split it into "
+     "smaller files or leave out columns you do not need.",
+     "Close other programs, or keep only the columns you need."),
+    ("read.empty_columns", "note", "{where}: {n} empty column(s) without a header were left "
+     "out (column {columns}).", "Nothing to do."),
+    ("read.empty_rows", "note", "{where}: {n} empty row(s) were left out{rows}.",
+     "Nothing to do."),
+    ("read.no_columns", "refused", "{where} holds no columns; choose a file that holds a "
+     "table.", "Choose the file or sheet that holds the data."),
+    ("read.blank_headers", "warning", "{where}: column(s) {columns} have no header; they were "
+     "named 'column …'. Give every column a header in the spreadsheet to name them yourself.",
+     "Type a name into each empty header cell."),
+    ("read.duplicate_header", "warning", "{where}: the header {name!r} appears more than once; "
+     "the repeat in column {column} was renamed {new!r}. Rename one of them in the spreadsheet.",
+     "Give the two columns different names so you know which is which."),
+    ("read.header_only", "refused", "{where} has a header but no rows of data; choose the file "
+     "that holds the patients.", "Check that the export included the rows."),
+]
+
+_XLSX = [
+    ("xlsx.damaged", "refused", "{file} could not be opened as an Excel workbook (the file is "
+     "damaged, cut short, or not really XLSX); open it in the spreadsheet program and save it "
+     "again, or save it as CSV.", "Copy the file again from its source; a download or copy "
+     "may have been cut short."),
+    ("xlsx.not_workbook", "refused", "{file} is a zip file but not an Excel workbook (perhaps "
+     "another Office document); choose the XLSX file that holds the table.",
+     "Choose the spreadsheet, not a document or presentation."),
+    ("xlsx.no_sheets", "refused", "{file} holds no sheets; choose another workbook.",
+     "Choose the workbook that holds the data."),
+    ("xlsx.no_such_sheet", "refused", "{file} has no sheet called {sheet!r}; its sheets are: "
+     "{sheets}.", "Give the sheet name exactly as shown on its tab."),
+    ("xlsx.empty_sheet", "refused", "{where} is empty; choose the sheet that holds the table.",
+     "Pick another sheet (--sheet NAME)."),
+    ("xlsx.several_sheets", "warning", "{file} has {n} sheets; the first visible one, "
+     "{sheet!r}, was read (the others: {others}). Choose another sheet by name if that is not "
+     "the data.", "On the command line: --sheet NAME."),
+    ("xlsx.two_header_rows", "warning", "{where}: the header is in two rows ({lines}, merged "
+     "group names above column names); each column was named by joining the two.",
+     "Check the column names; a single header row avoids this."),
+    ("xlsx.merged_header", "warning", "{where}: header cells in row {row} are merged; each "
+     "column of a merged cell was given its name (repeats renamed).",
+     "Unmerge the header cells and give each column its own name."),
+    ("xlsx.numbers_as_text", "note", "{where}: {n} number(s) in column {column!r} are stored "
+     "as text (cells {cells}); they were read as numbers.",
+     "Nothing to do; to tidy, convert the cells to numbers in the spreadsheet."),
+    ("xlsx.error_cells", "warning", "{where}: {n} cell(s) hold a spreadsheet error such as "
+     "#DIV/0! (cells {cells}); they were treated as not recorded. Correct the formulas if the "
+     "values matter.", "Fix the formulas that fail, or leave the cells empty."),
+    ("xlsx.hidden_rows", "warning", "{where}: {n} row(s) are hidden in the spreadsheet but "
+     "were read like the others{rows}. Delete them in the spreadsheet if they should be left "
+     "out.", "Hidden rows are often excluded patients: decide, and delete them if so."),
+    ("xlsx.hidden_columns", "note", "{where}: column(s) {columns} are hidden in the spreadsheet "
+     "but were read like the others.", "Nothing to do unless they should be left out."),
+    ("xlsx.uncalculated", "warning", "{where}: {n} formula cell(s) have no saved result (cells "
+     "{cells}); they were read as not recorded. Open the workbook in the spreadsheet program, "
+     "let it calculate, save it and open it again.",
+     "Files written by other programs may hold formulas that were never calculated."),
+    ("xlsx.formulas", "note", "{where}: column(s) {columns} hold formulas; their saved results "
+     "were read.", "Nothing to do; the results as last calculated were used."),
+]
+
+_VALUES = [
+    ("values.thousands", "note", "{n} value(s) in {column} written with thousands separators "
+     "(e.g. {example!r}){rows} were read as plain numbers.", "Nothing to do."),
+    ("values.decimal_comma", "note", "{n} value(s) in {column} written with a decimal comma "
+     "(e.g. {example!r}){rows} were read as decimals.", "Nothing to do."),
+    ("values.limits", "warning", "{n} value(s) in {column} written as limits (e.g. "
+     "{example!r}){rows} were read as the limit itself; check that this is acceptable for "
+     "{column}.", "'<5' is read as 5 and '>100' as 100. If that is not acceptable, replace "
+     "them with agreed values or leave the column out."),
+    ("values.percent", "note", "{n} value(s) in {column} written with a % sign (e.g. "
+     "{example!r}){rows} were read as the number before it.", "Nothing to do."),
+    ("values.infinite", "warning", "{n} infinite value(s) in {column}{rows} were treated as "
+     "not recorded; correct them in the spreadsheet if they stand for real values.",
+     "Infinite values usually come from a division by zero in a formula."),
+    ("values.huge", "warning", "{n} value(s) in {column}{rows} are too large to compute with "
+     "(beyond ±3.4e38) and were treated as not recorded; correct them in the spreadsheet.",
+     "Such numbers are usually typing or export errors."),
+    ("values.not_numbers", "warning", "{n} cell(s) in {column} are not numbers (e.g. "
+     "{examples}){rows} and were treated as not recorded; correct them or add them to the "
+     "column's missing-value codes.", "Correct the cells, or list the words as missing-value "
+     "codes in the data dictionary."),
+    ("values.unknown_levels", "warning", "{n} cell(s) in {column} hold values that are not "
+     "among its levels ({examples}){rows}; they were treated as not recorded. Add them to the "
+     "levels in the data dictionary if they are real categories.",
+     "Add the values to the column's levels, or correct their spelling."),
+]
+
+_INFER = [
+    ("infer.all_missing", "note", "{column!r} has no recorded values; it is left out.",
+     "Nothing to do, unless the column should hold values: then check the export."),
+    ("infer.constant", "note", "{column!r} has the same value in every row; it is left out.",
+     "A column that never changes cannot help a tree."),
+    ("infer.identifier", "note", "{column!r} is different in (almost) every row, like an "
+     "identifier; it is left out of the predictors.",
+     "If it is really a measurement, set its kind in the data dictionary."),
+    ("infer.record_numbers", "note", "{column!r} is different in every row, like a record "
+     "number; it is left out of the predictors.",
+     "If it is really a measurement, set its kind to numeric in the data dictionary."),
+    ("infer.patient_id", "note", "{column!r} looks like a patient identifier with repeat "
+     "visits; cross-validation will keep each patient's visits together.",
+     "Nothing to do; it is used only to group each patient's rows."),
+    ("infer.identity", "warning", "{column!r} seems to identify patients ({reason}); it is left "
+     "out of the predictors so that no chart can print it. Name it as a predictor yourself only "
+     "if it does not identify anyone.",
+     "Keep identifying columns out of the analysis file when you can."),
+    ("infer.too_many_levels", "note", "{column!r} has {n} different texts, too many for a chart "
+     "question (at most {limit}); it is left out (group the texts into fewer categories to use "
+     "it).", "Group the texts into a few categories in a new column."),
+    ("infer.mixed_categories", "warning", "{column!r} mixes numbers and words{rows}; it is "
+     "treated as categories. If it should be a number, correct the words or mark them as "
+     "missing codes.", "Correct the words, or list them as missing-value codes."),
+    ("infer.numbers_and_words", "warning", "{column!r} holds numbers and a few words "
+     "({words}) in {n} cell(s){rows}; the words were treated as not recorded. If they carry "
+     "information, record it in a separate column.",
+     "Check the words: if they mean 'not done' this is right; if they are results, recode them."),
+    ("infer.yes_no_spellings", "note", "{column!r} writes yes and no in several ways "
+     "({spellings}); they were read as 'yes' and 'no'.", "Nothing to do."),
+    ("infer.date_formats", "warning", "{column!r} holds dates in several formats (e.g. "
+     "{examples}); where day and month could be swapped the day was read first (03/01/2024 "
+     "is 3 January). Check a few dates in the preview.",
+     "Write dates one way, preferably yyyy-mm-dd."),
+    ("infer.capitals", "note", "{column!r} spells some categories with different capitals; "
+     "they were merged.", "Nothing to do."),
+    ("infer.sentinel", "warning", "{column!r}: the value {code}, found in {n} cell(s){rows}, "
+     "looks like a code for 'not recorded' and is treated as missing; remove it from the "
+     "column's missing-value codes if it is a real value.",
+     "Check the data dictionary's missing-value codes for this column."),
+]
+
+_FILES = [
+    ("cli.output_is_input", "refused", "{target} is an input file; choose another name for the "
+     "output so the input stays unchanged.", "Write results to a new file."),
+    ("file.missing", "refused", "No {what} file at {path}; check the path.",
+     "Check the spelling of the path."),
+    ("file.too_big", "refused", "{file} is {mb} MB, far larger than any Prunella {what} file; "
+     "choose the file Prunella saved.", "Choose the right file."),
+    ("file.not_json", "refused", "{file} is not a Prunella {what} file (not valid JSON: "
+     "{detail}); choose the file saved by Prunella, or save it again.",
+     "The file was damaged or edited by hand; use a backup or save it again from Prunella."),
+    ("file.not_object", "refused", "{file} is not a Prunella {what} file (it does not hold a "
+     "JSON object); choose the file saved by Prunella.", "Choose the right file."),
+    ("file.no_format", "refused", "{file} is not a Prunella {what} file (it has no 'format'); "
+     "choose the file saved by Prunella.", "Choose the right file."),
+    ("file.bad_format", "refused", "{file} is not a Prunella {what} file (its format is "
+     "{found!r}); choose the file saved by Prunella.", "Choose the right file."),
+    ("file.wrong_kind", "refused", "{file} is a Prunella {found} file, not a {what} file; "
+     "choose the {what} file.", "Models, dictionaries and projects are separate files."),
+    ("file.newer_version", "refused", "{file} was saved by a newer Prunella (format version "
+     "{version}), which this version cannot read (it reads {readable}); update Prunella to "
+     "open it.",
+     "Install the newer Prunella, or save the file again from it in the older format."),
+    ("file.old_version", "refused", "{file} uses format version {version}, which this "
+     "Prunella no longer reads (it reads {readable}); save it again with the Prunella that "
+     "wrote it.", "Open it with the Prunella that made it and save it again."),
+    ("file.folder", "refused", "{path} is a folder; choose the Prunella {what} file inside "
+     "it.", "Choose the file itself, not the folder that holds it."),
+    ("project.damaged", "refused", "The project file {file} is damaged at {where}: {problem}; "
+     "save the project again from Prunella, or start a new one.",
+     "Use the project file as Prunella saved it; do not edit it by hand (or open a backup)."),
+    ("project.seed_mismatch", "refused", "The project file {file} is inconsistent: its seed "
+     "({seed}) differs from the seed in its settings ({settings_seed}); save the project again "
+     "from Prunella.", "The file was edited by hand; set the seed on step 3 and save again."),
+    ("project.draft_damaged", "refused", "This project file (draft layout) is damaged "
+     "({problem}); start a new project.", "Open the data and choose the settings again."),
+    ("project.data_missing", "warning", "The project's data file {file} is not at {path} any "
+     "more; find the file (it may have been moved or renamed) to continue.",
+     "Point Prunella to the moved file; its fingerprint shows whether it is the same data."),
+    ("project.no_fingerprint", "note", "The project does not record a fingerprint for {file}.",
+     "Nothing to do; save the project again to record it."),
+    ("project.data_changed", "warning", "{file} has changed since the project was saved (its "
+     "fingerprint was {saved}, now {now}). The tree will be grown again on the file as it is "
+     "now and may differ from the saved one; open the original file if you want to reproduce "
+     "the saved tree.", "Open the original file to reproduce the saved tree, or accept that "
+     "the tree is grown again on the new data (and check it again)."),
+    ("project.data_same", "note", "{file} is unchanged since the project was saved.",
+     "Nothing to do."),
+    ("model.damaged", "refused", "The model file is damaged at {where}: {problem}; save the "
+     "model again from Prunella.", "Use the model file as Prunella saved it; do not edit it "
+     "by hand."),
+    ("dictionary.entry_not_object", "refused", "A column of the data dictionary is written as "
+     "{found}, not as an object with a 'name'; save the dictionary again from Prunella.",
+     "Fix the dictionary file or save it again."),
+    ("dictionary.bad_field", "refused", "The data dictionary's entry for {column!r}: '{key}' "
+     "must be {expected}; correct it or save the dictionary again from Prunella.",
+     "Fix that field of the dictionary."),
+    ("dictionary.repeated_levels", "refused", "The data dictionary lists the level(s) "
+     "{levels} of {column!r} more than once; keep each level once.",
+     "Remove the repeated levels."),
+    ("dictionary.columns_not_list", "refused", "{file}: 'columns' must be a list of column "
+     "entries; save the dictionary again from Prunella.", "Fix the dictionary file."),
+    ("dictionary.csv_unreadable", "refused", "{file} could not be read as a data dictionary "
+     "(CSV, UTF-8); save it again as CSV UTF-8 or as JSON from Prunella.",
+     "Save the dictionary again."),
+    ("dictionary.absent_columns", "warning", "The data dictionary describes column(s) that are "
+     "not in the data: {columns}; they were skipped.",
+     "Check the column names: the dictionary must use the spreadsheet's headers exactly."),
+    ("dictionary.used", "note", "The data dictionary {file} was used; columns it does not "
+     "describe were guessed from the data.",
+     "To guess every column from the data instead, press 'Guess again from the data' (on the command line: "
+     "--dictionary none)."),
+]
+
+_GUARDS = [
+    ("guard.identity", "warning", "{column!r} is left out of the predictors: {reason}, and a "
+     "chart must never print who a patient is. Name it in the predictors yourself only if it "
+     "does not identify anyone.", "Leave identifying columns out of the analysis file."),
+    ("guard.nothing_left", "refused", "Every chosen predictor identifies patients ({columns}), "
+     "so none is left to ask about; choose other predictors, or name these explicitly if they "
+     "truly do not identify anyone.", "Choose clinical predictors."),
+    ("guard.leakage", "warning", "Probable leakage: {column!r} on its own predicts {outcome!r} "
+     "almost perfectly ({evidence}). Check when it is recorded: if it is known only after, or "
+     "because of, the outcome, leave it out of the predictors (on the command line: --exclude "
+     "{column}).", "A value recorded after the decision (a bed booked, a length of stay) "
+     "cannot guide the decision. Leave it out unless it is truly known beforehand."),
+    ("guard.repeats_grouped", "note", "{patients} patient(s) have more than one row ({n_rows} rows, "
+     "up to {most} for one patient) by {column!r}; cross-validation keeps each patient's rows "
+     "in the same fold.", "Nothing to do."),
+    ("guard.repeats_not_grouped", "warning", "{patients} patient(s) have more than one row "
+     "({n_rows} rows, up to {most} for one patient) by {column!r}, but cross-validation does not "
+     "keep them together, so its error will look better than it is; turn grouping by patient "
+     "on.", "Turn on 'keep each patient's rows together'."),
+    ("guard.repeats_no_id", "warning", "{column!r} repeats for {patients} patient(s) ({n_rows} "
+     "rows): these look like repeat visits. Set it as the patient identifier (on the command "
+     "line: --patient-id {column}) so cross-validation keeps each patient's rows together.",
+     "Without it, one patient can be in the training and the test part, and the error looks "
+     "better than it is."),
+    ("guard.repeats_by_name", "warning", "{column!r} repeats for {patients} name(s) ({n_rows} "
+     "rows): some patients probably came more than once. A name is not a safe patient "
+     "identifier (different people share names), so add a patient number column and set it as "
+     "the patient identifier; cross-validation then keeps each patient's rows together.",
+     "Without it, one patient can be in the training and the test part, and the error looks "
+     "better than it is."),
+    ("guard.rare_class", "warning", "Only {n} patient(s) have {label!r} for {outcome!r} (fewer "
+     "than {limit}): too few to grow and cross-validate a tree on; treat the result as "
+     "exploratory, or collect more patients with {label!r}.",
+     "Collect more patients, or choose a more common outcome."),
+]
+
+ENTRIES = _READ + _XLSX + _VALUES + _INFER + _FILES + _GUARDS + ELSEWHERE

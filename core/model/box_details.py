@@ -1,0 +1,89 @@
+"""Explaining one box of a tree, and one patient's way through it.
+
+The app's tree view shows these when a box is clicked or a patient is looked up; they are
+plain functions over a TreeModel so the numbers come from core, not from a widget.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+import pandas as pd
+
+from ..checking.intervals import wilson_interval
+from .tree import Step, TreeModel
+
+
+@dataclass(frozen=True)
+class ClassShare:
+    """How many of a box's patients had one outcome class, with a 95% Wilson interval."""
+
+    label: str
+    count: int
+    share: float
+    low: float
+    high: float
+
+
+@dataclass(frozen=True)
+class BoxDetails:
+    """Everything the app shows about one box."""
+
+    box: int
+    leaf: bool
+    text: str  # the question or the expected outcome, in words
+    n: int  # derivation patients reaching the box
+    share_of_all: float  # of all derivation patients
+    steps: tuple[Step, ...]  # from box 1 to here
+    classes: tuple[ClassShare, ...] = ()  # classification
+    mean: float | None = None  # regression
+    sd: float | None = None
+    mean_low: float | None = None
+    mean_high: float | None = None
+
+
+def box_details(model: TreeModel, box: int) -> BoxDetails:
+    """Patients, outcome distribution (with intervals) and the path of questions of a box."""
+    node = model.node(box)
+    common = dict(box=box, leaf=node.leaf, text=node.text, n=node.n,
+                  share_of_all=node.n / max(model.n_rows, 1), steps=model.steps_to(box))
+    if model.task == "regression":
+        low, high = model.mean_interval(node)
+        return BoxDetails(mean=float(node.mean), sd=float(node.sd or 0.0), mean_low=low,
+                          mean_high=high, **common)
+    shares = []
+    for label, count in zip(model.classes, node.counts):
+        low, high = wilson_interval(int(count), node.n)
+        shares.append(ClassShare(label, int(count), count / max(node.n, 1), low, high))
+    return BoxDetails(classes=tuple(shares), **common)
+
+
+@dataclass(frozen=True)
+class PatientRoute:
+    """Where one patient's values lead: the boxes passed, the answers, the outcome box."""
+
+    boxes: tuple[int, ...]  # box 1 ... outcome box
+    steps: tuple[Step, ...]
+    outcome_box: int
+    prediction: str | float
+    warnings: tuple[str, ...] = ()
+
+
+def route_patient(model: TreeModel, values: dict[str, object]) -> PatientRoute:
+    """Route one patient given as {column: value}; a value left out or None is not recorded.
+
+    Values are read as the model reads any spreadsheet cell (text like "92" or "ambulance"
+    is fine), so the lookup and scoring a file agree.
+    """
+    row = {c: [values.get(c)] for c in model.columns_asked()}
+    frame = pd.DataFrame({c: pd.Series(v, dtype=object) for c, v in row.items()})
+    scored = model.apply(frame)
+    leaf = int(scored.leaf[0])
+    steps = model.steps_to(leaf)
+    boxes = tuple([1] + [s.to for s in steps]) if steps else (1,)
+    prediction = scored.prediction[0]
+    if isinstance(prediction, (np.floating, float)):
+        prediction = float(prediction)
+    return PatientRoute(boxes=boxes, steps=steps, outcome_box=leaf, prediction=prediction,
+                        warnings=scored.warnings)

@@ -1,0 +1,398 @@
+"""The chosen tree as plain nodes: questions in words, outcomes with counts; JSON in and out.
+
+The model is what the chart prints and what scores new patients. It carries no scikit-learn
+object: thresholds are the round numbers of core/model/thresholds.py, chosen so that every
+derivation patient is routed exactly as the grower routed them, and it routes new rows itself.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import json
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from ..checking.intervals import mean_interval
+from ..checking.metrics import Proportion, proportion
+from ..dictionary.columns import ColumnSpec, typed_column
+from ..errors import InputError
+from ..safe_files import check_format, read_json_document, write_text_atomic
+from ..words import short_fingerprint
+from .file_checks import validate_model_dict
+from .thresholds import format_number
+
+MODEL_FORMAT = "prunella-model/1"
+MODEL_VERSIONS = (1,)  # format versions this Prunella reads
+_NO_SPACE_UNITS = ("%", "°C", "°F", "°")
+
+
+@dataclass(frozen=True)
+class Question:
+    """One yes/no question. YES when the value is above ``threshold`` or in ``yes_levels``."""
+
+    column: str
+    kind: str  # "above" (numeric), "in" (levels) or "missing" (is it not recorded?)
+    threshold: float | None = None
+    yes_levels: tuple[str, ...] = ()
+    no_levels: tuple[str, ...] = ()
+    missing_goes: str = "no"  # "yes" or "no": the branch for a value that is not recorded
+
+    def takes_missing(self, branch: int) -> bool:
+        """Whether branch ``branch`` (0 = YES, 1 = NO) also takes a value that is not recorded.
+
+        A question that asks "not recorded?" says so itself, so neither branch adds it."""
+        return self.kind != "missing" and self.missing_goes == ("yes" if branch == 0 else "no")
+
+    def to_dict(self) -> dict:
+        return {"column": self.column, "kind": self.kind, "threshold": self.threshold,
+                "yes_levels": list(self.yes_levels), "no_levels": list(self.no_levels),
+                "missing_goes": self.missing_goes}
+
+    @classmethod
+    def from_dict(cls, data: dict) -> "Question":
+        return cls(column=data["column"], kind=data["kind"], threshold=data.get("threshold"),
+                   yes_levels=tuple(data.get("yes_levels", ())),
+                   no_levels=tuple(data.get("no_levels", ())),
+                   missing_goes=data.get("missing_goes", "no"))
+
+
+def question_text(question: Question, spec: ColumnSpec) -> str:
+    """The question as a clinician would say it, with the unit."""
+    label = spec.display
+    if question.kind == "above":
+        number = format_number(question.threshold)
+        unit = spec.unit
+        if unit:
+            number = f"{number}{unit}" if unit in _NO_SPACE_UNITS else f"{number} {unit}"
+        return f"{label} above {number}?"
+    if question.kind == "missing":
+        return f"{label} not recorded?"
+    levels = list(question.yes_levels)
+    if len(levels) == 1:
+        return f"{label}: {levels[0]}?"
+    return f"{label}: {', '.join(levels[:-1])} or {levels[-1]}?"
+
+
+ANSWERS = ("YES", "NO")  # the words on a question's branches, children in this order
+
+
+def shared_count(counts: tuple[int, ...], classes: tuple[str, ...], prediction) -> int:
+    """The patients of a box that its share counts: those with the positive class of a
+    yes/no outcome, else those with the class the box expects."""
+    if len(classes) == 2:
+        return int(counts[1])
+    return int(counts[classes.index(str(prediction))])
+
+
+def expected_outcome(outcome: ColumnSpec, task: str, prediction, mean: float | None) -> str:
+    """A box's expected outcome in words, without its counts: 'Admitted: expect yes',
+    'Length of stay: mean 31.2 h'."""
+    if task == "regression":
+        unit = f" {outcome.unit}" if outcome.unit else ""
+        return f"{outcome.display}: mean {mean:.3g}{unit}"
+    return f"{outcome.display}: expect {prediction}"
+
+
+@dataclass(frozen=True)
+class Step:
+    """One question on the way to a box, and the answer that leads on."""
+
+    box: int  # the question's box number
+    question: str
+    answer: str  # "YES" or "NO"
+    includes_missing: bool  # this branch also takes a value that is not recorded
+    to: int  # the box this answer leads to
+
+    def phrase(self) -> str:
+        """The question and its answer, as the rules print it."""
+        note = " (or not recorded)" if self.includes_missing else ""
+        return f"{self.question} {self.answer}{note}"
+
+    def text(self) -> str:
+        return f"Box {self.box}: {self.phrase()}"
+
+
+@dataclass(frozen=True)
+class Node:
+    """A box of the tree. Internal nodes have a question and children (yes, no)."""
+
+    id: int
+    depth: int
+    n: int  # derivation patients (rows) reaching the node
+    question: Question | None = None
+    children: tuple[int, ...] = ()
+    counts: tuple[int, ...] = ()  # classification: patients per class
+    mean: float | None = None  # regression: mean outcome
+    sd: float | None = None
+    prediction: str | float | None = None
+    text: str = ""  # the question or the outcome, in words
+
+    @property
+    def leaf(self) -> bool:
+        return not self.children
+
+    def to_dict(self) -> dict:
+        data = {"id": self.id, "leaf": self.leaf, "depth": self.depth, "n": self.n,
+                "children": list(self.children)}
+        if self.leaf:
+            data["outcome"] = self.text
+        else:
+            data["question"] = self.text
+            data["split"] = self.question.to_dict()
+        if self.counts:
+            data["counts"] = list(self.counts)
+        if self.mean is not None:
+            data["mean"] = self.mean
+            data["sd"] = self.sd
+        data["prediction"] = self.prediction
+        return data
+
+    @classmethod
+    def from_dict(cls, data: dict) -> "Node":
+        split = data.get("split")
+        return cls(id=int(data["id"]), depth=int(data.get("depth", 0)), n=int(data["n"]),
+                   question=Question.from_dict(split) if split else None,
+                   children=tuple(int(c) for c in data.get("children", ())),
+                   counts=tuple(int(c) for c in data.get("counts", ())),
+                   mean=data.get("mean"), sd=data.get("sd"), prediction=data.get("prediction"),
+                   text=data.get("question") or data.get("outcome") or "")
+
+
+def column_values(numbers: np.ndarray | None, codes: np.ndarray | None,
+                  spec: ColumnSpec) -> np.ndarray:
+    """A typed column as the model reads it: numbers, or level names (None = not recorded)."""
+    if numbers is not None:
+        return numbers
+    names = np.array(list(spec.levels) + [None], dtype=object)
+    return names[codes]
+
+
+@dataclass(frozen=True)
+class Scored:
+    """The result of routing rows through a model."""
+
+    leaf: np.ndarray  # box number of the outcome box reached
+    prediction: np.ndarray  # class label or mean
+    warnings: tuple[str, ...] = ()
+
+
+@dataclass(frozen=True)
+class TreeModel:
+    """The chosen tree and everything needed to print, score and reproduce it."""
+
+    task: str
+    outcome: ColumnSpec
+    classes: tuple[str, ...]
+    predictors: tuple[ColumnSpec, ...]
+    nodes: tuple[Node, ...]
+    n_rows: int
+    path: dict
+    chosen: dict
+    extra: dict = field(default_factory=dict)  # settings, provenance, cohort, validation
+
+    @property
+    def positive(self) -> str | None:
+        return self.classes[1] if self.task == "classification" and len(self.classes) == 2 else None
+
+    @property
+    def root(self) -> Node:
+        return self.nodes[0]
+
+    def node(self, node_id: int) -> Node:
+        return self.nodes[node_id - 1]
+
+    @property
+    def leaves(self) -> tuple[Node, ...]:
+        return tuple(n for n in self.nodes if n.leaf)
+
+    def mean_interval(self, node: Node) -> tuple[float, float]:
+        """95% interval of a box's mean outcome (regression), kept within the outcome's
+        observed range in the derivation data."""
+        span = self.extra.get("cohort", {}).get("outcome_range")
+        return mean_interval(float(node.mean), float(node.sd or 0.0), node.n,
+                             within=tuple(span) if span else None)
+
+    def box_share(self, node: Node) -> Proportion:
+        """The share a box shows (classification): its patients with the positive class of a
+        yes/no outcome, else with the class it expects, as k of n with a Wilson interval."""
+        if self.task != "classification":
+            raise ValueError("box_share is for classification trees; use mean_interval")
+        return proportion(shared_count(node.counts, self.classes, node.prediction), node.n)
+
+    def expected_outcome(self, node: Node) -> str:
+        """A box's expected outcome in words, without its counts (see :func:`expected_outcome`)."""
+        return expected_outcome(self.outcome, self.task, node.prediction, node.mean)
+
+    def spec(self, column: str) -> ColumnSpec:
+        for spec in self.predictors:
+            if spec.name == column:
+                return spec
+        raise KeyError(column)
+
+    # --- JSON ---------------------------------------------------------------------------
+
+    def to_dict(self) -> dict:
+        data = {
+            "format": MODEL_FORMAT,
+            "task": self.task,
+            "outcome": self.outcome.name,
+            "outcome_spec": self.outcome.to_dict(),
+            "classes": list(self.classes),
+            "positive": self.positive,
+            "n_rows": self.n_rows,
+            "predictors": [p.to_dict() for p in self.predictors],
+            "nodes": [n.to_dict() for n in self.nodes],
+            "path": self.path,
+            "chosen": self.chosen,
+        }
+        data.update(self.extra)
+        return data
+
+    def to_json(self) -> str:
+        return json.dumps(self.to_dict(), indent=1, ensure_ascii=False, allow_nan=False) + "\n"
+
+    @property
+    def fingerprint(self) -> str:
+        """SHA-256 of the model's canonical JSON (keys sorted, no whitespace)."""
+        canonical = json.dumps(self.to_dict(), sort_keys=True, separators=(",", ":"),
+                               ensure_ascii=False, allow_nan=False)
+        return hashlib.sha256(canonical.encode("utf-8")).hexdigest()
+
+    @property
+    def short_fingerprint(self) -> str:
+        """The fingerprint as pages and screens print it (its first 12 digits)."""
+        return short_fingerprint(self.fingerprint)
+
+    def save(self, path: str | Path) -> None:
+        write_text_atomic(path, self.to_json())
+
+    @classmethod
+    def from_dict(cls, data: dict, name: str = "This file") -> "TreeModel":
+        """A model from parsed JSON; damaged, foreign or newer files are refused (InputError)."""
+        check_format(data, "model", MODEL_VERSIONS, name)
+        return cls._from_checked_format(data)
+
+    @classmethod
+    def _from_checked_format(cls, data: dict) -> "TreeModel":
+        """A model from parsed JSON whose format and version were already checked."""
+        validate_model_dict(data)
+        try:
+            known = {"format", "task", "outcome", "outcome_spec", "classes", "positive", "n_rows",
+                     "predictors", "nodes", "path", "chosen"}
+            model = cls(task=data["task"], outcome=ColumnSpec.from_dict(data["outcome_spec"]),
+                        classes=tuple(data.get("classes", ())),
+                        predictors=tuple(ColumnSpec.from_dict(p) for p in data["predictors"]),
+                        nodes=tuple(Node.from_dict(n) for n in data["nodes"]),
+                        n_rows=int(data["n_rows"]), path=data["path"], chosen=data["chosen"],
+                        extra={k: v for k, v in data.items() if k not in known})
+        except (KeyError, TypeError, ValueError, AttributeError) as exc:
+            raise InputError(f"The model file is damaged ({type(exc).__name__}: {exc}); save the "
+                             "model again from Prunella.") from None
+        model._check()
+        return model
+
+    @classmethod
+    def load(cls, path: str | Path) -> "TreeModel":
+        """Read a model file written by :meth:`save` (JSON only; nothing in it is executed)."""
+        # read_json_document refuses a missing, foreign or newer file with the catalogue's message.
+        return cls._from_checked_format(read_json_document(path, "model", MODEL_VERSIONS))
+
+    def _check(self) -> None:
+        ids = [n.id for n in self.nodes]
+        if ids != list(range(1, len(ids) + 1)):
+            raise InputError("The model file is damaged (boxes are not numbered 1, 2, 3, ...); "
+                             "save the model again from Prunella.")
+        for node in self.nodes:
+            if node.children and (len(node.children) != 2 or node.question is None or
+                                  any(c <= node.id or c > len(ids) for c in node.children)):
+                raise InputError(f"The model file is damaged at box {node.id}; save the model "
+                                 "again from Prunella.")
+            if node.question is not None and node.question.column not in {p.name for p in self.predictors}:
+                raise InputError(f"The model file is damaged: box {node.id} asks about an unknown "
+                                 "column; save the model again from Prunella.")
+
+    # --- scoring ------------------------------------------------------------------------
+
+    def apply(self, frame: pd.DataFrame) -> Scored:
+        """Route each row to an outcome box. Unseen levels are treated as not recorded."""
+        used = self.columns_asked()
+        absent = [c for c in used if c not in frame.columns]
+        if absent:
+            raise InputError("The data lack column(s) the tree asks about: "
+                             + ", ".join(repr(c) for c in absent)
+                             + "; add them (same names as in the derivation data) or rename them.")
+        warnings: list[str] = []
+        values: dict[str, np.ndarray] = {}
+        for column in used:
+            spec = self.spec(column)
+            typed = typed_column(frame[column].reset_index(drop=True), spec)
+            warnings.extend(typed.notes)
+            values[column] = column_values(typed.numbers, typed.codes, spec)
+        at = self.route(values, len(frame))
+        return Scored(leaf=at, prediction=self.predictions(at), warnings=tuple(warnings))
+
+    def columns_asked(self) -> list[str]:
+        return sorted({n.question.column for n in self.nodes if n.question is not None})
+
+    def route(self, values: dict[str, np.ndarray], n: int) -> np.ndarray:
+        """Box number reached by each of ``n`` rows, given each asked column's values."""
+        at = np.ones(n, dtype=np.int64)
+        for node in self.nodes:  # parents come before children
+            if node.leaf:
+                continue
+            here = np.flatnonzero(at == node.id)
+            if here.size == 0:
+                continue
+            yes = self._answers(node.question, values[node.question.column][here])
+            at[here] = np.where(yes, node.children[0], node.children[1])
+        return at
+
+    def predictions(self, leaves: np.ndarray) -> np.ndarray:
+        table = np.array([None] + [n.prediction for n in self.nodes], dtype=object)
+        out = table[leaves]
+        return out.astype(float) if self.task == "regression" else out
+
+    @staticmethod
+    def _answers(question: Question, values: np.ndarray) -> np.ndarray:
+        missing_yes = question.missing_goes == "yes"
+        if question.kind == "above":
+            values = values.astype(float)
+            missing = np.isnan(values)
+            with np.errstate(invalid="ignore"):
+                answer = values > question.threshold
+        elif question.kind == "missing":
+            return pd.isna(values)
+        else:
+            missing = pd.isna(values)
+            answer = np.isin(values.astype(object), list(question.yes_levels))
+            # A level the tree never saw at derivation is treated as not recorded.
+            known = np.isin(values.astype(object), list(question.yes_levels + question.no_levels))
+            missing = missing | ~known
+        return np.where(missing, missing_yes, answer)
+
+    # --- plain text ---------------------------------------------------------------------
+
+    def steps_to(self, box: int) -> tuple[Step, ...]:
+        """The questions and answers that lead from box 1 to ``box``, in order."""
+        self.node(box)  # raises IndexError for a box that does not exist
+        parents = {c: (n, i) for n in self.nodes for i, c in enumerate(n.children)}
+        steps = []
+        current = box
+        while current in parents:
+            node, branch = parents[current]
+            steps.append(Step(node.id, node.text, ANSWERS[branch],
+                              node.question.takes_missing(branch), current))
+            current = node.id
+        return tuple(reversed(steps))
+
+    def rules(self) -> str:
+        """The tree as numbered plain-text rules, one line per path to an outcome box."""
+        lines = [f"Outcome: {self.outcome.display}", ""]
+        for leaf in self.leaves:
+            condition = " AND ".join(s.phrase() for s in self.steps_to(leaf.id)) or "(every patient)"
+            lines.append(f"Box {leaf.id}: IF {condition}")
+            lines.append(f"    THEN {leaf.text}")
+        return "\n".join(lines) + "\n"

@@ -1,0 +1,180 @@
+"""Section 8 of the methods report: performance from training to external patients."""
+
+from __future__ import annotations
+
+from typing import TYPE_CHECKING
+
+from reportlab.platypus import KeepTogether, Paragraph
+
+from ..cautions import UNCHECKED_BANNER, UNCHECKED_DETAIL
+from ..checking.metrics import ClassificationMeasures, Measures
+from ..checking.nested import NestedResult
+from ..checking.new_patients import ValidationResult, training_measures
+from .figures import calibration_figure, roc_figure
+from .section_numbers import section
+from .style import Styles, figure, figures_side_by_side, para, table, text
+
+if TYPE_CHECKING:
+    from .rendering import ReportContents
+
+
+def risk_text(value: float, task: str) -> str:
+    """A risk as printed: 3 decimals for costs per patient, 4 significant digits for errors."""
+    if task == "classification":
+        return f"{value:.3f}"
+    return f"{value:.0f}" if abs(value) >= 1000 else f"{value:.4g}"
+
+
+def _perf_row(name: str, basis: str, n: int, m: Measures | None, risk: str, s: Styles) -> list:
+    first = Paragraph(f"<b>{text(name)}</b><br/>{text(basis)}", s.cell)
+    if m is None:
+        return [first, str(n), risk, "–", "–", "–", "–"]
+    if isinstance(m, ClassificationMeasures):
+        head = m.headline
+        if head is not None:
+            auc = head.roc.text() if head.roc is not None else "–"
+            return [first, str(n), risk, m.accuracy.text(), head.sensitivity.text(),
+                    head.specificity.text(), auc]
+        return [first, str(n), risk, m.accuracy.text(),
+                f"{m.auc_macro:.2f}" if m.auc_macro is not None else "–"]
+    return [first, str(n), risk, f"{m.rmse:.3g}", f"{m.mae:.3g}", f"{m.r2:.2f}"]
+
+
+def performance_section(c: ReportContents, s: Styles) -> list:
+    model, der = c.model, c.derivation
+    number = section("Performance")
+    classification = model.task == "classification"
+    binary = classification and model.positive is not None
+    if binary:
+        head = ["Estimate (patients used)", "Visits", "Cost per patient (± SE)", "Accuracy",
+                "Sensitivity", "Specificity", "ROC area"]
+        widths = [0.25, 0.07, 0.13, 0.13, 0.14, 0.14, 0.14]
+    elif classification:
+        head = ["Estimate (patients used)", "Visits", "Cost per patient (± SE)", "Accuracy",
+                "Mean one-vs-rest ROC area"]
+        widths = [0.36, 0.1, 0.18, 0.18, 0.18]
+    else:
+        head = ["Estimate (patients used)", "Visits", "Mean squared error (± SE)", "RMSE", "MAE", "R²"]
+        widths = [0.36, 0.1, 0.18, 0.12, 0.12, 0.12]
+    width = len(head)
+    ch, task = model.chosen, model.task
+    rows = [head,
+            _perf_row("Training (optimistic)", "the derivation patients themselves", model.n_rows,
+                      training_measures(der), risk_text(ch["train_risk"], task), s),
+            _perf_row("Cross-validated", model.path.get("cv", "cross-validation"), model.n_rows,
+                      None, f"{risk_text(ch['cv_risk'], task)} ± {risk_text(ch['cv_se'], task)}", s)[:width]]
+    if c.nested is not None:
+        rows.append(_perf_row("Nested cross-validation (honest)",
+                              "outer folds never used for growing or sizing", c.nested.n,
+                              c.nested.measures, f"{risk_text(c.nested.risk, task)} ± "
+                              f"{risk_text(c.nested.risk_se, task)}", s))
+    for check in c.checks:
+        m = check.measures
+        risk = (f"{m.cost:.3f} ± {m.cost_se:.3f}" if isinstance(m, ClassificationMeasures)
+                else risk_text(m.rmse ** 2, task))
+        rows.append(_perf_row("Held-out check" if check.kind == "held-out" else "External check",
+                              check.source, check.n, m, risk, s))
+    story = [para("Performance of the chosen tree, from the most optimistic estimate (the "
+                  "patients it was grown on) to the most honest (patients it never saw). "
+                  "Intervals are 95%: Wilson for proportions, DeLong for the ROC area; ± is one "
+                  "standard error. " + ("Cost is the expected misclassification cost per "
+                  f"patient under the costs and priors of section {section('Model building')}, "
+                  "comparable across rows."
+                  if classification else "Errors are in the outcome's unit."), s.body),
+             KeepTogether([para(f"{number}.1 Overview", s.h2),
+                           table(rows, widths, s, align_right=(1,), keep=False)])]
+    if c.nested is not None:
+        story += _nested_detail(c.nested, f"{number}.2", s)
+    for i, check in enumerate(c.checks, 2 + (c.nested is not None)):
+        story += _check_detail(check, f"{number}.{i}", s)
+    if not c.checks:
+        story.append(para(f"{UNCHECKED_BANNER}. {UNCHECKED_DETAIL}", s.body))
+    return story
+
+
+def _nested_detail(nested: NestedResult, number: str, s: Styles) -> list:
+    task = "regression" if nested.risk_measure == "mean squared error" else "classification"
+    rows = [["Outer fold", "Growing patients", "Test visits", "Boxes chosen inside",
+             "Inner CV risk", "Outer test risk"]]
+    for f in nested.folds:
+        rows.append([str(f.fold), str(f.n_train), str(f.n_test), str(f.leaves),
+                     risk_text(f.inner_cv_risk, task), risk_text(f.test_risk, task)])
+    return [para(f"{number} Nested cross-validation", s.h2),
+            para(f"{nested.description}. Inside every outer fold the whole procedure ran again "
+                 f"(growing, cross-validating the pruning path, choosing the size by the "
+                 f"{nested.size_rule}); the chosen tree was then measured on the outer fold. "
+                 "The spread of the chosen sizes shows how firmly the data fix the size.", s.body),
+            table(rows, [0.13, 0.18, 0.15, 0.2, 0.17, 0.17], s, align_right=(1, 2, 3, 4, 5))]
+
+
+def _measure_tables(m: Measures, s: Styles) -> list:
+    if not isinstance(m, ClassificationMeasures) or m.positive is not None:
+        return [table([["Measure", "Value (95% interval)"]] + [list(r) for r in m.rows()],
+                      [0.5, 0.5], s)]
+    overall = [["Measure", "Value (95% interval)"], ["Patients", str(m.n)],
+               ["Accuracy", m.accuracy.text()],
+               ["Misclassification cost per patient", f"{m.cost:.3f} (SE {m.cost_se:.3f})"],
+               ["Brier score (summed over classes)", f"{m.brier:.3f}"]]
+    if m.auc_macro is not None:
+        overall.append(["Mean one-vs-rest ROC area", f"{m.auc_macro:.2f}"])
+    per_class = [["Class (against the rest)", "Patients", "Sensitivity", "Specificity", "PPV",
+                  "NPV", "ROC area (DeLong)"]]
+    for r in m.per_class:
+        per_class.append([r.label, str(r.n_with), r.sensitivity.text(), r.specificity.text(),
+                          r.ppv.text(), r.npv.text(), r.roc.text() if r.roc else "–"])
+    return [table(overall, [0.5, 0.5], s),
+            table(per_class, [0.19, 0.1, 0.14, 0.14, 0.14, 0.14, 0.15], s, align_right=(1,))]
+
+
+def _check_detail(check: ValidationResult, number: str, s: Styles) -> list:
+    m = check.measures
+    patients = f" ({check.patients} patients)" if check.patients else ""
+    story = [para(f"{number} {'Held-out' if check.kind == 'held-out' else 'External'} check: "
+                  f"{check.source}", s.h2),
+             para(f"{check.n} visits{patients} checked.", s.body)]
+    if check.columns is not None:
+        story += [para(line, s.bullet) for line in check.columns.lines()]
+    story += [para(f"Warning: {w}", s.bullet) for w in check.warnings]
+    story += _measure_tables(m, s)
+    if isinstance(m, ClassificationMeasures):
+        header = ["Observed \\ predicted"] + list(m.classes)
+        rows = [header] + [[label] + [str(v) for v in row] for label, row in zip(m.classes, m.confusion)]
+        share = 0.7 / (len(m.classes) + 1)
+        story.append(KeepTogether([
+            para("Confusion matrix (rows: observed outcome; columns: the tree's prediction).",
+                 s.body),
+            table(rows, [share] * (len(m.classes) + 1), s,
+                  align_right=tuple(range(1, len(m.classes) + 1)), keep=False)]))
+    if m.calibration:
+        percent = isinstance(m, ClassificationMeasures)
+        what = "rate" if percent else "mean"
+        rows = [["Box", "Rate of" if percent else "Outcome", f"Derivation {what}",
+                 "Derivation patients", f"Observed {what} (95% CI)", "New patients", "Agrees"]]
+        for r in m.calibration:
+            derived = f"{r.derivation_value:.0%}" if percent else f"{r.derivation_value:.3g}"
+            rows.append([str(r.box), r.label, derived, str(r.derivation_n),
+                         r.observed_text(percent), str(r.n),
+                         {True: "yes", False: "NO: outside", None: "–"}[r.agrees]])
+        intro = para(f"Calibration by outcome box: the derivation {what} against the {what} "
+                     f"observed in the new patients. 'Agrees' means the derivation {what} lies "
+                     "inside the observed 95% interval.", s.body)
+        calibration = table(rows, [0.07, 0.15, 0.13, 0.13, 0.22, 0.12, 0.18], s,
+                            align_right=(2, 3, 5), keep=False)
+        story += [KeepTogether([intro, calibration])] if len(rows) <= 20 else [intro, calibration]
+    figures = []
+    if isinstance(m, ClassificationMeasures) and any(r.roc for r in m.per_class):
+        figures.append(roc_figure(m))
+    if m.calibration:
+        figures.append(calibration_figure(m))
+    if figures:
+        fig = s.next_figure()
+        names = " (left) and calibration by box (right)" if len(figures) == 2 else ""
+        caption = (f"Figure {fig}. {check.source}: ROC curve of the box rates{names}. "
+                   if len(figures) == 2 else f"Figure {fig}. {check.source}. ")
+        caption += ("Open markers: boxes whose derivation value lies outside the observed "
+                    "interval." if m.calibration else "")
+        story.append(figures_side_by_side(figures, caption, s) if len(figures) > 1
+                     else figure(figures[0], caption, s, width=0.6))
+    return story
+
+

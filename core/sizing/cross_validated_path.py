@@ -1,0 +1,216 @@
+"""Cross-validated risk over the whole pruning path, one tree fit per fold.
+
+Each fold grows ONE maximal tree on its training part and finds its own collapse α's. Every
+held-out case is then routed once: along its path the collapse α's never increase, so its
+prediction at grid value α′ is the first node on the path with collapse α ≤ α′. Counting, per
+case, how many path nodes are still internal at each α′ gives every prediction at once
+(no loop over α). The grid is the full-data sequence's geometric midpoints.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from functools import cached_property
+from typing import Callable, Sequence
+
+import numpy as np
+from joblib import Parallel, delayed
+
+from ..design.analysis import AnalysisData, Encoding, fit_encoding
+from ..errors import Cancelled, InputError
+from .folds import CVSettings, fold_plan
+from .grow import ClassCosts, GrownTree, TreeSettings, class_costs, grow_tree
+from .prune import PruningSequence, collapse_alphas, pruning_sequence
+
+Progress = Callable[[int, int], None]
+CancelFlag = Callable[[], bool]
+
+_CHUNK_CELLS = 4_000_000  # cases × grid values routed at once, to cap memory
+
+
+@dataclass(frozen=True)
+class GrownModel:
+    """The maximal tree grown on all derivation rows, with its pruning sequence."""
+
+    data: AnalysisData = field(repr=False)
+    settings: TreeSettings
+    costs: ClassCosts | None = field(repr=False)
+    encoding: Encoding = field(repr=False)
+    tree: GrownTree = field(repr=False)
+    sequence: PruningSequence = field(repr=False)
+
+    @cached_property
+    def matrix(self) -> np.ndarray:
+        """The derivation rows as the grower saw them (computed once)."""
+        return self.encoding.matrix(self.data)
+
+    @cached_property
+    def membership(self):
+        """Which derivation rows pass through each node (CSC: column = node), computed once."""
+        return self.tree.estimator.decision_path(self.matrix).tocsc()
+
+
+def one_se_limit(cv_risk: Sequence[float] | np.ndarray, cv_se: Sequence[float] | np.ndarray,
+                 min_index: int) -> float:
+    """The 1-SE rule's limit: the lowest cross-validated error plus its standard error. Kept
+    apart so a saved model's path (lists, as in ``TreeModel.path``) is read the same way."""
+    return float(cv_risk[min_index] + cv_se[min_index])
+
+
+@dataclass(frozen=True)
+class CrossValidatedPath:
+    """CV risk and its SE for every subtree of the full-data sequence."""
+
+    grown: GrownModel = field(repr=False)
+    cv: CVSettings
+    grid: np.ndarray
+    cv_risk: np.ndarray
+    cv_se: np.ndarray
+    n_folds: int
+    n_cases: int
+    description: str
+
+    @property
+    def leaves(self) -> np.ndarray:
+        return self.grown.sequence.leaves
+
+    @property
+    def train_risk(self) -> np.ndarray:
+        return self.grown.sequence.train_risk
+
+    @property
+    def alpha(self) -> np.ndarray:
+        return self.grown.sequence.alpha
+
+    @property
+    def min_index(self) -> int:
+        """The subtree with the smallest CV risk (the smaller tree on exact ties)."""
+        best = np.flatnonzero(self.cv_risk <= self.cv_risk.min() * (1 + 1e-12) + 1e-15)
+        return int(best.max())
+
+    @property
+    def one_se_index(self) -> int:
+        """The smallest tree whose CV risk is within one SE of the minimum (1-SE rule)."""
+        limit = one_se_limit(self.cv_risk, self.cv_se, self.min_index)
+        return int(np.flatnonzero(self.cv_risk <= limit * (1 + 1e-12) + 1e-15).max())
+
+    def index_for(self, size: str | int) -> tuple[int, str]:
+        """Resolve '1se', 'min' or a number of leaves to a position in the sequence."""
+        if size in ("1se", "1-se"):
+            return self.one_se_index, "1se"
+        if size == "min":
+            return self.min_index, "min"
+        try:
+            wanted = int(size)
+        except (TypeError, ValueError):
+            raise InputError(f"The tree size must be '1se', 'min' or a number of leaves, not "
+                             f"{size!r}.") from None
+        fits = np.flatnonzero(self.leaves <= wanted)
+        if wanted < 1 or fits.size == 0:
+            raise InputError("A tree needs at least one leaf; sizes on the pruning path are "
+                             + ", ".join(map(str, self.leaves[::-1])) + ".")
+        return int(fits.min()), "user"
+
+
+def grow_full(data: AnalysisData, settings: TreeSettings) -> GrownModel:
+    """Grow the maximal tree on every derivation row and compute its pruning sequence."""
+    if data.n < 2 * settings.min_leaf:
+        raise InputError(f"There are {data.n} rows with an outcome, too few for leaves of at least "
+                         f"{settings.min_leaf} patients; lower the minimum leaf size or add rows.")
+    costs = class_costs(settings, data.y, len(data.classes)) if data.task == "classification" else None
+    encoding = fit_encoding(data)
+    X = encoding.matrix(data)
+    tree = grow_tree(X, data.y, data.task, settings, costs)
+    sequence = pruning_sequence(tree.children_left, tree.children_right, tree.prune_risk,
+                                tree.cost_risk)
+    return GrownModel(data, settings, costs, encoding, tree, sequence)
+
+
+def path_nodes(tree: GrownTree, collapse: np.ndarray, X: np.ndarray,
+               grid: np.ndarray) -> np.ndarray:
+    """For each case (row of X) and grid α′, the node that predicts it: shape (cases, grid)."""
+    paths = tree.estimator.decision_path(X)
+    indptr, indices = paths.indptr, paths.indices  # per row: node ids root→leaf (preorder)
+    n, g = X.shape[0], len(grid)
+    lengths = np.diff(indptr)
+    rows = np.repeat(np.arange(n), lengths)
+    # How many grid values lie below each path node's collapse α: it is internal for those.
+    below = np.searchsorted(grid, collapse[indices], side="left")
+    counts = np.bincount(rows * (g + 1) + below, minlength=n * (g + 1)).reshape(n, g + 1)
+    # Internal path nodes at grid j = those with more than j grid values below their collapse.
+    internal = lengths[:, None] - np.cumsum(counts, axis=1)[:, :g]
+    return indices[indptr[:-1, None] + internal]
+
+
+def case_losses(tree: GrownTree, nodes: np.ndarray, y: np.ndarray,
+                costs: ClassCosts | None) -> np.ndarray:
+    """Loss of each case at each grid α′: cost × prior weight, or squared error."""
+    if tree.task == "regression":
+        return (tree.label[nodes] - y[:, None]) ** 2
+    predicted = tree.label[nodes]
+    return costs.loss[y[:, None], predicted] * costs.case_weight[y][:, None]
+
+
+def _fold_losses(data: AnalysisData, settings: TreeSettings, costs: ClassCosts | None,
+                 train: np.ndarray, test: np.ndarray, grid: np.ndarray):
+    encoding = fit_encoding(data, train)
+    tree = grow_tree(encoding.matrix(data, train), data.y[train], data.task, settings, costs)
+    collapse = collapse_alphas(tree.children_left, tree.children_right, tree.prune_risk)
+    X_test = encoding.matrix(data, test)
+    y_test = data.y[test]
+    chunk = max(1, _CHUNK_CELLS // max(1, len(grid)))
+    parts = []
+    for start in range(0, len(test), chunk):
+        stop = start + chunk
+        nodes = path_nodes(tree, collapse, X_test[start:stop], grid)
+        parts.append(case_losses(tree, nodes, y_test[start:stop], costs).astype(np.float64))
+    return test, np.concatenate(parts) if parts else np.zeros((0, len(grid)))
+
+
+def cross_validate_path(data: AnalysisData, settings: TreeSettings, cv: CVSettings,
+                        jobs: int | None = 1, progress: Progress | None = None,
+                        cancel: CancelFlag | None = None,
+                        grown: GrownModel | None = None) -> CrossValidatedPath:
+    """Grow, prune and cross-validate the whole pruning path; returns CV risk and SE per size.
+
+    ``progress(done, total)`` is called after the full tree and after each fold; when
+    ``cancel()`` returns True the work stops and :class:`Cancelled` is raised.
+    """
+    def check_cancel():
+        if cancel is not None and cancel():
+            raise Cancelled()
+
+    strat = data.y if data.task == "classification" else None
+    folds = fold_plan(cv, data.n, y=strat, groups=data.groups, sites=data.sites)
+    total = len(folds) + 1
+    check_cancel()
+    if grown is None:
+        grown = grow_full(data, settings)
+    if progress:
+        progress(1, total)
+    grid = grown.sequence.grid
+    sums = np.zeros((data.n, len(grid)))
+    times = np.zeros(data.n)
+    costs = grown.costs
+    tasks = (delayed(_fold_losses)(data, settings, costs, f.train, f.test, grid) for f in folds)
+    done = 1
+    # Always through joblib, so a joblib backend set by the caller (a cluster, say) spreads the
+    # folds without code changes; jobs=None defers to that backend's own default.
+    results = Parallel(n_jobs=jobs, return_as="generator_unordered")(tasks)
+    for test, losses in results:
+        check_cancel()
+        sums[test] += losses
+        times[test] += 1
+        done += 1
+        if progress:
+            progress(done, total)
+    seen = times > 0
+    per_case = sums[seen] / times[seen][:, None]
+    n_cases = int(seen.sum())
+    cv_risk = per_case.mean(axis=0)
+    # Breiman et al. (1984, §3.4.3): SE from the spread of the per-case losses.
+    cv_se = per_case.std(axis=0) / np.sqrt(n_cases)
+    grouped = cv.grouped and data.groups is not None and cv.plan in ("kfold", "loo", "split")
+    return CrossValidatedPath(grown=grown, cv=cv, grid=grid, cv_risk=cv_risk, cv_se=cv_se,
+                              n_folds=len(folds), n_cases=n_cases,
+                              description=cv.describe(grouped))
