@@ -71,9 +71,9 @@ def test_rules_and_chart_agree_on_branch_labels() -> None:
             assert (f"{NOT_RECORDED}: {step.answer}" in notes) == step.includes_missing
 
 
-def test_the_report_title_page_prints_risks_and_fingerprints_as_elsewhere() -> None:
+def test_the_reporttitle_page_prints_risks_and_fingerprints_as_elsewhere() -> None:
     from core.report.performance import risk_text
-    from core.report.sections import _title_page
+    from core.report.sections import title_page
     from core.report.style import Styles
 
     for which in ("admitted", "length_of_stay"):
@@ -83,7 +83,7 @@ def test_the_report_title_page_prints_risks_and_fingerprints_as_elsewhere() -> N
             nested, checks, stability, notes, printed = None, [], None, [], "2026-01-02"
 
         Contents.model = model
-        story = _title_page(Contents, "Report", Styles())
+        story = title_page(Contents, "Report", Styles())
         words = " ".join(getattr(f, "text", "") for f in story)
         assert f"model fingerprint {model.short_fingerprint} ·" in words
         assert model.fingerprint[:13] not in words

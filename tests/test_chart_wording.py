@@ -6,9 +6,10 @@ Invented demo data (tests/_chart_demo.py) — these check our own wording, not a
 from __future__ import annotations
 
 import _chart_demo as demo
+
 from core.chart import ChartOptions
 from core.chart.content import chart_text
-from core.words import plural
+from core.phrases import plural
 
 
 def test_plural_takes_both_forms() -> None:
@@ -38,7 +39,7 @@ def test_a_larger_tree_says_outcome_boxes() -> None:
 
 
 def test_one_short_fingerprint_everywhere() -> None:
-    from core.words import short_fingerprint
+    from core.phrases import short_fingerprint
 
     model = demo.admitted().model
     assert model.short_fingerprint == model.fingerprint[:12] == short_fingerprint(model.fingerprint)

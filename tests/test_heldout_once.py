@@ -7,7 +7,6 @@ from pathlib import Path
 
 import pytest
 
-from core.checking import check_heldout
 from core.data import read_table
 from core.design import DesignSpec
 from core.dictionary import DataDictionary
@@ -35,7 +34,7 @@ def derivation(demo):
 def test_derive_keeps_the_check_it_made(derivation):
     kept = derivation.heldout_check
     assert kept is not None and kept.kind == "held-out"
-    again = check_heldout(derivation)
+    again = derivation.check_on_heldout()
     assert (kept.n, kept.summary, kept.model_fingerprint) == \
         (again.n, again.summary, again.model_fingerprint)
     assert derivation.model.extra["validation"]["summary"] == kept.summary

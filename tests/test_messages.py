@@ -17,7 +17,8 @@ CORE = ROOT / "core"
 WORDED_ELSEWHERE = ("design/analysis.py", "sizing/derivation.py", "sizing/folds.py",
                     "sizing/grow.py", "sizing/cross_validated_path.py", "cli/common.py",
                     "cli/fit.py", "cli/checking.py", "cli/chart.py", "model/tree.py",
-                    "dictionary/columns.py", "checking/new_patients.py", "checking/nested.py",
+                    "dictionary/columns.py", "dictionary/typed_columns.py",
+                    "checking/new_patients.py", "checking/nested.py",
                     "checking/stability.py", "chart/options.py")
 
 

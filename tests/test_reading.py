@@ -9,9 +9,10 @@ import pandas as pd
 import pytest
 
 from core.data import list_sheets, read_table
-from core.data.cells import parse_dates, parse_numbers, rows_phrase
+from core.data.cells import parse_dates, parse_numbers
 from core.dictionary import infer_dictionary
 from core.errors import InputError
+from core.phrases import rows_phrase
 from tests.helpers import DEMO_CSV, DEMO_XLSX
 
 

@@ -11,7 +11,7 @@ import json
 import numpy as np
 import pytest
 
-from core.checking.new_patients import check_heldout, check_table, match_columns, with_validation
+from core.checking.new_patients import check_table, match_columns, with_validation
 from core.data import LoadedTable
 from core.design import DesignSpec
 from core.errors import InputError
@@ -72,7 +72,7 @@ def test_heldout_check_replaces_the_simple_one(demo):
     record = derivation.model.extra["validation"]
     assert record["kind"] == "held-out" and record["n"] == derivation.heldout.n
     assert "set aside before growing" in record["source"]
-    assert record["summary"] == check_heldout(derivation).summary
+    assert record["summary"] == derivation.check_on_heldout().summary
     assert "Sensitivity" in record["summary"]
     # The model with its check still saves as strict JSON and loads back.
     again = TreeModel.from_dict(json.loads(derivation.model.to_json()))
@@ -83,12 +83,12 @@ def test_heldout_check_replaces_the_simple_one(demo):
     other = choose_model(derivation, 5)
     assert other.model.chosen["leaves"] != derivation.model.chosen["leaves"]
     assert other.model.extra["validation"]["model_fingerprint"] != record["model_fingerprint"]
-    assert other.model.extra["validation"] == check_heldout(other).to_validation_dict()
+    assert other.model.extra["validation"] == other.check_on_heldout().to_validation_dict()
 
 
 def test_heldout_check_needs_a_heldout_part(north):
     with pytest.raises(InputError, match="set aside"):
-        check_heldout(north)
+        north.check_on_heldout()
 
 
 def test_columns_are_matched_by_name_with_an_account(demo, north):

@@ -11,7 +11,7 @@ from dataclasses import dataclass
 from .. import __version__
 from ..cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER, UNCHECKED_DETAIL
 from ..model.tree import ANSWERS, Node, TreeModel
-from ..words import plural, short_fingerprint
+from ..phrases import plural, short_fingerprint
 from .bands import Band, Banding, banding, number, percent, rate_phrase
 from .layout import BoxSpec, Para, TreeSpec
 from .options import ChartOptions

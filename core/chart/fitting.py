@@ -218,7 +218,7 @@ def sizes_that_fit(derivation: "Derivation", options: ChartOptions | None = None
     its side panel is the one it will print. Trees with more boxes than the page could hold
     packed edge to edge, or deeper than any arrangement allows, are skipped before they are
     built."""
-    from ..sizing.derivation import build_model
+    from ..sizing.chosen_tree import build_model
 
     if options is not None and not isinstance(options, ChartOptions):
         raise TypeError("sizes_that_fit takes the chart's ChartOptions, e.g. "

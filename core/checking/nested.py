@@ -11,22 +11,18 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
-from typing import TYPE_CHECKING
 
 import numpy as np
 from joblib import Parallel, delayed
 
 from ..design.analysis import AnalysisData
-from ..errors import Cancelled, InputError
-from ..sizing.cross_validated_path import (
-    CancelFlag, Progress, case_losses, cross_validate_path, path_nodes,
-)
+from ..errors import InputError
+from ..progress import CancelFlag, Progress, stop_if_cancelled
+from ..sizing.cross_validated_path import case_losses, cross_validate_path, path_nodes
 from ..sizing.folds import CVSettings, fold_plan
 from ..sizing.grow import class_costs
+from ..sizing.request import DerivationRequest
 from .metrics import Measures, classification_measures, regression_measures
-
-if TYPE_CHECKING:
-    from ..sizing.derivation import DerivationRequest
 
 DEFAULT_OUTER_FOLDS = 5
 
@@ -72,7 +68,7 @@ def _size_rule(size) -> str:
     return f"at most {size} leaves"
 
 
-def _outer_fold(data: AnalysisData, request: "DerivationRequest", costs, train, test,
+def _outer_fold(data: AnalysisData, request: DerivationRequest, costs, train, test,
                 cancel: CancelFlag | None):
     inner = data.subset(train)
     path = cross_validate_path(inner, request.tree, request.cv, jobs=1, cancel=cancel)
@@ -92,7 +88,7 @@ def _outer_fold(data: AnalysisData, request: "DerivationRequest", costs, train, 
             float(path.cv_risk[index]), len(train))
 
 
-def nested_cross_validate(data: AnalysisData, request: "DerivationRequest",
+def nested_cross_validate(data: AnalysisData, request: DerivationRequest,
                           outer_folds: int = DEFAULT_OUTER_FOLDS, seed: int | None = None,
                           jobs: int = 1, progress: Progress | None = None,
                           cancel: CancelFlag | None = None) -> NestedResult:
@@ -104,10 +100,6 @@ def nested_cross_validate(data: AnalysisData, request: "DerivationRequest",
     called after each outer fold; ``cancel()`` returning True raises :class:`Cancelled`.
     ``jobs`` runs outer folds in parallel (each inner CV then runs on one core).
     """
-    def check_cancel():
-        if cancel is not None and cancel():
-            raise Cancelled()
-
     if outer_folds < 2:
         raise InputError("Nested cross-validation needs at least 2 outer folds.")
     seed = request.cv.seed if seed is None else seed
@@ -117,7 +109,7 @@ def nested_cross_validate(data: AnalysisData, request: "DerivationRequest",
     folds = fold_plan(outer, data.n, y=strat, groups=data.groups)
     costs = (class_costs(request.tree, data.y, len(data.classes))
              if data.task == "classification" else None)
-    check_cancel()
+    stop_if_cancelled(cancel)
     total = len(folds)
     if jobs == 1:
         results = (_outer_fold(data, request, costs, f.train, f.test, cancel) for f in folds)
@@ -130,7 +122,7 @@ def nested_cross_validate(data: AnalysisData, request: "DerivationRequest",
     losses = np.zeros(data.n)
     fold_results = []
     for number, (test, label, probs, loss, leaves, inner_risk, n_train) in enumerate(results, 1):
-        check_cancel()
+        stop_if_cancelled(cancel)
         predicted[test] = label
         if probabilities is not None:
             probabilities[test] = probs

@@ -1,13 +1,14 @@
 """Checking a chosen tree on patients it never saw.
 
 Two sources of separate patients: the part of the derivation file set aside before growing
-(core/sizing/derivation.py makes it when ``DerivationRequest.holdout`` is set), or an external spreadsheet
-from another campus or period. An external file's columns are matched to the model by name,
-with an account of what is missing or extra; its outcome is read with the model's own outcome
-definition; levels the tree never saw at derivation are routed as not recorded and counted.
+(core/sizing/derivation.py sets it aside when ``DerivationRequest.holdout`` is set and checks
+its chosen tree here), or an external spreadsheet from another campus or period. An external
+file's columns are matched to the model by name, with an account of what is missing or extra;
+its outcome is read with the model's own outcome definition; levels the tree never saw at
+derivation are routed as not recorded and counted.
 
-The result is a plain dataclass with every measure (core/checking/metrics.py); ``to_validation_dict``
-gives the short record that the model file, the chart and the app share
+The result is a plain dataclass with every measure (core/checking/metrics.py);
+``to_validation_dict`` gives the short record that the model file, the chart and the app share
 (``model.extra["validation"]``).
 """
 
@@ -17,23 +18,21 @@ import math
 import re
 from dataclasses import asdict, dataclass, replace
 from pathlib import Path
-from typing import TYPE_CHECKING
 
 import numpy as np
 import pandas as pd
 
 from ..data.cells import is_missing_text
 from ..data.table import LoadedTable
-from ..dictionary.columns import ColumnSpec, typed_column
+from ..design.analysis import AnalysisData
+from ..dictionary.columns import ColumnSpec
+from ..dictionary.typed_columns import typed_column
 from ..errors import InputError
 from ..model.tree import TreeModel, column_values
 from .metrics import (
     ClassificationMeasures, DerivationBox, Measures, RegressionMeasures, classification_measures,
     regression_measures,
 )
-
-if TYPE_CHECKING:  # derive.py calls into this module, so no import at run time
-    from ..sizing.derivation import Derivation
 
 
 @dataclass(frozen=True)
@@ -246,17 +245,15 @@ def _unseen_warning(unseen: tuple[tuple[str, int], ...], model: TreeModel) -> li
 # --- the held-out part ------------------------------------------------------------------------
 
 
-def check_heldout(derivation: "Derivation") -> ValidationResult:
-    """Check the derivation's chosen tree on the rows set aside before growing."""
-    model, heldout = derivation.model, derivation.heldout
+def check_heldout(model: TreeModel, heldout: AnalysisData | None, share: float,
+                  data_sha256: str | None) -> ValidationResult:
+    """Check ``model`` on ``heldout``, the rows set aside before growing (``share`` of the
+    patients of the derivation file whose SHA-256 is ``data_sha256``)."""
     if heldout is None:
         raise InputError("No patients were set aside before growing; set a held-out share "
                          "(for example 0.25) and run the derivation again.")
-    asked = set(model.columns_asked())
-    values = {t.spec.name: column_values(t.numbers, t.codes, t.spec) for t in heldout.predictors
-              if t.spec.name in asked}
+    values = model.asked_values(heldout.predictors)
     leaves, unseen = _route(model, values, heldout.n, {})
-    share = derivation.request.holdout
     source = (f"held-out part of {model.extra.get('data', {}).get('file', 'the derivation file')} "
               f"({share:.0%} of patients set aside before growing)")
     patients = int(np.unique(heldout.groups).size) if heldout.groups is not None else None
@@ -264,7 +261,7 @@ def check_heldout(derivation: "Derivation") -> ValidationResult:
         source=source, kind="held-out", n=heldout.n, n_rows=heldout.n, n_excluded=0,
         patients=patients, measures=measure_model(model, heldout.y, leaves), columns=None,
         unseen_levels=unseen, warnings=tuple(_unseen_warning(unseen, model)),
-        model_fingerprint=_fingerprint_without_validation(model), data_sha256=derivation.table.provenance.sha256)
+        model_fingerprint=_fingerprint_without_validation(model), data_sha256=data_sha256)
 
 
 # --- an external file -------------------------------------------------------------------------
@@ -402,13 +399,9 @@ def _fingerprint_without_validation(model: TreeModel) -> str:
     return replace(model, extra=extra).fingerprint
 
 
-def training_measures(derivation: "Derivation") -> Measures:
-    """The chosen tree measured on the very patients it was grown on (resubstitution).
+def training_measures(model: TreeModel, data: AnalysisData) -> Measures:
+    """``model`` measured on ``data``, the very patients it was grown on (resubstitution).
 
     Optimistic by construction: show it only beside the cross-validated and checked measures.
     """
-    model, data = derivation.model, derivation.data
-    asked = set(model.columns_asked())
-    values = {t.spec.name: column_values(t.numbers, t.codes, t.spec) for t in data.predictors
-              if t.spec.name in asked}
-    return measure_model(model, data.y, model.route(values, data.n))
+    return measure_model(model, data.y, model.route(model.asked_values(data.predictors), data.n))

@@ -21,18 +21,16 @@ Where missing values are sent is not compared.
 from __future__ import annotations
 
 from dataclasses import dataclass, replace
-from typing import TYPE_CHECKING
 
 import numpy as np
 from joblib import Parallel, delayed
 
 from ..design.analysis import AnalysisData
-from ..errors import Cancelled, InputError
+from ..errors import InputError
 from ..model.tree import Question, TreeModel
-from ..sizing.cross_validated_path import CancelFlag, Progress, cross_validate_path
-
-if TYPE_CHECKING:
-    from ..sizing.derivation import DerivationRequest
+from ..progress import CancelFlag, Progress, stop_if_cancelled
+from ..sizing.cross_validated_path import cross_validate_path
+from ..sizing.request import DerivationRequest
 
 DEFAULT_RESAMPLES = 200
 THRESHOLD_TOLERANCE = 0.05  # percentile-scale distance within which two thresholds agree
@@ -97,7 +95,7 @@ class Stability:
 # --- one resample -----------------------------------------------------------------------------
 
 
-def _skeleton(data: AnalysisData, request: "DerivationRequest", rows: np.ndarray) -> tuple:
+def _skeleton(data: AnalysisData, request: DerivationRequest, rows: np.ndarray) -> tuple:
     """The tree the whole procedure chooses on ``rows``, as plain nodes.
 
     Returns (leaves, nodes) with nodes[sklearn id] = None for a leaf of the chosen subtree, or
@@ -212,7 +210,7 @@ def _count(model: TreeModel, skeleton: dict, matcher: _Matcher, anywhere: dict, 
 # --- the whole run ----------------------------------------------------------------------------
 
 
-def bootstrap_stability(data: AnalysisData, request: "DerivationRequest", model: TreeModel,
+def bootstrap_stability(data: AnalysisData, request: DerivationRequest, model: TreeModel,
                         resamples: int = DEFAULT_RESAMPLES, seed: int | None = None,
                         jobs: int = 1, progress: Progress | None = None,
                         cancel: CancelFlag | None = None,
@@ -223,17 +221,13 @@ def bootstrap_stability(data: AnalysisData, request: "DerivationRequest", model:
     ``progress(done, total)`` after each resample; ``cancel()`` returning True raises
     :class:`Cancelled`. ``jobs`` resamples run in parallel (joblib).
     """
-    def check_cancel():
-        if cancel is not None and cancel():
-            raise Cancelled()
-
     if resamples < 1:
         raise InputError("The number of bootstrap resamples must be at least 1 (200 is usual).")
     seed = request.cv.seed if seed is None else seed
     patient_level = data.groups is not None
     if not patient_level:  # each visit is its own patient, so its copies share a fold
         data = replace(data, groups=np.arange(data.n, dtype=np.int64))
-    check_cancel()
+    stop_if_cancelled(cancel)
     samples = resample_rows(data, resamples, seed)
     if jobs == 1:
         results = (_skeleton(data, request, rows) for rows in samples)
@@ -248,7 +242,7 @@ def bootstrap_stability(data: AnalysisData, request: "DerivationRequest", model:
     in_place = dict(anywhere)
     sizes, no_question = [], 0
     for done, (leaves, skeleton) in enumerate(results, 1):
-        check_cancel()
+        stop_if_cancelled(cancel)
         sizes.append(leaves)
         root = skeleton.get(0)
         if root is None:

@@ -8,11 +8,12 @@ import sys
 from ..checking.nested import DEFAULT_OUTER_FOLDS
 from ..checking.stability import DEFAULT_RESAMPLES
 from ..data.table import read_table
-from ..dictionary.columns import DataDictionary, dictionary_for, merge_dictionary
+from ..dictionary.columns import DataDictionary
+from ..dictionary.for_table import dictionary_for, merge_dictionary
 from ..errors import InputError
 from ..model.tree import TreeModel
+from ..phrases import short_fingerprint
 from ..safe_files import refuse_overwrite, write_text_atomic
-from ..words import short_fingerprint
 from .common import dictionary_path
 
 
@@ -81,8 +82,10 @@ def run_report(args) -> int:
     import datetime as dt
 
     from ..checking.new_patients import check_table
-    from ..report.rendering import prepare_report, write_report
-    from ..sizing.derivation import DerivationRequest, choose_model, derive
+    from ..report.contents import prepare_report
+    from ..report.rendering import write_report
+    from ..sizing.derivation import choose_model, derive
+    from ..sizing.request import DerivationRequest
 
     inputs = [args.data, args.model] + ([args.external] if args.external else [])
     refuse_overwrite(args.out, *inputs)

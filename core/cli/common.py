@@ -28,7 +28,7 @@ def dictionary_path(given: str | None, data: str) -> str | None:
     app picks that one up too, so both read the same file the same way)."""
     if given is not None:
         return None if given.strip().lower() == "none" else given
-    from ..dictionary.columns import dictionary_beside
+    from ..dictionary.for_table import dictionary_beside
 
     beside = dictionary_beside(data)
     return None if beside is None else str(beside)

@@ -14,7 +14,8 @@ from .. import __version__
 from ..cautions import CAUTION_TITLE, caution_text
 from ..data.table import read_table
 from ..design.analysis import DesignSpec
-from ..dictionary.columns import DataDictionary, dictionary_for
+from ..dictionary.columns import DataDictionary
+from ..dictionary.for_table import dictionary_for
 from ..errors import InputError
 from ..messages.message import distinct_messages, explain
 from ..model.tree import TreeModel
@@ -23,7 +24,8 @@ from .chart import add_fit_chart_options, fit_chart
 from .common import DICTIONARY_HELP, csv_list, dictionary_path
 
 if TYPE_CHECKING:  # scikit-learn loads only when a tree is grown, so bad input is refused fast
-    from ..sizing.derivation import Derivation, DerivationRequest
+    from ..sizing.derivation import Derivation
+    from ..sizing.request import DerivationRequest
 
 
 def add_parsers(sub) -> None:
@@ -73,9 +75,9 @@ def add_parsers(sub) -> None:
 
 def request_from_args(args, dictionary: DataDictionary) -> DerivationRequest:
     """The derivation request described by ``prunella fit`` options."""
-    from ..sizing.derivation import DerivationRequest
     from ..sizing.folds import CVSettings
     from ..sizing.grow import TreeSettings
+    from ..sizing.request import DerivationRequest
 
     if args.outcome not in dictionary:
         dictionary.get(args.outcome)  # raises the "no such column" message

@@ -19,6 +19,7 @@ import numpy as np
 import pandas as pd
 
 from ..messages.message import say
+from ..phrases import rows_phrase
 
 # Cell texts read as "not recorded" in every column (compared case-insensitively, trimmed).
 DEFAULT_MISSING_CODES: tuple[str, ...] = (
@@ -82,27 +83,6 @@ def counted(values: pd.Series) -> tuple[list, np.ndarray]:
     counts = np.bincount(codes[codes >= 0], minlength=len(uniques))
     order = np.argsort(-counts, kind="stable")
     return np.asarray(uniques, dtype=object)[order].tolist(), counts[order]
-
-
-def rows_phrase(rows: Sequence[int] | np.ndarray | None, limit: int = 5) -> str:
-    """' (row 4)', ' (rows 4, 9 and 22)' or ' (rows 4, 9, 22, 31, 40 and 12 more)'; '' if none."""
-    if rows is None:
-        return ""
-    rows = [int(r) for r in np.asarray(rows).ravel()[: limit + 1000]]
-    total = len(rows)
-    if total == 0:
-        return ""
-    if total == 1:
-        return f" (row {rows[0]})"
-    shown = rows[:limit]
-    if total <= limit:
-        return f" (rows {', '.join(map(str, shown[:-1]))} and {shown[-1]})"
-    return f" (rows {', '.join(map(str, shown))} and {total - limit} more)"
-
-
-def strip_rows_phrase(text: str) -> str:
-    """A note without its '(rows …)' part: the same finding reported with and without rows."""
-    return re.sub(r" \(rows? \d[^)]*\)", "", text)
 
 
 def _rows_where(mask: np.ndarray, rows: np.ndarray | None) -> np.ndarray | None:

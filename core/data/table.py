@@ -4,15 +4,15 @@ The source file is only ever opened for reading. Cells keep their raw form here 
 pandas recognises become numbers, everything else stays text); turning text into values is
 the data dictionary's job (core/dictionary/columns.py), so one parser serves every file type.
 
-Text files are read by core/data/text_table.py, workbooks by core/data/xlsx.py; both share the rules
-here for where the header is and for tidying headers and empty rows. Every kept row remembers
-its row number in the spreadsheet, so messages can say where.
+Text files are read by core/data/text_table.py, workbooks by core/data/xlsx.py; both follow
+the rules of core/data/reading_rules.py for where the header is and for tidying headers and
+empty rows. Every kept row remembers its row number in the spreadsheet, so messages can say
+where.
 """
 
 from __future__ import annotations
 
 import hashlib
-import re
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -21,8 +21,10 @@ import pandas as pd
 
 from ..errors import InputError
 from ..messages.message import say
-from ..words import short_fingerprint
-from .cells import rows_phrase
+from ..phrases import short_fingerprint
+from .reading_rules import binary_share, tidy
+from .text_table import read_text
+from .xlsx import read_sheet, sheet_names
 
 TEXT_SUFFIXES = {".csv", ".tsv", ".txt", ".tab"}
 EXCEL_SUFFIXES = {".xlsx", ".xlsm"}
@@ -33,7 +35,6 @@ _OTHER_FILES = ((b"%PDF", "a PDF document"), (b"\x89PNG", "a PNG image"),
                 (b"\x1f\x8b", "a gzip-compressed file"), (b"7z\xbc\xaf", "a 7-Zip archive"),
                 (b"Rar!", "a RAR archive"), (b"SQLite format 3", "an SQLite database"),
                 (b"PAR1", "a Parquet file"), (b"{\\rtf", "an RTF document"))
-_NUMBERISH = re.compile(r"^[+-]?(\d+[.,]?\d*|[.,]\d+)([eE][+-]?\d+)?$")
 
 
 @dataclass(frozen=True)
@@ -103,8 +104,6 @@ def list_sheets(path: str | Path) -> list[str]:
     _check_readable(path)
     if _file_kind(path, _read_head(path)) != "xlsx":
         return []
-    from .xlsx import sheet_names
-
     return sheet_names(path)
 
 
@@ -119,10 +118,8 @@ def read_table(path: str | Path, sheet: str | None = None) -> LoadedTable:
     kind = _file_kind(path, head)
     sha = file_sha256(path)
     if kind == "xlsx":
-        from .xlsx import read_sheet
-
         raw = read_sheet(path, sheet)
-        frame, rows, warnings = _tidy(raw.frame, raw.header, raw.row_numbers,
+        frame, rows, warnings = tidy(raw.frame, raw.header, raw.row_numbers,
                                       f"{path.name}, sheet {raw.sheet!r}", letters=True)
         provenance = Provenance(
             path=str(path), sheet=raw.sheet, sha256=sha, n_rows=len(frame),
@@ -132,8 +129,6 @@ def read_table(path: str | Path, sheet: str | None = None) -> LoadedTable:
         return LoadedTable(frame, provenance)
     if sheet is not None:
         raise InputError(say("read.text_has_no_sheets", file=path.name))
-    from .text_table import read_text
-
     frame, rows, layout, warnings = read_text(path, head)
     provenance = Provenance(
         path=str(path), sheet=None, sha256=sha, n_rows=len(frame), n_columns=frame.shape[1],
@@ -190,132 +185,4 @@ def _file_kind(path: Path, head: bytes) -> str:
 
 
 def _looks_textual(head: bytes) -> bool:
-    return b"\x00" not in head[:8192] and _binary_share(head) < 0.01
-
-
-def _binary_share(head: bytes) -> float:
-    """Share of control characters (other than tab, CR, LF, FF) in the first 8 KB."""
-    chunk = head[:8192]
-    if chunk.startswith((b"\xff\xfe", b"\xfe\xff")):
-        text = chunk.decode("utf-16", errors="replace")
-    else:
-        text = chunk.decode("utf-8", errors="ignore") if _is_utf8(chunk) else \
-            chunk.decode("cp1252", errors="replace")
-    if not text:
-        return 0.0
-    control = sum(1 for ch in text if (ord(ch) < 32 and ch not in "\t\r\n\f") or
-                  ord(ch) == 0x7F)
-    return control / len(text)
-
-
-def _is_utf8(chunk: bytes) -> bool:
-    try:
-        chunk.decode("utf-8")
-        return True
-    except UnicodeDecodeError as exc:
-        return exc.start >= len(chunk) - 3  # a character cut at the sample's end is fine
-
-
-# --- where the header is -------------------------------------------------------------------
-
-
-def _header_index(records: list[list], width: int, path: Path, where: str = "") -> int:
-    """The first record that looks like column names: filled enough, and mostly words."""
-    where = where or path.name
-    need = max(1, int(np.ceil(0.5 * width)))
-    filled = [[str(c).strip() for c in r if c is not None and str(c).strip()]
-              for r in records[:31]]
-    for index, cells in enumerate(filled[:30]):
-        if len(cells) < need:
-            continue
-        later = next((f for f in filled[index + 1:] if f), [])
-        if width > 1 and len(cells) == 1 and len(later) >= 2:
-            continue  # a title above a wider table
-        words = [c for c in cells if not _NUMBERISH.match(c)]
-        if not words:
-            raise InputError(say("read.no_header", where=where, row=index + 1,
-                                 examples=", ".join(cells[:4])))
-        if len(words) >= 0.5 * len(cells):
-            return index
-    for index, record in enumerate(records):
-        if any(str(c).strip() for c in record if c is not None):
-            return index
-    raise InputError(say("read.zero_bytes", file=path.name))
-
-
-# --- common tidying -------------------------------------------------------------------------
-
-
-def _span(first: int, count: int) -> str:
-    return f"row {first}" if count <= 1 else f"rows {first}–{first + count - 1}"
-
-
-def column_name_at(position: int, letters: bool) -> str:
-    """How a spreadsheet names the column at ``position`` (0-based): 'C' or 'column 3'."""
-    if letters:
-        from openpyxl.utils import get_column_letter
-
-        return get_column_letter(position + 1)
-    return str(position + 1)
-
-
-def _clean_header(value) -> str:
-    if value is None or (isinstance(value, float) and np.isnan(value)):
-        return ""
-    if isinstance(value, float) and value == int(value):
-        value = int(value)
-    return re.sub(r"\s+", " ", str(value)).strip()
-
-
-def _tidy(frame: pd.DataFrame, header: list, rows: np.ndarray, where: str,
-          letters: bool = False) -> tuple[pd.DataFrame, np.ndarray, list[str]]:
-    """Name columns from ``header``, drop empty rows/columns, and report odd headers."""
-    warnings: list[str] = []
-    names = [_clean_header(h) for h in header]
-    frame = frame.copy(deep=False)
-    frame.columns = range(frame.shape[1])
-    empty = frame.isna().all(axis=0).to_numpy()
-    drop = [j for j in range(frame.shape[1]) if empty[j] and not names[j]]
-    if drop:
-        frame = frame.drop(columns=drop)
-        warnings.append(say("read.empty_columns", n=len(drop), where=where,
-                            columns=", ".join(column_name_at(j, letters) for j in drop[:8])))
-    dropped = set(drop)
-    kept = [j for j in range(len(names)) if j not in dropped]
-    names = [names[j] for j in kept]
-    blank_rows = frame.isna().all(axis=1).to_numpy()
-    if blank_rows.any():
-        frame = frame.loc[~blank_rows]
-        warnings.append(say("read.empty_rows", n=int(blank_rows.sum()), where=where,
-                            rows=rows_phrase(rows[blank_rows])))
-        rows = rows[~blank_rows]
-    frame = frame.reset_index(drop=True)
-    if frame.shape[1] == 0:
-        raise InputError(say("read.no_columns", where=where))
-    blank = [i for i, n in enumerate(names) if not n]
-    if blank:
-        labels = [column_name_at(kept[i], letters) for i in blank]
-        for i, label in zip(blank, labels):
-            names[i] = f"column {label}"
-        warnings.append(say("read.blank_headers", where=where, columns=", ".join(labels[:8])))
-    seen: dict[str, int] = {}
-    final = []
-    for index, name in enumerate(names):
-        key = name
-        if key in seen:
-            seen[key] += 1
-            new = f"{name} ({seen[key]})"
-            warnings.append(say("read.duplicate_header", where=where, name=name, new=new,
-                                column=column_name_at(kept[index], letters)))
-            final.append(new)
-        else:
-            seen[key] = 1
-            final.append(name)
-    frame.columns = final
-    if len(frame) == 0:
-        raise InputError(say("read.header_only", where=where))
-    return frame, np.asarray(rows, dtype=np.int64), warnings
-
-
-def _first_line(exc: Exception) -> str:
-    return str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
+    return b"\x00" not in head[:8192] and binary_share(head) < 0.01

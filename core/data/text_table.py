@@ -21,7 +21,7 @@ import pandas as pd
 
 from ..errors import InputError
 from ..messages.message import say
-from .table import _binary_share, _first_line, _header_index, _span, _tidy
+from .reading_rules import binary_share, first_line, header_index, span, tidy
 
 _DELIMITERS = (",", ";", "\t", "|")
 _DELIMITER_NAMES = {",": "commas", ";": "semicolons", "\t": "tabs", "|": "bars (|)"}
@@ -86,9 +86,9 @@ def _layout(sample: str, truncated: bool, path: Path) -> dict:
     if best is None:
         raise InputError(say("read.unparseable", file=path.name, detail="no delimiter fits"))
     _, delimiter, records, width = best
-    header_index = _header_index(records, width, path)
-    header = records[header_index]
-    data = [r for r in records[header_index + 1:] if any(c.strip() for c in r)][:200]
+    at = header_index(records, width, path)
+    header = records[at]
+    data = [r for r in records[at + 1:] if any(c.strip() for c in r)][:200]
     decimal = "."
     if delimiter != ",":
         cells = [c.strip() for r in data for c in r]
@@ -96,10 +96,10 @@ def _layout(sample: str, truncated: bool, path: Path) -> dict:
         points = sum(1 for c in cells if re.fullmatch(r"[+-]?\d+\.\d+", c))
         if commas and commas >= points:
             decimal = ","
-    return {"delimiter": delimiter, "header_index": header_index, "header": header,
-            "records": records[header_index + 1:header_index + 201],
-            "decimal": decimal, "header_row": header_index + 1,
-            "titles": [r for r in records[:header_index] if any(c.strip() for c in r)]}
+    return {"delimiter": delimiter, "header_index": at, "header": header,
+            "records": records[at + 1:at + 201],
+            "decimal": decimal, "header_row": at + 1,
+            "titles": [r for r in records[:at] if any(c.strip() for c in r)]}
 
 
 def read_text(path: Path, head: bytes):
@@ -108,7 +108,7 @@ def read_text(path: Path, head: bytes):
         raise InputError(say("read.blank", file=path.name))
     if not head.startswith((b"\xff\xfe", b"\xfe\xff")) and (b"\x00" in head[:8192]):
         raise InputError(say("read.binary", file=path.name))
-    if _binary_share(head) > 0.01:
+    if binary_share(head) > 0.01:
         raise InputError(say("read.binary", file=path.name))
     lowered = head[:512].lstrip().lower()
     if lowered.startswith((b"<!doctype html", b"<html", b"<table", b"<?xml")):
@@ -123,7 +123,7 @@ def read_text(path: Path, head: bytes):
         warnings.append(say("read.xls_text", file=path.name))
     if layout["titles"]:
         warnings.append(say("read.title_rows", where=path.name,
-                            lines=_span(1, layout["header_index"]),
+                            lines=span(1, layout["header_index"]),
                             title=" ".join(c.strip() for c in layout["titles"][0] if c.strip())[:60],
                             header_row=layout["header_row"]))
     delimiter, decimal = layout["delimiter"], layout["decimal"]
@@ -148,13 +148,13 @@ def read_text(path: Path, head: bytes):
     except MemoryError:
         raise InputError(say("read.too_big", file=path.name)) from None
     except (UnicodeDecodeError, ValueError, OverflowError) as exc:
-        raise InputError(say("read.unparseable", file=path.name, detail=_first_line(exc))) from None
+        raise InputError(say("read.unparseable", file=path.name, detail=first_line(exc))) from None
     header = list(layout["header"])
     if len(header) != frame.shape[1]:
         header = ["" if str(c).startswith("Unnamed:") else str(c) for c in frame.columns]
     rows = np.arange(len(frame)) + layout["header_row"] + 1
-    frame, rows, tidy = _tidy(frame, header, rows, path.name)
-    return frame, rows, layout, warnings + tidy
+    frame, rows, notes = tidy(frame, header, rows, path.name)
+    return frame, rows, layout, warnings + notes
 
 
 def _wider_than_header(path: Path, layout: dict, options: dict, delimiter: str) -> pd.DataFrame:
@@ -182,4 +182,4 @@ def _parser_message(path: Path, exc: Exception, delimiter: str) -> str:
     match = re.search(r"EOF inside string starting at row (\d+)", text)
     if match:
         return say("read.open_quote", file=path.name, line=int(match.group(1)) + 1)
-    return say("read.unparseable", file=path.name, detail=_first_line(exc))
+    return say("read.unparseable", file=path.name, detail=first_line(exc))

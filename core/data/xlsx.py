@@ -21,8 +21,9 @@ import pandas as pd
 
 from ..errors import InputError
 from ..messages.message import say
-from .cells import SPREADSHEET_ERRORS, rows_phrase
-from .table import _header_index, _span
+from ..phrases import rows_phrase
+from .cells import SPREADSHEET_ERRORS
+from .reading_rules import header_index, span
 
 _NS = "{http://schemas.openxmlformats.org/spreadsheetml/2006/main}"
 _PLAIN_NUMBER = re.compile(r"^[+-]?(0|[1-9]\d*)(\.\d+)?([eE][+-]?\d+)?$|^[+-]?0?\.\d+$")
@@ -119,7 +120,7 @@ def _read(book, path: Path, sheet: str | None) -> SheetRead:
     _fill_merged_headers(rows, xml.merged, limit=_HEADER_SCAN + 2)
 
     scan = [["" if not _filled(v) else str(v) for v in r] for r in rows[:_HEADER_SCAN]]
-    h = _header_index(scan, width, path, where)
+    h = header_index(scan, width, path, where)
     header = list(rows[h]) + [None] * (width - len(rows[h]))
     header = header[:width]
     first_data = h + 1
@@ -139,7 +140,7 @@ def _read(book, path: Path, sheet: str | None) -> SheetRead:
     titles = [r for r in rows[:h] if any(_filled(v) for v in r)]
     if titles:
         title = " ".join(str(v) for v in titles[0] if _filled(v))[:60]
-        warnings.append(say("read.title_rows", where=where, lines=_span(1, h), title=title,
+        warnings.append(say("read.title_rows", where=where, lines=span(1, h), title=title,
                             header_row=h + 1))
     body = rows[first_data:]
     numbers = np.arange(first_data + 1, first_data + 1 + len(body), dtype=np.int64)

@@ -34,9 +34,11 @@ from ..dictionary.columns import DataDictionary
 from ..dictionary.identity import (
     IdentityHint, identity_by_header, identity_hint, looks_like_record_numbers,
 )
-from ..errors import Cancelled, InputError
+from ..errors import InputError
 from ..messages.message import catalogue, say
-from .analysis import AnalysisData, DesignSpec, fit_encoding, prepare_analysis
+from ..progress import stop_if_cancelled
+from .analysis import AnalysisData, DesignSpec, prepare_analysis
+from .matrix import fit_encoding
 
 LEAKAGE_AUC = 0.97
 LEAKAGE_ERROR_SHARE = 0.10
@@ -168,8 +170,7 @@ def leakage_findings(data: AnalysisData, grouped: bool = True, seed: int = 0,
     n_classes = len(data.classes)
     found = []
     for column in data.predictors:
-        if cancel is not None and cancel():
-            raise Cancelled()
+        stop_if_cancelled(cancel)
         single = replace(data, predictors=(column,))
         scores = np.zeros((data.n, n_classes)) if classification else np.zeros(data.n)
         for fold in folds:

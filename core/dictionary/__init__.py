@@ -4,6 +4,8 @@ from ..package_face import lazy_face
 
 __getattr__, __dir__, __all__ = lazy_face(__name__, {
     "columns": ("CATEGORY_KINDS", "KINDS", "PREDICTOR_KINDS", "ROLES", "ColumnSpec",
-        "DataDictionary", "dictionary_beside", "dictionary_for", "infer_dictionary",
-        "merge_dictionary", "positive_level", "typed_column"),
+        "DataDictionary"),
+    "inference": ("infer_dictionary",),
+    "for_table": ("dictionary_beside", "dictionary_for", "merge_dictionary"),
+    "typed_columns": ("positive_level", "typed_column"),
 })

@@ -12,18 +12,13 @@ from __future__ import annotations
 import csv
 import io
 import json
-from collections.abc import Iterable, Sequence
-from dataclasses import asdict, dataclass, field, replace
+from collections.abc import Iterable
+from dataclasses import asdict, dataclass, replace
 from pathlib import Path
 
-import numpy as np
-import pandas as pd
-
-from ..data.cells import (
-    YES_WORDS, counted, is_missing_text, level_text, parse_levels, parse_numbers,
-)
 from ..errors import InputError
 from ..messages.message import say
+from ..safe_files import check_format, read_json_document, write_text_atomic
 
 ROLES = ("outcome", "predictor", "patient_id", "site", "ignore")
 KINDS = ("numeric", "binary", "ordinal", "nominal", "identifier", "date", "text")
@@ -155,8 +150,6 @@ class DataDictionary:
     @classmethod
     def from_dict(cls, data: dict, name: str = "The data dictionary") -> "DataDictionary":
         """A dictionary from parsed JSON; refuses other files, other versions, wrong types."""
-        from ..safe_files import check_format
-
         check_format(data, "dictionary", DICTIONARY_VERSIONS, name)
         columns = data.get("columns", [])
         if not isinstance(columns, list):
@@ -165,8 +158,6 @@ class DataDictionary:
 
     def save(self, path: str | Path) -> None:
         """Save as JSON (``.json``) or CSV (any other suffix), atomically."""
-        from ..safe_files import write_text_atomic
-
         path = Path(path)
         if path.suffix.lower() == ".json":
             write_text_atomic(path, json.dumps(self.to_dict(), indent=2, ensure_ascii=False) + "\n")
@@ -187,8 +178,6 @@ class DataDictionary:
         if not path.exists():
             raise InputError(f"No data dictionary at {path}; check the path.")
         if path.suffix.lower() == ".json":
-            from ..safe_files import read_json_document
-
             data = read_json_document(path, "dictionary", DICTIONARY_VERSIONS)
             return cls.from_dict(data, path.name)
         try:
@@ -216,103 +205,3 @@ def _natural_key(level: str):
         return (0, float(level), level)
     except ValueError:
         return (1, 0.0, level.casefold())
-
-
-def infer_dictionary(frame: pd.DataFrame, row_numbers: Sequence[int] | np.ndarray | None = None,
-                     ) -> tuple[DataDictionary, list[str]]:
-    """Infer a dictionary entry for every column; returns the dictionary and notes.
-
-    ``row_numbers`` (e.g. ``LoadedTable.row_numbers``) lets the notes say which rows.
-    Implemented in core/dictionary/inference.py.
-    """
-    from .inference import infer_dictionary as infer
-
-    return infer(frame, row_numbers)
-
-
-def merge_dictionary(inferred: DataDictionary, given: DataDictionary) -> tuple[DataDictionary, list[str]]:
-    """Entries from a saved dictionary override the inferred ones, column by column."""
-    notes = []
-    given_names = set(given.names)
-    merged = tuple(given.get(c.name) if c.name in given_names else c for c in inferred.columns)
-    absent = [n for n in given.names if n not in inferred]
-    if absent:
-        notes.append(say("dictionary.absent_columns",
-                         columns=", ".join(map(repr, absent[:20]))
-                         + (" …" if len(absent) > 20 else "")))
-    return DataDictionary(merged), notes
-
-
-# --- typed values ---------------------------------------------------------------------------
-
-
-@dataclass(frozen=True)
-class TypedColumn:
-    """One column's values ready for analysis."""
-
-    spec: ColumnSpec
-    numbers: np.ndarray | None = field(default=None, repr=False)  # numeric kind
-    codes: np.ndarray | None = field(default=None, repr=False)  # category kinds, -1 = missing
-    notes: tuple[str, ...] = ()
-
-    @property
-    def missing(self) -> np.ndarray:
-        if self.numbers is not None:
-            return np.isnan(self.numbers)
-        return self.codes < 0
-
-
-def typed_column(values: pd.Series, spec: ColumnSpec) -> TypedColumn:
-    """Parse one column according to its dictionary entry."""
-    # Notes name the column by its header, as the user finds it in the spreadsheet.
-    if spec.kind == "numeric":
-        parsed = parse_numbers(values, spec.missing_codes, spec.name)
-        return TypedColumn(spec, numbers=parsed.values, notes=parsed.notes)
-    if spec.kind in CATEGORY_KINDS:
-        levels = spec.levels
-        if not levels:
-            present = level_text(values[~is_missing_text(values, spec.missing_codes)])
-            levels = tuple(canonical_levels(str(v) for v in counted(present)[0]))
-            spec = replace(spec, levels=levels)
-        cat, notes = parse_levels(values, levels, spec.missing_codes, spec.name)
-        return TypedColumn(spec, codes=np.asarray(cat.codes, dtype=np.int32), notes=notes)
-    raise InputError(f"Column {spec.display!r} is of kind {spec.kind!r}, which cannot be used "
-                     "in a tree; set its kind to numeric, binary, ordinal or nominal.")
-
-
-def positive_level(spec: ColumnSpec) -> str:
-    """The positive class of a binary outcome: as set, else 'yes'/'1'/the second level."""
-    if spec.positive:
-        if spec.positive not in spec.levels:
-            raise InputError(f"The positive class {spec.positive!r} is not a level of "
-                             f"{spec.display!r} (levels: {', '.join(spec.levels)}).")
-        return spec.positive
-    for level in spec.levels:
-        if level.casefold() in YES_WORDS:
-            return level
-    return spec.levels[-1]
-
-
-def dictionary_beside(path: str | Path) -> Path | None:
-    """A dictionary saved next to the data as NAME.dictionary.json (or .csv), if there is one."""
-    path = Path(path)
-    for suffix in (".dictionary.json", ".dictionary.csv"):
-        candidate = path.with_name(path.stem + suffix)
-        if candidate.is_file():
-            return candidate
-    return None
-
-
-def dictionary_for(table, dictionary_path: str | Path | DataDictionary | None = None,
-                   ) -> tuple[DataDictionary, list[str]]:
-    """The dictionary of a loaded table: inferred from its cells (notes naming rows), overridden
-    column by column by a saved dictionary (a file, or one already in hand such as a
-    project's) if one is given; with the notes of both steps."""
-    inferred, notes = infer_dictionary(table.frame, table.row_numbers)
-    if isinstance(dictionary_path, DataDictionary):
-        merged, more = merge_dictionary(inferred, dictionary_path)
-        return merged, notes + more
-    if dictionary_path:
-        merged, more = merge_dictionary(inferred, DataDictionary.load(dictionary_path))
-        return merged, [say("dictionary.used", file=Path(dictionary_path).name)] + notes + more
-    return inferred, notes

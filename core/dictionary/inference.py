@@ -16,10 +16,9 @@ from dataclasses import replace
 import numpy as np
 import pandas as pd
 
-from ..data.cells import (
-    missing_texts, parse_dates, parse_numbers, profile_cells, rows_phrase, yes_no_levels,
-)
+from ..data.cells import missing_texts, parse_dates, parse_numbers, profile_cells, yes_no_levels
 from ..messages.message import catalogue, say
+from ..phrases import rows_phrase
 from .columns import MAX_NOMINAL_LEVELS, ColumnSpec, DataDictionary, canonical_levels
 from .identity import identity_hint, looks_like_record_numbers
 

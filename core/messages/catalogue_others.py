@@ -52,7 +52,7 @@ ELSEWHERE = [
      "core/design/analysis.py"),
     ("variables.positive_not_level", "refused", "The positive class {positive!r} is not a "
      "level of {name!r} (levels: {levels}).", "Give one of the listed levels.",
-     "core/dictionary/columns.py"),
+     "core/dictionary/typed_columns.py"),
     ("variables.no_column", "refused", "There is no column called {name!r}; the columns are: "
      "{columns}{more}.", "Use the column name exactly as in the header row.",
      "core/dictionary/columns.py"),
@@ -71,7 +71,7 @@ ELSEWHERE = [
      "Add the header row the dictionary CSV needs.", "core/dictionary/columns.py"),
     ("variables.kind_not_in_tree", "refused", "Column {name!r} is of kind {kind!r}, which "
      "cannot be used in a tree; set its kind to numeric, binary, ordinal or nominal.",
-     "Change its kind, or leave it out.", "core/dictionary/columns.py"),
+     "Change its kind, or leave it out.", "core/dictionary/typed_columns.py"),
     ("derive.held_out", "note", "{n} of {total} rows were set aside before growing, to check "
      "the tree on patients it never saw.", "Nothing to do.", "core/sizing/derivation.py"),
     ("derive.class_left_out", "refused", "After setting patients aside, one outcome class has "

@@ -14,6 +14,8 @@ import string
 from dataclasses import dataclass
 from functools import lru_cache
 
+from ..phrases import strip_rows_phrase
+
 SEVERITIES = ("refused", "warning", "note")
 
 
@@ -127,8 +129,6 @@ def app_advice(message: str) -> str | None:
 def distinct_messages(messages) -> list[str]:
     """Messages in order without repeats; a finding given with and without rows counts once
     (the version with rows is kept)."""
-    from ..data.cells import strip_rows_phrase
-
     kept: dict[str, str] = {}
     for message in messages:
         key = strip_rows_phrase(message)

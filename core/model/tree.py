@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import hashlib
 import json
+from collections.abc import Iterable
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -17,10 +18,11 @@ import pandas as pd
 
 from ..checking.intervals import mean_interval
 from ..checking.metrics import Proportion, proportion
-from ..dictionary.columns import ColumnSpec, typed_column
+from ..dictionary.columns import ColumnSpec
+from ..dictionary.typed_columns import TypedColumn, typed_column
 from ..errors import InputError
+from ..phrases import short_fingerprint
 from ..safe_files import check_format, read_json_document, write_text_atomic
-from ..words import short_fingerprint
 from .file_checks import validate_model_dict
 from .thresholds import format_number
 
@@ -336,6 +338,13 @@ class TreeModel:
 
     def columns_asked(self) -> list[str]:
         return sorted({n.question.column for n in self.nodes if n.question is not None})
+
+    def asked_values(self, columns: Iterable[TypedColumn]) -> dict[str, np.ndarray]:
+        """The values of the typed columns this tree asks about, as :meth:`route` reads them
+        (e.g. the predictors of an analysis's rows)."""
+        asked = set(self.columns_asked())
+        return {t.spec.name: column_values(t.numbers, t.codes, t.spec) for t in columns
+                if t.spec.name in asked}
 
     def route(self, values: dict[str, np.ndarray], n: int) -> np.ndarray:
         """Box number reached by each of ``n`` rows, given each asked column's values."""

@@ -23,7 +23,7 @@ from ..dictionary.columns import DataDictionary
 from ..errors import InputError
 from ..messages.message import say
 from ..safe_files import check_format, read_json_document, write_text_atomic
-from ..sizing.derivation import DerivationRequest
+from ..sizing.request import DerivationRequest
 from .file_checks import validate_project_dict
 
 PROJECT_FORMAT = "prunella-project/1"

@@ -3,6 +3,8 @@
 from ..package_face import lazy_face
 
 __getattr__, __dir__, __all__ = lazy_face(__name__, {
-    "rendering": ("ReportContents", "SECTIONS", "prepare_report", "render_report", "write_report"),
+    "contents": ("ReportContents", "prepare_report"),
+    "rendering": ("render_report", "write_report"),
+    "section_numbers": ("SECTIONS",),
     "figures": ("calibration_figure", "roc_figure", "stability_figure"),
 })

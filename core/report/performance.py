@@ -15,7 +15,7 @@ from .section_numbers import section
 from .style import Styles, figure, figures_side_by_side, para, table, text
 
 if TYPE_CHECKING:
-    from .rendering import ReportContents
+    from .contents import ReportContents
 
 
 def risk_text(value: float, task: str) -> str:
@@ -60,7 +60,7 @@ def performance_section(c: ReportContents, s: Styles) -> list:
     ch, task = model.chosen, model.task
     rows = [head,
             _perf_row("Training (optimistic)", "the derivation patients themselves", model.n_rows,
-                      training_measures(der), risk_text(ch["train_risk"], task), s),
+                      training_measures(model, der.data), risk_text(ch["train_risk"], task), s),
             _perf_row("Cross-validated", model.path.get("cv", "cross-validation"), model.n_rows,
                       None, f"{risk_text(ch['cv_risk'], task)} ± {risk_text(ch['cv_se'], task)}", s)[:width]]
     if c.nested is not None:

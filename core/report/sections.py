@@ -15,7 +15,7 @@ from reportlab.platypus import KeepTogether, Paragraph
 from .. import __version__
 from ..cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER, UNCHECKED_DETAIL
 from ..chart.options import SMALL_GROUP  # the chart dashes the boxes the report flags
-from ..words import plural, short_fingerprint
+from ..phrases import plural, short_fingerprint
 from .figures import pruning_curve_figure, stability_figure
 from .performance import performance_section, risk_text
 from .section_numbers import section
@@ -23,7 +23,7 @@ from .style import Styles, caution_box, chart_figure, figure, para, table, text
 from .tripod import tripod_rows
 
 if TYPE_CHECKING:
-    from .rendering import ReportContents
+    from .contents import ReportContents
 
 
 # --- helpers ----------------------------------------------------------------------------------
@@ -54,7 +54,7 @@ def _site_counts(contents: ReportContents) -> dict[str, int]:
 # --- title page -------------------------------------------------------------------------------
 
 
-def _title_page(c: ReportContents, title: str, s: Styles) -> list:
+def title_page(c: ReportContents, title: str, s: Styles) -> list:
     model = c.model
     data = model.extra.get("data", {})
     printed = f" · printed {c.printed}" if c.printed else ""

@@ -6,5 +6,6 @@ __getattr__, __dir__, __all__ = lazy_face(__name__, {
     "grow": ("TreeSettings",),
     "folds": ("CVSettings",),
     "cross_validated_path": ("cross_validate_path", "one_se_limit"),
-    "derivation": ("Derivation", "DerivationRequest", "choose_model", "derive"),
+    "request": ("DerivationRequest",),
+    "derivation": ("Derivation", "choose_model", "derive"),
 })

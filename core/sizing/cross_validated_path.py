@@ -11,19 +11,18 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 from functools import cached_property
-from typing import Callable, Sequence
+from typing import Sequence
 
 import numpy as np
 from joblib import Parallel, delayed
 
-from ..design.analysis import AnalysisData, Encoding, fit_encoding
-from ..errors import Cancelled, InputError
+from ..design.analysis import AnalysisData
+from ..design.matrix import Encoding, fit_encoding
+from ..errors import InputError
+from ..progress import CancelFlag, Progress, stop_if_cancelled
 from .folds import CVSettings, fold_plan
 from .grow import ClassCosts, GrownTree, TreeSettings, class_costs, grow_tree
 from .prune import PruningSequence, collapse_alphas, pruning_sequence
-
-Progress = Callable[[int, int], None]
-CancelFlag = Callable[[], bool]
 
 _CHUNK_CELLS = 4_000_000  # cases × grid values routed at once, to cap memory
 
@@ -176,14 +175,10 @@ def cross_validate_path(data: AnalysisData, settings: TreeSettings, cv: CVSettin
     ``progress(done, total)`` is called after the full tree and after each fold; when
     ``cancel()`` returns True the work stops and :class:`Cancelled` is raised.
     """
-    def check_cancel():
-        if cancel is not None and cancel():
-            raise Cancelled()
-
     strat = data.y if data.task == "classification" else None
     folds = fold_plan(cv, data.n, y=strat, groups=data.groups, sites=data.sites)
     total = len(folds) + 1
-    check_cancel()
+    stop_if_cancelled(cancel)
     if grown is None:
         grown = grow_full(data, settings)
     if progress:
@@ -198,7 +193,7 @@ def cross_validate_path(data: AnalysisData, settings: TreeSettings, cv: CVSettin
     # folds without code changes; jobs=None defers to that backend's own default.
     results = Parallel(n_jobs=jobs, return_as="generator_unordered")(tasks)
     for test, losses in results:
-        check_cancel()
+        stop_if_cancelled(cancel)
         sums[test] += losses
         times[test] += 1
         done += 1

@@ -1,4 +1,5 @@
-"""The whole derivation in one call: table → analysis → grown tree → CV path → chosen model.
+"""The whole derivation in one call: table → analysis → grown tree → CV path → chosen model,
+checked on the patients set aside before growing (if any).
 
 The GUI, the command line and the tests all call :func:`derive` and :func:`choose_model`, so
 each user path runs exactly the same code.
@@ -7,56 +8,20 @@ each user path runs exactly the same code.
 from __future__ import annotations
 
 from dataclasses import dataclass, field, replace
-from typing import TYPE_CHECKING
 
 import numpy as np
-import pandas as pd
 
-from .. import __version__
-from ..data.cells import parse_dates
+from ..checking.new_patients import ValidationResult, check_heldout, with_validation
 from ..data.table import LoadedTable
-from ..design.analysis import AnalysisData, DesignSpec, MatrixColumn, prepare_analysis
+from ..design.analysis import AnalysisData, prepare_analysis
 from ..dictionary.columns import DataDictionary
 from ..errors import InputError
-from ..model.thresholds import round_threshold
-from ..model.tree import (
-    Node, Question, TreeModel, column_values, expected_outcome, question_text, shared_count,
-)
-from .cross_validated_path import CancelFlag, CrossValidatedPath, Progress, cross_validate_path
-from .folds import CVSettings, holdout_split
-from .grow import TreeSettings
-from .prune import parents_of
-
-if TYPE_CHECKING:  # validate reads Derivation objects, so it is imported only where needed
-    from ..checking.new_patients import ValidationResult
-
-
-@dataclass(frozen=True)
-class DerivationRequest:
-    """Everything the user chose before pressing Run."""
-
-    design: DesignSpec
-    tree: TreeSettings = TreeSettings()
-    cv: CVSettings = CVSettings()
-    holdout: float | None = None  # share of patients set aside before growing
-    size: str | int = "1se"
-
-    def to_dict(self) -> dict:
-        d = self.design
-        return {"design": {"outcome": d.outcome, "predictors": list(d.predictors), "task": d.task,
-                           "positive": d.positive, "patient_id": d.patient_id, "site": d.site},
-                "tree": self.tree.to_dict(), "cv": self.cv.to_dict(), "holdout": self.holdout,
-                "size": self.size}
-
-    @classmethod
-    def from_dict(cls, data: dict) -> "DerivationRequest":
-        d = data["design"]
-        design = DesignSpec(outcome=d["outcome"], predictors=tuple(d["predictors"]),
-                            task=d.get("task"), positive=d.get("positive"),
-                            patient_id=d.get("patient_id"), site=d.get("site"))
-        return cls(design=design, tree=TreeSettings.from_dict(data.get("tree", {})),
-                   cv=CVSettings.from_dict(data.get("cv", {})), holdout=data.get("holdout"),
-                   size=data.get("size", "1se"))
+from ..model.tree import TreeModel
+from ..progress import CancelFlag, Progress
+from .chosen_tree import build_model
+from .cross_validated_path import CrossValidatedPath, cross_validate_path
+from .folds import holdout_split
+from .request import DerivationRequest
 
 
 @dataclass(frozen=True)
@@ -72,7 +37,13 @@ class Derivation:
     model: TreeModel = field(repr=False)
     notes: tuple[str, ...] = ()
     # The chosen tree's check on the held-out rows, made once here so no caller redoes it.
-    heldout_check: "ValidationResult | None" = field(default=None, repr=False)
+    heldout_check: ValidationResult | None = field(default=None, repr=False)
+
+    def check_on_heldout(self) -> ValidationResult:
+        """The chosen tree checked on the rows set aside before growing (refused when none
+        were); what ``heldout_check`` holds, made anew."""
+        return check_heldout(self.model, self.heldout, self.request.holdout,
+                             self.table.provenance.sha256)
 
 
 def derive(table: LoadedTable, dictionary: DataDictionary, request: DerivationRequest,
@@ -109,187 +80,10 @@ def choose_model(derivation: Derivation, size: str | int) -> Derivation:
     return _checked(replace(derivation, model=model, heldout_check=None))
 
 
-# --- building the plain model ---------------------------------------------------------------
-
-
-def build_model(path: CrossValidatedPath, index: int, rule: str, table: LoadedTable,
-                dictionary: DataDictionary, request: DerivationRequest) -> TreeModel:
-    """The subtree at position ``index`` of the pruning sequence, as a plain TreeModel."""
-    grown = path.grown
-    data, tree, encoding = grown.data, grown.tree, grown.encoding
-    internal = grown.sequence.internal_at(path.grid[index])
-    X = grown.matrix
-    membership = grown.membership
-    order = _breadth_first(tree, internal)  # (sklearn node id, depth) in box order
-    box_of = {node: i + 1 for i, (node, _) in enumerate(order)}
-    nodes = []
-    for node, depth in order:
-        stats = _node_stats(tree, node, data)
-        if internal[node]:
-            rows = membership.indices[membership.indptr[node]:membership.indptr[node + 1]]
-            column = encoding.columns[tree.feature[node]]
-            question = _question(column, tree, node, X[rows], data, rows)
-            yes, no = tree.children_right[node], tree.children_left[node]
-            spec = column.spec
-            nodes.append(Node(id=box_of[node], depth=depth, question=question,
-                              children=(box_of[yes], box_of[no]),
-                              text=question_text(question, spec), **stats))
-        else:
-            nodes.append(Node(id=box_of[node], depth=depth, text=_outcome_text(stats, data),
-                              **stats))
-    sequence = grown.sequence
-    path_dict = {
-        "leaves": sequence.leaves.tolist(),
-        "alpha": sequence.alpha.tolist(),
-        "train_risk": sequence.train_risk.tolist(),
-        "cv_risk": path.cv_risk.tolist(),
-        "cv_se": path.cv_se.tolist(),
-        "grid_alpha": [None if not np.isfinite(a) else float(a) for a in path.grid],
-        "risk_measure": ("mean squared error" if data.task == "regression"
-                         else "expected misclassification cost per patient"),
-        "cv": path.description,
-        "folds": path.n_folds,
-        "min_leaves": int(sequence.leaves[path.min_index]),
-        "one_se_leaves": int(sequence.leaves[path.one_se_index]),
-        # Each box's collapse α (None for outcome boxes): the smaller trees of the sequence
-        # are this tree's boxes collapsed at each α, so a saved model knows them itself.
-        "collapse_alpha": [float(sequence.collapse[node]) if internal[node] else None
-                           for node, _ in order],
-    }
-    chosen = {"leaves": int(sequence.leaves[index]), "rule": rule,
-              "cv_risk": float(path.cv_risk[index]), "cv_se": float(path.cv_se[index]),
-              "train_risk": float(sequence.train_risk[index])}
-    used = sorted({encoding.columns[f].spec.name for f in set(tree.feature[internal].tolist())})
-    predictors = tuple(p.spec for p in data.predictors)
-    extra = {
-        "prunella_version": __version__,
-        "settings": request.to_dict(),
-        "data": {"file": table.provenance.path.split("/")[-1], "sheet": table.provenance.sheet,
-                 "sha256": table.provenance.sha256, "rows_in_file": table.provenance.n_rows},
-        "cohort": _cohort(table.frame, dictionary, data, request),
-        "columns_asked": used,
-    }
-    if grown.costs is not None:
-        extra["costs"] = {"priors": grown.costs.priors.tolist(), "loss": grown.costs.loss.tolist()}
-    model = TreeModel(task=data.task, outcome=data.outcome, classes=data.classes,
-                      predictors=predictors, nodes=tuple(nodes), n_rows=data.n, path=path_dict,
-                      chosen=chosen, extra=extra)
-    _check_routes(model, tree, internal, X, data, box_of)
-    return model
-
-
-def _breadth_first(tree, internal: np.ndarray) -> list[tuple[int, int]]:
-    order, queue = [], [(0, 0)]
-    while queue:
-        node, depth = queue.pop(0)
-        order.append((node, depth))
-        if internal[node]:  # YES (right, value above) first
-            queue.extend([(tree.children_right[node], depth + 1),
-                          (tree.children_left[node], depth + 1)])
-    return order
-
-
-def _node_stats(tree, node: int, data: AnalysisData) -> dict:
-    n = int(tree.n[node])
-    if data.task == "regression":
-        return {"n": n, "mean": float(tree.mean[node]),
-                "sd": float(np.sqrt(max(tree.prune_risk[node] * data.n / max(n - 1, 1), 0.0))),
-                "prediction": float(tree.label[node])}
-    return {"n": n, "counts": tuple(int(c) for c in tree.class_counts[node]),
-            "prediction": data.classes[int(tree.label[node])]}
-
-
-def _outcome_text(stats: dict, data: AnalysisData) -> str:
-    n = stats["n"]
-    expected = expected_outcome(data.outcome, data.task, stats["prediction"], stats.get("mean"))
-    if data.task == "regression":
-        return f"{expected} ({n} patients)"
-    share = shared_count(stats["counts"], data.classes, stats["prediction"]) / max(n, 1)
-    had = f" had {data.classes[1]}" if len(data.classes) == 2 else ""
-    return f"{expected} ({share:.0%} of {n} patients{had})"
-
-
-def _question(column: MatrixColumn, tree, node: int, X_rows: np.ndarray, data: AnalysisData,
-              rows: np.ndarray) -> Question:
-    threshold = np.float64(tree.threshold[node])
-    missing_goes = "no" if tree.missing_left[node] else "yes"
-    values = X_rows[:, tree.feature[node]].astype(np.float64)
-    present = ~np.isnan(values)
-    left = values <= threshold  # scikit-learn's own test, float32 value against float64 threshold
-    if not (present & ~left).any() or not (present & left).any():
-        # All recorded values on one side: the split is "recorded or not".
-        return Question(column=column.spec.name, kind="missing", missing_goes="yes")
-    if column.kind == "numeric":
-        original = data.predictors[column.predictor].numbers[rows]
-        lo = float(np.max(original[present & left]))
-        hi = float(np.min(original[present & ~left]))
-        return Question(column=column.spec.name, kind="above", threshold=round_threshold(lo, hi),
-                        missing_goes=missing_goes)
-    return Question(column=column.spec.name, kind="in", yes_levels=column.yes_levels(threshold),
-                    no_levels=column.no_levels(threshold), missing_goes=missing_goes)
-
-
-def _check_routes(model: TreeModel, tree, internal, X, data: AnalysisData, box_of) -> None:
-    """The printed model must send every derivation patient where the grower sent them."""
-    asked = set(model.columns_asked())
-    values = {t.spec.name: column_values(t.numbers, t.codes, t.spec) for t in data.predictors
-              if t.spec.name in asked}
-    by_model = model.route(values, data.n)
-    grower_leaf = tree.estimator.apply(X)
-    parent = parents_of(tree.children_left, tree.children_right)
-    unique = np.unique(grower_leaf)
-    boxes = np.array([box_of[_chosen_leaf(parent, internal, leaf)] for leaf in unique.tolist()])
-    by_tree = boxes[np.searchsorted(unique, grower_leaf)]
-    if not np.array_equal(by_model, by_tree):
-        bad = int((by_model != by_tree).sum())
-        raise RuntimeError(f"internal check failed: the rounded chart sends {bad} derivation "
-                           "patients to another box than the grown tree")
-
-
-def _chosen_leaf(parent: np.ndarray, internal: np.ndarray, leaf: int) -> int:
-    """The node of the chosen subtree where a grower leaf ends up: its first non-internal
-    ancestor, counting from the root."""
-    path = [leaf]
-    while parent[path[-1]] >= 0:
-        path.append(parent[path[-1]])
-    for node in reversed(path):
-        if not internal[node]:
-            return node
-    return leaf
-
-
-def _cohort(frame: pd.DataFrame, dictionary: DataDictionary, data: AnalysisData,
-            request: DerivationRequest) -> dict:
-    cohort = {"visits": data.n}
-    if data.groups is not None:
-        cohort["patients"] = int(np.unique(data.groups).size)
-    if data.sites is not None and data.site_levels:
-        counts = np.bincount(data.sites[data.sites >= 0], minlength=len(data.site_levels))
-        cohort["sites"] = {lv: int(c) for lv, c in zip(data.site_levels, counts) if c}
-    dates = [c.name for c in dictionary.columns if c.kind == "date" and c.name in frame.columns]
-    if dates:
-        parsed = parse_dates(frame[dates[0]].iloc[data.rows])
-        if parsed.notna().any():
-            cohort["date_column"] = dictionary.get(dates[0]).display
-            cohort["first_date"] = parsed.min().date().isoformat()
-            cohort["last_date"] = parsed.max().date().isoformat()
-    if data.task == "classification":
-        counts = np.bincount(data.y, minlength=len(data.classes))
-        cohort["outcome_counts"] = {c: int(k) for c, k in zip(data.classes, counts)}
-    else:
-        cohort["outcome_mean"] = float(np.mean(data.y))
-        cohort["outcome_range"] = [float(np.min(data.y)), float(np.max(data.y))]
-    return cohort
-
-
 def _checked(derivation: Derivation) -> Derivation:
     """The run with the chosen tree checked on the rows set aside before growing (if any):
     the check kept beside the model and recorded in it."""
     if derivation.heldout is None:
         return derivation
-    from ..checking.new_patients import (  # validate reads Derivation objects
-        check_heldout, with_validation,
-    )
-
-    check = check_heldout(derivation)
+    check = derivation.check_on_heldout()
     return replace(derivation, model=with_validation(derivation.model, check), heldout_check=check)

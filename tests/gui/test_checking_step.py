@@ -13,7 +13,6 @@ from matplotlib.backends.backend_qtagg import FigureCanvasQTAgg  # noqa: E402
 from pypdf import PdfReader  # noqa: E402
 from PySide6.QtCore import Qt  # noqa: E402
 
-from core.checking import check_heldout  # noqa: E402
 from tests.helpers import DEMO_CSV as DEMO  # noqa: E402
 
 
@@ -41,7 +40,7 @@ def test_cv_beside_training_and_the_heldout_check(grown):
     chosen = window.session.model.chosen
     text = checking.cv_label.text()
     assert f"{chosen['cv_risk']:.3f}" in text and f"{chosen['train_risk']:.3f}" in text
-    expected = check_heldout(window.session.chosen)  # the numbers come from core
+    expected = window.session.chosen.check_on_heldout()  # the numbers come from core
     assert checking.unchecked.isHidden()
     shown = _labels(checking)
     assert f"{expected.n:,} visits checked" in shown

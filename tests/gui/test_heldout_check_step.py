@@ -9,22 +9,22 @@ os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 
 import traceback  # noqa: E402
 
-import core.checking.new_patients  # noqa: E402
+import core.sizing.derivation  # noqa: E402
 
 
 def test_one_heldout_check_per_run(demo, run, monkeypatch):
     window = demo
     calls = []
-    real = core.checking.new_patients.check_heldout
+    real = core.sizing.derivation.check_heldout
 
-    def counted(derivation):
+    def counted(model, *rest):
         # The chart's size fitting builds candidate trees of its own; only the checks of the
         # tree the user gets are counted here.
         if not any(frame.filename.endswith("fitting.py") for frame in traceback.extract_stack()):
-            calls.append(derivation.model.chosen["leaves"])
-        return real(derivation)
+            calls.append(model.chosen["leaves"])
+        return real(model, *rest)
 
-    monkeypatch.setattr(core.checking.new_patients, "check_heldout", counted)
+    monkeypatch.setattr(core.sizing.derivation, "check_heldout", counted)
     size = window.panels["size"]
     size.folds.setValue(5)
     size.holdout.setValue(25)

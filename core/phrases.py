@@ -1,0 +1,43 @@
+"""Small wording helpers shared by the messages, the chart, the report and the command line:
+counts with their nouns, row lists, short fingerprints."""
+
+from __future__ import annotations
+
+import re
+from collections.abc import Sequence
+
+import numpy as np
+
+
+def plural(n: int, singular: str, plural: str) -> str:
+    """A count with its noun: '1 outcome box', '2,104 outcome boxes'.
+
+    Both forms are given: English plurals are not made by one rule (box, boxes; patient,
+    patients), and cutting a letter off the plural gave '1 outcome boxe'."""
+    return f"{n:,} {singular if n == 1 else plural}"
+
+
+def short_fingerprint(digest: str) -> str:
+    """The first 12 hexadecimal digits of a SHA-256, as every page and screen shows it."""
+    return str(digest)[:12]
+
+
+def rows_phrase(rows: Sequence[int] | np.ndarray | None, limit: int = 5) -> str:
+    """' (row 4)', ' (rows 4, 9 and 22)' or ' (rows 4, 9, 22, 31, 40 and 12 more)'; '' if none."""
+    if rows is None:
+        return ""
+    rows = [int(r) for r in np.asarray(rows).ravel()[: limit + 1000]]
+    total = len(rows)
+    if total == 0:
+        return ""
+    if total == 1:
+        return f" (row {rows[0]})"
+    shown = rows[:limit]
+    if total <= limit:
+        return f" (rows {', '.join(map(str, shown[:-1]))} and {shown[-1]})"
+    return f" (rows {', '.join(map(str, shown))} and {total - limit} more)"
+
+
+def strip_rows_phrase(text: str) -> str:
+    """A note without its '(rows …)' part: the same finding reported with and without rows."""
+    return re.sub(r" \(rows? \d[^)]*\)", "", text)

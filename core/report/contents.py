@@ -1,0 +1,65 @@
+"""What the methods report shows: the derivation and the checks made on it.
+
+:func:`prepare_report` runs what the report needs beyond the derivation (nested
+cross-validation and bootstrap stability, with progress and cancel) and collects the held-out
+check the derivation made and any external checks. The sections (core/report/sections.py)
+read a :class:`ReportContents`; core/report/rendering.py lays them out.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+from ..checking.nested import DEFAULT_OUTER_FOLDS, NestedResult, nested_cross_validate
+from ..checking.new_patients import ValidationResult
+from ..checking.stability import DEFAULT_RESAMPLES, Stability, bootstrap_stability
+from ..progress import CancelFlag, Progress, stop_if_cancelled
+from ..sizing.derivation import Derivation
+
+
+@dataclass(frozen=True)
+class ReportContents:
+    """Everything the report shows: the derivation and the checks made on it."""
+
+    derivation: Derivation = field(repr=False)
+    checks: tuple[ValidationResult, ...] = ()
+    nested: NestedResult | None = None
+    stability: Stability | None = None
+    notes: tuple[str, ...] = ()  # e.g. "the data file differs from the model's"
+    printed: str | None = None  # date printed, as it should appear
+
+    @property
+    def model(self):
+        return self.derivation.model
+
+
+def prepare_report(derivation: Derivation, external: tuple[ValidationResult, ...] = (),
+                   nested: bool = True, outer_folds: int = DEFAULT_OUTER_FOLDS,
+                   bootstrap: int = DEFAULT_RESAMPLES, jobs: int = 1,
+                   progress: Progress | None = None, cancel: CancelFlag | None = None,
+                   notes: tuple[str, ...] = (), printed: str | None = None) -> ReportContents:
+    """Run nested cross-validation and ``bootstrap`` stability resamples (0 = none) and collect
+    the held-out and ``external`` checks. ``progress(done, total)`` counts outer folds plus
+    resamples; ``cancel()`` returning True raises :class:`Cancelled`."""
+    total = (outer_folds if nested else 0) + max(bootstrap, 0)
+    done_before = 0
+
+    def step(done: int, _total: int) -> None:
+        if progress:
+            progress(done_before + done, total)
+
+    stop_if_cancelled(cancel)
+    nested_result = None
+    if nested:
+        nested_result = nested_cross_validate(derivation.data, derivation.request,
+                                              outer_folds=outer_folds, jobs=jobs,
+                                              progress=step, cancel=cancel)
+        done_before = outer_folds
+    stability = None
+    if bootstrap > 0:
+        stability = bootstrap_stability(derivation.data, derivation.request, derivation.model,
+                                        resamples=bootstrap, jobs=jobs, progress=step,
+                                        cancel=cancel)
+    held_out = (derivation.heldout_check,) if derivation.heldout_check is not None else ()
+    checks = held_out + tuple(external)
+    return ReportContents(derivation, checks, nested_result, stability, tuple(notes), printed)
