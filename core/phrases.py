@@ -3,7 +3,6 @@ counts with their nouns, row lists, short fingerprints."""
 
 from __future__ import annotations
 
-import re
 from collections.abc import Sequence
 
 import numpy as np
@@ -37,7 +36,3 @@ def rows_phrase(rows: Sequence[int] | np.ndarray | None, limit: int = 5) -> str:
         return f" (rows {', '.join(map(str, shown[:-1]))} and {shown[-1]})"
     return f" (rows {', '.join(map(str, shown))} and {total - limit} more)"
 
-
-def strip_rows_phrase(text: str) -> str:
-    """A note without its '(rows …)' part: the same finding reported with and without rows."""
-    return re.sub(r" \(rows? \d[^)]*\)", "", text)

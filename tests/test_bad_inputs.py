@@ -30,7 +30,7 @@ from core.data.cells import parse_dates
 from core.design import DesignSpec, guard_design
 from core.dictionary import infer_dictionary
 from core.errors import InputError
-from core.messages import explain
+from core.messages import kind_of
 from core.sizing import CVSettings, DerivationRequest, TreeSettings, derive
 from tests.helpers import run_prunella, sha256_of
 
@@ -652,7 +652,7 @@ def test_core(corpus, c):
             core_run(path, c)
         message = str(caught.value)
         assert not _has_all(message, c.says), (message, _has_all(message, c.says))
-        assert explain(message) is not None, f"message not in the catalogue: {message}"
+        assert kind_of(message) is not None, f"message not in the catalogue: {message}"
     else:
         table, dictionary, messages = core_run(path, c)
         joined = "\n".join(messages)
@@ -660,7 +660,7 @@ def test_core(corpus, c):
         if c.check is not None:
             assert c.check(table, dictionary), joined
         for message in messages:
-            assert explain(message) is not None, f"message not in the catalogue: {message}"
+            assert kind_of(message) is not None, f"message not in the catalogue: {message}"
     assert fingerprint(path) == before, "the input file changed"
     if c.exists:
         assert sorted(os.listdir(path.parent)) == [c.file], "a file appeared beside the input"

@@ -109,6 +109,8 @@ def test_every_name_of_a_package_face_is_where_the_face_says(package):
     module = importlib.import_module(f"core.{package}")
     names = getattr(module, "__all__", ())
     assert names, f"core/{package}/__init__.py names no public face"
+    modules = {p.stem for p in (CORE / package).iterdir() if p.suffix == ".py" or p.is_dir()}
+    assert not set(names) & modules, "a face name that is also a module's name is hidden by it"
     for name in names:
         assert getattr(module, name) is not None, name
     first_line = (module.__doc__ or "").strip().split("\n")[0]

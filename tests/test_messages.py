@@ -1,104 +1,141 @@
-"""The catalogue of messages, the code that raises them and the README table stay in step."""
+"""Every message is worded once, in the catalogue, and said with its code; the README table is
+generated from the catalogue."""
 
 from __future__ import annotations
 
 import ast
+import json
+import pickle
 import re
 import string
 from pathlib import Path
 
 import pytest
 
-from core.messages.message import catalogue, distinct_messages, explain, markdown_table, say
+from core.errors import Cancelled, InputError
+from core.messages import (
+    Message, advice_for, app_advice, app_wording, distinct_messages, kind_of, kind_of_text,
+    markdown_table, message_kinds, say,
+)
+from core.messages.message import PART
 
 ROOT = Path(__file__).resolve().parents[1]
 CORE = ROOT / "core"
-# Modules whose own wording is listed in the catalogue (entries with a source).
-WORDED_ELSEWHERE = ("design/analysis.py", "sizing/derivation.py", "sizing/folds.py",
-                    "sizing/grow.py", "sizing/cross_validated_path.py", "cli/common.py",
-                    "cli/fit.py", "cli/checking.py", "cli/chart.py", "model/tree.py",
-                    "dictionary/columns.py", "dictionary/typed_columns.py",
-                    "checking/new_patients.py", "checking/nested.py",
-                    "checking/stability.py", "chart/options.py")
+MESSAGES = CORE / "messages"
+# Lists whose items are messages for the user (notes and warnings of reading, the guards, …).
+MESSAGE_LISTS = ("notes", "warnings", "messages")
 
 
-def _shape(node) -> str:
-    if isinstance(node, ast.Constant) and isinstance(node.value, str):
-        return node.value
-    if isinstance(node, ast.JoinedStr):
-        return "".join(v.value if isinstance(v, ast.Constant) else "{}" for v in node.values)
-    if isinstance(node, ast.BinOp) and isinstance(node.op, ast.Add):
-        return _shape(node.left) + _shape(node.right)
-    return "{}"
+def _core_modules():
+    """(path, parsed module) of every module of core outside the catalogue's own package."""
+    for path in sorted(CORE.rglob("*.py")):
+        if MESSAGES not in path.parents:
+            yield path, ast.parse(path.read_text(encoding="utf-8"))
 
 
-def _normal(shape: str) -> str:
-    return re.sub(r"(\{\})+", "{}", shape)
+def _is_say(node) -> bool:
+    return isinstance(node, ast.Call) and getattr(node.func, "id", None) == "say"
 
 
-def _calls(path: Path):
-    """(kind, first argument) of every say(), InputError() and notes/warnings.append()."""
-    for node in ast.walk(ast.parse(path.read_text(encoding="utf-8"))):
-        if not isinstance(node, ast.Call) or not node.args:
-            continue
-        func = node.func
-        name = getattr(func, "id", None)
-        if name == "say":
-            yield "say", node.args[0]
-        elif name == "InputError":
-            yield "raise", node.args[0]
-        elif isinstance(func, ast.Attribute) and func.attr == "append" and \
-                getattr(func.value, "id", "") in ("notes", "warnings"):
-            yield "note", node.args[0]
+def _called(node) -> str | None:
+    func = node.func
+    return func.id if isinstance(func, ast.Name) else getattr(func, "attr", None)
 
 
-def _source_shapes(module: str) -> set[str]:
-    shapes = set()
-    for kind, arg in _calls(CORE / module):
-        if kind != "say" and not (isinstance(arg, ast.Call) and getattr(arg.func, "id", "") == "say"):
-            shape = _normal(_shape(arg))
-            if shape.replace("{}", "").strip():
-                shapes.add(shape)
-    return shapes
+def _where(path: Path, node) -> str:
+    return f"{path.relative_to(ROOT)}:{node.lineno}"
 
 
-def test_every_code_used_in_core_is_in_the_catalogue_and_every_entry_is_used():
-    kinds = catalogue()
-    said, mentioned = set(), set()
-    for path in CORE.rglob("*.py"):  # packages too (core/chart, core/cli)
-        if path.parent.name == "messages":
-            continue
-        tree = ast.parse(path.read_text(encoding="utf-8"))
-        for kind, arg in _calls(path):
-            if kind == "say" and isinstance(arg, ast.Constant):
-                said.add(arg.value)
-        mentioned |= {n.value for n in ast.walk(tree) if isinstance(n, ast.Constant)
-                      and isinstance(n.value, str) and n.value in kinds}
-    assert said <= set(kinds), sorted(said - set(kinds))
-    own = {code for code, kind in kinds.items() if not kind.source}
-    assert own <= mentioned, f"catalogue entries no code uses: {sorted(own - mentioned)}"
+def test_every_error_in_core_is_raised_with_a_message_said_from_the_catalogue():
+    wrong = []
+    for path, tree in _core_modules():
+        for node in ast.walk(tree):
+            if not isinstance(node, ast.Call) or _called(node) not in ("InputError", "Cancelled"):
+                continue
+            if node.keywords or len(node.args) > 1:
+                wrong.append(_where(path, node))
+            elif node.args and not _is_say(node.args[0]):
+                wrong.append(_where(path, node))
+            elif not node.args and _called(node) == "InputError":
+                wrong.append(_where(path, node))
+    assert not wrong, "raise these with say(code, ...): " + ", ".join(wrong)
 
 
-@pytest.mark.parametrize("module", WORDED_ELSEWHERE)
-def test_messages_worded_in_other_modules_are_listed_as_written(module):
-    listed = {_normal(k.shape()) for k in catalogue().values() if k.source == f"core/{module}"}
-    in_source = _source_shapes(module)
-    missing = in_source - listed
-    assert not missing, f"add these messages of core/{module} to core/messages/catalogue.py: " \
-        f"{sorted(missing)}"
-    stale = listed - in_source
-    assert not stale, f"core/{module} no longer says: {sorted(stale)}"
+def test_notes_and_warnings_are_said_not_written_in_place():
+    """A message list gets said messages (or messages passed on), never text worded there."""
+    worded = (ast.Constant, ast.JoinedStr, ast.BinOp)
+    wrong = []
+    for path, tree in _core_modules():
+        for node in ast.walk(tree):
+            if not isinstance(node, ast.Call) or not isinstance(node.func, ast.Attribute):
+                continue
+            target = node.func.value
+            if node.func.attr not in ("append", "insert") or \
+                    getattr(target, "id", None) not in MESSAGE_LISTS:
+                continue
+            item = node.args[-1] if node.args else None
+            if isinstance(item, worded):
+                wrong.append(_where(path, node))
+    assert not wrong, "say these from the catalogue: " + ", ".join(wrong)
 
 
-def test_templates_are_well_formed_and_explain_finds_them():
-    for code, kind in catalogue().items():
+def test_every_code_said_is_in_the_catalogue_and_every_entry_is_said():
+    kinds = message_kinds()
+    families = {code.split(".")[0] for code in kinds}
+    said, mentioned, unknown = set(), set(), []
+    for path, tree in _core_modules():
+        for node in ast.walk(tree):
+            if _is_say(node):
+                code = node.args[0]
+                if isinstance(code, ast.Constant):
+                    said.add(code.value)
+            elif isinstance(node, ast.Constant) and isinstance(node.value, str):
+                text = node.value
+                if text in kinds:
+                    mentioned.add(text)  # a code passed on, e.g. to the guards' findings
+                elif re.fullmatch(r"[a-z]+(\.[a-z_0-9]+)+", text) and \
+                        text.split(".")[0] in families and not text.endswith(".py"):
+                    unknown.append(f"{path.relative_to(ROOT)}: {text}")
+    assert said <= set(kinds), f"said but not in the catalogue: {sorted(said - set(kinds))}"
+    assert not unknown, f"codes not in the catalogue: {unknown}"
+    unused = set(kinds) - said - mentioned
+    assert not unused, f"catalogue entries nothing says: {sorted(unused)}"
+
+
+def test_templates_are_well_formed():
+    for code, kind in message_kinds().items():
         names = [f for _, f, _, _ in string.Formatter().parse(kind.template) if f]
         sample = {n: ("" if n == "rows" else f"<{n}>") for n in names}
         text = kind.template.format(**sample)
+        if kind.severity == PART:
+            assert not kind.advice, f"{code}: a part takes the advice of its message"
+            continue
         assert text.strip().endswith((".", ")", "?")) or kind.template.endswith("}"), code
         assert kind.advice.strip(), code
-        found = explain(text)
-        assert found is not None and found.code == code, code
+        assert kind_of_text(text).code == code, code  # the look-up by wording finds it too
+
+
+def test_a_said_message_carries_its_code_wherever_it_goes():
+    message = say("values.limits", n=2, column="crp", example="<5", rows=" (rows 2 and 3)")
+    assert isinstance(message, str) and isinstance(message, Message)
+    assert message == ("2 value(s) in crp written as limits (e.g. '<5') (rows 2 and 3) were "
+                       "read as the limit itself; check that this is acceptable for crp.")
+    assert message.code == "values.limits" and message.fields["column"] == "crp"
+    assert kind_of(message).severity == "warning"
+    assert advice_for(message).startswith("'<5' is read as 5")
+    copy = pickle.loads(pickle.dumps(message))  # joblib's workers hand messages back pickled
+    assert copy == message and copy.code == message.code
+    assert json.loads(json.dumps([message])) == [str(message)]
+    # An error raised with a message gives it back, code and all, as str(error).
+    error = InputError(say("design.no_predictors"))
+    assert str(error).code == "design.no_predictors" and kind_of(error).severity == "refused"
+    assert str(Cancelled()).code == "work.cancelled"
+    # The look-up is by code: the wording is not read.
+    assert kind_of(Message("any wording at all", "guard.leakage")).code == "guard.leakage"
+    assert kind_of("2 value(s) in crp written as limits (e.g. '<5') were read as the limit "
+                   "itself; check that this is acceptable for crp.") is None
+    assert kind_of_text("prunella: " + message).code == "values.limits"
+    assert kind_of_text("something Prunella never says") is None
 
 
 def test_readme_holds_the_generated_table():
@@ -107,19 +144,18 @@ def test_readme_holds_the_generated_table():
     assert match, "README.md lacks the messages table markers"
     assert match.group(1) == markdown_table(), \
         "README table is out of date: run `python -m core.messages` and paste its output"
+    parts = [k for k in message_kinds().values() if k.severity == PART]
+    assert parts and not any(k.readable() in markdown_table() for k in parts)
 
 
 def test_distinct_messages_keeps_the_version_with_rows():
     with_rows = say("values.limits", n=2, column="crp", example="<5", rows=" (rows 2 and 3)")
     without = say("values.limits", n=2, column="crp", example="<5", rows="")
-    assert distinct_messages([without, with_rows, without]) == [with_rows]
-    assert explain("prunella: " + with_rows).code == "values.limits"
-    assert explain("something Prunella never says") is None
+    other = say("values.limits", n=2, column="ldh", example="<5", rows="")
+    assert distinct_messages([without, with_rows, other, without]) == [with_rows, other]
 
 
 def test_app_wording_drops_only_what_the_command_line_needs():
-    from core.messages import app_advice, app_wording
-
     leak = say("guard.leakage", column="bed_booked", outcome="admitted", evidence="ROC area 0.97")
     shown = app_wording(leak)
     assert "--exclude" not in shown and "command line" not in shown
@@ -134,13 +170,32 @@ def test_app_wording_drops_only_what_the_command_line_needs():
                        "spaces in quotes.") == "Check the spelling of the path."
     assert app_wording("On the command line: --sheet NAME.") == ""
     assert app_wording("Keep (this) as it is.") == "Keep (this) as it is."
-    # Advice: from the catalogue, without command-line-only or empty advice.
+
+
+def test_app_advice_is_looked_up_by_code_and_by_wording_only_for_plain_text():
+    leak = say("guard.leakage", column="bed_booked", outcome="admitted", evidence="ROC area 0.97")
     assert "recorded after the decision" in app_advice(leak)
+    assert "recorded after the decision" in app_advice(InputError(leak))
+    # By code: the wording is not read, so a message shown in other words keeps its advice.
+    assert app_advice(Message("Leakage!", "guard.leakage")) == app_advice(leak)
+    assert app_advice(Message("Probable leakage: 'x' on its own predicts 'y' almost perfectly "
+                              "(z). Check when it is recorded.", "read.no_file")) == \
+        app_advice(say("read.no_file", path="x"))
+    # Plain text that lost its code (through a Qt signal) is found by its wording.
+    assert app_advice(str(leak)) == app_advice(leak)
     grouped = say("guard.repeats_grouped", patients=3, n_rows=7, most=3, column="patient_id")
     assert app_advice(grouped) is None  # "Nothing to do."
     assert app_advice("something Prunella never says") is None
-    for kind in catalogue().values():  # no advice the app shows names an option
-        text = kind.template.format(**{n: "x" for _, n, _, _ in
-                                       string.Formatter().parse(kind.template) if n})
-        advice = app_advice(text)
+    for kind in message_kinds().values():  # no advice the app shows names an option
+        if kind.severity == PART:
+            continue
+        fields = {n: "x" for _, n, _, _ in string.Formatter().parse(kind.template) if n}
+        advice = app_advice(say(kind.code, **fields))
         assert advice is None or "--" not in advice
+
+
+@pytest.mark.parametrize("family", sorted({c.split(".")[0] for c in message_kinds()}))
+def test_every_family_of_codes_has_its_step_in_the_readme_table(family):
+    from core.messages.readme_table import STEPS
+
+    assert family in dict(STEPS), f"add the step of the '{family}' messages to STEPS"

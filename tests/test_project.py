@@ -15,7 +15,7 @@ from core.data import file_sha256, read_table
 from core.design import DesignSpec
 from core.dictionary import DataDictionary
 from core.errors import InputError
-from core.messages import explain
+from core.messages import kind_of
 from core.project.project import (
     PROJECT_FORMAT, Project, check_data_file, load_project, save_project, upgrade_project,
 )
@@ -257,7 +257,7 @@ def test_fields_of_the_wrong_type_are_refused_naming_the_field(tmp_path, diction
     message = str(caught.value)
     assert f"The project file p.prunella is damaged at {named}:" in message, message
     assert "save the project again from Prunella" in message
-    assert explain(message).code == "project.damaged"
+    assert kind_of(message).code == "project.damaged"
 
 
 def test_every_message_of_a_project_has_advice_in_the_catalogue(tmp_path, dictionary):
@@ -269,5 +269,5 @@ def test_every_message_of_a_project_has_advice_in_the_catalogue(tmp_path, dictio
     messages.append(check_data_file(project).message)
     data.unlink()
     messages.append(check_data_file(project).message)
-    codes = [explain(m).code for m in messages]
+    codes = [kind_of(m).code for m in messages]
     assert codes == ["project.data_same", "project.data_changed", "project.data_missing"]

@@ -15,7 +15,7 @@ from functools import cached_property, lru_cache
 from typing import TYPE_CHECKING
 
 from ..errors import InputError
-from ..messages.message import say
+from ..messages.message import Message, say
 from ..model.tree import TreeModel
 from .content import chart_text
 from .layout import BoxSpec, LayoutStyle, Measure, Para, TreeSpec, layout_tree, reportlab_measure
@@ -181,28 +181,27 @@ def _most_leaves(paper: str, size: float, measure: Measure) -> int:
 
 
 def too_large_message(leaves: int, fitting: int | None, options: ChartOptions,
-                      recorded: bool = True, rules: bool = False) -> str:
+                      recorded: bool = True, rules: bool = False) -> Message:
     """The refusal, naming the largest size that fits, larger paper and, when the same tree
     fits as numbered rules (``rules``), that form. ``recorded`` is False for a model file that
     does not record its pruning sequence."""
     paper = options.paper_name
     where = {"auto": "portrait or landscape"}.get(options.orientation, options.orientation)
     if fitting is not None:
-        advice = (f"The largest tree of its pruning sequence that fits has {fitting} outcome "
-                  f"boxes: choose that size (--size {fitting}, or on the pruning curve)")
+        choice = say("chart.too_large.smaller_fits", fitting=fitting)
     elif not recorded:
-        advice = ("The model file does not record its pruning sequence (an older Prunella "
-                  "saved it), so no smaller size can be named: fit it again to find one")
+        choice = say("chart.too_large.not_recorded")
     else:
-        advice = "No smaller tree of its pruning sequence fits either: check the minimum text size"
+        choice = say("chart.too_large.nothing_fits")
     larger = LARGER_PAPER.get(options.paper)
     if larger:
-        advice += f"{',' if rules else ', or'} print on larger paper ({PAPER_NAMES[larger]})"
+        instead = say("chart.too_large.larger_paper_or_rules" if rules
+                      else "chart.too_large.larger_paper", paper=PAPER_NAMES[larger])
     else:
-        advice += f" ({paper} is already among the largest papers Prunella prints on)"
-    advice += ", or print the same tree as numbered rules (--form rules)." if rules else "."
+        instead = say("chart.too_large.largest_paper_or_rules" if rules
+                      else "chart.too_large.largest_paper", paper=paper)
     return say("chart.too_large", leaves=leaves, paper=paper, where=where,
-               size=f"{options.min_text:g}", advice=advice)
+               size=f"{options.min_text:g}", advice=choice + instead)
 
 
 def sizes_that_fit(derivation: "Derivation", options: ChartOptions | None = None,

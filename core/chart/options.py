@@ -55,8 +55,7 @@ def margin_for(paper: str) -> float:
 def check_paper(paper: str) -> str:
     key = str(paper).strip().lower().replace(" ", "").replace("us", "", 1) if paper else ""
     if key not in PAPER_SIZES:
-        raise InputError(f"Paper {paper!r} is not one Prunella prints on; choose a4, letter, a3 "
-                         "or tabloid.")
+        raise InputError(say("chart.paper", paper=paper))
     return key
 
 
@@ -81,30 +80,28 @@ class ChartOptions:
         """The options with defaults filled in, or one clear InputError."""
         paper = check_paper(self.paper)
         if self.orientation not in ORIENTATIONS:
-            raise InputError(f"Orientation {self.orientation!r} is not one of "
-                             + ", ".join(ORIENTATIONS) + ".")
+            raise InputError(say("chart.orientation", given=self.orientation,
+                                 choices=", ".join(ORIENTATIONS)))
         if self.direction not in DIRECTIONS:
-            raise InputError(f"Direction {self.direction!r} is not one of "
-                             + ", ".join(DIRECTIONS) + ".")
+            raise InputError(say("chart.direction", given=self.direction,
+                                 choices=", ".join(DIRECTIONS)))
         if self.form not in FORMS:
             raise InputError(say("chart.form", given=self.form, choices=", ".join(FORMS)))
         floor = default_min_text(paper)
         min_text = floor if self.min_text is None else float(self.min_text)
         if not 6 <= min_text <= 40:
-            raise InputError(f"The minimum text size must lie between 6 and 40 points, not "
-                             f"{min_text:g}; {floor:g} pt is the default on {PAPER_NAMES[paper]}.")
+            raise InputError(say("chart.min_text", given=f"{min_text:g}", default=f"{floor:g}",
+                                 paper=PAPER_NAMES[paper]))
         if self.small_cell < 0:
-            raise InputError("The small-group threshold must be 0 or more patients.")
+            raise InputError(say("chart.small_cell"))
         if not self.band_ratio > 1:
-            raise InputError("The band ratio must be above 1 (e.g. 1.25: HIGHER at 1.25 times "
-                             "the cohort's rate or more).")
+            raise InputError(say("chart.band_ratio"))
         cuts = self.band_cuts
         if cuts is not None:
             cuts = tuple(float(c) for c in cuts)
             if not 1 <= len(cuts) <= 2 or list(cuts) != sorted(set(cuts)) or not all(
                     math.isfinite(c) for c in cuts):
-                raise InputError("Give one or two increasing band cut-points, e.g. 10,30 "
-                                 "(percent for rates, outcome units for means).")
+                raise InputError(say("chart.band_cuts"))
         printed = self.printed or dt.date.today()
         return replace(self, paper=paper, min_text=min_text, band_cuts=cuts, printed=printed)
 

@@ -17,6 +17,7 @@ from joblib import Parallel, delayed
 
 from ..design.analysis import AnalysisData
 from ..errors import InputError
+from ..messages.message import say
 from ..progress import CancelFlag, Progress, stop_if_cancelled
 from ..sizing.cross_validated_path import case_losses, cross_validate_path, path_nodes
 from ..sizing.folds import CVSettings, fold_plan
@@ -101,7 +102,7 @@ def nested_cross_validate(data: AnalysisData, request: DerivationRequest,
     ``jobs`` runs outer folds in parallel (each inner CV then runs on one core).
     """
     if outer_folds < 2:
-        raise InputError("Nested cross-validation needs at least 2 outer folds.")
+        raise InputError(say("nested.outer_folds"))
     seed = request.cv.seed if seed is None else seed
     outer = CVSettings(plan="kfold", folds=outer_folds, grouped=request.cv.grouped,
                        stratified=True, seed=seed + 1)  # other folds than the inner CV's

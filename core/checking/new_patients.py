@@ -28,6 +28,7 @@ from ..design.analysis import AnalysisData
 from ..dictionary.columns import ColumnSpec
 from ..dictionary.typed_columns import typed_column
 from ..errors import InputError
+from ..messages.message import say
 from ..model.tree import TreeModel, column_values
 from .metrics import (
     ClassificationMeasures, DerivationBox, Measures, RegressionMeasures, classification_measures,
@@ -46,17 +47,14 @@ class ColumnReport:
 
     def lines(self) -> list[str]:
         """The account in words, one sentence per point."""
-        lines = [f"{len(self.matched) + len(self.renamed)} of the model's columns were found."]
+        lines = [say("check.columns_found", n=len(self.matched) + len(self.renamed))]
         for found, wanted in self.renamed:
-            lines.append(f"Column {found!r} was taken as {wanted!r} (the names differ only in "
-                         "capitals or spaces).")
+            lines.append(say("check.column_renamed", found=found, wanted=wanted))
         if self.missing_offered:
-            lines.append("Not in the file, but not asked by the tree (no effect): "
-                         + ", ".join(self.missing_offered) + ".")
+            lines.append(say("check.not_asked_missing", columns=", ".join(self.missing_offered)))
         if self.extra:
             shown = ", ".join(self.extra[:12]) + (" ..." if len(self.extra) > 12 else "")
-            lines.append(f"{len(self.extra)} column(s) of the file are not used by the model: "
-                         f"{shown}.")
+            lines.append(say("check.columns_unused", n=len(self.extra), columns=shown))
         return lines
 
 
@@ -238,8 +236,7 @@ def _unseen_warning(unseen: tuple[tuple[str, int], ...], model: TreeModel) -> li
         return []
     parts = ", ".join(f"{model.spec(c).display} {k}" for c, k in unseen)
     total = sum(k for _, k in unseen)
-    return [f"{total} cell(s) hold a level the tree never saw at derivation and were routed as "
-            f"not recorded ({parts})."]
+    return [say("check.unseen_levels", total=total, parts=parts)]
 
 
 # --- the held-out part ------------------------------------------------------------------------
@@ -250,8 +247,7 @@ def check_heldout(model: TreeModel, heldout: AnalysisData | None, share: float,
     """Check ``model`` on ``heldout``, the rows set aside before growing (``share`` of the
     patients of the derivation file whose SHA-256 is ``data_sha256``)."""
     if heldout is None:
-        raise InputError("No patients were set aside before growing; set a held-out share "
-                         "(for example 0.25) and run the derivation again.")
+        raise InputError(say("check.no_heldout"))
     values = model.asked_values(heldout.predictors)
     leaves, unseen = _route(model, values, heldout.n, {})
     source = (f"held-out part of {model.extra.get('data', {}).get('file', 'the derivation file')} "
@@ -299,12 +295,11 @@ def match_columns(model: TreeModel, columns) -> tuple[ColumnReport, dict[str, st
     asked = set(model.columns_asked())
     missing_asked = [c for c in absent if c in asked]
     if model.outcome.name in absent:
-        raise InputError(f"The file has no column {model.outcome.name!r} ({model.outcome.display}), "
-                         "the outcome the tree predicts; add it or rename the outcome column.")
+        raise InputError(say("check.no_outcome", name=model.outcome.name,
+                             label=model.outcome.display))
     if missing_asked:
-        raise InputError("The file lacks column(s) the tree asks about: "
-                         + ", ".join(f"{c!r} ({model.spec(c).display})" for c in missing_asked)
-                         + "; add them, named as in the derivation data.")
+        raise InputError(say("check.columns_absent", columns=", ".join(
+            f"{c!r} ({model.spec(c).display})" for c in missing_asked)))
     offered = [c for c in absent if c not in asked and c != model.outcome.name
                and c in {p.name for p in model.predictors}]
     extra = tuple(c for c in columns if c not in mapping)
@@ -331,9 +326,8 @@ def outcome_values(model: TreeModel, cells: pd.Series) -> tuple[np.ndarray, np.n
         strange = present & (y < 0)
         if strange.any():
             examples = ", ".join(repr(v) for v in pd.unique(cells[strange].astype(str))[:3])
-            notes.append(f"{int(strange.sum())} row(s) have an outcome that is not one of the "
-                         f"tree's classes ({', '.join(model.classes)}), e.g. {examples}; they "
-                         "were left out.")
+            notes.append(say("check.unknown_classes", n=int(strange.sum()),
+                             classes=", ".join(model.classes), examples=examples))
         keep = y >= 0
     return y[keep], keep, notes
 
@@ -346,11 +340,10 @@ def check_table(model: TreeModel, table: LoadedTable, source: str | None = None)
     y, keep, notes = outcome_values(model, frame[model.outcome.name])
     n_rows = len(frame)
     if not keep.any():
-        raise InputError(f"No row of the file has a recorded {model.outcome.display} that the "
-                         "tree can be checked against; check the outcome column.")
+        raise InputError(say("check.no_outcome_rows", label=model.outcome.display))
     no_outcome = int((~keep).sum())
     if no_outcome:
-        notes.insert(0, f"{no_outcome} of {n_rows} row(s) without a usable outcome were left out.")
+        notes.insert(0, say("check.rows_without_outcome", n=no_outcome, total=n_rows))
     rows = frame.loc[keep].reset_index(drop=True)
     values, unknown = {}, {}
     for column in model.columns_asked():
@@ -385,8 +378,7 @@ def with_validation(model: TreeModel, result: ValidationResult) -> TreeModel:
     """The same model with ``extra["validation"]`` recording this check (the chart prints it
     instead of the 'not yet checked' banner)."""
     if result.model_fingerprint != _fingerprint_without_validation(model):
-        raise InputError("This check was made on another tree than the one given; check the "
-                         "tree again before recording the result.")
+        raise InputError(say("check.other_tree"))
     extra = dict(model.extra)
     extra["validation"] = result.to_validation_dict()
     return replace(model, extra=extra)

@@ -27,6 +27,7 @@ from joblib import Parallel, delayed
 
 from ..design.analysis import AnalysisData
 from ..errors import InputError
+from ..messages.message import say
 from ..model.tree import Question, TreeModel
 from ..progress import CancelFlag, Progress, stop_if_cancelled
 from ..sizing.cross_validated_path import cross_validate_path
@@ -222,7 +223,7 @@ def bootstrap_stability(data: AnalysisData, request: DerivationRequest, model: T
     :class:`Cancelled`. ``jobs`` resamples run in parallel (joblib).
     """
     if resamples < 1:
-        raise InputError("The number of bootstrap resamples must be at least 1 (200 is usual).")
+        raise InputError(say("stability.resamples"))
     seed = request.cv.seed if seed is None else seed
     patient_level = data.groups is not None
     if not patient_level:  # each visit is its own patient, so its copies share a fold

@@ -11,6 +11,7 @@ import sys
 
 from .. import __version__
 from ..errors import Cancelled, InputError
+from ..messages.message import say
 from . import chart, checking, fit
 from .common import EXIT_BAD_INPUT, Parser
 
@@ -48,5 +49,5 @@ def main(argv: list[str] | None = None) -> int:
         print(f"prunella: {exc}", file=sys.stderr)
         return 130
     except KeyboardInterrupt:
-        print("prunella: interrupted.", file=sys.stderr)
+        print(f"prunella: {say('cli.interrupted')}", file=sys.stderr)
         return 130

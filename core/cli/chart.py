@@ -7,6 +7,7 @@ from typing import TYPE_CHECKING
 
 from ..chart.options import FORMS, ORIENTATIONS, PAPER_SIZES, ChartOptions, default_min_text
 from ..errors import InputError
+from ..messages.message import say
 from ..model.tree import TreeModel
 from ..safe_files import refuse_overwrite
 from .common import csv_list
@@ -62,14 +63,13 @@ def chart_options_from_args(args):
         try:
             printed = dt.date.fromisoformat(args.date)
         except ValueError:
-            raise InputError(f"--date must be a date written YYYY-MM-DD, not {args.date!r}.") from None
+            raise InputError(say("cli.chart_date", given=args.date)) from None
     cuts = None
     if getattr(args, "bands", None):
         try:
             cuts = tuple(float(c) for c in csv_list(args.bands))
         except ValueError:
-            raise InputError("--bands must be one or two numbers separated by a comma, "
-                             "e.g. 10,30.") from None
+            raise InputError(say("cli.chart_bands")) from None
     return ChartOptions(paper=args.paper, orientation=args.orientation, title=args.title,
                         subtitle=getattr(args, "subtitle", None),
                         min_text=getattr(args, "min_text", None),
@@ -106,7 +106,6 @@ def fit_chart(args, derivation: Derivation) -> None:
         sizes = sizes_that_fit(derivation, options)
         message = too_large_message(len(derivation.model.leaves), max(sizes, default=None), options,
                                     rules=refused.rules_fit)
-        raise InputError(f"The model was saved to {args.model}, but no chart was printed. "
-                         + message) from None
+        raise InputError(say("cli.chart_not_printed", model=args.model, reason=message)) from None
     if not args.quiet:
         print(_chart_note(plan, args.chart), file=sys.stderr)

@@ -11,6 +11,7 @@ from ..data.table import read_table
 from ..dictionary.columns import DataDictionary
 from ..dictionary.for_table import dictionary_for, merge_dictionary
 from ..errors import InputError
+from ..messages.message import say
 from ..model.tree import TreeModel
 from ..phrases import short_fingerprint
 from ..safe_files import refuse_overwrite, write_text_atomic
@@ -90,30 +91,27 @@ def run_report(args) -> int:
     inputs = [args.data, args.model] + ([args.external] if args.external else [])
     refuse_overwrite(args.out, *inputs)
     if not str(args.out).lower().endswith(".pdf"):
-        raise InputError("--out must name a PDF file (ending in .pdf).")
+        raise InputError(say("cli.report_needs_pdf"))
     if args.bootstrap < 0:
-        raise InputError("--bootstrap must be 0 (none) or a positive number of resamples.")
+        raise InputError(say("cli.bootstrap"))
     model = TreeModel.load(args.model)
     settings = model.extra.get("settings")
     if not settings:
-        raise InputError("The model file holds no derivation settings, so the derivation cannot "
-                         "be rerun for the report; fit the model again with Prunella.")
+        raise InputError(say("cli.report_no_settings"))
     request = DerivationRequest.from_dict(settings)
     table = read_table(args.data, sheet=args.sheet)
     notes = []
     expected = model.extra.get("data", {}).get("sha256")
     if expected and expected != table.provenance.sha256:
-        notes.append(f"The data file's SHA-256 ({table.provenance.short_fingerprint}...) differs from "
-                     f"the one the model was fitted on ({short_fingerprint(expected)}...): this report "
-                     "re-derives the tree from the data given, which is not the model's data.")
+        notes.append(say("cli.report_data_differs", found=table.provenance.short_fingerprint,
+                         expected=short_fingerprint(expected)))
         print(f"prunella: warning: {notes[-1]}", file=sys.stderr)
     dictionary = model_dictionary(table, model, dictionary_path(args.dictionary, args.data))
     derivation = derive(table, dictionary, request, jobs=args.jobs)
     rule = model.chosen.get("rule")
     derivation = choose_model(derivation, rule if rule in ("1se", "min") else model.chosen["leaves"])
     if derivation.model.nodes != model.nodes:
-        notes.append("The tree re-derived from the data differs from the tree in the model file; "
-                     "the report describes the re-derived tree.")
+        notes.append(say("cli.report_tree_differs"))
         print(f"prunella: warning: {notes[-1]}", file=sys.stderr)
     external = ()
     if args.external:

@@ -5,12 +5,15 @@ from __future__ import annotations
 
 import argparse
 
+from ..messages.message import say
+
 EXIT_BAD_INPUT = 2
 
 
 class Parser(argparse.ArgumentParser):
     def error(self, message: str):  # one sentence, exit 2, like every other bad input
-        self.exit(EXIT_BAD_INPUT, f"prunella: {message}; see 'prunella {self.prog.split()[-1]} --help'.\n")
+        usage = say("cli.usage", problem=message, command=self.prog.split()[-1])
+        self.exit(EXIT_BAD_INPUT, f"prunella: {usage}\n")
 
 
 def csv_list(text: str | None) -> tuple[str, ...]:

@@ -17,7 +17,7 @@ from ..design.analysis import DesignSpec
 from ..dictionary.columns import DataDictionary
 from ..dictionary.for_table import dictionary_for
 from ..errors import InputError
-from ..messages.message import distinct_messages, explain
+from ..messages.message import distinct_messages, kind_of, say
 from ..model.tree import TreeModel
 from ..safe_files import refuse_overwrite, write_csv_safely, write_text_atomic
 from .chart import add_fit_chart_options, fit_chart
@@ -96,8 +96,7 @@ def request_from_args(args, dictionary: DataDictionary) -> DerivationRequest:
         try:
             priors = tuple(float(p) for p in csv_list(args.priors))
         except ValueError:
-            raise InputError("--priors must be observed, equal, or numbers separated by commas "
-                             "(one per class).") from None
+            raise InputError(say("cli.priors")) from None
     tree = TreeSettings(min_leaf=args.min_leaf, max_depth=args.max_depth, criterion=args.criterion,
                         priors=priors, miss_cost=args.miss_cost, risk=args.risk, seed=args.seed)
     plan = "loo" if args.loo else ("site" if args.site else "kfold")
@@ -107,7 +106,7 @@ def request_from_args(args, dictionary: DataDictionary) -> DerivationRequest:
         try:
             size = int(size)
         except ValueError:
-            raise InputError("--size must be 1se, min or a number of leaves.") from None
+            raise InputError(say("cli.size")) from None
     return DerivationRequest(design=design, tree=tree, cv=cv, holdout=args.holdout, size=size)
 
 
@@ -150,12 +149,12 @@ def run_fit(args) -> int:
 
 
 def _print_notes(notes: list[str], already: list[str] | None = None) -> list[str]:
-    """Print each note once on stderr as 'warning:' or 'note:' (core/messages/catalogue.py);
+    """Print each note once on stderr as 'warning:' or 'note:', as its catalogue entry says;
     a finding already shown with its rows is not repeated."""
     already = list(already or [])
     fresh = [n for n in distinct_messages(already + notes) if n not in already]
     for note in fresh:
-        kind = explain(note)
+        kind = kind_of(note)
         prefix = "warning" if kind is not None and kind.severity == "warning" else "note"
         print(f"{prefix}: {note}", file=sys.stderr)
     return already + fresh

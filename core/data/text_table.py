@@ -144,7 +144,7 @@ def read_text(path: Path, head: bytes):
     except pd.errors.EmptyDataError:
         raise InputError(say("read.blank", file=path.name)) from None
     except pd.errors.ParserError as exc:
-        raise InputError(_parser_message(path, exc, delimiter)) from None
+        raise _parser_error(path, exc, delimiter) from None
     except MemoryError:
         raise InputError(say("read.too_big", file=path.name)) from None
     except (UnicodeDecodeError, ValueError, OverflowError) as exc:
@@ -172,14 +172,15 @@ def _wider_than_header(path: Path, layout: dict, options: dict, delimiter: str) 
     return frame.iloc[:, :width]
 
 
-def _parser_message(path: Path, exc: Exception, delimiter: str) -> str:
+def _parser_error(path: Path, exc: Exception, delimiter: str) -> InputError:
+    """pandas' parser error said in the user's words (its own text is read, as it comes)."""
     text = str(exc)
     match = re.search(r"Expected (\d+) fields in line (\d+), saw (\d+)", text)
     if match:
         expected, line, saw = match.groups()
-        return say("read.ragged", file=path.name, line=line, saw=saw, expected=expected,
-                   delimiter=_DELIMITER_NAMES[delimiter])
+        return InputError(say("read.ragged", file=path.name, line=line, saw=saw,
+                              expected=expected, delimiter=_DELIMITER_NAMES[delimiter]))
     match = re.search(r"EOF inside string starting at row (\d+)", text)
     if match:
-        return say("read.open_quote", file=path.name, line=int(match.group(1)) + 1)
-    return say("read.unparseable", file=path.name, detail=first_line(exc))
+        return InputError(say("read.open_quote", file=path.name, line=int(match.group(1)) + 1))
+    return InputError(say("read.unparseable", file=path.name, detail=first_line(exc)))

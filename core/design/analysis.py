@@ -16,6 +16,7 @@ import pandas as pd
 from ..dictionary.columns import CATEGORY_KINDS, PREDICTOR_KINDS, ColumnSpec, DataDictionary
 from ..dictionary.typed_columns import TypedColumn, positive_level, typed_column
 from ..errors import InputError
+from ..messages.message import say
 
 TASKS = ("classification", "regression")
 
@@ -83,44 +84,38 @@ def prepare_analysis(frame: pd.DataFrame, dictionary: DataDictionary,
                      design: DesignSpec) -> AnalysisData:
     """Check the user's choices against the data and parse the columns they name."""
     if design.outcome not in frame.columns:
-        raise InputError(f"There is no column called {design.outcome!r} to use as the outcome; "
-                         "choose one of: " + ", ".join(repr(c) for c in list(frame.columns)[:20]) + ".")
+        raise InputError(say("design.no_outcome_column", name=design.outcome,
+                             columns=", ".join(repr(c) for c in list(frame.columns)[:20])))
     outcome = dictionary.get(design.outcome)
     task = design.task or suggest_task(outcome)
     if task not in TASKS:
-        raise InputError(f"The task must be classification or regression, not {task!r}.")
+        raise InputError(say("design.bad_task", task=task))
     notes: list[str] = []
     if not design.predictors:
-        raise InputError("No predictors are chosen; choose at least one column to ask about.")
+        raise InputError(say("design.no_predictors"))
     for name in design.predictors:
         if name not in frame.columns:
-            raise InputError(f"There is no column called {name!r} to use as a predictor; check "
-                             "the spelling (column names are case-sensitive).")
+            raise InputError(say("design.no_predictor_column", name=name))
         if name == design.outcome:
-            raise InputError(f"{name!r} is the outcome and cannot also be a predictor; take it "
-                             "out of the predictors.")
+            raise InputError(say("design.outcome_as_predictor", name=name))
     for role, name in (("patient identifier", design.patient_id), ("site", design.site)):
         if name is not None and name not in frame.columns:
-            raise InputError(f"There is no column called {name!r} to use as the {role}; check "
-                             "the spelling.")
+            raise InputError(say("design.no_role_column", name=name, role=role))
 
     y, classes, keep = _outcome_values(frame[design.outcome], outcome, task, design.positive)
     n_dropped = int((~keep).sum())
     if n_dropped:
-        notes.append(f"{n_dropped} row(s) without a recorded outcome were left out.")
+        notes.append(say("design.rows_without_outcome", n=n_dropped))
     rows = np.flatnonzero(keep)
     predictors = []
     for name in design.predictors:
         spec = dictionary.get(name)
         if spec.kind not in PREDICTOR_KINDS:
-            raise InputError(f"{spec.display!r} is marked as {spec.kind}, which a tree cannot ask "
-                             "about; set its kind to numeric, binary, ordinal or nominal, or "
-                             "take it out of the predictors.")
+            raise InputError(say("design.predictor_kind", name=spec.display, kind=spec.kind))
         column = typed_column(frame[name].iloc[rows].reset_index(drop=True), spec)
         notes.extend(column.notes)
         if column.missing.all():
-            raise InputError(f"{spec.display!r} is not recorded for any patient with an outcome; "
-                             "take it out of the predictors.")
+            raise InputError(say("design.predictor_never_recorded", name=spec.display))
         predictors.append(column)
     groups = _codes(frame[design.patient_id].iloc[rows]) if design.patient_id else None
     sites, site_levels = (None, ())
@@ -148,18 +143,15 @@ def _outcome_values(values: pd.Series, spec: ColumnSpec, task: str, positive: st
     name = spec.display
     if task == "regression":
         if spec.kind in CATEGORY_KINDS and spec.kind != "ordinal":
-            raise InputError(f"{name!r} holds categories, so it needs a classification tree; "
-                             "choose the task 'classification'.")
+            raise InputError(say("design.categories_need_classification", name=name))
         numeric_spec = spec if spec.kind == "numeric" else ColumnSpec(spec.name, kind="numeric",
                                                                       label=spec.label)
         parsed = typed_column(values, numeric_spec).numbers
         keep = ~np.isnan(parsed)
         if not keep.any():
-            raise InputError(f"The outcome {name!r} is not recorded for any row; choose another "
-                             "outcome column.")
+            raise InputError(say("design.outcome_not_recorded", name=name))
         if np.unique(parsed[keep]).size < 2:
-            raise InputError(f"The outcome {name!r} has the same value for every patient, so "
-                             "there is nothing to predict; choose another outcome.")
+            raise InputError(say("design.outcome_constant", name=name))
         return parsed[keep], (), keep
     if spec.kind == "numeric":
         spec = ColumnSpec(spec.name, kind="nominal", label=spec.label, role=spec.role,
@@ -168,13 +160,11 @@ def _outcome_values(values: pd.Series, spec: ColumnSpec, task: str, positive: st
     spec = column.spec
     keep = column.codes >= 0
     if not keep.any():
-        raise InputError(f"The outcome {name!r} is not recorded for any row; choose another "
-                         "outcome column.")
+        raise InputError(say("design.outcome_not_recorded", name=name))
     present = np.unique(column.codes[keep])
     if present.size < 2:
         only = spec.levels[present[0]]
-        raise InputError(f"The outcome {name!r} has only one class ({only!r}) among the rows, so "
-                         "there is nothing to predict; check the outcome column or choose another.")
+        raise InputError(say("design.one_class", name=name, only=only))
     levels = [spec.levels[i] for i in present]
     codes = column.codes[keep]
     remap = np.full(len(spec.levels), -1, dtype=np.int64)
@@ -182,8 +172,8 @@ def _outcome_values(values: pd.Series, spec: ColumnSpec, task: str, positive: st
         pos = positive or (spec.positive if spec.positive in levels else None) or \
             positive_level(ColumnSpec(spec.name, kind="binary", levels=tuple(levels)))
         if pos not in levels:
-            raise InputError(f"The positive class {pos!r} is not a level of {name!r}; its levels "
-                             f"are {', '.join(map(repr, levels))}.")
+            raise InputError(say("design.positive_not_level", positive=pos, name=name,
+                                 levels=", ".join(map(repr, levels))))
         neg = levels[0] if levels[1] == pos else levels[1]
         classes = (neg, pos)
     else:

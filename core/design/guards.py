@@ -35,7 +35,7 @@ from ..dictionary.identity import (
     IdentityHint, identity_by_header, identity_hint, looks_like_record_numbers,
 )
 from ..errors import InputError
-from ..messages.message import catalogue, say
+from ..messages.message import message_kinds, say
 from ..progress import stop_if_cancelled
 from .analysis import AnalysisData, DesignSpec, prepare_analysis
 from .matrix import fit_encoding
@@ -66,7 +66,7 @@ def _finding(kind: str, column, code: str, /, leave_out: bool = False, measures=
              **fields) -> GuardFinding:
     return GuardFinding(kind, None if column is None else str(column), say(code, **fields),
                         leave_out=leave_out, measures=dict(measures or {}),
-                        severity=catalogue()[code].severity, code=code)
+                        severity=message_kinds()[code].severity, code=code)
 
 
 @dataclass(frozen=True)

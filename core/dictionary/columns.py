@@ -58,11 +58,11 @@ class ColumnSpec:
 
     def __post_init__(self) -> None:
         if self.role not in ROLES:
-            raise InputError(f"Column {self.name!r}: role {self.role!r} is not one of "
-                             + ", ".join(ROLES) + ".")
+            raise InputError(say("variables.bad_role", name=self.name, role=self.role,
+                                 roles=", ".join(ROLES)))
         if self.kind not in KINDS:
-            raise InputError(f"Column {self.name!r}: kind {self.kind!r} is not one of "
-                             + ", ".join(KINDS) + ".")
+            raise InputError(say("variables.bad_kind", name=self.name, kind=self.kind,
+                                 kinds=", ".join(KINDS)))
         if len(set(self.levels)) != len(self.levels):
             twice = sorted({lv for lv in self.levels if self.levels.count(lv) > 1})
             raise InputError(say("dictionary.repeated_levels", column=self.name,
@@ -84,7 +84,7 @@ class ColumnSpec:
         if not isinstance(data, dict):
             raise InputError(say("dictionary.entry_not_object", found=type(data).__name__))
         if not isinstance(data.get("name"), str) or not data["name"]:
-            raise InputError("A column in the data dictionary has no 'name'; add one.")
+            raise InputError(say("variables.no_name"))
         name = data["name"]
         known = {f for f in cls.__dataclass_fields__}
         clean = {k: v for k, v in data.items() if k in known}
@@ -117,8 +117,7 @@ class DataDictionary:
         names = [c.name for c in self.columns]
         if len(set(names)) != len(names):
             dup = sorted({n for n in names if names.count(n) > 1})
-            raise InputError("The data dictionary lists " + ", ".join(map(repr, dup))
-                             + " more than once; keep one entry per column.")
+            raise InputError(say("variables.listed_twice", names=", ".join(map(repr, dup))))
 
     @property
     def names(self) -> tuple[str, ...]:
@@ -131,9 +130,9 @@ class DataDictionary:
         for spec in self.columns:
             if spec.name == name:
                 return spec
-        raise InputError(f"There is no column called {name!r}; the columns are: "
-                         + ", ".join(repr(n) for n in self.names[:30])
-                         + (" ..." if len(self.names) > 30 else "") + ".")
+        raise InputError(say("variables.no_column", name=name,
+                             columns=", ".join(repr(n) for n in self.names[:30]),
+                             more=" ..." if len(self.names) > 30 else ""))
 
     def with_column(self, name: str, **changes) -> "DataDictionary":
         """A copy with one column's entry changed."""
@@ -176,7 +175,7 @@ class DataDictionary:
         """Load a dictionary saved as JSON or CSV."""
         path = Path(path)
         if not path.exists():
-            raise InputError(f"No data dictionary at {path}; check the path.")
+            raise InputError(say("variables.no_dictionary", path=path))
         if path.suffix.lower() == ".json":
             data = read_json_document(path, "dictionary", DICTIONARY_VERSIONS)
             return cls.from_dict(data, path.name)
@@ -186,8 +185,7 @@ class DataDictionary:
         except (UnicodeDecodeError, OSError, csv.Error):
             raise InputError(say("dictionary.csv_unreadable", file=path.name)) from None
         if not rows or "name" not in rows[0]:
-            raise InputError(f"{path.name} has no 'name' column; a dictionary CSV needs the "
-                             "columns name, role, kind, label, unit, missing_codes, levels.")
+            raise InputError(say("variables.dictionary_csv_no_name", file=path.name))
         return cls(tuple(ColumnSpec.from_dict(r) for r in rows))
 
 

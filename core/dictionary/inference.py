@@ -17,7 +17,7 @@ import numpy as np
 import pandas as pd
 
 from ..data.cells import missing_texts, parse_dates, parse_numbers, profile_cells, yes_no_levels
-from ..messages.message import catalogue, say
+from ..messages.message import say
 from ..phrases import rows_phrase
 from .columns import MAX_NOMINAL_LEVELS, ColumnSpec, DataDictionary, canonical_levels
 from .identity import identity_hint, looks_like_record_numbers
@@ -95,8 +95,7 @@ def _infer(name: str, values: pd.Series, rows) -> tuple[ColumnSpec, list[str]]:
                          n=numbers.n_unreadable, rows=rows_phrase(numbers.unreadable_rows
                                                                   if rows is not None else None)))
         # The words are now missing codes, so the "not numbers" note no longer applies.
-        not_numbers = catalogue()["values.not_numbers"].pattern()
-        notes.extend(n for n in numbers.notes if not not_numbers.match(n))
+        notes.extend(n for n in numbers.notes if n.code != "values.not_numbers")
         return ColumnSpec(kind="numeric", missing_codes=words, **base), notes
 
     # Texts: counted per distinct trimmed text, and per spelling regardless of capitals.

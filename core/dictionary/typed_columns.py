@@ -15,6 +15,7 @@ from ..data.cells import (
     YES_WORDS, counted, is_missing_text, level_text, parse_levels, parse_numbers,
 )
 from ..errors import InputError
+from ..messages.message import say
 from .columns import CATEGORY_KINDS, ColumnSpec, canonical_levels
 
 
@@ -48,16 +49,15 @@ def typed_column(values: pd.Series, spec: ColumnSpec) -> TypedColumn:
             spec = replace(spec, levels=levels)
         cat, notes = parse_levels(values, levels, spec.missing_codes, spec.name)
         return TypedColumn(spec, codes=np.asarray(cat.codes, dtype=np.int32), notes=notes)
-    raise InputError(f"Column {spec.display!r} is of kind {spec.kind!r}, which cannot be used "
-                     "in a tree; set its kind to numeric, binary, ordinal or nominal.")
+    raise InputError(say("variables.kind_not_in_tree", name=spec.display, kind=spec.kind))
 
 
 def positive_level(spec: ColumnSpec) -> str:
     """The positive class of a binary outcome: as set, else 'yes'/'1'/the second level."""
     if spec.positive:
         if spec.positive not in spec.levels:
-            raise InputError(f"The positive class {spec.positive!r} is not a level of "
-                             f"{spec.display!r} (levels: {', '.join(spec.levels)}).")
+            raise InputError(say("variables.positive_not_level", positive=spec.positive,
+                                 name=spec.display, levels=", ".join(spec.levels)))
         return spec.positive
     for level in spec.levels:
         if level.casefold() in YES_WORDS:

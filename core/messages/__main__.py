@@ -2,6 +2,6 @@
 
 import sys
 
-from .message import markdown_table
+from .readme_table import markdown_table
 
 sys.stdout.write(markdown_table())

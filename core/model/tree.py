@@ -21,6 +21,7 @@ from ..checking.metrics import Proportion, proportion
 from ..dictionary.columns import ColumnSpec
 from ..dictionary.typed_columns import TypedColumn, typed_column
 from ..errors import InputError
+from ..messages.message import say
 from ..phrases import short_fingerprint
 from ..safe_files import check_format, read_json_document, write_text_atomic
 from .file_checks import validate_model_dict
@@ -291,8 +292,8 @@ class TreeModel:
                         n_rows=int(data["n_rows"]), path=data["path"], chosen=data["chosen"],
                         extra={k: v for k, v in data.items() if k not in known})
         except (KeyError, TypeError, ValueError, AttributeError) as exc:
-            raise InputError(f"The model file is damaged ({type(exc).__name__}: {exc}); save the "
-                             "model again from Prunella.") from None
+            raise InputError(say("model.damaged_detail", kind=type(exc).__name__, detail=str(exc))
+                             ) from None
         model._check()
         return model
 
@@ -305,16 +306,13 @@ class TreeModel:
     def _check(self) -> None:
         ids = [n.id for n in self.nodes]
         if ids != list(range(1, len(ids) + 1)):
-            raise InputError("The model file is damaged (boxes are not numbered 1, 2, 3, ...); "
-                             "save the model again from Prunella.")
+            raise InputError(say("model.numbering"))
         for node in self.nodes:
             if node.children and (len(node.children) != 2 or node.question is None or
                                   any(c <= node.id or c > len(ids) for c in node.children)):
-                raise InputError(f"The model file is damaged at box {node.id}; save the model "
-                                 "again from Prunella.")
+                raise InputError(say("model.damaged_box", box=node.id))
             if node.question is not None and node.question.column not in {p.name for p in self.predictors}:
-                raise InputError(f"The model file is damaged: box {node.id} asks about an unknown "
-                                 "column; save the model again from Prunella.")
+                raise InputError(say("model.unknown_column", box=node.id))
 
     # --- scoring ------------------------------------------------------------------------
 
@@ -323,9 +321,7 @@ class TreeModel:
         used = self.columns_asked()
         absent = [c for c in used if c not in frame.columns]
         if absent:
-            raise InputError("The data lack column(s) the tree asks about: "
-                             + ", ".join(repr(c) for c in absent)
-                             + "; add them (same names as in the derivation data) or rename them.")
+            raise InputError(say("model.columns_absent", columns=", ".join(repr(c) for c in absent)))
         warnings: list[str] = []
         values: dict[str, np.ndarray] = {}
         for column in used:

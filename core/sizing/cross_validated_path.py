@@ -19,6 +19,7 @@ from joblib import Parallel, delayed
 from ..design.analysis import AnalysisData
 from ..design.matrix import Encoding, fit_encoding
 from ..errors import InputError
+from ..messages.message import say
 from ..progress import CancelFlag, Progress, stop_if_cancelled
 from .folds import CVSettings, fold_plan
 from .grow import ClassCosts, GrownTree, TreeSettings, class_costs, grow_tree
@@ -102,20 +103,18 @@ class CrossValidatedPath:
         try:
             wanted = int(size)
         except (TypeError, ValueError):
-            raise InputError(f"The tree size must be '1se', 'min' or a number of leaves, not "
-                             f"{size!r}.") from None
+            raise InputError(say("size.size_word", size=size)) from None
         fits = np.flatnonzero(self.leaves <= wanted)
         if wanted < 1 or fits.size == 0:
-            raise InputError("A tree needs at least one leaf; sizes on the pruning path are "
-                             + ", ".join(map(str, self.leaves[::-1])) + ".")
+            raise InputError(say("size.size_at_least_one",
+                                 sizes=", ".join(map(str, self.leaves[::-1]))))
         return int(fits.min()), "user"
 
 
 def grow_full(data: AnalysisData, settings: TreeSettings) -> GrownModel:
     """Grow the maximal tree on every derivation row and compute its pruning sequence."""
     if data.n < 2 * settings.min_leaf:
-        raise InputError(f"There are {data.n} rows with an outcome, too few for leaves of at least "
-                         f"{settings.min_leaf} patients; lower the minimum leaf size or add rows.")
+        raise InputError(say("size.too_few_rows", n=data.n, min_leaf=settings.min_leaf))
     costs = class_costs(settings, data.y, len(data.classes)) if data.task == "classification" else None
     encoding = fit_encoding(data)
     X = encoding.matrix(data)

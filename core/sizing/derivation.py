@@ -16,6 +16,7 @@ from ..data.table import LoadedTable
 from ..design.analysis import AnalysisData, prepare_analysis
 from ..dictionary.columns import DataDictionary
 from ..errors import InputError
+from ..messages.message import say
 from ..model.tree import TreeModel
 from ..progress import CancelFlag, Progress
 from .chosen_tree import build_model
@@ -59,11 +60,9 @@ def derive(table: LoadedTable, dictionary: DataDictionary, request: DerivationRe
         keep, out = holdout_split(full.n, request.holdout, request.cv.seed, y=strat,
                                   groups=full.groups)
         data, heldout = full.subset(keep), full.subset(out)
-        notes.append(f"{len(out)} of {full.n} rows were set aside before growing, to check the "
-                     "tree on patients it never saw.")
+        notes.append(say("holdout.set_aside", n=len(out), total=full.n))
     if data.task == "classification" and np.unique(data.y).size < len(data.classes):
-        raise InputError("After setting patients aside, one outcome class has no patients left "
-                         "for growing; use a smaller held-out share.")
+        raise InputError(say("holdout.class_left_out"))
     path = cross_validate_path(data, request.tree, request.cv, jobs=jobs, progress=progress,
                                cancel=cancel)
     index, rule = path.index_for(request.size)

@@ -15,6 +15,7 @@ from sklearn.model_selection import (
 )
 
 from ..errors import InputError
+from ..messages.message import say
 
 PLANS = ("kfold", "loo", "site", "split")
 
@@ -64,16 +65,14 @@ def fold_plan(settings: CVSettings, n: int, y: np.ndarray | None = None,
               groups: np.ndarray | None = None, sites: np.ndarray | None = None) -> list[Fold]:
     """The folds for ``n`` rows; ``y`` (class codes) stratifies, ``groups`` keeps patients together."""
     if settings.plan not in PLANS:
-        raise InputError(f"Unknown cross-validation plan {settings.plan!r}; use one of "
-                         + ", ".join(PLANS) + ".")
+        raise InputError(say("folds.unknown_plan", plan=settings.plan, plans=", ".join(PLANS)))
     use_groups = groups if (settings.grouped and groups is not None) else None
     index = np.zeros(n)
     if settings.plan == "site":
         if sites is None:
-            raise InputError("Leave-one-site-out needs a site column; choose which column "
-                             "names the site.")
+            raise InputError(say("folds.site_needs_column"))
         if np.unique(sites).size < 2:
-            raise InputError("Leave-one-site-out needs at least two sites; the site column has one.")
+            raise InputError(say("folds.site_needs_two"))
         return [Fold(0, tr, te) for tr, te in LeaveOneGroupOut().split(index, groups=sites)]
     if settings.plan == "loo":
         if use_groups is not None:
@@ -83,7 +82,7 @@ def fold_plan(settings: CVSettings, n: int, y: np.ndarray | None = None,
     if settings.plan == "split":
         share = settings.validation_share
         if not 0 < share < 1:
-            raise InputError("The validation share must be between 0 and 1 (for example 0.25).")
+            raise InputError(say("folds.validation_share"))
         if use_groups is not None:
             splitter = GroupShuffleSplit(n_splits=1, test_size=share, random_state=settings.seed)
             split = splitter.split(index, groups=use_groups)
@@ -95,11 +94,11 @@ def fold_plan(settings: CVSettings, n: int, y: np.ndarray | None = None,
         return [Fold(0, tr, te) for tr, te in split]
     k = settings.folds
     if k < 2:
-        raise InputError("Cross-validation needs at least 2 folds.")
+        raise InputError(say("folds.folds_at_least_2"))
     units = n if use_groups is None else np.unique(use_groups).size
     if k > units:
-        raise InputError(f"{k} folds need at least {k} {'patients' if use_groups is not None else 'rows'}; "
-                         f"there are {units}. Use fewer folds.")
+        raise InputError(say("folds.too_few_units", k=k, n=units,
+                             units="patients" if use_groups is not None else "rows"))
     folds: list[Fold] = []
     for r in range(max(1, settings.repeats)):
         seed = settings.seed + r
@@ -152,7 +151,7 @@ def holdout_split(n: int, share: float, seed: int, y: np.ndarray | None = None,
                   groups: np.ndarray | None = None) -> tuple[np.ndarray, np.ndarray]:
     """Split rows into a derivation part and a held-out part before anything is grown."""
     if not 0 < share < 1:
-        raise InputError("The held-out share must be between 0 and 1 (for example 0.25).")
+        raise InputError(say("folds.holdout_share"))
     (fold,) = fold_plan(CVSettings(plan="split", validation_share=share, seed=seed), n, y=y,
                         groups=groups)
     return np.sort(fold.train), np.sort(fold.test)

@@ -14,6 +14,7 @@ import numpy as np
 from sklearn.tree import DecisionTreeClassifier, DecisionTreeRegressor
 
 from ..errors import InputError
+from ..messages.message import say
 
 CLASSIFICATION_CRITERIA = ("gini", "entropy")
 REGRESSION_CRITERIA = ("squared_error", "friedman_mse")
@@ -76,27 +77,23 @@ def class_costs(settings: TreeSettings, y: np.ndarray, n_classes: int) -> ClassC
         elif settings.priors == "equal":
             priors = np.full(n_classes, 1.0 / n_classes)
         else:
-            raise InputError(f"Class priors must be 'observed', 'equal' or one number per class, "
-                             f"not {settings.priors!r}.")
+            raise InputError(say("grow.priors_word", given=settings.priors))
     else:
         priors = np.asarray(settings.priors, dtype=float)
         if priors.shape != (n_classes,) or (priors < 0).any() or priors.sum() <= 0:
-            raise InputError(f"Give {n_classes} non-negative class priors (one per class).")
+            raise InputError(say("grow.priors_count", n=n_classes))
         priors = priors / priors.sum()
     if settings.loss is not None:
         loss = np.asarray(settings.loss, dtype=float)
         if loss.shape != (n_classes, n_classes) or (loss < 0).any() or np.diag(loss).any():
-            raise InputError(f"The misclassification costs must be a {n_classes}×{n_classes} table "
-                             "of non-negative numbers with zeros on the diagonal.")
+            raise InputError(say("grow.costs_table", n=n_classes))
     else:
         loss = 1.0 - np.eye(n_classes)
         if settings.miss_cost is not None:
             if n_classes != 2:
-                raise InputError("A single 'missing a positive' cost only applies to two classes; "
-                                 "give a full table of costs for more classes.")
+                raise InputError(say("grow.miss_cost_two_classes"))
             if not settings.miss_cost > 0:
-                raise InputError("The cost of missing a positive must be a positive number "
-                                 "(1 means as bad as a needless alarm).")
+                raise InputError(say("grow.miss_cost_positive"))
             loss[1, 0] = float(settings.miss_cost)
     with np.errstate(divide="ignore", invalid="ignore"):
         case_weight = np.where(counts > 0, priors * counts.sum() / counts, 0.0)
@@ -143,20 +140,20 @@ class GrownTree:
 def make_estimator(task: str, settings: TreeSettings, class_weight=None):
     """The scikit-learn estimator these settings describe (used for reference checks too)."""
     if settings.min_leaf < 1:
-        raise InputError("The minimum number of patients per leaf must be at least 1.")
+        raise InputError(say("grow.min_leaf"))
     common = dict(min_samples_leaf=int(settings.min_leaf),
                   min_samples_split=max(2, 2 * int(settings.min_leaf)),
                   max_depth=settings.max_depth, random_state=settings.seed)
     if task == "classification":
         criterion = settings.criterion or "gini"
         if criterion not in CLASSIFICATION_CRITERIA:
-            raise InputError(f"The split criterion for classification must be one of "
-                             f"{', '.join(CLASSIFICATION_CRITERIA)}, not {criterion!r}.")
+            raise InputError(say("grow.criterion_classification",
+                                 choices=", ".join(CLASSIFICATION_CRITERIA), given=criterion))
         return DecisionTreeClassifier(criterion=criterion, class_weight=class_weight, **common)
     criterion = settings.criterion or "squared_error"
     if criterion not in REGRESSION_CRITERIA:
-        raise InputError(f"The split criterion for regression must be one of "
-                         f"{', '.join(REGRESSION_CRITERIA)}, not {criterion!r}.")
+        raise InputError(say("grow.criterion_regression", choices=", ".join(REGRESSION_CRITERIA),
+                             given=criterion))
     return DecisionTreeRegressor(criterion=criterion, **common)
 
 
@@ -164,7 +161,7 @@ def grow_tree(X: np.ndarray, y: np.ndarray, task: str, settings: TreeSettings,
               costs: ClassCosts | None = None) -> GrownTree:
     """Grow the maximal tree on (X, y) and compute every node's risk and outcome."""
     if settings.risk not in RISKS:
-        raise InputError(f"The pruning risk must be 'cost' or 'impurity', not {settings.risk!r}.")
+        raise InputError(say("grow.risk", given=settings.risk))
     if task == "classification":
         if costs is None:
             raise ValueError("classification needs class costs")

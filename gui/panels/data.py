@@ -15,7 +15,7 @@ from PySide6.QtWidgets import (
 from core.data import EXCEL_SUFFIXES, list_sheets, read_table
 from core.dictionary import DataDictionary, dictionary_beside, dictionary_for
 from core.errors import InputError
-from core.messages import app_advice, app_wording, explain as catalogue_entry
+from core.messages import app_advice, app_wording, kind_of as catalogue_entry
 from gui import workers
 from gui.panels.base import Panel, explain, heading_font
 from gui.widgets.dictionary_model import (

@@ -1,0 +1,38 @@
+"""Messages of checking a tree on separate patients, nested cross-validation and stability."""
+
+ENTRIES = [
+    ("check.no_heldout", "refused", "No patients were set aside before growing; set a "
+     "held-out share (for example 0.25) and run the derivation again.",
+     "Set a held-out share, or check the tree on another file."),
+    ("check.no_outcome", "refused", "The file has no column {name!r} ({label}), the outcome "
+     "the tree predicts; add it or rename the outcome column.",
+     "Name the outcome column as in the derivation data."),
+    ("check.columns_absent", "refused", "The file lacks column(s) the tree asks about: "
+     "{columns}; add them, named as in the derivation data.",
+     "Every column the tree asks about must be in the file."),
+    ("check.no_outcome_rows", "refused", "No row of the file has a recorded {label} that the "
+     "tree can be checked against; check the outcome column.",
+     "Check the outcome column and its spellings."),
+    ("check.other_tree", "refused", "This check was made on another tree than the one given; "
+     "check the tree again before recording the result.", "Run the check again on this tree."),
+    ("check.unknown_classes", "warning", "{n} row(s) have an outcome that is not one of the "
+     "tree's classes ({classes}), e.g. {examples}; they were left out.",
+     "Check the outcome's spellings in the new file."),
+    ("check.rows_without_outcome", "note", "{n} of {total} row(s) without a usable outcome "
+     "were left out.", "Nothing to do, unless the outcome should be known for them."),
+    ("check.unseen_levels", "warning", "{total} cell(s) hold a level the tree never saw at "
+     "derivation and were routed as not recorded ({parts}).",
+     "Check the spelling of these levels in the new file; a category the tree never saw "
+     "follows the branch for values not recorded."),
+    ("check.columns_found", "note", "{n} of the model's columns were found.", "Nothing to do."),
+    ("check.column_renamed", "note", "Column {found!r} was taken as {wanted!r} (the names "
+     "differ only in capitals or spaces).", "Nothing to do."),
+    ("check.not_asked_missing", "note", "Not in the file, but not asked by the tree (no "
+     "effect): {columns}.", "Nothing to do."),
+    ("check.columns_unused", "note", "{n} column(s) of the file are not used by the model: "
+     "{columns}.", "Nothing to do."),
+    ("nested.outer_folds", "refused", "Nested cross-validation needs at least 2 outer folds.",
+     "Use 2 or more outer folds (5 is usual)."),
+    ("stability.resamples", "refused", "The number of bootstrap resamples must be at least 1 "
+     "(200 is usual).", "Give a positive number of resamples."),
+]

@@ -1,0 +1,75 @@
+"""Messages of choosing the outcome and predictors, and of the guards that run before growing."""
+
+ENTRIES = [
+    ("design.no_outcome_column", "refused", "There is no column called {name!r} to use as "
+     "the outcome; choose one of: {columns}.", "Pick the outcome from the listed columns."),
+    ("design.bad_task", "refused", "The task must be classification or regression, not "
+     "{task!r}.", "Choose classification (categories) or regression (numbers)."),
+    ("design.no_predictors", "refused", "No predictors are chosen; choose at least one "
+     "column to ask about.",
+     "Choose predictors; columns that identify patients, dates and free text are left out by "
+     "default."),
+    ("design.no_predictor_column", "refused", "There is no column called {name!r} to use as "
+     "a predictor; check the spelling (column names are case-sensitive).",
+     "Use the column names exactly as in the header row."),
+    ("design.outcome_as_predictor", "refused", "{name!r} is the outcome and cannot also be a "
+     "predictor; take it out of the predictors.", "Remove it from the predictors."),
+    ("design.no_role_column", "refused", "There is no column called {name!r} to use as the "
+     "{role}; check the spelling.", "Use the column name exactly as in the header row."),
+    ("design.predictor_kind", "refused", "{name!r} is marked as {kind}, which a tree cannot "
+     "ask about; set its kind to numeric, binary, ordinal or nominal, or take it out of the "
+     "predictors.", "Change its kind in the data dictionary, or leave it out."),
+    ("design.predictor_never_recorded", "refused", "{name!r} is not recorded for any patient "
+     "with an outcome; take it out of the predictors.", "Leave the column out."),
+    ("design.rows_without_outcome", "note", "{n} row(s) without a recorded outcome were left "
+     "out.", "Nothing to do, unless the outcome should be known for them."),
+    ("design.categories_need_classification", "refused", "{name!r} holds categories, so it "
+     "needs a classification tree; choose the task 'classification'.", "Choose classification."),
+    ("design.outcome_not_recorded", "refused", "The outcome {name!r} is not recorded for any "
+     "row; choose another outcome column.", "Check the outcome column in the spreadsheet."),
+    ("design.outcome_constant", "refused", "The outcome {name!r} has the same value for "
+     "every patient, so there is nothing to predict; choose another outcome.",
+     "Choose an outcome that varies."),
+    ("design.one_class", "refused", "The outcome {name!r} has only one class ({only!r}) "
+     "among the rows, so there is nothing to predict; check the outcome column or choose "
+     "another.",
+     "Check the outcome's spellings, or whether the file holds only one group of patients."),
+    ("design.positive_not_level", "refused", "The positive class {positive!r} is not a level "
+     "of {name!r}; its levels are {levels}.", "Give one of the listed levels."),
+    ("guard.identity", "warning", "{column!r} is left out of the predictors: {reason}, and a "
+     "chart must never print who a patient is. Name it in the predictors yourself only if it "
+     "does not identify anyone.", "Leave identifying columns out of the analysis file."),
+    ("guard.nothing_left", "refused", "Every chosen predictor identifies patients "
+     "({columns}), so none is left to ask about; choose other predictors, or name these "
+     "explicitly if they truly do not identify anyone.", "Choose clinical predictors."),
+    ("guard.leakage", "warning", "Probable leakage: {column!r} on its own predicts "
+     "{outcome!r} almost perfectly ({evidence}). Check when it is recorded: if it is known "
+     "only after, or because of, the outcome, leave it out of the predictors (on the command "
+     "line: --exclude {column}).",
+     "A value recorded after the decision (a bed booked, a length of stay) cannot guide the "
+     "decision. Leave it out unless it is truly known beforehand."),
+    ("guard.repeats_grouped", "note", "{patients} patient(s) have more than one row "
+     "({n_rows} rows, up to {most} for one patient) by {column!r}; cross-validation keeps "
+     "each patient's rows in the same fold.", "Nothing to do."),
+    ("guard.repeats_not_grouped", "warning", "{patients} patient(s) have more than one row "
+     "({n_rows} rows, up to {most} for one patient) by {column!r}, but cross-validation does "
+     "not keep them together, so its error will look better than it is; turn grouping by "
+     "patient on.", "Turn on 'keep each patient's rows together'."),
+    ("guard.repeats_no_id", "warning", "{column!r} repeats for {patients} patient(s) "
+     "({n_rows} rows): these look like repeat visits. Set it as the patient identifier (on "
+     "the command line: --patient-id {column}) so cross-validation keeps each patient's rows "
+     "together.",
+     "Without it, one patient can be in the training and the test part, and the error looks "
+     "better than it is."),
+    ("guard.repeats_by_name", "warning", "{column!r} repeats for {patients} name(s) "
+     "({n_rows} rows): some patients probably came more than once. A name is not a safe "
+     "patient identifier (different people share names), so add a patient number column and "
+     "set it as the patient identifier; cross-validation then keeps each patient's rows "
+     "together.",
+     "Without it, one patient can be in the training and the test part, and the error looks "
+     "better than it is."),
+    ("guard.rare_class", "warning", "Only {n} patient(s) have {label!r} for {outcome!r} "
+     "(fewer than {limit}): too few to grow and cross-validate a tree on; treat the result as "
+     "exploratory, or collect more patients with {label!r}.",
+     "Collect more patients, or choose a more common outcome."),
+]

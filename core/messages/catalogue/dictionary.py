@@ -1,0 +1,86 @@
+"""Messages of the data dictionary: what was suggested from the cells, and a saved dictionary
+read or refused."""
+
+ENTRIES = [
+    ("infer.all_missing", "note", "{column!r} has no recorded values; it is left out.",
+     "Nothing to do, unless the column should hold values: then check the export."),
+    ("infer.constant", "note", "{column!r} has the same value in every row; it is left out.",
+     "A column that never changes cannot help a tree."),
+    ("infer.identifier", "note", "{column!r} is different in (almost) every row, like an "
+     "identifier; it is left out of the predictors.",
+     "If it is really a measurement, set its kind in the data dictionary."),
+    ("infer.record_numbers", "note", "{column!r} is different in every row, like a record "
+     "number; it is left out of the predictors.",
+     "If it is really a measurement, set its kind to numeric in the data dictionary."),
+    ("infer.patient_id", "note", "{column!r} looks like a patient identifier with repeat "
+     "visits; cross-validation will keep each patient's visits together.",
+     "Nothing to do; it is used only to group each patient's rows."),
+    ("infer.identity", "warning", "{column!r} seems to identify patients ({reason}); it is "
+     "left out of the predictors so that no chart can print it. Name it as a predictor "
+     "yourself only if it does not identify anyone.",
+     "Keep identifying columns out of the analysis file when you can."),
+    ("infer.too_many_levels", "note", "{column!r} has {n} different texts, too many for a "
+     "chart question (at most {limit}); it is left out (group the texts into fewer categories "
+     "to use it).", "Group the texts into a few categories in a new column."),
+    ("infer.mixed_categories", "warning", "{column!r} mixes numbers and words{rows}; it is "
+     "treated as categories. If it should be a number, correct the words or mark them as "
+     "missing codes.", "Correct the words, or list them as missing-value codes."),
+    ("infer.numbers_and_words", "warning", "{column!r} holds numbers and a few words "
+     "({words}) in {n} cell(s){rows}; the words were treated as not recorded. If they carry "
+     "information, record it in a separate column.",
+     "Check the words: if they mean 'not done' this is right; if they are results, recode "
+     "them."),
+    ("infer.yes_no_spellings", "note", "{column!r} writes yes and no in several ways "
+     "({spellings}); they were read as 'yes' and 'no'.", "Nothing to do."),
+    ("infer.date_formats", "warning", "{column!r} holds dates in several formats (e.g. "
+     "{examples}); where day and month could be swapped the day was read first (03/01/2024 is "
+     "3 January). Check a few dates in the preview.",
+     "Write dates one way, preferably yyyy-mm-dd."),
+    ("infer.capitals", "note", "{column!r} spells some categories with different capitals; "
+     "they were merged.", "Nothing to do."),
+    ("infer.sentinel", "warning", "{column!r}: the value {code}, found in {n} cell(s){rows}, "
+     "looks like a code for 'not recorded' and is treated as missing; remove it from the "
+     "column's missing-value codes if it is a real value.",
+     "Check the data dictionary's missing-value codes for this column."),
+    ("dictionary.entry_not_object", "refused", "A column of the data dictionary is written "
+     "as {found}, not as an object with a 'name'; save the dictionary again from Prunella.",
+     "Fix the dictionary file or save it again."),
+    ("dictionary.bad_field", "refused", "The data dictionary's entry for {column!r}: '{key}' "
+     "must be {expected}; correct it or save the dictionary again from Prunella.",
+     "Fix that field of the dictionary."),
+    ("dictionary.repeated_levels", "refused", "The data dictionary lists the level(s) "
+     "{levels} of {column!r} more than once; keep each level once.",
+     "Remove the repeated levels."),
+    ("dictionary.columns_not_list", "refused", "{file}: 'columns' must be a list of column "
+     "entries; save the dictionary again from Prunella.", "Fix the dictionary file."),
+    ("dictionary.csv_unreadable", "refused", "{file} could not be read as a data dictionary "
+     "(CSV, UTF-8); save it again as CSV UTF-8 or as JSON from Prunella.",
+     "Save the dictionary again."),
+    ("dictionary.absent_columns", "warning", "The data dictionary describes column(s) that "
+     "are not in the data: {columns}; they were skipped.",
+     "Check the column names: the dictionary must use the spreadsheet's headers exactly."),
+    ("dictionary.used", "note", "The data dictionary {file} was used; columns it does not "
+     "describe were guessed from the data.",
+     "To guess every column from the data instead, press 'Guess again from the data' (on the "
+     "command line: --dictionary none)."),
+    ("variables.positive_not_level", "refused", "The positive class {positive!r} is not a "
+     "level of {name!r} (levels: {levels}).", "Give one of the listed levels."),
+    ("variables.no_column", "refused", "There is no column called {name!r}; the columns are: "
+     "{columns}{more}.", "Use the column name exactly as in the header row."),
+    ("variables.bad_role", "refused", "Column {name!r}: role {role!r} is not one of {roles}.",
+     "Use one of the listed roles in the data dictionary."),
+    ("variables.bad_kind", "refused", "Column {name!r}: kind {kind!r} is not one of {kinds}.",
+     "Use one of the listed kinds in the data dictionary."),
+    ("variables.no_name", "refused", "A column in the data dictionary has no 'name'; add one.",
+     "Every entry of the dictionary needs the column's name."),
+    ("variables.listed_twice", "refused", "The data dictionary lists {names} more than once; "
+     "keep one entry per column.", "Delete the repeated entries."),
+    ("variables.no_dictionary", "refused", "No data dictionary at {path}; check the path.",
+     "Check the path."),
+    ("variables.dictionary_csv_no_name", "refused", "{file} has no 'name' column; a "
+     "dictionary CSV needs the columns name, role, kind, label, unit, missing_codes, levels.",
+     "Add the header row the dictionary CSV needs."),
+    ("variables.kind_not_in_tree", "refused", "Column {name!r} is of kind {kind!r}, which "
+     "cannot be used in a tree; set its kind to numeric, binary, ordinal or nominal.",
+     "Change its kind, or leave it out."),
+]

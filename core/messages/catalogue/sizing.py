@@ -1,0 +1,49 @@
+"""Messages of growing, cross-validating and sizing the tree, and of setting patients aside."""
+
+ENTRIES = [
+    ("grow.min_leaf", "refused", "The minimum number of patients per leaf must be at least 1.",
+     "Give a whole number of at least 1."),
+    ("grow.criterion_classification", "refused", "The split criterion for classification "
+     "must be one of {choices}, not {given!r}.", "Use gini or entropy."),
+    ("grow.criterion_regression", "refused", "The split criterion for regression must be one "
+     "of {choices}, not {given!r}.", "Use squared_error or friedman_mse."),
+    ("grow.risk", "refused", "The pruning risk must be 'cost' or 'impurity', not {given!r}.",
+     "Use cost or impurity."),
+    ("grow.priors_count", "refused", "Give {n} non-negative class priors (one per class).",
+     "One prior per class, in class order."),
+    ("grow.costs_table", "refused", "The misclassification costs must be a {n}×{n} table of "
+     "non-negative numbers with zeros on the diagonal.", "Fix the table of costs."),
+    ("grow.priors_word", "refused", "Class priors must be 'observed', 'equal' or one number "
+     "per class, not {given!r}.", "Use observed, equal or numbers."),
+    ("grow.miss_cost_two_classes", "refused", "A single 'missing a positive' cost only "
+     "applies to two classes; give a full table of costs for more classes.",
+     "Give a full table of costs."),
+    ("grow.miss_cost_positive", "refused", "The cost of missing a positive must be a "
+     "positive number (1 means as bad as a needless alarm).", "Give a number above 0."),
+    ("folds.unknown_plan", "refused", "Unknown cross-validation plan {plan!r}; use one of "
+     "{plans}.", "Choose one of the listed plans."),
+    ("folds.folds_at_least_2", "refused", "Cross-validation needs at least 2 folds.",
+     "Use 2 or more folds (10 is usual)."),
+    ("folds.too_few_units", "refused", "{k} folds need at least {k} {units}; there are {n}. "
+     "Use fewer folds.", "Use fewer folds, or leave-one-out."),
+    ("folds.holdout_share", "refused", "The held-out share must be between 0 and 1 (for "
+     "example 0.25).", "Give a share such as 0.25."),
+    ("folds.validation_share", "refused", "The validation share must be between 0 and 1 (for "
+     "example 0.25).", "Give a share such as 0.25."),
+    ("folds.site_needs_column", "refused", "Leave-one-site-out needs a site column; choose "
+     "which column names the site.", "Name the site column (--site COL)."),
+    ("folds.site_needs_two", "refused", "Leave-one-site-out needs at least two sites; the "
+     "site column has one.", "Use k-fold cross-validation instead."),
+    ("size.too_few_rows", "refused", "There are {n} rows with an outcome, too few for leaves "
+     "of at least {min_leaf} patients; lower the minimum leaf size or add rows.",
+     "Lower --min-leaf, or use more patients."),
+    ("size.size_at_least_one", "refused", "A tree needs at least one leaf; sizes on the "
+     "pruning path are {sizes}.", "Pick one of the listed sizes."),
+    ("size.size_word", "refused", "The tree size must be '1se', 'min' or a number of leaves, "
+     "not {size!r}.", "Use 1se, min or a number."),
+    ("holdout.set_aside", "note", "{n} of {total} rows were set aside before growing, to "
+     "check the tree on patients it never saw.", "Nothing to do."),
+    ("holdout.class_left_out", "refused", "After setting patients aside, one outcome class "
+     "has no patients left for growing; use a smaller held-out share.",
+     "Use a smaller --holdout share."),
+]
