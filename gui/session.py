@@ -54,7 +54,7 @@ class Session(QObject):
         self.chosen: Derivation | None = None  # the run with the chosen size
         self.size: str | int = "1se"
         self.chart: dict = dict(DEFAULT_CHART)
-        self.check = None  # a ValidationResult the chart prints instead of the model's own
+        self.check = None  # a CheckResult the chart prints instead of the model's own
         self.project_path: str | None = None
         self.dirty = False
         self.expected_fingerprint: str | None = None  # from a reopened project
@@ -183,9 +183,9 @@ class Session(QObject):
         """The chosen run, its model carrying the check the chart should print."""
         if self.chosen is None or self.check is None:
             return self.chosen
-        from core.checking import with_validation
+        from core.checking import with_check
 
-        return replace(self.chosen, model=with_validation(self.chosen.model, self.check))
+        return replace(self.chosen, model=with_check(self.chosen.model, self.check))
 
     # --- derived state ------------------------------------------------------------------------
 

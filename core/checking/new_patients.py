@@ -8,7 +8,7 @@ its outcome is read with the model's own outcome definition; levels the tree nev
 derivation are routed as not recorded and counted.
 
 The result is a plain dataclass with every measure (core/checking/metrics.py);
-``to_validation_dict`` gives the short record that the model file, the chart and the app share
+``to_model_record`` gives the short record that the model file, the chart and the app share
 (``model.extra["validation"]``).
 """
 
@@ -59,7 +59,7 @@ class ColumnReport:
 
 
 @dataclass(frozen=True)
-class ValidationResult:
+class CheckResult:
     """A chosen tree checked on separate patients."""
 
     source: str  # where the patients came from, in words
@@ -85,7 +85,7 @@ class ValidationResult:
         """Boxes whose derivation rate or mean lies outside the new patients' 95% interval."""
         return tuple(sorted({r.box for r in self.measures.calibration if r.agrees is False}))
 
-    def to_validation_dict(self) -> dict:
+    def to_model_record(self) -> dict:
         """The shared record for ``model.extra["validation"]`` (JSON-safe)."""
         m = self.measures
         record = {"source": self.source, "n": self.n, "summary": self.summary, "kind": self.kind,
@@ -243,7 +243,7 @@ def _unseen_warning(unseen: tuple[tuple[str, int], ...], model: TreeModel) -> li
 
 
 def check_heldout(model: TreeModel, heldout: AnalysisData | None, share: float,
-                  data_sha256: str | None) -> ValidationResult:
+                  data_sha256: str | None) -> CheckResult:
     """Check ``model`` on ``heldout``, the rows set aside before growing (``share`` of the
     patients of the derivation file whose SHA-256 is ``data_sha256``)."""
     if heldout is None:
@@ -253,11 +253,11 @@ def check_heldout(model: TreeModel, heldout: AnalysisData | None, share: float,
     source = (f"held-out part of {model.extra.get('data', {}).get('file', 'the derivation file')} "
               f"({share:.0%} of patients set aside before growing)")
     patients = int(np.unique(heldout.groups).size) if heldout.groups is not None else None
-    return ValidationResult(
+    return CheckResult(
         source=source, kind="held-out", n=heldout.n, n_rows=heldout.n, n_excluded=0,
         patients=patients, measures=measure_model(model, heldout.y, leaves), columns=None,
         unseen_levels=unseen, warnings=tuple(_unseen_warning(unseen, model)),
-        model_fingerprint=_fingerprint_without_validation(model), data_sha256=data_sha256)
+        model_fingerprint=_fingerprint_without_check(model), data_sha256=data_sha256)
 
 
 # --- an external file -------------------------------------------------------------------------
@@ -332,7 +332,7 @@ def outcome_values(model: TreeModel, cells: pd.Series) -> tuple[np.ndarray, np.n
     return y[keep], keep, notes
 
 
-def check_table(model: TreeModel, table: LoadedTable, source: str | None = None) -> ValidationResult:
+def check_table(model: TreeModel, table: LoadedTable, source: str | None = None) -> CheckResult:
     """Check ``model`` on the rows of an external table (another campus or period)."""
     frame = table.frame
     report, mapping = match_columns(model, frame.columns)
@@ -367,24 +367,24 @@ def check_table(model: TreeModel, table: LoadedTable, source: str | None = None)
         name = Path(table.provenance.path).name
         sheet = f", sheet {table.provenance.sheet}" if table.provenance.sheet else ""
         source = f"external file {name}{sheet}"
-    return ValidationResult(
+    return CheckResult(
         source=source, kind="external", n=len(rows), n_rows=n_rows, n_excluded=no_outcome,
         patients=patients, measures=measure_model(model, y, leaves), columns=report,
-        unseen_levels=unseen, warnings=tuple(notes), model_fingerprint=_fingerprint_without_validation(model),
+        unseen_levels=unseen, warnings=tuple(notes), model_fingerprint=_fingerprint_without_check(model),
         data_sha256=table.provenance.sha256)
 
 
-def with_validation(model: TreeModel, result: ValidationResult) -> TreeModel:
+def with_check(model: TreeModel, result: CheckResult) -> TreeModel:
     """The same model with ``extra["validation"]`` recording this check (the chart prints it
     instead of the 'not yet checked' banner)."""
-    if result.model_fingerprint != _fingerprint_without_validation(model):
+    if result.model_fingerprint != _fingerprint_without_check(model):
         raise InputError(say("check.other_tree"))
     extra = dict(model.extra)
-    extra["validation"] = result.to_validation_dict()
+    extra["validation"] = result.to_model_record()
     return replace(model, extra=extra)
 
 
-def _fingerprint_without_validation(model: TreeModel) -> str:
+def _fingerprint_without_check(model: TreeModel) -> str:
     if "validation" not in model.extra:
         return model.fingerprint
     extra = {k: v for k, v in model.extra.items() if k != "validation"}

@@ -13,7 +13,7 @@ from .. import __version__
 from ..errors import Cancelled, InputError
 from ..messages.message import say
 from . import chart, checking, fit
-from .common import EXIT_BAD_INPUT, Parser
+from .arguments import EXIT_BAD_INPUT, Parser
 
 SUBCOMMANDS = ("fit", "score", "check", "report", "chart")
 _RUN = {"fit": fit.run_fit, "score": fit.run_score, "check": checking.run_check,

@@ -10,7 +10,7 @@ from ..errors import InputError
 from ..messages.message import say
 from ..model.tree import TreeModel
 from ..safe_files import refuse_overwrite
-from .common import csv_list
+from .arguments import csv_list
 
 if TYPE_CHECKING:
     from ..sizing.derivation import Derivation

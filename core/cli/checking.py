@@ -15,7 +15,7 @@ from ..messages.message import say
 from ..model.tree import TreeModel
 from ..phrases import short_fingerprint
 from ..safe_files import refuse_overwrite, write_text_atomic
-from .common import dictionary_path
+from .arguments import dictionary_path
 
 
 def add_parsers(sub) -> None:
@@ -54,7 +54,7 @@ def add_parsers(sub) -> None:
 def run_check(args) -> int:
     import json
 
-    from ..checking.new_patients import check_table, with_validation
+    from ..checking.new_patients import check_table, with_check
 
     refuse_overwrite(args.out, args.data, args.model)
     refuse_overwrite(args.checked_model, args.data, args.model)
@@ -66,7 +66,7 @@ def run_check(args) -> int:
         write_text_atomic(args.out, json.dumps(result.to_dict(), indent=1, ensure_ascii=False,
                                                allow_nan=False) + "\n")
     if args.checked_model:
-        with_validation(model, result).save(args.checked_model)
+        with_check(model, result).save(args.checked_model)
     return 0
 
 

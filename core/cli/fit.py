@@ -20,8 +20,8 @@ from ..errors import InputError
 from ..messages.message import distinct_messages, kind_of, say
 from ..model.tree import TreeModel
 from ..safe_files import refuse_overwrite, write_csv_safely, write_text_atomic
+from .arguments import DICTIONARY_HELP, csv_list, dictionary_path
 from .chart import add_fit_chart_options, fit_chart
-from .common import DICTIONARY_HELP, csv_list, dictionary_path
 
 if TYPE_CHECKING:  # scikit-learn loads only when a tree is grown, so bad input is refused fast
     from ..sizing.derivation import Derivation

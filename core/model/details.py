@@ -1,4 +1,4 @@
-"""Explaining one box of a tree, and one patient's way through it.
+"""The details of one box of a tree, and one patient's way through it.
 
 The app's tree view shows these when a box is clicked or a patient is looked up; they are
 plain functions over a TreeModel so the numbers come from core, not from a widget.

@@ -26,7 +26,7 @@ def _texts(value, where: str, key: str) -> None:
         raise _damaged(where, f"'{key}' must be a list of texts")
 
 
-def validate_model_dict(data: dict) -> None:
+def check_model_document(data: dict) -> None:
     """Refuse (InputError) a parsed model file whose contents do not make a usable tree."""
     for key, kind in (("task", str), ("outcome_spec", dict), ("predictors", list),
                       ("nodes", list), ("path", dict), ("chosen", dict)):

@@ -24,7 +24,7 @@ from ..errors import InputError
 from ..messages.message import say
 from ..phrases import short_fingerprint
 from ..safe_files import check_format, read_json_document, write_text_atomic
-from .file_checks import validate_model_dict
+from .file_checks import check_model_document
 from .thresholds import format_number
 
 MODEL_FORMAT = "prunella-model/1"
@@ -281,7 +281,7 @@ class TreeModel:
     @classmethod
     def _from_checked_format(cls, data: dict) -> "TreeModel":
         """A model from parsed JSON whose format and version were already checked."""
-        validate_model_dict(data)
+        check_model_document(data)
         try:
             known = {"format", "task", "outcome", "outcome_spec", "classes", "positive", "n_rows",
                      "predictors", "nodes", "path", "chosen"}

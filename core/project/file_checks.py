@@ -73,7 +73,7 @@ class _Checker:
             self.fail(key, "it must be a list of column names")
 
 
-def validate_project_dict(data: dict, file: str = "The project") -> None:
+def check_project_document(data: dict, file: str = "The project") -> None:
     """Refuse (InputError) a project dict of the current layout whose fields have the wrong
     type or an impossible value; ``file`` names the file in the message."""
     top = _Checker(file, data, "")

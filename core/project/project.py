@@ -24,7 +24,7 @@ from ..errors import InputError
 from ..messages.message import say
 from ..safe_files import check_format, read_json_document, write_text_atomic
 from ..sizing.request import DerivationRequest
-from .file_checks import validate_project_dict
+from .file_checks import check_project_document
 
 PROJECT_FORMAT = "prunella-project/1"
 PROJECT_SUFFIX = ".prunella"
@@ -77,7 +77,7 @@ class Project:
         of the wrong type or value are refused naming the field (core/project/file_checks.py)."""
         name = Path(project_path).name if project_path else "(not saved)"
         data = upgrade_project(data, name)
-        validate_project_dict(data, name)
+        check_project_document(data, name)
         try:
             entry = data.get("data")
             data_path = sheet = sha = None

@@ -11,7 +11,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 from ..checking.nested import DEFAULT_OUTER_FOLDS, NestedResult, nested_cross_validate
-from ..checking.new_patients import ValidationResult
+from ..checking.new_patients import CheckResult
 from ..checking.stability import DEFAULT_RESAMPLES, Stability, bootstrap_stability
 from ..progress import CancelFlag, Progress, stop_if_cancelled
 from ..sizing.derivation import Derivation
@@ -22,7 +22,7 @@ class ReportContents:
     """Everything the report shows: the derivation and the checks made on it."""
 
     derivation: Derivation = field(repr=False)
-    checks: tuple[ValidationResult, ...] = ()
+    checks: tuple[CheckResult, ...] = ()
     nested: NestedResult | None = None
     stability: Stability | None = None
     notes: tuple[str, ...] = ()  # e.g. "the data file differs from the model's"
@@ -33,7 +33,7 @@ class ReportContents:
         return self.derivation.model
 
 
-def prepare_report(derivation: Derivation, external: tuple[ValidationResult, ...] = (),
+def prepare_report(derivation: Derivation, external: tuple[CheckResult, ...] = (),
                    nested: bool = True, outer_folds: int = DEFAULT_OUTER_FOLDS,
                    bootstrap: int = DEFAULT_RESAMPLES, jobs: int = 1,
                    progress: Progress | None = None, cancel: CancelFlag | None = None,

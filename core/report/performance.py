@@ -9,7 +9,7 @@ from reportlab.platypus import KeepTogether, Paragraph
 from ..cautions import UNCHECKED_BANNER, UNCHECKED_DETAIL
 from ..checking.metrics import ClassificationMeasures, Measures
 from ..checking.nested import NestedResult
-from ..checking.new_patients import ValidationResult, training_measures
+from ..checking.new_patients import CheckResult, training_measures
 from .figures import calibration_figure, roc_figure
 from .section_numbers import section
 from .style import Styles, figure, figures_side_by_side, para, table, text
@@ -126,7 +126,7 @@ def _measure_tables(m: Measures, s: Styles) -> list:
             table(per_class, [0.19, 0.1, 0.14, 0.14, 0.14, 0.14, 0.15], s, align_right=(1,))]
 
 
-def _check_detail(check: ValidationResult, number: str, s: Styles) -> list:
+def _check_detail(check: CheckResult, number: str, s: Styles) -> list:
     m = check.measures
     patients = f" ({check.patients} patients)" if check.patients else ""
     story = [para(f"{number} {'Held-out' if check.kind == 'held-out' else 'External'} check: "

@@ -22,21 +22,22 @@ from ..errors import InputError
 from ..messages.message import say
 from ..progress import CancelFlag, Progress, stop_if_cancelled
 from .folds import CVSettings, fold_plan
-from .grow import ClassCosts, GrownTree, TreeSettings, class_costs, grow_tree
+from .grow import ClassCosts, FullTree, TreeSettings, class_costs, grow_tree
 from .prune import PruningSequence, collapse_alphas, pruning_sequence
 
 _CHUNK_CELLS = 4_000_000  # cases × grid values routed at once, to cap memory
 
 
 @dataclass(frozen=True)
-class GrownModel:
-    """The maximal tree grown on all derivation rows, with its pruning sequence."""
+class DerivationTree:
+    """The full tree grown on every derivation row, with its encoding and pruning sequence:
+    every size the user may choose is cut from it."""
 
     data: AnalysisData = field(repr=False)
     settings: TreeSettings
     costs: ClassCosts | None = field(repr=False)
     encoding: Encoding = field(repr=False)
-    tree: GrownTree = field(repr=False)
+    tree: FullTree = field(repr=False)
     sequence: PruningSequence = field(repr=False)
 
     @cached_property
@@ -61,7 +62,7 @@ def one_se_limit(cv_risk: Sequence[float] | np.ndarray, cv_se: Sequence[float] |
 class CrossValidatedPath:
     """CV risk and its SE for every subtree of the full-data sequence."""
 
-    grown: GrownModel = field(repr=False)
+    grown: DerivationTree = field(repr=False)
     cv: CVSettings
     grid: np.ndarray
     cv_risk: np.ndarray
@@ -111,7 +112,7 @@ class CrossValidatedPath:
         return int(fits.min()), "user"
 
 
-def grow_full(data: AnalysisData, settings: TreeSettings) -> GrownModel:
+def grow_full(data: AnalysisData, settings: TreeSettings) -> DerivationTree:
     """Grow the maximal tree on every derivation row and compute its pruning sequence."""
     if data.n < 2 * settings.min_leaf:
         raise InputError(say("size.too_few_rows", n=data.n, min_leaf=settings.min_leaf))
@@ -121,10 +122,10 @@ def grow_full(data: AnalysisData, settings: TreeSettings) -> GrownModel:
     tree = grow_tree(X, data.y, data.task, settings, costs)
     sequence = pruning_sequence(tree.children_left, tree.children_right, tree.prune_risk,
                                 tree.cost_risk)
-    return GrownModel(data, settings, costs, encoding, tree, sequence)
+    return DerivationTree(data, settings, costs, encoding, tree, sequence)
 
 
-def path_nodes(tree: GrownTree, collapse: np.ndarray, X: np.ndarray,
+def path_nodes(tree: FullTree, collapse: np.ndarray, X: np.ndarray,
                grid: np.ndarray) -> np.ndarray:
     """For each case (row of X) and grid α′, the node that predicts it: shape (cases, grid)."""
     paths = tree.estimator.decision_path(X)
@@ -140,7 +141,7 @@ def path_nodes(tree: GrownTree, collapse: np.ndarray, X: np.ndarray,
     return indices[indptr[:-1, None] + internal]
 
 
-def case_losses(tree: GrownTree, nodes: np.ndarray, y: np.ndarray,
+def case_losses(tree: FullTree, nodes: np.ndarray, y: np.ndarray,
                 costs: ClassCosts | None) -> np.ndarray:
     """Loss of each case at each grid α′: cost × prior weight, or squared error."""
     if tree.task == "regression":
@@ -168,7 +169,7 @@ def _fold_losses(data: AnalysisData, settings: TreeSettings, costs: ClassCosts |
 def cross_validate_path(data: AnalysisData, settings: TreeSettings, cv: CVSettings,
                         jobs: int | None = 1, progress: Progress | None = None,
                         cancel: CancelFlag | None = None,
-                        grown: GrownModel | None = None) -> CrossValidatedPath:
+                        grown: DerivationTree | None = None) -> CrossValidatedPath:
     """Grow, prune and cross-validate the whole pruning path; returns CV risk and SE per size.
 
     ``progress(done, total)`` is called after the full tree and after each fold; when

@@ -11,7 +11,7 @@ from dataclasses import dataclass, field, replace
 
 import numpy as np
 
-from ..checking.new_patients import ValidationResult, check_heldout, with_validation
+from ..checking.new_patients import CheckResult, check_heldout, with_check
 from ..data.table import LoadedTable
 from ..design.analysis import AnalysisData, prepare_analysis
 from ..dictionary.columns import DataDictionary
@@ -38,9 +38,9 @@ class Derivation:
     model: TreeModel = field(repr=False)
     notes: tuple[str, ...] = ()
     # The chosen tree's check on the held-out rows, made once here so no caller redoes it.
-    heldout_check: ValidationResult | None = field(default=None, repr=False)
+    heldout_check: CheckResult | None = field(default=None, repr=False)
 
-    def check_on_heldout(self) -> ValidationResult:
+    def check_on_heldout(self) -> CheckResult:
         """The chosen tree checked on the rows set aside before growing (refused when none
         were); what ``heldout_check`` holds, made anew."""
         return check_heldout(self.model, self.heldout, self.request.holdout,
@@ -85,4 +85,4 @@ def _checked(derivation: Derivation) -> Derivation:
     if derivation.heldout is None:
         return derivation
     check = derivation.check_on_heldout()
-    return replace(derivation, model=with_validation(derivation.model, check), heldout_check=check)
+    return replace(derivation, model=with_check(derivation.model, check), heldout_check=check)

@@ -111,8 +111,9 @@ def growth_class_weights(costs: ClassCosts, y_train: np.ndarray) -> dict[int, fl
 
 
 @dataclass(frozen=True)
-class GrownTree:
-    """A grown tree as plain arrays (scikit-learn's preorder node numbering)."""
+class FullTree:
+    """A tree grown to full size on some rows (one fold's, or every derivation row), as plain
+    arrays in scikit-learn's preorder node numbering, with each node's risk and outcome."""
 
     task: str
     children_left: np.ndarray = field(repr=False)
@@ -158,7 +159,7 @@ def make_estimator(task: str, settings: TreeSettings, class_weight=None):
 
 
 def grow_tree(X: np.ndarray, y: np.ndarray, task: str, settings: TreeSettings,
-              costs: ClassCosts | None = None) -> GrownTree:
+              costs: ClassCosts | None = None) -> FullTree:
     """Grow the maximal tree on (X, y) and compute every node's risk and outcome."""
     if settings.risk not in RISKS:
         raise InputError(say("grow.risk", given=settings.risk))
@@ -177,7 +178,7 @@ def grow_tree(X: np.ndarray, y: np.ndarray, task: str, settings: TreeSettings,
     if task == "regression":
         mean = tree.value[:, 0, 0].copy()
         cost_risk = impurity_risk  # squared error: SSE(t) / N
-        return GrownTree(task, tree.children_left.copy(), tree.children_right.copy(),
+        return FullTree(task, tree.children_left.copy(), tree.children_right.copy(),
                          tree.feature.copy(), tree.threshold.copy(),
                          tree.missing_go_to_left.astype(bool), n, None, mean,
                          impurity_risk, cost_risk, mean, estimator)
@@ -197,7 +198,7 @@ def grow_tree(X: np.ndarray, y: np.ndarray, task: str, settings: TreeSettings,
     else:
         label = fractions.argmax(axis=1)  # what scikit-learn itself would predict
         prune_risk = impurity_risk
-    return GrownTree(task, tree.children_left.copy(), tree.children_right.copy(),
+    return FullTree(task, tree.children_left.copy(), tree.children_right.copy(),
                      tree.feature.copy(), tree.threshold.copy(),
                      tree.missing_go_to_left.astype(bool), n, counts, None, prune_risk,
                      np.take_along_axis(expected, label[:, None], axis=1)[:, 0], label.astype(np.int64),

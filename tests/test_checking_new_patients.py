@@ -11,7 +11,7 @@ import json
 import numpy as np
 import pytest
 
-from core.checking.new_patients import check_table, match_columns, with_validation
+from core.checking.new_patients import check_table, match_columns, with_check
 from core.data import LoadedTable
 from core.design import DesignSpec
 from core.errors import InputError
@@ -48,7 +48,7 @@ def test_north_tree_checked_at_riverside_shows_the_planted_difference(demo, nort
     for row in outside:
         assert row.derivation_value < row.low  # Riverside admits more than North promised
     assert result.calibration_outside == tuple(sorted(r.box for r in outside))
-    record = result.to_validation_dict()
+    record = result.to_model_record()
     assert record["source"] == "Riverside campus" and record["n"] == result.n
     assert record["summary"].startswith("Sensitivity ") and "AUC" in record["summary"]
     assert record["calibration_outside"] == list(result.calibration_outside)
@@ -83,7 +83,7 @@ def test_heldout_check_replaces_the_simple_one(demo):
     other = choose_model(derivation, 5)
     assert other.model.chosen["leaves"] != derivation.model.chosen["leaves"]
     assert other.model.extra["validation"]["model_fingerprint"] != record["model_fingerprint"]
-    assert other.model.extra["validation"] == other.check_on_heldout().to_validation_dict()
+    assert other.model.extra["validation"] == other.check_on_heldout().to_model_record()
 
 
 def test_heldout_check_needs_a_heldout_part(north):
@@ -152,7 +152,7 @@ def test_outcome_read_with_the_model_definition(demo, north):
 def test_with_validation_attaches_the_record_for_the_chart(demo, north):
     table, _, _ = demo
     result = check_table(north.model, _campus(table, "Riverside"), source="Riverside campus")
-    checked = with_validation(north.model, result)
+    checked = with_check(north.model, result)
     assert checked.extra["validation"]["source"] == "Riverside campus"
     assert "validation" not in north.model.extra  # the original is unchanged
     assert checked.nodes == north.model.nodes
@@ -161,7 +161,7 @@ def test_with_validation_attaches_the_record_for_the_chart(demo, north):
     assert again.model_fingerprint == result.model_fingerprint
     other = derive(table, demo[1], DerivationRequest(DesignSpec("admitted", ("age",)), size=3))
     with pytest.raises(InputError, match="another tree"):
-        with_validation(other.model, result)
+        with_check(other.model, result)
 
 
 def test_regression_check_reports_errors_and_box_means(demo):
@@ -175,5 +175,5 @@ def test_regression_check_reports_errors_and_box_means(demo):
     assert m.n == truth and np.isfinite(m.rmse) and m.mae <= m.rmse
     assert len(m.calibration) == len(model.leaves)
     assert result.summary.startswith("RMSE")
-    record = result.to_validation_dict()
+    record = result.to_model_record()
     assert set(("rmse", "mae", "r2")) <= set(record)

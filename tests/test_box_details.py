@@ -1,5 +1,5 @@
-"""Explaining a box and routing one patient (used by the app's tree view), and the scored
-table shared by `prunella score` and the app's export."""
+"""One box's details and one patient's route (core/model/details.py, used by the app's tree
+view), and the scored table shared by `prunella score` and the app's export."""
 
 from __future__ import annotations
 
