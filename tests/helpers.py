@@ -1,12 +1,17 @@
 """Small builders shared by the tests: tables in memory turned into AnalysisData, the
-invented demo cohort's files, the command line run as a child process, file fingerprints."""
+invented demo cohort's files, the command line run in this process or as a child process,
+file fingerprints."""
 
 from __future__ import annotations
 
+import contextlib
 import hashlib
+import io
 import os
 import subprocess
 import sys
+import traceback
+from dataclasses import dataclass
 from functools import lru_cache
 from pathlib import Path
 
@@ -66,10 +71,56 @@ def demo_planted_box(frame: pd.DataFrame) -> pd.Series:
 
 def run_prunella(*args, cwd=ROOT, timeout: float = 300) -> subprocess.CompletedProcess:
     """``python -m gui ARGS`` as a user would run it: a child process with this checkout on
-    PYTHONPATH, output captured as text. ``timeout`` only stops a hung child."""
+    PYTHONPATH, output captured as text. ``timeout`` only stops a hung child. Slow (the child
+    imports everything again): keep it for a few cases, use :func:`prunella` for the rest."""
     env = dict(os.environ, PYTHONPATH=str(ROOT))
     return subprocess.run([sys.executable, "-m", "gui", *map(str, args)], cwd=cwd, env=env,
                           capture_output=True, text=True, timeout=timeout)
+
+
+@dataclass(frozen=True)
+class Ran:
+    """What a command printed and the exit status it gave (as a child process's result)."""
+
+    args: tuple[str, ...]
+    returncode: int
+    stdout: str
+    stderr: str
+
+
+def prunella(*args, cwd=None) -> Ran:
+    """``prunella ARGS`` run in this process through ``core.cli.main``, with its output
+    captured and its exit status (argparse's exits included) returned. A traceback must never
+    reach the user: any exception that escapes the command line fails the calling test."""
+    from core.cli import main
+
+    argv = [str(a) for a in args]
+    out, err = io.StringIO(), io.StringIO()
+    status, escaped = 0, None
+    with contextlib.redirect_stdout(out), contextlib.redirect_stderr(err), _inside(cwd):
+        try:
+            status = main(argv)
+        except SystemExit as exit_:  # argparse: --help, --version and usage errors
+            status = exit_.code if isinstance(exit_.code, int) else 2
+        except Exception:  # noqa: BLE001 - what a user would see as a traceback
+            escaped = traceback.format_exc()
+    if escaped is not None:
+        raise AssertionError(f"prunella {' '.join(argv)} let a traceback escape:\n{escaped}")
+    return Ran(tuple(argv), int(status or 0), out.getvalue(), err.getvalue())
+
+
+@contextlib.contextmanager
+def _inside(folder):
+    """Run in ``folder`` (relative paths are the user's), then come back."""
+    if folder is None:
+        yield
+        return
+    before = os.getcwd()
+    os.chdir(folder)
+    try:
+        yield
+    finally:
+        os.chdir(before)
 
 
 def sha256_of(path) -> str:

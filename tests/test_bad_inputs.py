@@ -3,9 +3,10 @@
 Every case is either loaded correctly with a warning or refused with one message that says what
 is wrong, where (line, row, column or sheet) and how to fix it (house rule 8). Each case is
 checked twice — in core (read → dictionary → guards → derivation, as the CLI does) and through
-``prunella fit`` in a child process (exit 2 and no traceback for refusals; exit 0 and the
-warning text for warned loads) — and both times the input file must be unchanged (SHA-256 and
-modification time). All data are invented for these tests.
+``prunella fit`` (exit 2 and no traceback for refusals; exit 0 and the warning text for warned
+loads) — and both times the input file must be unchanged (SHA-256 and modification time). The
+command line runs in this process through core.cli.main; a few cases also run as a child
+process, which must print exactly the same. All data are invented for these tests.
 """
 
 from __future__ import annotations
@@ -13,9 +14,7 @@ from __future__ import annotations
 import csv
 import io
 import os
-import subprocess
 import zipfile
-from concurrent.futures import ThreadPoolExecutor
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Callable
@@ -32,7 +31,7 @@ from core.dictionary import infer_dictionary
 from core.errors import InputError
 from core.messages import kind_of
 from core.sizing import CVSettings, DerivationRequest, TreeSettings, derive
-from tests.helpers import run_prunella, sha256_of
+from tests.helpers import Ran, prunella, run_prunella, sha256_of
 
 HEADER = ["age", "spo2", "resp_rate", "sex", "admitted"]
 
@@ -610,22 +609,24 @@ def corpus(tmp_path_factory) -> Path:
     return folder
 
 
-def _cli(folder: Path, c: Case) -> subprocess.CompletedProcess:
-    out = folder.parent / f"{folder.name}-out-{c.name}"
+def _fit_args(folder: Path, c: Case, out: Path) -> list:
     out.mkdir(exist_ok=True)
     args = ["fit", folder / c.name / c.file, "--outcome", c.outcome, "--model", out / "model.json",
             "--folds", "3", "--min-leaf", "3", "--quiet"]
     if c.sheet:
         args += ["--sheet", c.sheet]
-    return run_prunella(*args, *c.args, timeout=240)
+    return args + list(c.args)
+
+
+def _cli(folder: Path, c: Case) -> Ran:
+    return prunella(*_fit_args(folder, c, folder.parent / f"{folder.name}-out-{c.name}"))
 
 
 @pytest.fixture(scope="module")
 def cli_results(corpus) -> dict:
-    """Every case through ``prunella fit`` (child processes, a few at a time)."""
+    """Every case through ``prunella fit`` (in this process)."""
     before = {c.name: fingerprint(corpus / c.name / c.file) for c in CASES}
-    with ThreadPoolExecutor(max_workers=3) as pool:
-        runs = dict(zip([c.name for c in CASES], pool.map(lambda c: _cli(corpus, c), CASES)))
+    runs = {c.name: _cli(corpus, c) for c in CASES}
     after = {c.name: fingerprint(corpus / c.name / c.file) for c in CASES}
     listing = {c.name: sorted(os.listdir(corpus / c.name)) for c in CASES
                if (corpus / c.name).is_dir()}
@@ -681,6 +682,19 @@ def test_cli(cli_results, c):
     assert cli_results["before"][c.name] == cli_results["after"][c.name], "input changed"
     if c.exists:
         assert cli_results["listing"][c.name] == [c.file], "a file appeared beside the input"
+
+
+@pytest.mark.parametrize("name", ["zero_bytes", "ragged_row", "lab_limits"])
+def test_a_child_process_prints_what_the_command_line_prints_in_process(corpus, cli_results,
+                                                                         name, tmp_path):
+    """The real entry point (``python -m gui``, a refused and warned case each) prints exactly
+    what the in-process run printed, and exits the same; no traceback."""
+    c = next(x for x in CASES if x.name == name)
+    child = run_prunella(*_fit_args(corpus, c, tmp_path / "out"), timeout=240)
+    ran = cli_results["runs"][name]
+    assert "Traceback" not in child.stderr
+    assert (child.returncode, child.stderr) == (ran.returncode, ran.stderr)
+    assert fingerprint(corpus / c.name / c.file) == cli_results["after"][name]
 
 
 def test_identity_columns_can_be_named_explicitly(corpus):

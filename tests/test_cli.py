@@ -1,4 +1,8 @@
-"""The prunella command line: fit and score, and one clear sentence for bad input."""
+"""The prunella command line: fit and score, and one clear sentence for bad input.
+
+The first fit, the score and one refusal run as child processes, as a user runs them; the
+rest run in this process through core.cli.main (tests/helpers.py), which is what the entry
+point calls."""
 
 from __future__ import annotations
 
@@ -8,7 +12,7 @@ import json
 import pandas as pd
 import pytest
 
-from tests.helpers import DEMO_CSV, DEMO_DICTIONARY, run_prunella, sha256_of
+from tests.helpers import DEMO_CSV, DEMO_DICTIONARY, prunella, run_prunella, sha256_of
 
 
 @pytest.fixture(scope="module")
@@ -42,14 +46,13 @@ def test_fit_uses_the_dictionary_saved_beside_the_data_unless_told_not_to(fitted
     """As the app does: NAME.dictionary.json beside NAME.csv is read, and said so; its roles
     keep the columns known only after the outcome (length of stay, bed booked) out."""
     out, _ = fitted
-    beside = run_prunella("fit", DEMO_CSV, "--outcome", "admitted",
-                          "--model", tmp_path / "beside.json")
+    beside = prunella("fit", DEMO_CSV, "--outcome", "admitted", "--model", tmp_path / "beside.json")
     assert beside.returncode == 0, beside.stderr
     assert "breathless_ed.dictionary.json was used" in beside.stderr
     mine, given = (json.loads(p.read_text()) for p in (tmp_path / "beside.json", out / "m.json"))
     assert mine["nodes"] == given["nodes"]
-    guessed = run_prunella("fit", DEMO_CSV, "--outcome", "admitted", "--dictionary", "none",
-                           "--model", tmp_path / "guessed.json")
+    guessed = prunella("fit", DEMO_CSV, "--outcome", "admitted", "--dictionary", "none",
+                       "--model", tmp_path / "guessed.json")
     assert guessed.returncode == 0, guessed.stderr
     assert "was used" not in guessed.stderr
     # Guessing from the data alone offers every column, and the leakage guard speaks up.
@@ -72,7 +75,7 @@ def test_score_refuses_to_overwrite_its_input(fitted, tmp_path):
     copy = tmp_path / "data.csv"
     copy.write_bytes(DEMO_CSV.read_bytes())
     before = sha256_of(copy)
-    result = run_prunella("score", out / "m.json", copy, "--out", copy)
+    result = prunella("score", out / "m.json", copy, "--out", copy)
     assert result.returncode == 2 and "input file" in result.stderr
     assert sha256_of(copy) == before
 
@@ -113,7 +116,8 @@ def test_bad_input_is_one_sentence_and_exit_2(tmp_path, case, expected):
         args += ["--size", "huge"]
     elif case == "bad option":
         args += ["--frobnicate"]
-    result = run_prunella(*args)
+    # One refusal as the user meets it (a child process); the others in this process.
+    result = run_prunella(*args) if case == "missing file" else prunella(*args)
     assert result.returncode == 2, result.stdout + result.stderr
     assert expected in result.stderr
     assert "Traceback" not in result.stderr
@@ -122,10 +126,10 @@ def test_bad_input_is_one_sentence_and_exit_2(tmp_path, case, expected):
 
 
 def test_holdout_and_min_rule_and_regression(tmp_path):
-    result = run_prunella("fit", DEMO_CSV, "--outcome", "los_hours", "--task", "regression",
-                          "--dictionary", DEMO_DICTIONARY, "--exclude", "admitted,bed_booked",
-                          "--holdout", "0.25", "--size", "min", "--folds", "5",
-                          "--model", tmp_path / "los.json")
+    result = prunella("fit", DEMO_CSV, "--outcome", "los_hours", "--task", "regression",
+                      "--dictionary", DEMO_DICTIONARY, "--exclude", "admitted,bed_booked",
+                      "--holdout", "0.25", "--size", "min", "--folds", "5",
+                      "--model", tmp_path / "los.json")
     assert result.returncode == 0, result.stderr
     model = json.loads((tmp_path / "los.json").read_text())
     assert model["task"] == "regression" and model["chosen"]["rule"] == "min"

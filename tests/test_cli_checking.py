@@ -1,4 +1,5 @@
-"""`prunella check` and `prunella report` on the command line (run as a user would)."""
+"""`prunella check` and `prunella report` on the command line: each command once as a child
+process (as a user runs it), the fit before them and the refusals in this process."""
 
 from __future__ import annotations
 
@@ -7,17 +8,17 @@ import json
 import pytest
 from pypdf import PdfReader
 
-from tests.helpers import DEMO_CSV, DEMO_DICTIONARY, DEMO_XLSX, run_prunella
+from tests.helpers import DEMO_CSV, DEMO_DICTIONARY, DEMO_XLSX, prunella, run_prunella
 
 
 @pytest.fixture(scope="module")
 def fitted(tmp_path_factory):
     folder = tmp_path_factory.mktemp("cli")
     model = folder / "admitted.json"
-    done = run_prunella("fit", DEMO_CSV, "--outcome", "admitted", "--dictionary",
-                        DEMO_DICTIONARY, "--predictors",
-                        "age,resp_rate,spo2,arrival_mode,crp", "--folds", "5", "--holdout", "0.2",
-                        "--model", model, "--quiet", cwd=folder)
+    done = prunella("fit", DEMO_CSV, "--outcome", "admitted", "--dictionary",
+                    DEMO_DICTIONARY, "--predictors",
+                    "age,resp_rate,spo2,arrival_mode,crp", "--folds", "5", "--holdout", "0.2",
+                    "--model", model, "--quiet", cwd=folder)
     assert done.returncode == 0, done.stderr
     return folder, model
 
@@ -64,7 +65,7 @@ def test_report_reruns_the_derivation_and_writes_the_pdf(fitted):
 def test_bad_input_is_one_sentence_and_exit_2(fitted, args, says):
     folder, model = fitted
     filled = [a.format(model=model, data=DEMO_CSV) for a in args]
-    done = run_prunella(*filled, cwd=folder)
+    done = prunella(*filled, cwd=folder)
     assert done.returncode == 2
     lines = done.stderr.strip().splitlines()
     assert len(lines) == 1 and says in lines[0] and "Traceback" not in done.stderr

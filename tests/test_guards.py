@@ -23,7 +23,7 @@ from core.dictionary.identity import (
     identity_by_contents, identity_by_header, looks_like_record_numbers, normalised_header,
 )
 from core.errors import InputError
-from tests.helpers import DEMO_CSV, run_prunella
+from tests.helpers import DEMO_CSV, prunella
 
 
 @pytest.fixture(scope="module")
@@ -189,8 +189,8 @@ def test_fit_shows_the_guards_and_leaves_identity_out(tmp_path):
     frame["email"] = [f"p{i}@example.org" for i in range(len(frame))]
     path = tmp_path / "cohort.csv"
     frame.to_csv(path, index=False)
-    result = run_prunella("fit", path, "--outcome", "admitted", "--model", tmp_path / "m.json",
-                          "--folds", "5", "--quiet")
+    result = prunella("fit", path, "--outcome", "admitted", "--model", tmp_path / "m.json",
+                      "--folds", "5", "--quiet")
     assert result.returncode == 0, result.stderr
     assert "warning: Probable leakage: 'bed_booked'" in result.stderr
     assert "'email' seems to identify patients" in result.stderr
@@ -198,8 +198,8 @@ def test_fit_shows_the_guards_and_leaves_identity_out(tmp_path):
     model = json.loads((tmp_path / "m.json").read_text())
     offered = {p["name"] for p in model["predictors"]}
     assert "email" not in offered and "visit_id" not in offered and "spo2" in offered
-    explicit = run_prunella("fit", path, "--outcome", "admitted", "--model", tmp_path / "m2.json",
-                            "--predictors", "spo2,age,visit_id", "--folds", "5", "--quiet")
+    explicit = prunella("fit", path, "--outcome", "admitted", "--model", tmp_path / "m2.json",
+                        "--predictors", "spo2,age,visit_id", "--folds", "5", "--quiet")
     assert explicit.returncode == 2  # named on purpose, then refused: it is an identifier
     assert "marked as identifier" in explicit.stderr and "Traceback" not in explicit.stderr
 

@@ -26,7 +26,7 @@ from core.safe_files import (
     MAX_JSON_BYTES, neutralise_cell, read_json_document, write_csv_safely, write_text_atomic,
 )
 from core.sizing import CVSettings, DerivationRequest, derive
-from tests.helpers import run_prunella
+from tests.helpers import prunella
 
 ROOT = Path(__file__).resolve().parents[1]
 
@@ -302,8 +302,7 @@ def test_prunella_score_output_is_neutralised(tmp_path, model):
                          "+header": ["a", "b", "c"]})
     source = tmp_path / "new.csv"
     data.to_csv(source, index=False)
-    result = run_prunella("score", model_path, source, "--out", tmp_path / "scored.csv",
-                          timeout=120)
+    result = prunella("score", model_path, source, "--out", tmp_path / "scored.csv")
     assert result.returncode == 0, result.stderr
     lines = (tmp_path / "scored.csv").read_text().splitlines()
     assert lines[0].startswith("spo2,mode,note,'+header,prunella_box")

@@ -1,64 +1,23 @@
 """How well a tree does on a set of patients: measures with 95% intervals.
 
 Point values come from scikit-learn's metrics; only the intervals and standard errors are
-written here: Wilson score intervals for proportions (core/checking/intervals.py), the Hanley & McNeil
-(1982) and DeLong, DeLong & Clarke-Pearson (1988) standard errors of the ROC area, and
-Student-t intervals for box means. Everything is returned as plain frozen dataclasses so the
-app, the command line and the report show the same numbers.
+written here: Wilson score intervals for proportions (core/checking/intervals.py), the Hanley
+& McNeil (1982) and DeLong, DeLong & Clarke-Pearson (1988) standard errors of the ROC area,
+and Student-t intervals for box means. Everything is returned as plain frozen dataclasses so
+the app, the command line and the report show the same numbers. scikit-learn and SciPy are
+imported on first use, so a command that refuses bad input starts without them.
 """
 
 from __future__ import annotations
 
 import math
 from dataclasses import dataclass
-from functools import lru_cache
 
 import numpy as np
-from scipy import stats
-from sklearn.metrics import (
-    brier_score_loss, confusion_matrix, mean_absolute_error, mean_squared_error,
-    r2_score, roc_auc_score, roc_curve,
-)
 
-from .intervals import mean_interval, wilson_interval
-
-LEVEL = 0.95
-_wilson = lru_cache(maxsize=4096)(wilson_interval)  # the chart planner asks for the same boxes often
-_Z = float(stats.norm.ppf(0.5 + LEVEL / 2))
-
+from .intervals import LEVEL, Proportion, as_percent, mean_interval, normal_quantile, proportion
 
 # --- building blocks --------------------------------------------------------------------------
-
-
-@dataclass(frozen=True)
-class Proportion:
-    """k of n, with its Wilson 95% interval."""
-
-    k: int
-    n: int
-    value: float | None
-    low: float | None
-    high: float | None
-
-    def text(self) -> str:
-        """'84% (79–88%)', or 'not estimable' when there is nobody to count."""
-        if self.value is None:
-            return "not estimable (no patients)"
-        return f"{_pct(self.value)} ({_pct(self.low, sign=False)}–{_pct(self.high)})"
-
-
-def proportion(k: int, n: int) -> Proportion:
-    """A proportion with its Wilson interval (value None when n is 0)."""
-    k, n = int(k), int(n)
-    if n == 0:
-        return Proportion(k, n, None, None, None)
-    low, high = _wilson(k, n, LEVEL)
-    return Proportion(k, n, k / n, low, high)
-
-
-def _pct(value: float, sign: bool = True) -> str:
-    text = f"{100 * value:.0f}"
-    return text + "%" if sign else text
 
 
 @dataclass(frozen=True)
@@ -101,9 +60,11 @@ def delong_se(truth: np.ndarray, score: np.ndarray) -> float:
     m, n = len(pos), len(neg)
     if m < 2 or n < 2:
         return float("nan")
-    ranks = stats.rankdata(np.concatenate([pos, neg]))
-    v10 = (ranks[:m] - stats.rankdata(pos)) / n
-    v01 = 1 - (ranks[m:] - stats.rankdata(neg)) / m
+    from scipy.stats import rankdata
+
+    ranks = rankdata(np.concatenate([pos, neg]))
+    v10 = (ranks[:m] - rankdata(pos)) / n
+    v01 = 1 - (ranks[m:] - rankdata(neg)) / m
     return float(math.sqrt(np.var(v10, ddof=1) / m + np.var(v01, ddof=1) / n))
 
 
@@ -119,14 +80,17 @@ def roc(truth: np.ndarray, score: np.ndarray) -> RocCurve | None:
     m, n = int(truth.sum()), int((~truth).sum())
     if m == 0 or n == 0:
         return None
+    from sklearn.metrics import roc_auc_score, roc_curve
+
     auc = float(roc_auc_score(truth, score))
     fpr, tpr, cuts = roc_curve(truth, score, drop_intermediate=False)
     se_hm = hanley_mcneil_se(auc, m, n)
     se_dl = delong_se(truth, score)
     method, se = ("DeLong", se_dl) if math.isfinite(se_dl) else ("Hanley-McNeil", se_hm)
+    z = normal_quantile(0.5 + LEVEL / 2)
     cuts = np.where(np.isfinite(cuts), cuts, np.nan)
     return RocCurve(tuple(fpr.tolist()), tuple(tpr.tolist()), tuple(cuts.tolist()), auc, se_hm,
-                    se_dl, max(0.0, auc - _Z * se), min(1.0, auc + _Z * se), method, m, n)
+                    se_dl, max(0.0, auc - z * se), min(1.0, auc + z * se), method, m, n)
 
 
 @dataclass(frozen=True)
@@ -158,7 +122,7 @@ class CalibrationRow:
         if self.observed is None:
             return "no patients"
         if percent:
-            return f"{_pct(self.observed)} ({_pct(self.low, False)}–{_pct(self.high)})"
+            return f"{as_percent(self.observed)} ({as_percent(self.low, False)}–{as_percent(self.high)})"
         if self.low is None:
             return f"{self.observed:.3g} (one patient)"
         return f"{self.observed:.3g} ({self.low:.3g} to {self.high:.3g})"
@@ -244,9 +208,11 @@ def classification_measures(y: np.ndarray, predicted: np.ndarray, probabilities:
 
     ``probabilities`` (patients × classes) are the derivation shares of each class in the box
     each patient reached; they make the ROC curves and the Brier score. ``loss`` and
-    ``case_weight`` give the cost of each mistake as in core/sizing/cross_validated_path.py (loss × prior weight;
-    0-1 loss by default). With ``leaves`` and ``boxes``, each box is checked for calibration.
+    ``case_weight`` give the cost of each mistake as in core/sizing/cross_validated_path.py
+    (loss × prior weight; 0-1 loss by default). With ``leaves`` and ``boxes``, each box is checked for calibration.
     """
+    from sklearn.metrics import brier_score_loss, confusion_matrix
+
     y = np.asarray(y, dtype=np.int64)
     predicted = np.asarray(predicted, dtype=np.int64)
     probabilities = np.asarray(probabilities, dtype=float)
@@ -345,6 +311,8 @@ def regression_measures(y: np.ndarray, predicted: np.ndarray, leaves: np.ndarray
                         unit: str = "") -> RegressionMeasures:
     """RMSE, MAE and R² (scikit-learn), and per box the derivation mean against the observed
     mean with its Student-t 95% interval."""
+    from sklearn.metrics import mean_absolute_error, mean_squared_error, r2_score
+
     y = np.asarray(y, dtype=float)
     predicted = np.asarray(predicted, dtype=float)
     n = len(y)

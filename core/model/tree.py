@@ -16,8 +16,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from ..checking.intervals import mean_interval
-from ..checking.metrics import Proportion, proportion
+from ..checking.intervals import Proportion, mean_interval, proportion
 from ..dictionary.columns import ColumnSpec
 from ..dictionary.typed_columns import TypedColumn, typed_column
 from ..errors import InputError

@@ -9,10 +9,6 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from sklearn.model_selection import (
-    GroupKFold, GroupShuffleSplit, KFold, LeaveOneGroupOut, LeaveOneOut, ShuffleSplit,
-    StratifiedKFold, StratifiedShuffleSplit,
-)
 
 from ..errors import InputError
 from ..messages.message import say
@@ -64,6 +60,11 @@ class Fold:
 def fold_plan(settings: CVSettings, n: int, y: np.ndarray | None = None,
               groups: np.ndarray | None = None, sites: np.ndarray | None = None) -> list[Fold]:
     """The folds for ``n`` rows; ``y`` (class codes) stratifies, ``groups`` keeps patients together."""
+    from sklearn.model_selection import (  # loaded when folds are made, not to read settings
+        GroupKFold, GroupShuffleSplit, KFold, LeaveOneGroupOut, LeaveOneOut, ShuffleSplit,
+        StratifiedKFold, StratifiedShuffleSplit,
+    )
+
     if settings.plan not in PLANS:
         raise InputError(say("folds.unknown_plan", plan=settings.plan, plans=", ".join(PLANS)))
     use_groups = groups if (settings.grouped and groups is not None) else None

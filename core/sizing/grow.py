@@ -11,7 +11,6 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 import numpy as np
-from sklearn.tree import DecisionTreeClassifier, DecisionTreeRegressor
 
 from ..errors import InputError
 from ..messages.message import say
@@ -140,6 +139,8 @@ class FullTree:
 
 def make_estimator(task: str, settings: TreeSettings, class_weight=None):
     """The scikit-learn estimator these settings describe (used for reference checks too)."""
+    from sklearn.tree import DecisionTreeClassifier, DecisionTreeRegressor  # loaded when growing
+
     if settings.min_leaf < 1:
         raise InputError(say("grow.min_leaf"))
     common = dict(min_samples_leaf=int(settings.min_leaf),
