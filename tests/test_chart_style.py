@@ -16,7 +16,7 @@ from core.errors import InputError
 
 
 def test_palette_is_okabe_ito() -> None:
-    """Okabe & Ito (2008), Color Universal Design (from memory, as REFERENCES.md lists it)."""
+    """Okabe & Ito (2008), Color Universal Design (from memory, as docs/references.md lists it)."""
     assert sorted(OKABE_ITO.values()) == sorted(
         ["#E69F00", "#56B4E9", "#009E73", "#F0E442", "#0072B2", "#D55E00", "#CC79A7", "#000000"])
 

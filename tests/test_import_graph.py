@@ -115,3 +115,28 @@ def test_every_name_of_a_package_face_is_where_the_face_says(package):
         assert getattr(module, name) is not None, name
     first_line = (module.__doc__ or "").strip().split("\n")[0]
     assert first_line.endswith("."), f"core/{package}/__init__.py: say in a line what it is for"
+
+
+def test_every_library_core_imports_is_declared_in_pyproject():
+    """A library core imports itself is a dependency of its own, not one that another
+    dependency happens to bring along."""
+    import re
+    import sys
+    from importlib.metadata import packages_distributions
+
+    pyproject = (CORE.parent / "pyproject.toml").read_text(encoding="utf-8")
+    block = re.search(r"^dependencies = \[(.*?)^\]", pyproject, re.S | re.M).group(1)
+    declared = {re.split(r"[<>=!~ ;\[]", line.strip().strip('",'))[0].lower()
+                for line in block.splitlines() if line.strip().startswith('"')}
+    imported = set()
+    for path in CORE.rglob("*.py"):
+        for node in ast.walk(ast.parse(path.read_text(encoding="utf-8"))):
+            if isinstance(node, ast.Import):
+                imported |= {alias.name.split(".")[0] for alias in node.names}
+            elif isinstance(node, ast.ImportFrom) and node.level == 0 and node.module:
+                imported.add(node.module.split(".")[0])
+    third_party = imported - set(sys.stdlib_module_names) - {"core", "__future__"}
+    distributions = packages_distributions()
+    missing = {name: distributions.get(name) for name in third_party
+               if not {d.lower() for d in distributions.get(name, [name])} & declared}
+    assert not missing, f"declare these in pyproject.toml's dependencies: {missing}"

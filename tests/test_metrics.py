@@ -19,7 +19,7 @@ from core.checking.metrics import (
 
 
 # Newcombe (1998), Statistics in Medicine 17:857–872, Table I, method 3 (Wilson score)
-# (from memory, as recorded in shared REFERENCES.md).
+# (from memory, as recorded in docs/references.md).
 @pytest.mark.parametrize("k, n, low, high", [(81, 263, 0.2553, 0.3662), (15, 148, 0.0624, 0.1605),
                                              (0, 20, 0.0, 0.1611), (1, 29, 0.0061, 0.1718)])
 def test_wilson_intervals_match_newcombe_1998(k, n, low, high):
@@ -41,7 +41,7 @@ def test_proportions_match_statsmodels_wilson():
 
 def _ct_ratings():
     # Hanley & McNeil (1982), Radiology 143:29–36, CT example: ratings 1–5 of 58 normal and
-    # 51 abnormal cases (from memory, as recorded in shared REFERENCES.md).
+    # 51 abnormal cases (from memory, as recorded in docs/references.md).
     normal, abnormal = [33, 6, 6, 11, 2], [3, 2, 2, 11, 33]
     score = np.r_[np.repeat(np.arange(1, 6), normal), np.repeat(np.arange(1, 6), abnormal)]
     truth = np.r_[np.zeros(sum(normal), bool), np.ones(sum(abnormal), bool)]

@@ -1,8 +1,8 @@
 """Cross-validating the whole pruning path in one pass per fold.
 
-Reference (REFERENCES.md): scikit-learn trees refitted with ``ccp_alpha=α′`` on the same data,
-parameters and ``random_state`` must predict exactly what the one-pass evaluation predicts,
-for every fold and every grid α′; leave-one-out makes the folds unambiguous. Data: the
+Reference (docs/references.md): scikit-learn trees refitted with ``ccp_alpha=α′`` on the same
+data, parameters and ``random_state`` must predict exactly what the one-pass evaluation
+predicts, for every fold and every grid α′; leave-one-out makes the folds unambiguous. Data: the
 bundled diabetes (Efron et al. 2004) and breast-cancer (Street et al. 1993) sets.
 """
 

@@ -1,7 +1,7 @@
 """Weakest-link pruning against outside references.
 
-- scikit-learn's ``cost_complexity_pruning_path`` (the reference library of REFERENCES.md) on
-  the bundled diabetes data (Efron, Hastie, Johnstone & Tibshirani 2004) and breast-cancer
+- scikit-learn's ``cost_complexity_pruning_path`` (a reference library, docs/references.md)
+  on the bundled diabetes data (Efron, Hastie, Johnstone & Tibshirani 2004) and breast-cancer
   data (Street, Wolberg & Mangasarian 1993).
 - Weakest-link optimality (Breiman, Friedman, Olshen & Stone 1984, ch. 3 and 10): each
   subtree of the sequence is the smallest minimiser of R(T) + α|leaves(T)| among all prunings,

@@ -90,7 +90,7 @@ def test_tripod_table_maps_the_items_that_apply_to_sections_that_exist(contents)
     """TRIPOD (Collins, Reitsma, Altman & Moons 2015; item numbers from memory): the items a
     derived and validated tree must report — data source, participants, outcome, predictors,
     sample size, missing data, model building, performance measures, validation, limitations
-    (the list in REFERENCES.md) — each point to a section of the report that exists."""
+    (the list in docs/references.md) — each point to a section of the report that exists."""
     from core.report.sections import section
     from core.report.tripod import tripod_rows
 

@@ -65,7 +65,7 @@ def test_breast_cancer_round_trip_keeps_shape_and_class_counts(tmp_path, cancer_
 
 @pytest.mark.slow
 def test_breast_cancer_pruned_tree_cv_error_in_sanity_band(tmp_path, cancer_frame):
-    """A pruned tree's 10-fold CV misclassification falls in 0.04–0.12 (REFERENCES.md:
+    """A pruned tree's 10-fold CV misclassification falls in 0.04–0.12 (docs/references.md:
     common practice sanity band)."""
     path = tmp_path / "cancer.csv"
     cancer_frame.to_csv(path, index=False)

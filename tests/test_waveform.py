@@ -2,7 +2,7 @@
 
 Breiman, Friedman, Olshen & Stone (1984), §2.6.2 and §3.4 (from memory): a 1-SE pruned tree
 grown on 300 cases misclassifies about 0.28–0.30 of fresh cases (Bayes error ≈ 0.14). Check
-(REFERENCES.md): averaged over a few seeds, the error on 5,000 fresh cases lies in 0.24–0.36,
+(docs/references.md): averaged over a few seeds, the error on 5,000 fresh cases lies in 0.24–0.36,
 and the cross-validated estimate is within 0.06 of it.
 """
 

@@ -18,7 +18,7 @@ from core.cautions import CAUTIONS  # noqa: E402
 from core.chart import sizes_that_fit  # noqa: E402
 from tests.helpers import DEMO_A4_LEAVES  # noqa: E402
 
-A4 = (595.28, 841.89)  # ISO 216, in points (REFERENCES.md)
+A4 = (595.28, 841.89)  # ISO 216, in points (docs/references.md)
 LETTER = (612.0, 792.0)  # ANSI/ASME Y14.1
 
 
