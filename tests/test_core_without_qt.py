@@ -3,7 +3,7 @@
 Both are checked in a fresh interpreter (a child process), the only place where what gets
 imported can be seen: with PySide6 and shiboken6 made unimportable, a fit with its chart and a
 report run through the command line in that process; and ``prunella --help`` or a refused
-input loads neither scikit-learn nor SciPy.
+input loads none of scikit-learn, SciPy, matplotlib and reportlab.
 """
 
 from __future__ import annotations
@@ -58,7 +58,7 @@ print("without Qt")
     assert chart.read_bytes().startswith(b"%PDF") and report.read_bytes().startswith(b"%PDF")
 
 
-def test_help_and_a_refused_input_load_neither_scikit_learn_nor_scipy(tmp_path):
+def test_help_and_a_refused_input_load_no_statistics_or_drawing_library(tmp_path):
     missing = tmp_path / "absent.csv"
     data = tmp_path / "data.csv"
     data.write_text("x,y\n" + "".join(f"{i},{'yes' if i % 2 else 'no'}\n" for i in range(30)),
@@ -77,7 +77,8 @@ for argv in runs:
         except SystemExit as exit_:
             status = exit_.code
     assert status in (0, 2), (argv, status)
-heavy = sorted({{m.split(".")[0] for m in sys.modules}} & {{"sklearn", "scipy", "matplotlib"}})
+heavy = sorted({{m.split(".")[0] for m in sys.modules}}
+               & {{"sklearn", "scipy", "matplotlib", "reportlab"}})
 print(heavy)
 '''
     done = _child(code)
