@@ -212,7 +212,7 @@ def test_validation_results_replace_the_unchecked_banner(chosen) -> None:
 
 
 def test_a_held_out_check_from_derive_is_printed() -> None:
-    """core.derive's own held-out check (no 'summary' key) still prints its measures."""
+    """core.sizing.derive's own held-out check (no 'summary' key) still prints its measures."""
     table, dictionary, predictors = demo_inputs()
     from core.design import DesignSpec
     from core.sizing import CVSettings, DerivationRequest, derive

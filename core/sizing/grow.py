@@ -1,9 +1,10 @@
-"""Growing the maximal tree with scikit-learn, and each node's risk and outcome.
+"""Growing the full tree with scikit-learn, and each node's risk and outcome.
 
-scikit-learn grows the tree (best splitter, seeded). What it does not know about is CART's
-loss matrix and class priors; they enter the growth as altered priors (class weights, Breiman
-et al. 1984, §4.4) and the node risks and labels as the expected misclassification cost, so
-pruning and cross-validation measure what the user said matters.
+scikit-learn grows the tree (best splitter, seeded). What it does not know about is the loss
+matrix and class priors of classification and regression trees; they enter the growth as
+altered priors (class weights, Breiman et al. 1984, §4.4) and the node risks and labels as the
+expected misclassification cost, so pruning and cross-validation measure what the user said
+matters.
 """
 
 from __future__ import annotations
@@ -30,7 +31,7 @@ class TreeSettings:
     priors: str | tuple[float, ...] = "observed"  # "observed", "equal" or one value per class
     loss: tuple[tuple[float, ...], ...] | None = None  # loss[true][predicted]
     miss_cost: float | None = None  # two classes: missing a positive vs a needless alarm
-    risk: str = "cost"  # classification pruning risk: "cost" (CART) or "impurity"
+    risk: str = "cost"  # classification pruning risk: "cost" (Breiman et al.) or "impurity"
     seed: int = 0
 
     def to_dict(self) -> dict:

@@ -18,7 +18,7 @@ from gui import workers
 from gui.session import STEP_TITLES, STEPS, Session
 
 
-# How each size rule is said (the codes are core.pathcv's).
+# How each size rule is said (the codes are core.sizing's).
 SIZE_RULES = {"1se": "the smallest tree within one standard error (SE) of the lowest error",
               "min": "the lowest cross-validated error", "user": "your choice"}
 

@@ -4,7 +4,7 @@ Run:  .venv/bin/python tests/benchmarks/bench_pathcv.py [--quick] [--large-only]
 
 Prints, for synthetic data of 20,000 rows × 30 predictors with a binary outcome, all with one
 worker so the ratios compare like with like:
-  floor   the K+1 plain scikit-learn fits that any exact CART cross-validation needs,
+  floor   the K+1 plain scikit-learn fits that any exact cross-validation of the path needs,
   ours    Prunella's 10-fold CV over the whole path (one fit per fold + the full tree),
   naive   refitting per α on a 50-α grid, measured on two folds and scaled to ten;
 then Prunella with all cores, and time and peak memory at 100,000 and 1,000,000 rows
@@ -43,7 +43,7 @@ def synthetic(n: int, p: int = 30, seed: int = 0):
 
 
 def floor_seconds(data, settings, cv) -> float:
-    """K+1 plain fits with the same settings: the cost any exact CART CV must pay."""
+    """K+1 plain fits with the same settings: the cost any exact CV of the path must pay."""
     X = np.column_stack([p.numbers for p in data.predictors]).astype(np.float32)
     folds = fold_plan(cv, data.n, y=data.y)
     from core.sizing.grow import class_costs
