@@ -66,7 +66,7 @@ def test_chart_from_a_saved_model_is_reproducible(fitted, tmp_path) -> None:
     done = run_prunella("chart", model, "--out", first, *args)
     assert done.returncode == 0, done.stderr
     assert "Wrote the chart" in done.stdout and "A3 landscape" in done.stdout
-    assert prunella("chart", model, "--out", second, *args).returncode == 0  # in-process: same bytes
+    assert prunella("chart", model, "--out", second, *args).returncode == 0  # in-process
     assert first.read_bytes() == second.read_bytes()
     sheet = page(first)
     assert float(sheet.mediabox.width) == pytest.approx(1190.55, abs=0.01)  # A3, ISO 216

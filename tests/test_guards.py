@@ -1,4 +1,5 @@
-"""Leakage, identity, repeat-visit and rare-class guards (core/design/guards.py, core/dictionary/identity.py).
+"""Leakage, identity, repeat-visit and rare-class guards (core/design/guards.py,
+core/dictionary/identity.py).
 
 The demo cohort is invented; its planted structure (sample_data/README.md) is what these
 checks rely on, not any clinical fact: `bed_booked` agrees with `admitted` for 98 % of visits

@@ -1,4 +1,5 @@
-"""Measures with intervals (core/checking/metrics.py) against published examples and scikit-learn."""
+"""Measures with intervals (core/checking/metrics.py) against published examples and
+scikit-learn."""
 
 from __future__ import annotations
 

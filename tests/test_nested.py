@@ -17,9 +17,9 @@ from tests.waveform import FEATURES, waveform_dictionary, waveform_table
 @pytest.mark.slow
 def test_nested_error_estimate_is_close_to_fresh_error_on_waveform_data():
     """Waveform problem (Breiman et al. 1984, §2.6.2; definition from memory; see
-    docs/references.md): a 1-SE tree grown on 300 cases misclassifies about 0.28–0.30 of fresh cases; here, over five
-    seeds, the nested-CV error estimate must lie within 0.05 of the error on 5,000 fresh cases,
-    and that error in the 0.24–0.36 band of docs/references.md."""
+    docs/references.md): a 1-SE tree grown on 300 cases misclassifies about 0.28–0.30 of fresh
+    cases; here, over five seeds, the nested-CV error estimate must lie within 0.05 of the
+    error on 5,000 fresh cases, and that error in the 0.24–0.36 band of docs/references.md."""
     estimates, fresh_errors = [], []
     for seed in range(5):
         request = DerivationRequest(DesignSpec("wave", FEATURES),

@@ -209,7 +209,8 @@ def classification_measures(y: np.ndarray, predicted: np.ndarray, probabilities:
     ``probabilities`` (patients × classes) are the derivation shares of each class in the box
     each patient reached; they make the ROC curves and the Brier score. ``loss`` and
     ``case_weight`` give the cost of each mistake as in core/sizing/cross_validated_path.py
-    (loss × prior weight; 0-1 loss by default). With ``leaves`` and ``boxes``, each box is checked for calibration.
+    (loss × prior weight; 0-1 loss by default). With ``leaves`` and ``boxes``, each box is
+    checked for calibration.
     """
     from sklearn.metrics import brier_score_loss, confusion_matrix
 

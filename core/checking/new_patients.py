@@ -182,7 +182,8 @@ def boxes_of(model: TreeModel) -> tuple[DerivationBox, ...]:
 
 def case_weights(model: TreeModel) -> tuple[np.ndarray | None, np.ndarray | None]:
     """Loss matrix and per-class case weight (prior × N / N_j of the derivation patients),
-    the weighting core/sizing/cross_validated_path.py uses, so a checked cost compares with the CV risk."""
+    the weighting core/sizing/cross_validated_path.py uses, so a checked cost compares with the
+    CV risk."""
     costs = model.extra.get("costs")
     if not costs or model.task != "classification":
         return None, None

@@ -2,9 +2,9 @@
 
 Each column gets a kind and a role, and a note for every decision a user should know about
 (and the rows concerned, when the caller passes the spreadsheet row numbers). Columns that
-identify patients (core/dictionary/identity.py) are left out of the predictors. Numeric columns are judged
-on their numbers and text columns on their distinct texts, so a million rows cost little more
-than a thousand.
+identify patients (core/dictionary/identity.py) are left out of the predictors. Numeric
+columns are judged on their numbers and text columns on their distinct texts, so a million rows
+cost little more than a thousand.
 """
 
 from __future__ import annotations
