@@ -1,7 +1,7 @@
 """One rule for a box's share, its expected outcome in words and its branch labels.
 
 Invented demo data (tests/_chart_demo.py). Wilson (1927) score interval: checked against
-core/intervals.py, which tests/test_metrics.py checks against published values.
+core/checking/intervals.py, which tests/test_metrics.py checks against published values.
 """
 
 from __future__ import annotations

@@ -149,7 +149,7 @@ def test_outcome_read_with_the_model_definition(demo, north):
     assert any("not one of the tree's classes" in w for w in result.warnings)
 
 
-def test_with_validation_attaches_the_record_for_the_chart(demo, north):
+def test_with_check_attaches_the_record_for_the_chart(demo, north):
     table, _, _ = demo
     result = check_table(north.model, _campus(table, "Riverside"), source="Riverside campus")
     checked = with_check(north.model, result)

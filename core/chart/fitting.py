@@ -2,10 +2,11 @@
 
 A tree that cannot be printed at the minimum text size is refused, naming the largest tree of
 its pruning sequence that fits. With a whole derivation at hand (the app, ``prunella fit``)
-the candidates are built from its pruning path by :func:`core.derive.build_model`. From a
-saved model alone (``prunella chart``) they are its own prunings: every smaller tree of the
-sequence is the chosen tree with the boxes whose collapse α (recorded in the model file's
-path) lies at or below that tree's α made outcome boxes.
+the candidates are built from its pruning path by
+:func:`core.sizing.chosen_tree.build_model`. From a saved model alone (``prunella chart``)
+they are its own prunings: every smaller tree of the sequence is the chosen tree with the
+boxes whose collapse α (recorded in the model file's path) lies at or below that tree's α made
+outcome boxes.
 """
 
 from __future__ import annotations
@@ -93,7 +94,7 @@ def tree_fits(model: TreeModel, options: ChartOptions, measure: Measure = report
 
 def pruned_model(model: TreeModel, collapsed: frozenset[int]) -> TreeModel:
     """``model`` with the boxes in ``collapsed`` made outcome boxes, renumbered 1, 2, ...
-    breadth-first (YES first) as core/derive.py numbers a tree, its size and errors taken
+    breadth-first (YES first) as core/sizing/chosen_tree.py numbers a tree, its size and errors taken
     from the pruning path the model keeps."""
     order, queue = [], [model.root.id]
     while queue:  # breadth-first, YES before NO
@@ -211,8 +212,8 @@ def sizes_that_fit(derivation: "Derivation", options: ChartOptions | None = None
     counts and small-group flags that change what the boxes and panel hold), in the order of
     the path (largest first).
 
-    Candidates are built from the path with :func:`core.derive.build_model`, as
-    :func:`core.derive.choose_model` builds them, but without checking each on the held-out
+    Candidates are built from the path with :func:`core.sizing.chosen_tree.build_model`, as
+    :func:`core.sizing.derivation.choose_model` builds them, but without checking each on the held-out
     patients: a candidate carries the chosen tree's check in its place, worded alike, so
     its side panel is the one it will print. Trees with more boxes than the page could hold
     packed edge to edge, or deeper than any arrangement allows, are skipped before they are

@@ -93,7 +93,7 @@ def check_html(result) -> str:
 
 
 def read_and_check(model, path: str):
-    """Read an external file and check the tree on it (core.validate). Runs in a worker."""
+    """Read an external file and check the tree on it (core.checking). Runs in a worker."""
     return check_table(model, read_table(path))
 
 
@@ -118,7 +118,7 @@ class CheckingPanel(Panel):
         self.job: workers.Job | None = None
         self._busy = False
         self._pending_path: str | None = None
-        self.checks: list = []  # ValidationResults for the chosen tree (held-out first)
+        self.checks: list = []  # CheckResults for the chosen tree (held-out first)
         self._external_path: str | None = None  # the file checked on, redone for a new size
         self.nested = None
         self.stability = None
