@@ -49,6 +49,15 @@ def run_app(argv: list[str]) -> int:
     """Open the main window; returns the exit status when it closes."""
     args, qt_args = parse_arguments(list(argv))
     from PySide6.QtCore import QTimer
+    from PySide6.QtWidgets import QApplication
+
+    if QApplication.instance() is None and "-platform" not in qt_args:
+        from gui.window_system import why_no_window
+
+        problem = why_no_window()
+        if problem is not None:  # Qt would abort with a page of plugin names
+            print(problem, file=sys.stderr)
+            return 2
 
     app = make_application(qt_args)
     from gui.main_window import MainWindow

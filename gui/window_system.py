@@ -1,0 +1,82 @@
+"""Whether this computer can open a window at all, asked before Qt is started.
+
+On a minimal Linux without a desktop, Qt's X11 plugin ("xcb") cannot load until a few system
+libraries are installed, and Qt then aborts with a page of plugin names. Loading the plugin
+ourselves first (the dynamic loader names the first library it misses) lets the app say in
+one sentence what is wrong and which Debian/Ubuntu package to install.
+"""
+
+from __future__ import annotations
+
+import ctypes
+import os
+import re
+import sys
+from pathlib import Path
+from typing import Callable, Mapping
+
+# Every library the X11 plugin needs beyond a basic system, as Debian/Ubuntu packages (the
+# README lists the same line).
+XCB_PACKAGES = ("libxcb-cursor0", "libxcb-icccm4", "libxcb-image0", "libxcb-keysyms1",
+                "libxcb-randr0", "libxcb-render-util0", "libxcb-shape0", "libxcb-xkb1",
+                "libxkbcommon-x11-0", "libx11-xcb1", "libegl1", "libgl1", "libfontconfig1",
+                "libdbus-1-3")
+_MISSING = re.compile(r"(lib[^\s:/]+\.so(?:\.\d+)*)\s*:\s*cannot open shared object file")
+
+
+def debian_package(soname: str) -> str:
+    """The Debian/Ubuntu package that ships a shared library, by Debian's naming rule for
+    library packages (Debian Policy 8.1: the soname's base in lower case, then its version,
+    with a hyphen between when the base ends in a digit): libxcb-icccm.so.4 → libxcb-icccm4,
+    libxkbcommon-x11.so.0 → libxkbcommon-x11-0."""
+    base, _, version = soname.partition(".so")
+    version = version.lstrip(".").split(".")[0]
+    base = base.lower()
+    if not version:
+        return base
+    return f"{base}-{version}" if base[-1].isdigit() else f"{base}{version}"
+
+
+def _uses_x11(environ: Mapping[str, str]) -> bool:
+    """Whether Qt will pick its X11 plugin (the default on Linux, unless told otherwise or in a
+    Wayland session)."""
+    chosen = environ.get("QT_QPA_PLATFORM", "").split(";")[0].split(":")[0].strip()
+    if chosen:
+        return chosen == "xcb"
+    return not (environ.get("XDG_SESSION_TYPE") == "wayland" and environ.get("WAYLAND_DISPLAY"))
+
+
+def _x11_plugin() -> Path:
+    from PySide6.QtCore import QLibraryInfo  # no window is made: the core library only
+
+    return Path(QLibraryInfo.path(QLibraryInfo.LibraryPath.PluginsPath)) / "platforms" / "libqxcb.so"
+
+
+def why_no_window(environ: Mapping[str, str] | None = None, platform: str | None = None,
+                  plugin: Path | None = None,
+                  load: Callable[[str], object] = ctypes.CDLL) -> str | None:
+    """One sentence saying why the app cannot open a window here, with the likely fix; None
+    when it can (or when this cannot be known before Qt starts, as on Windows and macOS)."""
+    environ = os.environ if environ is None else environ
+    platform = sys.platform if platform is None else platform
+    if not platform.startswith("linux") or not _uses_x11(environ):
+        return None
+    if not environ.get("DISPLAY"):
+        return ("Prunella cannot open a window: no display is set (DISPLAY is empty); start it "
+                "from a desktop session, or use the command line (prunella fit --help).")
+    plugin = _x11_plugin() if plugin is None else plugin
+    if not plugin.is_file():
+        return None  # a Qt built another way: let Qt say what it finds
+    try:
+        load(str(plugin))
+    except OSError as exc:
+        missing = _MISSING.search(str(exc))
+        if missing is None:
+            return (f"Prunella cannot open a window: Qt's display plugin does not load ({exc}); "
+                    "on Debian or Ubuntu, install its libraries with: sudo apt-get install "
+                    + " ".join(XCB_PACKAGES))
+        return (f"Prunella cannot open a window: the system library {missing.group(1)} that "
+                "Qt's display plugin needs is missing; on Debian or Ubuntu, install it with: "
+                f"sudo apt-get install {debian_package(missing.group(1))} (or all of them at "
+                "once: " + " ".join(XCB_PACKAGES) + ").")
+    return None
