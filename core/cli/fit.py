@@ -13,7 +13,6 @@ import pandas as pd
 from .. import __version__
 from ..cautions import CAUTION_TITLE, caution_text
 from ..data.table import read_table
-from ..design.analysis import DesignSpec
 from ..dictionary.columns import DataDictionary
 from ..dictionary.for_table import dictionary_for
 from ..errors import InputError
@@ -79,18 +78,11 @@ def request_from_args(args, dictionary: DataDictionary) -> DerivationRequest:
     from ..sizing.grow import TreeSettings
     from ..sizing.request import DerivationRequest
 
-    if args.outcome not in dictionary:
-        dictionary.get(args.outcome)  # raises the "no such column" message
-    patient = args.patient_id or next((c.name for c in dictionary.by_role("patient_id")), None)
-    excluded = set(csv_list(args.exclude)) | {args.outcome, patient, args.site}
-    for name in csv_list(args.exclude):
-        dictionary.get(name)
-    if args.predictors:
-        predictors = tuple(p for p in csv_list(args.predictors) if p not in excluded)
-    else:
-        predictors = tuple(c.name for c in dictionary.by_role("predictor") if c.name not in excluded)
-    design = DesignSpec(outcome=args.outcome, predictors=predictors, task=args.task,
-                        positive=args.positive, patient_id=patient, site=args.site)
+    from ..design.analysis import default_design
+
+    design = default_design(dictionary, args.outcome, predictors=csv_list(args.predictors) or None,
+                            exclude=csv_list(args.exclude), patient_id=args.patient_id,
+                            site=args.site, task=args.task, positive=args.positive)
     priors: str | tuple[float, ...] = args.priors
     if priors not in ("observed", "equal"):
         try:

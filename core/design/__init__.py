@@ -3,7 +3,8 @@
 from ..package_face import lazy_face
 
 __getattr__, __dir__, __all__ = lazy_face(__name__, {
-    "analysis": ("AnalysisData", "DesignSpec", "prepare_analysis", "suggest_task"),
+    "analysis": ("AnalysisData", "DesignSpec", "default_design", "prepare_analysis",
+                 "suggest_task"),
     "matrix": ("fit_encoding",),
     "guards": ("GuardFinding", "GuardReport", "guard_design", "identity_findings"),
 })

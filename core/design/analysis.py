@@ -8,6 +8,7 @@ that would look good for the wrong reasons.
 
 from __future__ import annotations
 
+from collections.abc import Iterable
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -78,6 +79,42 @@ def _take(column: TypedColumn, rows: np.ndarray) -> TypedColumn:
 def suggest_task(spec: ColumnSpec) -> str:
     """Classification for categories, regression for numbers."""
     return "classification" if spec.kind in CATEGORY_KINDS else "regression"
+
+
+def default_design(dictionary: DataDictionary, outcome: str | None = None, *,
+                   predictors: Iterable[str] | None = None, exclude: Iterable[str] = (),
+                   patient_id: str | None = None, site: str | None = None,
+                   task: str | None = None, positive: str | None = None) -> DesignSpec | None:
+    """The choices a derivation starts from, for the app's outcome step and ``prunella fit``
+    alike: the outcome named (else the dictionary's first outcome column), the patient number
+    and site named (else the dictionary's), the task and, for two classes, the outcome to catch
+    suggested from the outcome unless named; the predictors named, else every column the
+    dictionary marks as a predictor of a kind a tree can ask about. The outcome, the patient
+    number, the site and ``exclude`` are never predictors. None when no outcome is named and
+    the dictionary marks none."""
+    if outcome is None:
+        outcomes = dictionary.by_role("outcome")
+        if not outcomes:
+            return None
+        outcome = outcomes[0].name
+    spec = dictionary.get(outcome)
+    if patient_id is None:
+        patient_id = next((c.name for c in dictionary.by_role("patient_id")), None)
+    if site is None:
+        site = next((c.name for c in dictionary.by_role("site")), None)
+    patient_id = None if patient_id == outcome else patient_id
+    site = None if site == outcome else site
+    for name in exclude:
+        dictionary.get(name)  # an unknown column is refused by name
+    taken = set(exclude) | {outcome, patient_id, site}
+    if predictors is None:
+        predictors = (c.name for c in dictionary.by_role("predictor") if c.kind in PREDICTOR_KINDS)
+    task = task or suggest_task(spec)
+    if positive is None and task == "classification" and spec.kind in CATEGORY_KINDS \
+            and len(spec.levels) == 2:
+        positive = positive_level(spec)
+    return DesignSpec(outcome, tuple(p for p in predictors if p not in taken), task=task,
+                      positive=positive, patient_id=patient_id, site=site)
 
 
 def prepare_analysis(frame: pd.DataFrame, dictionary: DataDictionary,

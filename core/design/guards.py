@@ -141,6 +141,20 @@ def leave_out_identity(design: DesignSpec, findings: Iterable[GuardFinding],
     return replace(design, predictors=tuple(p for p in design.predictors if p not in drop)), left_out
 
 
+def kept_on_purpose(kept: Iterable[str], ticked: Iterable[str], offered: Iterable[str],
+                    left_out: Iterable[str], many_at_once: bool = False) -> frozenset[str]:
+    """The identity-like columns a user keeps as predictors although the identity guard
+    would leave them out (the app's "Keep it anyway"; on the command line, naming them in
+    --predictors): a column the guard left out that the user ticks back, one at a time, is
+    kept; a kept column the user unticks is left out again; ticking many columns at once
+    (All) keeps none that identify patients."""
+    ticked, offered = set(ticked), set(offered)
+    chosen = set(kept)
+    if not many_at_once:
+        chosen |= set(left_out) & ticked
+    return frozenset(c for c in chosen if c in ticked or c not in offered)
+
+
 # --- leakage --------------------------------------------------------------------------------
 
 

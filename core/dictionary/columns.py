@@ -143,6 +143,21 @@ class DataDictionary:
     def by_role(self, role: str) -> tuple[ColumnSpec, ...]:
         return tuple(c for c in self.columns if c.role == role)
 
+    def with_roles(self, outcome: str | None, patient_id: str | None = None,
+                   site: str | None = None) -> "DataDictionary":
+        """A copy in which these columns hold the outcome, patient-number and site roles and
+        no other column holds them (a column that loses one of them is left out, "ignore"):
+        the dictionary then says what the outcome step chose."""
+        wanted = {"outcome": outcome, "patient_id": patient_id, "site": site}
+        chosen = {name: role for role, name in wanted.items() if name is not None}
+        for name in chosen:
+            self.get(name)  # an unknown column is refused by name
+        columns = []
+        for c in self.columns:
+            role = chosen.get(c.name, "ignore" if c.role in wanted else c.role)
+            columns.append(c if role == c.role else replace(c, role=role))
+        return DataDictionary(tuple(columns))
+
     def to_dict(self) -> dict:
         return {"format": DICTIONARY_FORMAT, "columns": [c.to_dict() for c in self.columns]}
 

@@ -37,11 +37,17 @@ def prepare_report(derivation: Derivation, external: tuple[CheckResult, ...] = (
                    nested: bool = True, outer_folds: int = DEFAULT_OUTER_FOLDS,
                    bootstrap: int = DEFAULT_RESAMPLES, jobs: int = 1,
                    progress: Progress | None = None, cancel: CancelFlag | None = None,
-                   notes: tuple[str, ...] = (), printed: str | None = None) -> ReportContents:
+                   notes: tuple[str, ...] = (), printed: str | None = None,
+                   nested_done: NestedResult | None = None,
+                   stability_done: Stability | None = None) -> ReportContents:
     """Run nested cross-validation and ``bootstrap`` stability resamples (0 = none) and collect
-    the held-out and ``external`` checks. ``progress(done, total)`` counts outer folds plus
-    resamples; ``cancel()`` returning True raises :class:`Cancelled`."""
-    total = (outer_folds if nested else 0) + max(bootstrap, 0)
+    the held-out and ``external`` checks. Results already computed (``nested_done``,
+    ``stability_done``, the derivation's own held-out check) are used as they are, not run
+    again. ``progress(done, total)`` counts the outer folds plus resamples still to run;
+    ``cancel()`` returning True raises :class:`Cancelled`."""
+    run_nested = nested and nested_done is None
+    run_bootstrap = bootstrap > 0 and stability_done is None
+    total = (outer_folds if run_nested else 0) + (bootstrap if run_bootstrap else 0)
     done_before = 0
 
     def step(done: int, _total: int) -> None:
@@ -49,14 +55,14 @@ def prepare_report(derivation: Derivation, external: tuple[CheckResult, ...] = (
             progress(done_before + done, total)
 
     stop_if_cancelled(cancel)
-    nested_result = None
-    if nested:
+    nested_result = nested_done if nested else None
+    if run_nested:
         nested_result = nested_cross_validate(derivation.data, derivation.request,
                                               outer_folds=outer_folds, jobs=jobs,
                                               progress=step, cancel=cancel)
         done_before = outer_folds
-    stability = None
-    if bootstrap > 0:
+    stability = stability_done if bootstrap > 0 else None
+    if run_bootstrap:
         stability = bootstrap_stability(derivation.data, derivation.request, derivation.model,
                                         resamples=bootstrap, jobs=jobs, progress=step,
                                         cancel=cancel)
