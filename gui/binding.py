@@ -88,9 +88,12 @@ class Bindings:
                 if bound.choices is not None:
                     choices = tuple(bound.choices())
                     if choices != bound.shown_choices:
-                        widget.clear()
-                        for words, value in choices:
-                            widget.addItem(words, value)
+                        if isinstance(widget, QComboBox):
+                            widget.clear()
+                            for words, value in choices:
+                                widget.addItem(words, value)
+                        else:  # a composite widget fills itself
+                            widget.set_choices(choices)
                         bound.shown_choices = choices
                 value = bound.read()
                 if isinstance(widget, QAbstractSpinBox) and value is None:

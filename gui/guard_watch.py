@@ -16,7 +16,7 @@ from PySide6.QtCore import QObject, QTimer
 
 from core.design import DesignSpec, GuardFinding, GuardReport, guard_design, identity_findings
 from core.dictionary import PREDICTOR_KINDS, DataDictionary
-from gui import workers
+from gui.workers import JobRunner
 
 DELAY_MS = 250  # wait this long after the last change before checking
 
@@ -81,9 +81,9 @@ class GuardWatch(QObject):
     def __init__(self, session, delay_ms: int = DELAY_MS, parent: QObject | None = None) -> None:
         super().__init__(parent)
         self.session = session
-        self.job: workers.Job | None = None
-        self._alive: list[workers.Job] = []  # jobs still on a pool thread (Python owns them)
-        self._applying = False
+        # A newer check cancels the one under way; its result is dropped.
+        self.runner = JobRunner(self, latest_wins=True)
+        self._checking: tuple | None = None  # the key of the check under way
         self._timer = QTimer(self)
         self._timer.setSingleShot(True)
         self._timer.setInterval(delay_ms)
@@ -97,38 +97,34 @@ class GuardWatch(QObject):
         if s.table is None or s.dictionary is None or s.design is None or not s.design.outcome \
                 or s.design.outcome not in s.dictionary:
             return None
-        return (id(s.table), s.dictionary, s.design, s.kept, s.cv.grouped, s.cv.seed,
+        return (s.serial, s.dictionary, s.design, s.kept, s.cv.grouped, s.cv.seed,
                 s.tree.min_leaf)
 
     @property
+    def job(self):
+        return self.runner.job
+
+    @property
     def running(self) -> bool:
-        return self.job is not None and self.job.running
+        return self.runner.busy
 
     def schedule(self) -> None:
         """Check again (soon) if the choices differ from the ones last checked."""
-        if self._applying:
-            return
         key = self.key()
-        if key is None:
-            self._stop()
-            self._timer.stop()
-            self.session.set_screen(None, pending=False)
-            return
         screen = self.session.screen
-        if screen is not None and screen.key == key:
-            self._stop()
+        if key is None or (screen is not None and screen.key == key):
+            self.runner.forget()
             self._timer.stop()
-            self.session.set_guard_pending(False)
+            if key is None:
+                self.session.set_screen(None, pending=False)
+            else:
+                self.session.set_guard_pending(False)
             return
-        if self.running and getattr(self.job, "key", None) == key:
+        if self.running and self._checking == key:
             return  # already checking exactly this
-        self._stop()
+        self.runner.forget()
         self.session.set_guard_pending(True)
         self._timer.start()
-
-    def _stop(self) -> None:
-        if self.running:
-            self.job.cancel()
 
     def _start(self) -> None:
         s = self.session
@@ -136,37 +132,24 @@ class GuardWatch(QObject):
         if key is None:
             self.session.set_screen(None, pending=False)
             return
-        job = workers.Job(screen_design, s.table.frame, s.dictionary, s.design,
+        self._checking = key
+        self.runner.start(screen_design, s.table.frame, s.dictionary, s.design,
                           offered_columns(s.dictionary, s.design), s.kept, s.cv.grouped,
-                          s.cv.seed, s.tree.min_leaf)
-        job.key = key
-        job.signals.done.connect(self._done)
-        job.signals.failed.connect(self._failed)
-        self._alive = [j for j in self._alive if j.running] + [job]
-        self.job = job
-        workers.start(job)
+                          s.cv.seed, s.tree.min_leaf,
+                          done=lambda screen: self._done(key, screen),
+                          failed=lambda message: self._failed(key, message))
 
-    def _current(self) -> bool:
-        """Whether the signal being handled comes from the latest check, made on the choices
-        as they are now (bound methods: Qt delivers the signal on the UI thread)."""
-        job = self.job
-        return job is not None and self.sender() is job.signals and job.key == self.key()
-
-    def _done(self, screen: Screen) -> None:
-        if not self._current():
+    def _done(self, key: tuple, screen: Screen) -> None:
+        if key != self.key():
             return  # the choices changed meanwhile; a newer check is on its way
         s = self.session
-        if screen.design != s.design:  # identity-like columns leave the predictors
-            self._applying = True
-            try:
-                s.set_design(screen.design, by_user=False)
-            finally:
-                self._applying = False
-        s.set_screen(replace(screen, key=self.key()), pending=False)
+        # Identity-like columns leave the predictors: the result is for the choices as they
+        # are once that is done, so it is current then and no second check starts.
+        after = key[:2] + (screen.design,) + key[3:]
+        s.set_screen(replace(screen, key=after), pending=False)
 
-    def _failed(self, message: str) -> None:
-        if not self._current():
+    def _failed(self, key: tuple, message: str) -> None:
+        if key != self.key():
             return
-        design = self.session.design
-        self.session.set_screen(Screen(design=design, error=message, key=self.key()),
+        self.session.set_screen(Screen(design=self.session.design, error=message, key=key),
                                 pending=False)

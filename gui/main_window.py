@@ -14,15 +14,16 @@ from PySide6.QtWidgets import (
 
 from core import __version__
 from core.cautions import CAUTION_TITLE, CAUTIONS
+from core.errors import InputError
 from core.data import read_table
 from core.dictionary import dictionary_for
-from core.errors import InputError
 from core.project import PROJECT_SUFFIX, check_data_file, load_project, save_project
-from gui import workers
-from gui.panels.base import ask_save_path, heading_font, with_advice
+from gui.panels.step_panel import ask_open_path, ask_save_path, heading_font, remember_folder
+from gui.panels.wording import with_advice
+from gui.workers import JobRunner
 from gui.panels.chart import ChartPanel
 from gui.panels.checking import CheckingPanel
-from gui.panels.data import DATA_FILTER, DataPanel
+from gui.panels.data import DATA_FILTER, SPREADSHEET_PATTERNS, DataPanel
 from gui.panels.outcome import OutcomePanel
 from gui.panels.size import SizePanel
 from gui.panels.tree import TreePanel
@@ -30,18 +31,29 @@ from gui.resources import ICON, demo_files
 from gui.session import STEP_TITLES, STEPS, Session
 
 PROJECT_FILTER = f"Prunella project (*{PROJECT_SUFFIX})"
+OPEN_FILTER = (f"Spreadsheets and projects ({SPREADSHEET_PATTERNS} *{PROJECT_SUFFIX});;"
+               f"{DATA_FILTER};;{PROJECT_FILTER}")
 MAX_RECENT = 8
 
 
 def read_for_project(project, path: str):
-    """Read a project's data; its saved dictionary is used whole when the file is unchanged."""
+    """Read a project's data; its saved dictionary is used whole when the file's columns are
+    unchanged. The notes are those the first opening listed (what reading and inferring the
+    columns found), so reopening shows the same things to check."""
     table = read_table(path, sheet=project.data_sheet)
-    notes = list(table.provenance.warnings)
+    inferred, notes = dictionary_for(table, project.dictionary)
     dictionary = project.dictionary
     if dictionary is None or tuple(table.frame.columns) != dictionary.names:
-        dictionary, more = dictionary_for(table, dictionary)
-        notes += more
-    return table, dictionary, tuple(notes)
+        dictionary = inferred
+    return table, dictionary, tuple(table.provenance.warnings) + tuple(notes)
+
+
+def recent_names(paths: list[str]) -> list[tuple[str, str]]:
+    """(path, name as listed) for recent files: the file's name, with its folder when two
+    files of the same name are listed."""
+    names = [Path(p).name for p in paths]
+    return [(p, n if names.count(n) == 1 else f"{n} ({Path(p).parent.name})")
+            for p, n in zip(paths, names)]
 
 
 def cautions_text() -> str:
@@ -53,11 +65,10 @@ class MainWindow(QMainWindow):
         super().__init__()
         self.session = session or Session(self)
         self.settings = QSettings()
-        self.setWindowTitle("Prunella[*]")
         if ICON.is_file():
             self.setWindowIcon(QIcon(str(ICON)))
         self.setAcceptDrops(True)
-        self._project_job: workers.Job | None = None
+        self.project_reading = JobRunner(self)
 
         # The panels, one per step.
         self.panels = {
@@ -135,6 +146,7 @@ class MainWindow(QMainWindow):
         self.setCentralWidget(central)
         self.fingerprints = QLabel()
         self.statusBar().addPermanentWidget(self.fingerprints)
+        self.session.status_changed.connect(self._show_status)
 
         self._make_menus()
         # Every change of data, design, result or chosen size emits state_changed (Session._touch).
@@ -235,8 +247,8 @@ class MainWindow(QMainWindow):
             item.setForeground(self.palette().text() if session.ready(step)
                                else self.palette().placeholderText())
         self.setWindowModified(session.dirty)
-        name = Path(session.project_path).name if session.project_path else "new project"
-        self.setWindowTitle(f"Prunella — {name}[*]")
+        name = Path(session.project_path).name if session.project_path else "New project"
+        self.setWindowTitle(f"{name}[*]")  # Qt adds " — Prunella", the display name
         parts = []
         if session.table is not None:
             parts.append(f"Data {session.table.provenance.short_fingerprint}")
@@ -252,12 +264,16 @@ class MainWindow(QMainWindow):
 
     # --- opening ----------------------------------------------------------------------------
 
+    def _show_status(self, text: str, milliseconds: int) -> None:
+        if text:
+            self.statusBar().showMessage(text, milliseconds)
+        else:
+            self.statusBar().clearMessage()
+
     def choose_open(self) -> None:
         if not self._may_discard():
             return
-        path, _ = QFileDialog.getOpenFileName(
-            self, "Open a project or a spreadsheet", "",
-            f"{PROJECT_FILTER};;{DATA_FILTER}")
+        path = ask_open_path(self, "Open a spreadsheet or a project", OPEN_FILTER)
         if path:
             self.open_any(path, asked=True)
 
@@ -303,28 +319,26 @@ class MainWindow(QMainWindow):
             check = check_data_file(project, data_path)
         if check.exists and not check.same:
             QMessageBox.warning(self, "The data file has changed", with_advice(check.message))
-        self._project_job = workers.Job(read_for_project, project, data_path,
-                                        takes_progress=False)
-        self._pending_project = (project, path, check)
-        self._project_job.signals.done.connect(self._project_data_read)
-        self._project_job.signals.failed.connect(self._project_failed)
-        self.statusBar().showMessage(f"Reading {Path(data_path).name}…")
-        workers.start(self._project_job)
+        self.session.set_status(f"Reading {Path(data_path).name}…")
+        self.project_reading.start(read_for_project, project, data_path, takes_progress=False,
+                                   done=lambda result: self._project_data_read(
+                                       project, path, check, result),
+                                   failed=self._project_failed)
 
-    def _project_data_read(self, result) -> None:
-        project, path, check = self._pending_project
+    def _project_data_read(self, project, path: str, check, result) -> None:
         table, dictionary, notes = result
         self.session.apply_project(project, table, dictionary, notes)
         if not check.same:
             self.session.expected_fingerprint = None  # a changed file makes another tree
         self.session.mark_saved(path)
         self._remember(path)
-        self.statusBar().showMessage(check.message, 8000)
+        self.session.set_status(check.message, 8000)
         if self.session.request() is not None:
             self.go_to("size")
             self.panels["size"].run()
 
     def _project_failed(self, message: str) -> None:
+        self.session.set_status("")
         QMessageBox.warning(self, "The project's data could not be read", with_advice(message))
 
     # --- saving -----------------------------------------------------------------------------
@@ -351,7 +365,7 @@ class MainWindow(QMainWindow):
             return False
         self.session.mark_saved(path)
         self._remember(path)
-        self.statusBar().showMessage(f"Saved {Path(path).name}.", 5000)
+        self.session.set_status(f"Saved {Path(path).name}.", 5000)
         return True
 
     def new_project(self) -> None:
@@ -377,13 +391,15 @@ class MainWindow(QMainWindow):
     # --- recent files and window geometry ----------------------------------------------------
 
     def recent_files(self) -> list[str]:
+        """The files opened lately, newest first, each once (by its resolved path)."""
         value = self.settings.value("recent", [])
         if isinstance(value, str):
             value = [value]
-        return [str(v) for v in (value or []) if v]
+        return list(dict.fromkeys(str(Path(v).resolve()) for v in (value or []) if v))
 
     def _remember(self, path: str) -> None:
         path = str(Path(path).resolve())
+        remember_folder(path)
         recent = [p for p in self.recent_files() if p != path]
         recent.insert(0, path)
         self.settings.setValue("recent", recent[:MAX_RECENT])
@@ -392,13 +408,13 @@ class MainWindow(QMainWindow):
     def _fill_recent(self) -> None:
         self.recent_menu.clear()
         recent = [p for p in self.recent_files() if Path(p).exists()]
-        for path in recent:
-            action = self.recent_menu.addAction(Path(path).name)
+        for path, shown in recent_names(recent):
+            action = self.recent_menu.addAction(shown)
             action.setToolTip(path)
             action.triggered.connect(lambda _checked=False, p=path: self.open_any(p))
         self.recent_menu.setEnabled(bool(recent))
         data_recent = [p for p in recent if not p.lower().endswith(PROJECT_SUFFIX)]
-        self.panels["data"].set_recent(data_recent, self.open_any)
+        self.panels["data"].set_recent(recent_names(data_recent), self.open_any)
 
     def _restore(self) -> None:
         geometry = self.settings.value("window/geometry")
@@ -418,8 +434,7 @@ class MainWindow(QMainWindow):
             return
         for panel in self.panels.values():
             panel.stop_work()
-        if self._project_job is not None and self._project_job.running:
-            self._project_job.cancel()
+        self.project_reading.forget()
         self.settings.setValue("window/geometry", self.saveGeometry())
         self.settings.sync()
         event.accept()

@@ -14,6 +14,7 @@ import traceback
 from typing import Callable
 
 from PySide6.QtCore import QObject, QRunnable, QThreadPool, Signal
+from shiboken6 import isValid
 
 from core.errors import Cancelled, PrunellaError
 
@@ -196,8 +197,8 @@ class JobRunner(QObject):
         start(job)
 
     def _deliver(self, token: int, handler: Callable | None, *value) -> None:
-        if token != self._token:
-            return  # overtaken or forgotten
+        if not isValid(self) or token != self._token:
+            return  # overtaken or forgotten, or the step is gone with its window
         self._finish()
         if handler is not None:
             handler(*value)
@@ -208,13 +209,13 @@ class JobRunner(QObject):
         self.busy_changed.emit(False)
 
     def _thread_free(self) -> None:
-        if self._pending is not None and not self.running:
+        if isValid(self) and self._pending is not None and not self.running:
             request, self._pending = self._pending, None
             self._launch(request)
 
     def _progress(self, token: int, done: int, total: int) -> None:
         bar = self.progress_bar
-        if bar is not None and token == self._token and total > 0:
+        if isValid(self) and bar is not None and token == self._token and total > 0:
             bar.setFormat("%v of %m")
             bar.setRange(0, total)
             bar.setValue(done)

@@ -250,7 +250,8 @@ def repeat_visit_findings(frame: pd.DataFrame, dictionary: DataDictionary, desig
     for name in frame.columns:
         spec = dictionary.get(name) if name in dictionary else None
         hint = identity_by_header(str(name))
-        named = spec is not None and spec.role == "patient_id"
+        # Marked as a patient number, or as an identifier: a repeating one is the likeliest.
+        named = spec is not None and (spec.role == "patient_id" or spec.kind == "identifier")
         if not named and (hint is None or hint.what not in _PATIENT_WORDS):
             continue
         counts = _repeat_counts(frame[name])

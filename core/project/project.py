@@ -18,6 +18,7 @@ from dataclasses import dataclass, field, replace
 from pathlib import Path
 
 from .. import __version__
+from ..chart.options import ChartOptions
 from ..data.table import file_sha256
 from ..dictionary.columns import DataDictionary
 from ..errors import InputError
@@ -113,6 +114,19 @@ class Project:
         request = replace(self.request, tree=replace(self.request.tree, seed=seed),
                           cv=replace(self.request.cv, seed=seed))
         return replace(self, request=request)
+
+
+CHART_FIELDS = ("title", "subtitle", "paper", "orientation", "min_text", "form")  # kept in a project
+
+
+def chart_options(chart: dict) -> ChartOptions:
+    """A project's chart settings as the chart's own options (absent: the chart's default)."""
+    return ChartOptions(**{k: chart[k] for k in CHART_FIELDS if chart.get(k) is not None})
+
+
+def chart_settings(options: ChartOptions) -> dict:
+    """The chart options a project keeps, as its file stores them."""
+    return {k: getattr(options, k) for k in CHART_FIELDS}
 
 
 def _resolve_data_path(entry: dict, project_path: str | Path | None) -> str:

@@ -8,13 +8,12 @@ from dataclasses import dataclass
 from html import escape
 from pathlib import Path
 
-from PySide6.QtCore import QPointF, QSize, Qt, QTemporaryDir, QTimer, Signal
-from PySide6.QtGui import QPainter
+from PySide6.QtCore import Qt, QTemporaryDir, QTimer, Signal
 from PySide6.QtPdf import QPdfDocument
 from PySide6.QtPrintSupport import QPrintDialog, QPrinter
 from PySide6.QtWidgets import (
     QComboBox, QDialog, QDoubleSpinBox, QFormLayout, QGroupBox, QHBoxLayout, QLabel, QLineEdit,
-    QPushButton, QStackedWidget, QVBoxLayout, QWidget,
+    QPushButton, QStackedWidget, QToolButton, QVBoxLayout, QWidget,
 )
 
 from core.cautions import CAUTION_TITLE, CAUTIONS
@@ -22,14 +21,17 @@ from core.chart import ChartOptions, ChartTooLarge, write_chart
 from core.errors import InputError
 from core.model import scored_table
 from core.safe_files import write_bytes_atomic, write_csv_safely, write_text_atomic
-from gui import workers
-from gui.panels.base import Panel, explain, heading_font, scrolling, side_by_side, warning_html
+from gui.binding import Bindings
+from gui.panels.step_panel import (
+    StepPanel, heading_font, scrolling, side_by_side, with_tooltip,
+)
+from gui.panels.wording import warning_html
+from gui.widgets.chart_printing import chart_plan, page_layout, print_plan
 from gui.widgets.pdf_preview import PdfPreview
 
 PAPERS = (("A4", "a4"), ("US Letter", "letter"), ("A3", "a3"), ("Tabloid", "tabloid"))
 ORIENTATIONS = (("Best fit for the tree", "auto"), ("Portrait (upright)", "portrait"),
                 ("Landscape (sideways)", "landscape"))
-FORMS = (("Tree of boxes and arrows", "tree"), ("Numbered rules, one row per box", "rules"))
 
 
 @dataclass(frozen=True)
@@ -64,7 +66,7 @@ def cautions_widget(parent=None) -> QWidget:
     return box
 
 
-class ChartPanel(Panel):
+class ChartPanel(StepPanel):
     step = "chart"
     choose_size = Signal(int)  # the largest size that fits, for step 3 to take
     intro = ("The one-page chart to print and pin up. The preview is the PDF itself, exactly "
@@ -72,8 +74,7 @@ class ChartPanel(Panel):
 
     def __init__(self, session, parent=None) -> None:
         super().__init__(session, parent)
-        self._writing = False
-        self.job: workers.Job | None = None
+        self.bindings = Bindings()
         self._temp = QTemporaryDir()
         self._serial = 0
         self.pdf_path: str | None = None  # the file the preview shows
@@ -84,26 +85,37 @@ class ChartPanel(Panel):
         self._timer.timeout.connect(self.render_preview)
         self._outdated = True  # the preview does not show the current tree and options yet
         self._after_render = None  # (action, title) waiting for the chart to be drawn
-        self._rendering = False  # a drawing job was started and its result not yet shown
+        self._fitting: int | None = None
+        self.drawing = self.runner(latest_wins=True)  # the newest options are drawn
+        splitter = side_by_side(self._options_side(), self._preview_side(), stretch=(0, 1),
+                                sizes=(360, 800))
+        self.add_tree_content(splitter)
+        self._bind()
+        session.chart_changed.connect(self.bindings.show)
+        session.chart_changed.connect(self.schedule_preview)
+        session.checks_changed.connect(self.schedule_preview)
+        session.result_changed.connect(self.refresh)
+        session.chosen_changed.connect(self.refresh)
+        self.bindings.show()
+        self.refresh()
 
-        self.title_edit = explain(QLineEdit(), "The chart's heading; leave blank for one made "
-                                  "from the outcome.")
-        self.subtitle_edit = explain(QLineEdit(), "A second line, such as the population and "
-                                     "where the chart applies; leave blank for the default.")
-        self.paper_combo = explain(QComboBox(), "The sheet the chart is printed on.")
-        for words, code in PAPERS:
-            self.paper_combo.addItem(words, code)
-        self.orientation_combo = explain(QComboBox(), "Upright or sideways; 'best fit' chooses "
-                                         "whichever suits the tree's shape.")
-        for words, code in ORIENTATIONS:
-            self.orientation_combo.addItem(words, code)
-        self.form_combo = explain(QComboBox(), "The tree drawn as boxes and arrows, or as "
-                                  "numbered rules: each outcome box as a row beside the answers "
-                                  "that lead to it, for a tree too large to draw legibly.")
-        for words, code in FORMS:
-            self.form_combo.addItem(words, code)
-        self.min_text = explain(QDoubleSpinBox(), "No text on the chart is smaller than this "
-                                "(in points); a tree too big to fit at this size is refused.")
+    def _options_side(self) -> QWidget:
+        """The chart's options, Export and Print, the cautions and the other files."""
+        self.title_edit = with_tooltip(QLineEdit(), "The chart's heading; leave blank for one "
+                                       "made from the outcome.")
+        self.subtitle_edit = with_tooltip(QLineEdit(), "A second line, such as the population "
+                                          "and where the chart applies; leave blank for the "
+                                          "default.")
+        self.paper_combo = with_tooltip(QComboBox(), "The sheet the chart is printed on.")
+        self.orientation_combo = with_tooltip(QComboBox(), "Upright or sideways; 'best fit' "
+                                              "chooses whichever suits the tree's shape.")
+        self.form_combo = with_tooltip(QComboBox(), "The tree drawn as boxes and arrows, or "
+                                       "as numbered rules: each outcome box as a row beside the "
+                                       "answers that lead to it, for a tree too large to draw "
+                                       "legibly.")
+        self.min_text = with_tooltip(QDoubleSpinBox(), "No text on the chart is smaller than "
+                                     "this (in points); a tree too big to fit at this size is "
+                                     "refused.")
         self.min_text.setRange(5.5, 40.0)  # 5.5 stands for "usual": core refuses below 6
         self.min_text.setSingleStep(0.5)
         self.min_text.setDecimals(1)
@@ -117,16 +129,20 @@ class ChartPanel(Panel):
         form.addRow("Orientation:", self.orientation_combo)
         form.addRow("Smallest text:", self.min_text)
         form.addRow("Form:", self.form_combo)
-
-        self.export_button = explain(QPushButton("Export PDF…"), "Save the chart as a PDF file.")
-        self.print_button = explain(QPushButton("Print…"), "Print the chart through the "
-                                    "system's print dialog.")
-        self.model_button = explain(QPushButton("Model (JSON)…"), "Save the tree as a model "
-                                    "file that Prunella's command line can score patients with.")
-        self.rules_button = explain(QPushButton("Rules (text)…"), "Save the tree as numbered "
-                                    "IF … THEN rules in plain text.")
-        self.scored_button = explain(QPushButton("Scored spreadsheet…"), "Save the data with "
-                                     "each row's outcome box and prediction added (CSV).")
+        options = QGroupBox("The chart")
+        options.setLayout(form)
+        self.export_button = with_tooltip(QPushButton("Export PDF…"), "Save the chart as a PDF "
+                                          "file.")
+        self.print_button = with_tooltip(QPushButton("Print…"), "Print the chart through the "
+                                         "system's print dialog, as sharp as the PDF.")
+        self.model_button = with_tooltip(QPushButton("Model (JSON)…"), "Save the tree as a "
+                                         "model file that Prunella's command line can score "
+                                         "patients with.")
+        self.rules_button = with_tooltip(QPushButton("Rules (text)…"), "Save the tree as "
+                                         "numbered IF … THEN rules in plain text.")
+        self.scored_button = with_tooltip(QPushButton("Scored spreadsheet…"), "Save the data "
+                                          "with each row's outcome box and prediction added "
+                                          "(CSV).")
         self.export_button.clicked.connect(self.export_pdf)
         self.print_button.clicked.connect(self.print_chart)
         self.model_button.clicked.connect(self.export_model)
@@ -142,34 +158,34 @@ class ChartPanel(Panel):
         self.message = QLabel("")
         self.message.setWordWrap(True)
         self.message.setTextInteractionFlags(Qt.TextSelectableByMouse)
-
         left = QWidget()
-        left_layout = QVBoxLayout(left)
-        left_layout.setContentsMargins(0, 0, 6, 0)
-        options = QGroupBox("The chart")
-        options.setLayout(form)
-        left_layout.addWidget(options)
-        left_layout.addLayout(main_buttons)
-        left_layout.addWidget(self.message)
-        left_layout.addWidget(cautions_widget())
-        left_layout.addWidget(other)
-        left_layout.addStretch(1)
+        layout = QVBoxLayout(left)
+        layout.setContentsMargins(0, 0, 6, 0)
+        layout.addWidget(options)
+        layout.addLayout(main_buttons)
+        layout.addWidget(self.message)
+        layout.addWidget(cautions_widget())
+        layout.addWidget(other)
+        layout.addStretch(1)
         scroll = scrolling(left)
         scroll.setMinimumWidth(330)
+        return scroll
 
+    def _preview_side(self) -> QWidget:
+        """The page as printed (zoomable), or why it cannot be drawn."""
         self.document = QPdfDocument(self)
         self.pdf_view = PdfPreview(self.document)
         self.pdf_view.setAccessibleName("Chart preview")
-        self.pdf_view.setToolTip("The chart exactly as it will print (the PDF file itself).")
+        self.pdf_view.setToolTip("The chart exactly as it will print (the PDF file itself); "
+                                 "Ctrl and the mouse wheel zoom.")
         self.preview_note = QLabel("")
         self.preview_note.setAlignment(Qt.AlignCenter)
         self.preview_note.setWordWrap(True)
         self.preview_note.setFont(heading_font(self, 1.05))
-        self.fit_button = explain(QPushButton(), "Take the largest tree of the pruning "
-                                  "sequence that fits on this paper at this text size.")
+        self.fit_button = with_tooltip(QPushButton(), "Take the largest tree of the pruning "
+                                       "sequence that fits on this paper at this text size.")
         self.fit_button.hide()
         self.fit_button.clicked.connect(self._choose_fitting)
-        self._fitting: int | None = None
         note_page = QWidget()
         note_layout = QVBoxLayout(note_page)
         note_layout.addStretch(1)
@@ -179,58 +195,40 @@ class ChartPanel(Panel):
         self.preview_stack = QStackedWidget()
         self.preview_stack.addWidget(note_page)
         self.preview_stack.addWidget(self.pdf_view)
-
-        splitter = side_by_side(scroll, self.preview_stack, stretch=(0, 1), sizes=(360, 800))
-        self.add_tree_content(splitter)
-        self.body.addWidget(splitter, 1)
-
-        self.title_edit.textEdited.connect(self._write_back)
-        self.subtitle_edit.textEdited.connect(self._write_back)
-        self.paper_combo.currentIndexChanged.connect(self._write_back)
-        self.orientation_combo.currentIndexChanged.connect(self._write_back)
-        self.min_text.valueChanged.connect(self._write_back)
-        self.form_combo.currentIndexChanged.connect(self._write_back)
-        session.chart_changed.connect(self.refresh_options)
-        session.chart_changed.connect(self.schedule_preview)
-        session.check_changed.connect(self.schedule_preview)
-        session.result_changed.connect(self.refresh)
-        session.chosen_changed.connect(self.refresh)
-        self.refresh_options()
-        self.refresh()
+        zoom = QHBoxLayout()
+        for text, tip, slot in (("Zoom in", "Enlarge the page to read it (Ctrl and the mouse "
+                                 "wheel).", self.pdf_view.zoom_in),
+                                ("Zoom out", "Make the page smaller.", self.pdf_view.zoom_out),
+                                ("Whole page", "Show the whole page.", self.pdf_view.fit)):
+            button = with_tooltip(QToolButton(), tip)
+            button.setText(text)
+            button.clicked.connect(slot)
+            zoom.addWidget(button)
+        zoom.addStretch(1)
+        side = QWidget()
+        layout = QVBoxLayout(side)
+        layout.setContentsMargins(0, 0, 0, 0)
+        layout.addLayout(zoom)
+        layout.addWidget(self.preview_stack, 1)
+        return side
 
     # --- options ----------------------------------------------------------------------------
 
-    def refresh_options(self) -> None:
-        if self._writing:
-            return
-        chart = self.session.chart
-        widgets = (self.title_edit, self.subtitle_edit, self.paper_combo,
-                   self.orientation_combo, self.min_text, self.form_combo)
-        for widget in widgets:
-            widget.blockSignals(True)
-        self.title_edit.setText(chart.get("title") or "")
-        self.subtitle_edit.setText(chart.get("subtitle") or "")
-        self.paper_combo.setCurrentIndex(max(0, self.paper_combo.findData(chart.get("paper"))))
-        self.orientation_combo.setCurrentIndex(
-            max(0, self.orientation_combo.findData(chart.get("orientation"))))
-        self.min_text.setValue(chart.get("min_text") or self.min_text.minimum())
-        self.form_combo.setCurrentIndex(max(0, self.form_combo.findData(chart.get("form"))))
-        for widget in widgets:
-            widget.blockSignals(False)
-
-    def _write_back(self, *_args) -> None:
-        if self._writing:
-            return
-        text_size = self.min_text.value()
-        self._writing = True
-        self.session.set_chart(
-            title=self.title_edit.text().strip() or None,
-            subtitle=self.subtitle_edit.text().strip() or None,
-            paper=self.paper_combo.currentData(),
-            orientation=self.orientation_combo.currentData(),
-            min_text=None if text_size == self.min_text.minimum() else float(text_size),
-            form=self.form_combo.currentData())
-        self._writing = False
+    def _bind(self) -> None:
+        s, bind = self.session, self.bindings.bind
+        bind(self.title_edit, lambda: s.chart.title,
+             lambda text: s.set_chart(title=text if text.strip() else None))
+        bind(self.subtitle_edit, lambda: s.chart.subtitle,
+             lambda text: s.set_chart(subtitle=text if text.strip() else None))
+        bind(self.paper_combo, lambda: s.chart.paper, lambda code: s.set_chart(paper=code),
+             lambda: PAPERS)
+        bind(self.orientation_combo, lambda: s.chart.orientation,
+             lambda code: s.set_chart(orientation=code), lambda: ORIENTATIONS)
+        bind(self.form_combo, lambda: s.chart.form, lambda code: s.set_chart(form=code),
+             lambda: FORMS)
+        bind(self.min_text, lambda: s.chart.min_text,
+             lambda size: s.set_chart(min_text=None if size == self.min_text.minimum()
+                                      else float(size)))
 
     # --- the preview ------------------------------------------------------------------------
 
@@ -242,6 +240,7 @@ class ChartPanel(Panel):
         if not has_tree:
             self.document.close()
             self.pdf_path = None
+            self.message.setText("")
             return
         self.schedule_preview()
 
@@ -258,30 +257,19 @@ class ChartPanel(Panel):
             self._timer.start()
 
     def render_preview(self) -> None:
-        """Write the chart to a fresh temporary PDF in the background, then show that file."""
+        """Write the chart to a fresh temporary PDF in the background, then show that file;
+        options changed meanwhile are drawn next (the older drawing is dropped)."""
         if self.session.chosen is None:
             return
-        if self._rendering:
-            self._timer.start()  # one at a time; try again shortly
-            self._outdated = True
-            return
-        self._rendering = True
         self._serial += 1
         self._outdated = False
         path = str(Path(self._temp.path()) / f"preview-{self._serial}.pdf")
         self.preview_note.setText("Drawing the chart…")
-        self.job = workers.Job(draw_chart, self.session.chart_derivation().model,
-                               self.session.chart_options(), path, takes_progress=False)
-        self.job.signals.done.connect(self._preview_ready)
-        self.job.signals.failed.connect(self._preview_failed)
-        self.job.signals.finished.connect(self._render_over)
-        workers.start(self.job)
+        self.drawing.start(draw_chart, self.session.chart_derivation().model, self.session.chart,
+                           path, takes_progress=False, done=self._preview_ready,
+                           failed=self._preview_failed)
 
     def _preview_ready(self, result: ChartResult) -> None:
-        if Path(result.target).name != f"preview-{self._serial}.pdf":
-            if result.path:  # an older request, overtaken by a newer one
-                Path(result.path).unlink(missing_ok=True)
-            return
         if result.path is None:  # too big for the page at this text size
             self._preview_failed(result.message)
             self._fitting = result.largest_fitting
@@ -292,12 +280,14 @@ class ChartPanel(Panel):
         self.fit_button.hide()
         self.document.close()
         self.document.load(result.path)
-        previous, self.pdf_path = self.pdf_path, result.path
-        if previous and previous != result.path:
-            Path(previous).unlink(missing_ok=True)  # only the shown preview is kept
+        self.pdf_path = result.path
+        for old in Path(self._temp.path()).glob("preview-*.pdf"):  # only the shown one is kept
+            if str(old) != result.path:
+                old.unlink(missing_ok=True)
         self.preview_error = None
         self.preview_stack.setCurrentIndex(1)
         self.message.setText("")
+        self._render_over()
 
     def _choose_fitting(self) -> None:
         if self._fitting is not None:
@@ -309,9 +299,9 @@ class ChartPanel(Panel):
         self.preview_error = message
         self.preview_note.setText(message)
         self.preview_stack.setCurrentIndex(0)
+        self._render_over()
 
     def _render_over(self) -> None:
-        self._rendering = False
         waiting, self._after_render = self._after_render, None
         if waiting is None:
             return
@@ -328,7 +318,7 @@ class ChartPanel(Panel):
     @property
     def preview_busy(self) -> bool:
         """Drawing is due or under way (until its result has been shown, on this thread)."""
-        return self._timer.isActive() or self._rendering
+        return self._timer.isActive() or self.drawing.busy
 
     # --- files ------------------------------------------------------------------------------
 
@@ -370,34 +360,24 @@ class ChartPanel(Panel):
         self._with_pdf(self._print_chart, "No chart to print")
 
     def _print_chart(self) -> None:
+        plan = chart_plan(self.session.chart_derivation().model, self.session.chart)
         printer = QPrinter(QPrinter.HighResolution)
+        printer.setPageLayout(page_layout(plan))
+        printer.setDocName(plan.text.title)
         dialog = QPrintDialog(printer, self)
         dialog.setWindowTitle("Print the chart")
         if dialog.exec() != QDialog.Accepted:
             return
-        self.print_to(printer)
+        self.print_to(printer, plan)
 
-    def print_to(self, printer: QPrinter) -> None:
-        """Draw the preview's PDF page onto a printer (300 dpi is sharp for text at arm's length)."""
-        painter = QPainter()
-        if not painter.begin(printer):
+    def print_to(self, printer: QPrinter, plan=None) -> None:
+        """Print the chart on ``printer`` as vector text and shapes (the chart's own page
+        plan, painted by QPainter), scaled to the printer's paper if it is another."""
+        if plan is None:
+            plan = chart_plan(self.session.chart_derivation().model, self.session.chart)
+        if not print_plan(plan, printer):
             self.warn("The printer could not be started; check it in the system settings.")
             return
-        try:
-            area = printer.pageRect(QPrinter.DevicePixel)
-            for page in range(self.document.pageCount()):
-                if page:
-                    printer.newPage()
-                points = self.document.pagePointSize(page)
-                dpi = min(300, printer.resolution())
-                pixels = QSize(round(points.width() / 72 * dpi), round(points.height() / 72 * dpi))
-                image = self.document.render(page, pixels)
-                scale = min(area.width() / image.width(), area.height() / image.height())
-                size = QSize(round(image.width() * scale), round(image.height() * scale))
-                painter.drawImage(QPointF(0, 0), image.scaled(size, Qt.KeepAspectRatio,
-                                                               Qt.SmoothTransformation))
-        finally:
-            painter.end()
         self.message.setText("Sent to the printer.")
 
     def export_model(self) -> None:

@@ -12,14 +12,15 @@ from PySide6.QtWidgets import (
 )
 
 from core.model import box_details, format_number, route_patient
-from gui.panels.base import Panel, explain, scrolling, side_by_side, warning_html
+from gui.panels.step_panel import StepPanel, scrolling, side_by_side, with_tooltip
+from gui.panels.wording import warning_html
 from gui.widgets.tree_view import TreeView
 
 NOT_RECORDED = "(not recorded)"
 
 
 def details_html(model, box: int) -> str:
-    """The details of a box as a short HTML page (numbers from core.model.details)."""
+    """The details of a box as a short HTML page (numbers from core.explain)."""
     d = box_details(model, box)
     kind = "Outcome box" if d.leaf else "Question"
     rows = [f"<h3>Box {d.box}: {kind}</h3>", f"<p><b>{escape(d.text)}</b></p>",
@@ -50,7 +51,7 @@ def details_html(model, box: int) -> str:
     return "\n".join(rows)
 
 
-class TreePanel(Panel):
+class TreePanel(StepPanel):
     step = "tree"
     intro = ("The chosen tree. Click a box to see its patients and how they get there; enter "
              "one patient's values on the right to see which outcome box they reach.")
@@ -66,7 +67,7 @@ class TreePanel(Panel):
         for text, tip, slot in (("Zoom in", "Make the diagram larger (Ctrl +).", self.view.zoom_in),
                                 ("Zoom out", "Make the diagram smaller (Ctrl −).", self.view.zoom_out),
                                 ("Fit to window", "Show the whole tree (Ctrl 0).", self.view.fit)):
-            button = explain(QToolButton(), tip)
+            button = with_tooltip(QToolButton(), tip)
             button.setText(text)
             button.clicked.connect(slot)
             tools.addWidget(button)
@@ -89,7 +90,7 @@ class TreePanel(Panel):
         self.lookup_form = QFormLayout()
         self.lookup_form.setFieldGrowthPolicy(QFormLayout.AllNonFixedFieldsGrow)
         self.lookup_form.setRowWrapPolicy(QFormLayout.WrapLongRows)
-        self.clear_button = explain(QPushButton("Clear"), "Forget the values entered for this "
+        self.clear_button = with_tooltip(QPushButton("Clear"), "Forget the values entered for this "
                                     "patient.")
         self.clear_button.clicked.connect(self.clear_lookup)
         self.result = QLabel("Enter values to see where this patient goes.")
@@ -119,8 +120,8 @@ class TreePanel(Panel):
         side.setMinimumWidth(340)
         splitter = side_by_side(left, side, stretch=(3, 1), sizes=(900, 420))
         self.add_tree_content(splitter)
-        self.body.addWidget(splitter, 1)
 
+        session.opened.connect(lambda: self._build_lookup(None))  # no values of another file
         session.result_changed.connect(self.refresh)
         session.chosen_changed.connect(self.refresh)
         self.refresh()

@@ -8,6 +8,8 @@ from PySide6.QtWidgets import (
     QHBoxLayout, QLabel, QLineEdit, QListView, QPushButton, QVBoxLayout, QWidget,
 )
 
+from gui.binding import Kind
+
 NAME_ROLE = Qt.UserRole + 1
 TEXT_ROLE = Qt.UserRole + 2  # the item's own text, before any mark
 TIP_ROLE = Qt.UserRole + 3
@@ -17,6 +19,9 @@ class Checklist(QWidget):
     """Items (name, shown text, tooltip); ``changed`` gives the checked names in list order."""
 
     changed = Signal(tuple)
+    # Bound to the session as its checked names (gui/binding.py).
+    binding_kind = Kind(lambda w: w.checked(), lambda w, names: w.set_checked(tuple(names)),
+                        lambda w: w.changed)
 
     def __init__(self, parent=None) -> None:
         super().__init__(parent)
@@ -79,6 +84,11 @@ class Checklist(QWidget):
         self._model.blockSignals(blocker)
         self._proxy.invalidate()
         self._update_count()
+
+    def set_choices(self, choices: tuple) -> None:
+        """The items and the suggested names (how gui.binding fills the list)."""
+        items, suggested = choices
+        self.set_items(list(items), self.checked(), suggested)
 
     def set_marks(self, marks: dict[str, tuple[str, str]]) -> None:
         """Put a short mark after some items' text, with a line added to their tooltip

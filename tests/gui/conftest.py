@@ -74,11 +74,11 @@ def window(qtbot, dialogs):
     win.resize(1366, 768)
     win.show()
     yield win
-    for panel in win.panels.values():
-        job = getattr(panel, "job", None)
-        if job is not None and job.running:
-            job.cancel()
-            qtbot.waitUntil(lambda: not job.running, timeout=20000)
+    from gui.workers import JobRunner
+
+    for runner in win.findChildren(JobRunner):  # no work outlives the test
+        runner.forget()
+        qtbot.waitUntil(lambda: not runner.running, timeout=20000)
     win.session.dirty = False  # no prompt when the test closes it
 
 

@@ -74,7 +74,7 @@ def test_check_on_another_file_is_printed_on_the_chart(grown, qtbot, dialogs, tm
     window.panels["size"].choose_size(other)
     qtbot.waitUntil(lambda: not checking.running and len(checking.checks) == 2, timeout=20000)
     assert checking.checks[-1].model_fingerprint != external.model_fingerprint
-    assert window.session.check is checking.checks[-1]
+    assert window.session.chart_check is checking.checks[-1]
     assert not dialogs.texts("warning")
 
 

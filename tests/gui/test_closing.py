@@ -42,7 +42,7 @@ def test_closing_cancels_a_project_being_read(demo, qtbot, dialogs, tmp_path, mo
 
     monkeypatch.setattr(main_window, "read_for_project", slow_read)
     window.open_any(str(project))
-    job = window._project_job
+    job = window.project_reading.job
     assert job is not None and job.running and not job.cancel_requested
     window.session.dirty = False
     assert window.close()

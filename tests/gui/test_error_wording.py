@@ -7,7 +7,7 @@ import os
 
 os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 
-from gui.panels.base import SIZE_RULES, errors_beside  # noqa: E402
+from gui.panels.wording import SIZE_RULES, errors_beside  # noqa: E402
 
 
 def test_errors_beside_says_both_numbers():

@@ -257,7 +257,7 @@ def test_messages_from_core_come_with_what_to_do(window, qtbot, dialogs, tmp_pat
 def test_warnings_in_pages_carry_the_advice_without_command_line_options():
     """The checking step and the patient look-up show core's warnings through warning_html."""
     from core.messages import say
-    from gui.panels.base import warning_html, with_advice
+    from gui.panels.wording import warning_html, with_advice
 
     leak = say("guard.leakage", column="bed_booked", outcome="admitted", evidence="ROC area 0.99")
     html = warning_html(leak)

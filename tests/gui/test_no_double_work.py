@@ -13,8 +13,9 @@ def test_choosing_the_outcome_fills_the_form_once(demo, monkeypatch):
     panel = window.panels["outcome"]
     window.go_to("outcome")
     fills = []
-    real = panel._fill
-    monkeypatch.setattr(panel, "_fill", lambda design: (fills.append(design), real(design)))
+    real = panel.bindings.show
+    monkeypatch.setattr(panel.bindings, "show",
+                        lambda: (fills.append(window.session.design), real()))
     combo = panel.outcome_combo
     other = next(i for i in range(combo.count())
                  if combo.itemData(i) and combo.itemData(i) != combo.currentData())

@@ -10,7 +10,7 @@ os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 from PySide6.QtCore import Qt  # noqa: E402
 from PySide6.QtWidgets import QFrame, QLabel  # noqa: E402
 
-from gui.panels.base import scrolling  # noqa: E402
+from gui.panels.step_panel import scrolling  # noqa: E402
 from gui.widgets.findings import Finding, FindingsView  # noqa: E402
 
 

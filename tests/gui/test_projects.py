@@ -67,7 +67,7 @@ def test_saved_project_reopens_to_the_identical_tree(window, qtbot, run, dialogs
     assert again.session.model.fingerprint == first.fingerprint
     assert again.session.model.chosen["leaves"] == 17
     assert "exactly the tree saved" in again.panels["size"].status.text()
-    assert again.session.chart["title"] == "Who is admitted?" and again.session.chart["paper"] == "a3"
+    assert again.session.chart.title == "Who is admitted?" and again.session.chart.paper == "a3"
     assert again.panels["chart"].paper_combo.currentData() == "a3"
     assert again.panels["size"].seed.value() == 11
     assert again.panels["outcome"].cost_spin.value() == 2.0

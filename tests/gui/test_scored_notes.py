@@ -12,7 +12,7 @@ from dataclasses import replace  # noqa: E402
 from PySide6.QtCore import Qt  # noqa: E402
 
 from core.model import scored_table  # noqa: E402
-from gui.panels.base import warning_html  # noqa: E402
+from gui.panels.wording import warning_html  # noqa: E402
 
 
 def test_scoring_notes_are_shown(demo, qtbot, run, dialogs, tmp_path):

@@ -1,35 +1,24 @@
 """What every step's panel has: a title, one line saying what the step is for, a banner when
-its content is out of date, and a way to ask the window to go to another step."""
+its content is out of date, a way to ask the window to go to another step, and the layout,
+file-dialog and message helpers the steps share."""
 
 from __future__ import annotations
 
 from pathlib import Path
 
-from PySide6.QtCore import Qt, Signal
+from PySide6.QtCore import QSettings, Qt, Signal
 from PySide6.QtGui import QFont
 from PySide6.QtWidgets import (
-    QFileDialog, QFrame, QHBoxLayout, QLabel, QMessageBox, QPushButton, QScrollArea, QSplitter,
-    QVBoxLayout, QWidget,
+    QFileDialog, QFrame, QHBoxLayout, QLabel, QMessageBox, QPushButton, QScrollArea, QSizePolicy,
+    QSplitter, QVBoxLayout, QWidget,
 )
 
-from core.messages import app_advice, app_wording
 from core.safe_files import names_an_input
-from gui import workers
+from gui.panels.wording import with_advice
 from gui.session import STEP_TITLES, STEPS, Session
+from gui.workers import JobRunner
 
-
-# How each size rule is said (the codes are core.sizing's).
-SIZE_RULES = {"1se": "the smallest tree within one standard error (SE) of the lowest error",
-              "min": "the lowest cross-validated error", "user": "your choice"}
-
-
-def errors_beside(chosen: dict, sentence: bool = False) -> str:
-    """A size's cross-validated error ± SE with its training error beside it (from a model's
-    ``chosen`` record): the one wording, so training error is never shown alone."""
-    text = (f"cross-validated error {chosen['cv_risk']:.3f} ± {chosen['cv_se']:.3f} (one SE); "
-            f"training error {chosen['train_risk']:.3f} beside it, which always looks better "
-            "(it is measured on the patients the tree was grown on)")
-    return text[0].upper() + text[1:] if sentence else text
+LAST_FOLDER = "last_folder"  # the settings key: where the last file was opened from
 
 
 def heading_font(widget: QWidget, factor: float = 1.45) -> QFont:
@@ -39,29 +28,11 @@ def heading_font(widget: QWidget, factor: float = 1.45) -> QFont:
     return font
 
 
-def explain(widget: QWidget, text: str) -> QWidget:
+def with_tooltip(widget: QWidget, text: str) -> QWidget:
     """Attach a one-sentence explanation to a control (tooltip and What's This)."""
     widget.setToolTip(text)
     widget.setWhatsThis(text)
     return widget
-
-
-def with_advice(text: str) -> str:
-    """A message from core as the app shows it, with the catalogue's "what to do" under it
-    (core.messages.app_advice) when there is any."""
-    advice = app_advice(text)
-    shown = app_wording(text) or text
-    return shown if advice is None else f"{shown}\n\nWhat to do: {advice}"
-
-
-def warning_html(text: str) -> str:
-    """A warning from core as a paragraph: ⚠, the message, and what to do (in italics)."""
-    from html import escape
-
-    advice = app_advice(text)
-    shown = escape(app_wording(text) or text)
-    more = "" if advice is None else f"<br><i>What to do: {escape(advice)}</i>"
-    return f"<p>⚠ {shown}{more}</p>"
 
 
 def side_by_side(left: QWidget, right: QWidget, stretch: tuple[int, int],
@@ -103,6 +74,23 @@ def ask_save_path(parent: QWidget, session: Session, caption: str, filter_text: 
     return path
 
 
+def ask_open_path(parent: QWidget, caption: str, filter_text: str) -> str | None:
+    """Ask for a file to open, starting in the folder the last file was opened from (kept in
+    the settings across sessions); None if the user cancels."""
+    settings = QSettings()
+    path, _ = QFileDialog.getOpenFileName(parent, caption, str(settings.value(LAST_FOLDER, "")),
+                                          filter_text)
+    if not path:
+        return None
+    remember_folder(path)
+    return path
+
+
+def remember_folder(path: str) -> None:
+    """The folder of a file just opened, for the next open dialog."""
+    QSettings().setValue(LAST_FOLDER, str(Path(path).resolve().parent))
+
+
 def scrolling(widget: QWidget, across: bool = False) -> QScrollArea:
     """A part of a step that scrolls when the window is small: no frame of its own, Tab goes
     to the controls inside (not the frame), and up and down only unless ``across``."""
@@ -137,6 +125,7 @@ class Banner(QFrame):
         layout.addWidget(self.symbol)
         layout.addWidget(self.text, 1)
         layout.addWidget(self.button)
+        self.setSizePolicy(QSizePolicy.Preferred, QSizePolicy.Maximum)  # never taller than its text
         self.hide()
 
     def show_text(self, text: str) -> None:
@@ -144,13 +133,12 @@ class Banner(QFrame):
         self.show()
 
 
-class Panel(QWidget):
+class StepPanel(QWidget):
     """Base of the six step panels."""
 
     step = "data"
     intro = ""
     go_to = Signal(str)  # ask the window to show another step
-    job: workers.Job | None = None  # the step's latest background work, if it has any
 
     def __init__(self, session: Session, parent=None) -> None:
         super().__init__(parent)
@@ -169,7 +157,15 @@ class Panel(QWidget):
         self._layout.addWidget(self.title)
         self._layout.addWidget(self.intro_label)
         self._layout.addWidget(self.stale_banner)
+        self.runners: list[JobRunner] = []  # the step's background work, one runner per kind
         session.state_changed.connect(self.update_stale)
+        session.opened.connect(self.stop_work)  # work for the previous file is not wanted
+
+    def runner(self, **options) -> JobRunner:
+        """A job runner for one kind of this step's background work (see JobRunner)."""
+        runner = JobRunner(self, **options)
+        self.runners.append(runner)
+        return runner
 
     @property
     def body(self) -> QVBoxLayout:
@@ -187,11 +183,16 @@ class Panel(QWidget):
         self.go_to.emit("size")
 
     def add_tree_content(self, content: QWidget) -> None:
-        """For the steps that show a grown tree: a banner that leads to step 3 while there
-        is none, above the step's own content."""
+        """For the steps that show a grown tree: the step's content, or, while there is no
+        tree, a banner leading to step 3 at the top (the space below it stays empty)."""
         self.no_tree = Banner("ℹ", "Go to step 3")
         self.no_tree.button.clicked.connect(self._go_to_size)
-        self.body.addWidget(self.no_tree)
+        holder = QVBoxLayout()
+        holder.setContentsMargins(0, 0, 0, 0)
+        holder.addWidget(self.no_tree)
+        holder.addWidget(content, 1)
+        holder.addStretch(0)  # takes the room only while the content is hidden
+        self.body.addLayout(holder, 1)
         self.content = content
 
     def show_tree_content(self) -> bool:
@@ -205,10 +206,10 @@ class Panel(QWidget):
         return has_tree
 
     def stop_work(self) -> None:
-        """Cancel the step's background work (the window calls this for every step on
-        closing, so no computation outlives it)."""
-        if self.job is not None and self.job.running:
-            self.job.cancel()
+        """Stop the step's background work and drop its results (the window calls this for
+        every step on closing, so no computation outlives it)."""
+        for runner in self.runners:
+            runner.forget()
 
     def ask_save_path(self, caption: str, filter_text: str, ending: str,
                       suffix: str | None = None) -> str | None:
