@@ -168,3 +168,16 @@ def test_figures_are_plain_matplotlib_figures(contents):
     legend = [t.get_text() for t in figures[0].legends[0].get_texts()]
     assert any("1-SE choice" in t for t in legend) and any("minimum risk" in t for t in legend)
     assert any("training risk" in t for t in legend)
+
+
+def test_stability_key_stands_clear_of_the_bars(contents):
+    """The key sits above the axes, so no bar (a question asked in every resample fills its
+    row) is drawn under it."""
+    fig = stability_figure(contents.stability)
+    figure_png(fig, dpi=50)  # lays the figure out
+    (ax,) = fig.axes
+    assert ax.get_legend() is None and len(fig.legends) == 1
+    key = fig.legends[0].get_window_extent()
+    assert key.y0 >= ax.get_window_extent().y1 - 1
+    assert [t.get_text() for t in fig.legends[0].get_texts()] == [
+        "asked anywhere in the tree", "first question"]

@@ -97,7 +97,9 @@ def roc_figure(measures: ClassificationMeasures, title: str | None = None) -> Fi
     ax.set_ylabel("Sensitivity", fontsize=9)
     if title:
         ax.set_title(title, fontsize=9)
-    ax.legend(fontsize=7.5, frameon=False, loc="lower right")
+    # Above the axes, never over a bar (a question asked in every resample fills the row).
+    fig.legend(*ax.get_legend_handles_labels(), loc="outside upper center", ncols=2,
+               fontsize=7.5, frameon=False)
     return fig
 
 
@@ -165,7 +167,7 @@ def stability_figure(stability: Stability, top: int = 10) -> Figure:
     """Share of bootstrap resamples in which each predictor is the first question (solid bar)
     and asked anywhere (hatched bar); the most often asked ``top`` predictors."""
     uses = [u for u in stability.predictors if u.anywhere][:top]
-    fig = _figure(0.6 + 0.32 * max(len(uses), 1))
+    fig = _figure(0.95 + 0.32 * max(len(uses), 1))  # room for the key above the bars
     ax = fig.add_subplot()
     _style(ax)
     ax.grid(True, axis="x", color="#dddddd", linewidth=0.6)
@@ -180,7 +182,9 @@ def stability_figure(stability: Stability, top: int = 10) -> Figure:
     ax.set_xlim(0, 1)
     ax.xaxis.set_major_formatter(lambda v, _: f"{v:.0%}")
     ax.set_xlabel(f"Share of {n} bootstrap resamples", fontsize=9)
-    ax.legend(fontsize=7.5, frameon=False, loc="lower right")
+    # Above the axes, never over a bar (a question asked in every resample fills the row).
+    fig.legend(*ax.get_legend_handles_labels(), loc="outside upper center", ncols=2,
+               fontsize=7.5, frameon=False)
     return fig
 
 

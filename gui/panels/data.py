@@ -102,13 +102,21 @@ class DataPanel(StepPanel):
         view.verticalHeader().setSectionResizeMode(QHeaderView.Fixed)
         view.verticalHeader().setDefaultSectionSize(view.fontMetrics().height() + 6)
         view.horizontalHeader().setDefaultSectionSize(110)
-        # Each header as wide as its name (within limits), so none is cut at both ends.
-        view.horizontalHeader().setSectionResizeMode(QHeaderView.Interactive)
-        view.horizontalHeader().setMinimumSectionSize(60)
+        view.horizontalHeader().setDefaultAlignment(Qt.AlignLeft | Qt.AlignVCenter)
+        view.horizontalHeader().setTextElideMode(Qt.ElideRight)
         view.setAlternatingRowColors(True)
         view.setAccessibleName("Rows of the spreadsheet")
         self.rows_view = view
         return view
+
+    def _fit_headers(self) -> None:
+        """Each column of the Rows tab as wide as its header's name (within limits), the
+        names left-aligned: none is cut at both ends."""
+        header = self.rows_view.horizontalHeader()
+        metrics = header.fontMetrics()
+        for column in range(min(self.frame_model.columnCount(), 500)):
+            name = str(self.frame_model.headerData(column, Qt.Horizontal))
+            header.resizeSection(column, max(80, min(280, metrics.horizontalAdvance(name) + 24)))
 
     def _dictionary_tab(self) -> QWidget:
         """The data dictionary as a table, with its buttons below."""
@@ -337,6 +345,7 @@ class DataPanel(StepPanel):
             return
         if self.frame_model.frame is not table.frame:
             self.frame_model.set_frame(table.frame)
+            self._fit_headers()
         self.dictionary_model.set_dictionary(self.session.dictionary)
         p = table.provenance
         sheet = f", sheet {p.sheet}" if p.sheet else ""

@@ -245,11 +245,13 @@ class SizePanel(StepPanel):
                                           "of the lowest; the usual choice.")
         self.min_button = with_tooltip(QPushButton("Lowest error"), "The size with the lowest "
                                        "cross-validated error; often larger than needed.")
-        size_row = QHBoxLayout()
+        size_row = QHBoxLayout()  # the list has the row to itself: each size's errors show
         size_row.addWidget(QLabel("Size:"))
         size_row.addWidget(self.size_combo, 1)
-        size_row.addWidget(self.one_se_button)
-        size_row.addWidget(self.min_button)
+        rule_row = QHBoxLayout()
+        rule_row.addStretch(1)
+        rule_row.addWidget(self.one_se_button)
+        rule_row.addWidget(self.min_button)
         self.fit_note = QLabel("")
         self.fit_note.setWordWrap(True)
         self.choice = QLabel("")
@@ -261,6 +263,7 @@ class SizePanel(StepPanel):
         layout.setContentsMargins(6, 0, 0, 0)
         layout.addWidget(self.curve, 1)
         layout.addLayout(size_row)
+        layout.addLayout(rule_row)
         layout.addWidget(self.choice)
         layout.addWidget(self.fit_note)
         return right

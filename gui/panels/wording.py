@@ -26,9 +26,9 @@ def size_choice(path: dict, index: int) -> str:
     """One size of a pruning path as the size list offers it: its outcome boxes, its
     cross-validated error ± SE with the training error after it, and its mark."""
     leaves = path["leaves"][index]
-    words = (f"{leaves} outcome box{'' if leaves == 1 else 'es'}: error "
-             f"{path['cv_risk'][index]:.3f} ± {path['cv_se'][index]:.3f} "
-             f"(training {path['train_risk'][index]:.3f})")
+    words = (f"{leaves} outcome box{'' if leaves == 1 else 'es'}: cross-validated error "
+             f"{path['cv_risk'][index]:.3f} ± {path['cv_se'][index]:.3f}, training "
+             f"{path['train_risk'][index]:.3f}")
     marks = [mark for mark, at in (("smallest within 1 SE", path["one_se_leaves"]),
                                    ("lowest error", path["min_leaves"])) if leaves == at]
     return words + ("".join(f" — {m}" for m in marks))

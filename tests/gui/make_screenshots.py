@@ -73,9 +73,16 @@ def main(argv: list[str]) -> int:
             window.grab().save(str(out / f"0-empty-{width}x{height}.png"))
             window.open_demo()
             settle(until=lambda: window.session.table is not None)
+            window.go_to("tree")  # before any run: the banner that leads to step 3
+            settle()
+            window.grab().save(str(out / f"4a-tree-before-run-{width}x{height}.png"))
             window.panels["size"].holdout.setValue(25)  # so step 5 has a check to show
             window.panels["size"].run()
             settle(until=lambda: window.session.model is not None and not window.panels["size"].running)
+            checking = window.panels["checking"]  # stability, for its figure
+            checking.resamples.setValue(20)
+            checking.run_stability()
+            settle(until=lambda: window.session.stability is not None)
             tree = window.panels["tree"]
             tree.set_values({"spo2": "95", "resp_rate": "28", "arrival_mode": "ambulance"})
         for number, step in enumerate(("data", "outcome", "size", "tree", "checking", "chart"), 1):
@@ -84,6 +91,11 @@ def main(argv: list[str]) -> int:
             settle(1.5 if step == "chart" else 0.6,
                    until=(lambda: not chart.preview_busy) if step == "chart" else None)
             window.grab().save(str(out / f"{number}-{step}-{width}x{height}.png"))
+            if step == "data":  # the spreadsheet's own rows, too
+                window.panels["data"].tabs.setCurrentIndex(1)
+                settle()
+                window.grab().save(str(out / f"1a-data-rows-{width}x{height}.png"))
+                window.panels["data"].tabs.setCurrentIndex(0)
         # Step 2's checks with the demo's leakage column ticked, and their line on step 3.
         outcome = window.panels["outcome"]
         if "bed_booked" not in window.session.design.predictors:

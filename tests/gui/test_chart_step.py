@@ -11,6 +11,7 @@ os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 import pytest  # noqa: E402
 from pypdf import PdfReader  # noqa: E402
 from PySide6.QtCore import Qt  # noqa: E402
+from PySide6.QtGui import QPageSize  # noqa: E402
 from PySide6.QtPrintSupport import QPrintDialog, QPrinter  # noqa: E402
 from PySide6.QtWidgets import QDialog  # noqa: E402
 
@@ -74,13 +75,17 @@ def test_paper_and_title_change_the_preview(charted, qtbot):
     assert "Who is admitted?" in PdfReader(chart.pdf_path).pages[0].extract_text()
 
 
-def test_print_goes_through_the_dialog(charted, qtbot, monkeypatch, tmp_path):
+def test_print_goes_through_the_dialog_as_vector_text(charted, qtbot, monkeypatch, tmp_path):
+    """Printing paints the chart's own page plan with QPainter: the printout holds the text
+    itself (pypdf finds every question) and is small, not a 1200-dpi picture."""
     window = charted
     chart = window.panels["chart"]
     target = tmp_path / "printed.pdf"
+    offered = []
 
     def accept(dialog):
         printer = dialog.printer()
+        offered.append(printer.pageLayout().pageSize().id())
         printer.setOutputFormat(QPrinter.PdfFormat)
         printer.setOutputFileName(str(target))
         return QDialog.Accepted
@@ -88,8 +93,33 @@ def test_print_goes_through_the_dialog(charted, qtbot, monkeypatch, tmp_path):
     monkeypatch.setattr(QPrintDialog, "exec", accept)
     window.print_action.trigger()
     assert window.current_step() == "chart"
-    assert target.exists() and len(PdfReader(target).pages) == 1
+    assert offered == [QPageSize.A4]  # the dialog starts on the chart's own paper
+    reader = PdfReader(target)
+    assert len(reader.pages) == 1
+    assert all(abs(a - b) < 1 for a, b in zip(_page_size(target), sorted(A4)))  # Qt: whole points
+    printed = " ".join(reader.pages[0].extract_text().split())
+    exported = " ".join(PdfReader(chart.pdf_path).pages[0].extract_text().split())
+    model = window.session.model
+    for node in model.nodes:
+        if not node.leaf:
+            assert " ".join(node.text.split()) in printed, node.text
+    assert model.fingerprint[:12] in printed and CAUTIONS[2] in printed
+    assert len(printed) > 0.9 * len(exported)  # the same words as the exported PDF
+    assert target.stat().st_size < 400_000  # vector text: a raster page was 11 MB
     assert "printer" in chart.message.text()
+
+
+def test_preview_zooms_to_read_the_small_print(charted, qtbot):
+    chart = charted.panels["chart"]
+    view = chart.pdf_view
+    fitted = view.page_rect()
+    assert view.viewport().rect().contains(fitted.toRect())  # the whole page at first
+    view.zoom_in()
+    view.zoom_in()
+    assert view.page_rect().width() > 1.5 * fitted.width()
+    assert view.horizontalScrollBar().maximum() > 0  # scrolled around the enlarged page
+    view.fit()
+    assert abs(view.page_rect().width() - fitted.width()) < 1
 
 
 def test_a_tree_too_big_for_the_page_is_refused_with_the_size_that_fits(charted, qtbot):
