@@ -70,8 +70,30 @@ class MainWindow(QMainWindow):
         self.setAcceptDrops(True)
         self.project_reading = JobRunner(self)
 
-        # The panels, one per step.
-        self.panels = {
+        self.panels = self._make_panels()
+        central = QWidget()
+        layout = QHBoxLayout(central)
+        layout.setContentsMargins(0, 0, 0, 0)
+        layout.setSpacing(0)
+        layout.addWidget(self._side())
+        layout.addWidget(self._steps_with_navigation(), 1)
+        self.setCentralWidget(central)
+        self.fingerprints = QLabel()
+        self.statusBar().addPermanentWidget(self.fingerprints)
+        self.session.status_changed.connect(self._show_status)
+
+        self._make_menus()
+        # Every change of the session ends with state_changed (Session._announce).
+        self.session.state_changed.connect(self.update_state)
+        self.steps.setCurrentRow(0)
+        self._restore()
+        self.update_state()
+
+    # --- building the window ----------------------------------------------------------------
+
+    def _make_panels(self) -> dict:
+        """The panels, one per step, and what they ask of each other."""
+        panels = {
             "data": DataPanel(self.session),
             "outcome": OutcomePanel(self.session),
             "size": SizePanel(self.session),
@@ -79,16 +101,15 @@ class MainWindow(QMainWindow):
             "checking": CheckingPanel(self.session),
             "chart": ChartPanel(self.session),
         }
-        self.stack = QStackedWidget()
-        for step in STEPS:
-            panel = self.panels[step]
+        for panel in panels.values():
             panel.go_to.connect(self.go_to)
-            self.stack.addWidget(panel)
-        self.panels["data"].opened.connect(self._remember)
-        self.panels["data"].demo_button.clicked.connect(self.open_demo)
-        self.panels["chart"].choose_size.connect(self.panels["size"].choose_size)
+        panels["data"].opened.connect(self._remember)
+        panels["data"].demo_button.clicked.connect(self.open_demo)
+        panels["chart"].choose_size.connect(panels["size"].choose_size)
+        return panels
 
-        # The steps down the side.
+    def _side(self) -> QFrame:
+        """The steps down the side, with the first caution under them."""
         self.steps = QListWidget()
         self.steps.setAccessibleName("Steps")
         self.steps.setSpacing(2)
@@ -101,6 +122,8 @@ class MainWindow(QMainWindow):
             item.setSizeHint(QSize(0, self.steps.fontMetrics().height() * 2 + 4))
             self.steps.addItem(item)
         self.steps.currentRowChanged.connect(self._step_chosen)
+        self.steps.setFrameShape(QFrame.NoFrame)
+        self.steps.setStyleSheet("QListWidget { background: transparent; }")
         self.caution_note = QLabel(f"<b>{CAUTION_TITLE}.</b> {CAUTIONS[0]}")
         self.caution_note.setWordWrap(True)
         self.caution_note.setTextFormat(Qt.RichText)
@@ -110,19 +133,22 @@ class MainWindow(QMainWindow):
         side = QFrame()
         side.setObjectName("side")
         side.setStyleSheet("#side { background: #f1f4f6; border-right: 1px solid #d5dbe0; }")
-        side_layout = QVBoxLayout(side)
-        side_layout.setContentsMargins(8, 12, 8, 12)
+        layout = QVBoxLayout(side)
+        layout.setContentsMargins(8, 12, 8, 12)
         brand = QLabel("Prunella")
         brand.setFont(heading_font(self, 1.6))
-        side_layout.addWidget(brand)
-        side_layout.addWidget(self.steps, 1)
-        side_layout.addWidget(self.caution_note)
-        side_layout.addWidget(self.caution_button)
+        layout.addWidget(brand)
+        layout.addWidget(self.steps, 1)
+        layout.addWidget(self.caution_note)
+        layout.addWidget(self.caution_button)
         side.setFixedWidth(max(210, self.fontMetrics().horizontalAdvance("M") * 17))
-        self.steps.setFrameShape(QFrame.NoFrame)
-        self.steps.setStyleSheet("QListWidget { background: transparent; }")
+        return side
 
-        # Back / Next.
+    def _steps_with_navigation(self) -> QWidget:
+        """The current step's panel, with Back and Next under it."""
+        self.stack = QStackedWidget()
+        for step in STEPS:
+            self.stack.addWidget(self.panels[step])
         self.back_button = QPushButton("◀  Back")
         self.next_button = QPushButton("Next  ▶")
         self.back_button.clicked.connect(lambda: self._move(-1))
@@ -133,27 +159,11 @@ class MainWindow(QMainWindow):
         nav.addStretch(1)
         nav.addWidget(self.next_button)
         right = QWidget()
-        right_layout = QVBoxLayout(right)
-        right_layout.setContentsMargins(0, 0, 0, 0)
-        right_layout.addWidget(self.stack, 1)
-        right_layout.addLayout(nav)
-        central = QWidget()
-        layout = QHBoxLayout(central)
+        layout = QVBoxLayout(right)
         layout.setContentsMargins(0, 0, 0, 0)
-        layout.setSpacing(0)
-        layout.addWidget(side)
-        layout.addWidget(right, 1)
-        self.setCentralWidget(central)
-        self.fingerprints = QLabel()
-        self.statusBar().addPermanentWidget(self.fingerprints)
-        self.session.status_changed.connect(self._show_status)
-
-        self._make_menus()
-        # Every change of data, design, result or chosen size emits state_changed (Session._touch).
-        self.session.state_changed.connect(self.update_state)
-        self.steps.setCurrentRow(0)
-        self._restore()
-        self.update_state()
+        layout.addWidget(self.stack, 1)
+        layout.addLayout(nav)
+        return right
 
     # --- menus ------------------------------------------------------------------------------
 
