@@ -158,9 +158,6 @@ class JobRunner(QObject):
     def holding(self) -> bool:
         return self._held is not None
 
-    def is_current(self, token: int) -> bool:
-        return token == self._token
-
     def cancel(self) -> None:
         """The user's Cancel: ask the job to stop; ``cancelled()`` follows when it has."""
         self._pending = None

@@ -13,7 +13,7 @@ from PySide6.QtPdf import QPdfDocument
 from PySide6.QtPrintSupport import QPrintDialog, QPrinter
 from PySide6.QtWidgets import (
     QComboBox, QDialog, QDoubleSpinBox, QFormLayout, QGroupBox, QHBoxLayout, QLabel, QLineEdit,
-    QPushButton, QStackedWidget, QToolButton, QVBoxLayout, QWidget,
+    QPushButton, QStackedWidget, QVBoxLayout, QWidget,
 )
 
 from core.cautions import CAUTION_TITLE, CAUTIONS
@@ -23,7 +23,7 @@ from core.model import scored_table
 from core.safe_files import write_bytes_atomic, write_csv_safely, write_text_atomic
 from gui.binding import Bindings
 from gui.panels.step_panel import (
-    StepPanel, heading_font, scrolling, side_by_side, with_tooltip,
+    StepPanel, heading_font, scrolling, side_by_side, tool_buttons, with_tooltip,
 )
 from gui.panels.wording import warning_html
 from gui.widgets.chart_printing import chart_plan, page_layout, print_plan
@@ -196,14 +196,10 @@ class ChartPanel(StepPanel):
         self.preview_stack.addWidget(note_page)
         self.preview_stack.addWidget(self.pdf_view)
         zoom = QHBoxLayout()
-        for text, tip, slot in (("Zoom in", "Enlarge the page to read it (Ctrl and the mouse "
-                                 "wheel).", self.pdf_view.zoom_in),
-                                ("Zoom out", "Make the page smaller.", self.pdf_view.zoom_out),
-                                ("Whole page", "Show the whole page.", self.pdf_view.fit)):
-            button = with_tooltip(QToolButton(), tip)
-            button.setText(text)
-            button.clicked.connect(slot)
-            zoom.addWidget(button)
+        tool_buttons(zoom, (("Zoom in", "Enlarge the page to read it (Ctrl and the mouse "
+                             "wheel).", self.pdf_view.zoom_in),
+                            ("Zoom out", "Make the page smaller.", self.pdf_view.zoom_out),
+                            ("Whole page", "Show the whole page.", self.pdf_view.fit)))
         zoom.addStretch(1)
         side = QWidget()
         layout = QVBoxLayout(side)

@@ -12,9 +12,9 @@ from PySide6.QtWidgets import (
     QTabWidget, QToolButton, QVBoxLayout, QWidget,
 )
 
-from core.errors import InputError
 from core.data import EXCEL_SUFFIXES, list_sheets, read_table
-from core.dictionary import DataDictionary, dictionary_beside, dictionary_for
+from core.dictionary import dictionary_beside, dictionary_for
+from core.errors import InputError
 from core.messages import app_advice, app_wording, kind_of as catalogue_entry
 from gui.panels.step_panel import StepPanel, ask_open_path, heading_font, with_tooltip
 from gui.widgets.dictionary_model import (

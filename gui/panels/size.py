@@ -238,20 +238,17 @@ class SizePanel(StepPanel):
                                        "outcome boxes (leaves) on the chart, with each size's "
                                        "cross-validated error ± SE and its training error.")
         self.size_combo.setMinimumContentsLength(28)
-        self.size_combo.setSizeAdjustPolicy(QComboBox.AdjustToMinimumContentsLengthWithIcon)
         self.one_se_button = with_tooltip(QPushButton("Smallest within 1 SE"),
                                           "The 1-SE rule: the smallest tree whose "
                                           "cross-validated error is within one standard error "
                                           "of the lowest; the usual choice.")
         self.min_button = with_tooltip(QPushButton("Lowest error"), "The size with the lowest "
                                        "cross-validated error; often larger than needed.")
-        size_row = QHBoxLayout()  # the list has the row to itself: each size's errors show
+        size_row = QHBoxLayout()
         size_row.addWidget(QLabel("Size:"))
         size_row.addWidget(self.size_combo, 1)
-        rule_row = QHBoxLayout()
-        rule_row.addStretch(1)
-        rule_row.addWidget(self.one_se_button)
-        rule_row.addWidget(self.min_button)
+        size_row.addWidget(self.one_se_button)
+        size_row.addWidget(self.min_button)
         self.fit_note = QLabel("")
         self.fit_note.setWordWrap(True)
         self.choice = QLabel("")
@@ -263,7 +260,6 @@ class SizePanel(StepPanel):
         layout.setContentsMargins(6, 0, 0, 0)
         layout.addWidget(self.curve, 1)
         layout.addLayout(size_row)
-        layout.addLayout(rule_row)
         layout.addWidget(self.choice)
         layout.addWidget(self.fit_note)
         return right
@@ -440,6 +436,10 @@ class SizePanel(StepPanel):
         path = model.path
         for k, leaves in enumerate(path["leaves"]):
             self.size_combo.addItem(size_choice(path, k), int(leaves))
+        # The open list is as wide as its longest line: every size's errors are read whole
+        # (the chosen size's are also in full under the list).
+        view = self.size_combo.view()
+        view.setMinimumWidth(view.sizeHintForColumn(0) + view.verticalScrollBar().sizeHint().width())
         self.refresh_fits()
         self.show_shading()
         self.refresh_chosen()

@@ -10,7 +10,7 @@ from PySide6.QtCore import QSettings, Qt, Signal
 from PySide6.QtGui import QFont
 from PySide6.QtWidgets import (
     QFileDialog, QFrame, QHBoxLayout, QLabel, QMessageBox, QPushButton, QScrollArea, QSizePolicy,
-    QSplitter, QVBoxLayout, QWidget,
+    QSplitter, QToolButton, QVBoxLayout, QWidget,
 )
 
 from core.safe_files import names_an_input
@@ -33,6 +33,16 @@ def with_tooltip(widget: QWidget, text: str) -> QWidget:
     widget.setToolTip(text)
     widget.setWhatsThis(text)
     return widget
+
+
+def tool_buttons(layout: QHBoxLayout, buttons) -> None:
+    """Small buttons in a row, each (words, tooltip, what it does): the zoom rows of the
+    tree and the chart preview."""
+    for text, tip, slot in buttons:
+        button = with_tooltip(QToolButton(), tip)
+        button.setText(text)
+        button.clicked.connect(slot)
+        layout.addWidget(button)
 
 
 def side_by_side(left: QWidget, right: QWidget, stretch: tuple[int, int],

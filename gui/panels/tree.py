@@ -8,11 +8,11 @@ from html import escape
 from PySide6.QtCore import Qt
 from PySide6.QtWidgets import (
     QComboBox, QFormLayout, QGroupBox, QHBoxLayout, QLabel, QLineEdit, QPushButton, QSizePolicy,
-    QSplitter, QTextBrowser, QToolButton, QVBoxLayout, QWidget,
+    QSplitter, QTextBrowser, QVBoxLayout, QWidget,
 )
 
 from core.model import box_details, format_number, route_patient
-from gui.panels.step_panel import StepPanel, scrolling, side_by_side, with_tooltip
+from gui.panels.step_panel import StepPanel, scrolling, side_by_side, tool_buttons, with_tooltip
 from gui.panels.wording import warning_html
 from gui.widgets.tree_view import TreeView
 
@@ -64,13 +64,9 @@ class TreePanel(StepPanel):
         self.view.setAccessibleName("The tree")
         self.view.box_clicked.connect(self.show_box)
         tools = QHBoxLayout()
-        for text, tip, slot in (("Zoom in", "Make the diagram larger (Ctrl +).", self.view.zoom_in),
-                                ("Zoom out", "Make the diagram smaller (Ctrl −).", self.view.zoom_out),
-                                ("Fit to window", "Show the whole tree (Ctrl 0).", self.view.fit)):
-            button = with_tooltip(QToolButton(), tip)
-            button.setText(text)
-            button.clicked.connect(slot)
-            tools.addWidget(button)
+        tool_buttons(tools, (("Zoom in", "Make the diagram larger (Ctrl +).", self.view.zoom_in),
+                             ("Zoom out", "Make the diagram smaller (Ctrl −).", self.view.zoom_out),
+                             ("Fit to window", "Show the whole tree (Ctrl 0).", self.view.fit)))
         self.size_label = QLabel()
         tools.addStretch(1)
         tools.addWidget(self.size_label)

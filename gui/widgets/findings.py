@@ -109,6 +109,7 @@ class FindingsView(QWidget):
         self.status.setVisible(bool(status))
         for row in self.rows:
             self._list.removeWidget(row)
+            row.hide()  # at once: deleteLater acts only when the event loop comes round
             row.deleteLater()
         self.rows = []
         for finding in findings:
