@@ -32,6 +32,7 @@ from gui.widgets.pdf_preview import PdfPreview
 PAPERS = (("A4", "a4"), ("US Letter", "letter"), ("A3", "a3"), ("Tabloid", "tabloid"))
 ORIENTATIONS = (("Best fit for the tree", "auto"), ("Portrait (upright)", "portrait"),
                 ("Landscape (sideways)", "landscape"))
+FORMS = (("Tree of boxes and arrows", "tree"), ("Numbered rules, one row per box", "rules"))
 
 
 @dataclass(frozen=True)
