@@ -134,6 +134,9 @@ class DataPanel(StepPanel):
         for column, width in enumerate((130, 150, 160, 220, 70, 150, 260, 200)):
             header.resizeSection(column, width)
         header.setStretchLastSection(True)
+        # Left-aligned: a header scrolled half out of sight shows its name's start, not a
+        # fragment from its middle.
+        header.setDefaultAlignment(Qt.AlignLeft | Qt.AlignVCenter)
         self.dictionary_view = view
         self.load_dictionary_button = with_tooltip(
             QPushButton("Load dictionary…"),

@@ -119,3 +119,5 @@ def test_rows_tab_headers_fit_their_names(window, qtbot, tmp_path):
     for column, name in enumerate(names):
         assert header.sectionSize(column) >= header.fontMetrics().horizontalAdvance(name)
     assert header.defaultAlignment() & Qt.AlignLeft
+    dictionary_header = window.panels["data"].dictionary_view.horizontalHeader()
+    assert dictionary_header.defaultAlignment() & Qt.AlignLeft  # no fragment from the middle
