@@ -202,10 +202,16 @@ class ChartPanel(StepPanel):
                             ("Zoom out", "Make the page smaller.", self.pdf_view.zoom_out),
                             ("Whole page", "Show the whole page.", self.pdf_view.fit)))
         zoom.addStretch(1)
+        self.zoom_row = QWidget()  # shown with the page only
+        self.zoom_row.setLayout(zoom)
+        zoom.setContentsMargins(0, 0, 0, 0)
+        self.preview_stack.currentChanged.connect(
+            lambda index: self.zoom_row.setVisible(index == 1))
+        self.zoom_row.hide()
         side = QWidget()
         layout = QVBoxLayout(side)
         layout.setContentsMargins(0, 0, 0, 0)
-        layout.addLayout(zoom)
+        layout.addWidget(self.zoom_row)
         layout.addWidget(self.preview_stack, 1)
         return side
 
