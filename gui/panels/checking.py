@@ -11,7 +11,7 @@ from dataclasses import replace
 from pathlib import Path
 
 from matplotlib.backends.backend_qtagg import FigureCanvasQTAgg
-from PySide6.QtCore import QSignalBlocker, Qt
+from PySide6.QtCore import Qt
 from PySide6.QtWidgets import (
     QCheckBox, QFrame, QGroupBox, QHBoxLayout, QLabel, QProgressBar, QPushButton,
     QSizePolicy, QSpinBox, QVBoxLayout, QWidget,
@@ -115,6 +115,7 @@ class CheckingPanel(StepPanel):
     def __init__(self, session, parent=None) -> None:
         super().__init__(session, parent)
         self._shown: dict[str, object] = {}  # what each part shows now (to redraw only changes)
+        self.bindings = Bindings()
         # Long work: one at a time, with progress and Cancel, shown only while it runs.
         self.progress = QProgressBar()
         self.cancel_button = with_tooltip(QPushButton("Cancel"), "Stop the computation; "
@@ -169,8 +170,8 @@ class CheckingPanel(StepPanel):
                                      "The chart names where its check was made; untick to "
                                      "print the held-out check (or the 'not yet checked' "
                                      "banner) instead.")
-        self.on_chart.setChecked(True)
-        self.on_chart.toggled.connect(self.session.set_print_external)
+        self.bindings.bind(self.on_chart, lambda: self.session.print_external,
+                           self.session.set_print_external)
         buttons = QHBoxLayout()
         buttons.addWidget(self.external_button)
         buttons.addWidget(self.on_chart)
@@ -285,8 +286,7 @@ class CheckingPanel(StepPanel):
         if self._shown.get("checks") != session.checks:
             self._show_checks()
         self.on_chart.setVisible(any(r.kind == "external" for r in session.checks))
-        with QSignalBlocker(self.on_chart):
-            self.on_chart.setChecked(session.print_external)
+        self.bindings.show()
         if self._shown.get("nested", False) is not session.nested:
             self._show_nested()
         if self._shown.get("stability", False) is not session.stability:

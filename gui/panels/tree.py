@@ -5,7 +5,7 @@ from __future__ import annotations
 
 from html import escape
 
-from PySide6.QtCore import Qt
+from PySide6.QtCore import QSignalBlocker, Qt
 from PySide6.QtWidgets import (
     QComboBox, QFormLayout, QGroupBox, QHBoxLayout, QLabel, QLineEdit, QPushButton, QSizePolicy,
     QSplitter, QTextBrowser, QVBoxLayout, QWidget,
@@ -190,16 +190,16 @@ class TreePanel(StepPanel):
         return out
 
     def set_values(self, values: dict[str, str | None]) -> None:
+        """Put values in the lookup's fields (one lookup follows, not one per field)."""
         for column, value in values.items():
             field = self._fields.get(column)
-            if isinstance(field, QLineEdit):
-                field.blockSignals(True)
-                field.setText("" if value is None else str(value))
-                field.blockSignals(False)
-            elif isinstance(field, QComboBox):
-                field.blockSignals(True)
-                field.setCurrentIndex(max(0, field.findData(value)))
-                field.blockSignals(False)
+            if field is None:
+                continue
+            with QSignalBlocker(field):
+                if isinstance(field, QLineEdit):
+                    field.setText("" if value is None else str(value))
+                else:
+                    field.setCurrentIndex(max(0, field.findData(value)))
         self.look_up()
 
     def clear_lookup(self) -> None:
