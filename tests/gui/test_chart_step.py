@@ -151,3 +151,19 @@ def test_sizes_that_fit_are_shaded_on_the_curve(charted, qtbot):
     qtbot.waitUntil(lambda: size.fit_sizes is not None, timeout=60000)
     assert set(size.fit_sizes) >= set(expected)  # bigger paper holds at least as much
     assert "A3" in size.fit_note.text()
+
+
+def test_the_numbered_rules_form_prints_as_text_too(charted, qtbot, tmp_path):
+    window = charted
+    chart = window.panels["chart"]
+    chart.form_combo.setCurrentIndex(chart.form_combo.findData("rules"))
+    assert window.session.chart.form == "rules"
+    qtbot.waitUntil(lambda: not chart.preview_busy and chart.pdf_path is not None, timeout=30000)
+    printer = QPrinter(QPrinter.HighResolution)
+    printer.setOutputFormat(QPrinter.PdfFormat)
+    printer.setOutputFileName(str(tmp_path / "rules.pdf"))
+    chart.print_to(printer)
+    printed = " ".join(PdfReader(tmp_path / "rules.pdf").pages[0].extract_text().split())
+    exported = " ".join(PdfReader(chart.pdf_path).pages[0].extract_text().split())
+    assert CAUTIONS[2] in printed and window.session.model.fingerprint[:12] in printed
+    assert len(printed) > 0.9 * len(exported)
