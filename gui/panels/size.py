@@ -394,7 +394,7 @@ class SizePanel(StepPanel):
         session.set_result(derivation, chosen, changes_work=not reproduced)
         seconds = time.monotonic() - self._started
         text = f"Done in {seconds:.1f} s. {len(derivation.path.leaves)} sizes on the pruning path."
-        for note in derivation.notes:
+        for note in dict.fromkeys(derivation.notes):  # each said once
             text += " " + with_advice(note)
         if expected is not None:
             if reproduced:
