@@ -103,6 +103,7 @@ class JobRunner(QObject):
     """
 
     busy_changed = Signal(bool)
+    progressed = Signal(int, int)  # the wanted job's progress (done, total)
 
     def __init__(self, parent: QObject | None = None, progress=None, cancel_button=None,
                  latest_wins: bool = False, hide_when_idle: bool = False) -> None:
@@ -211,11 +212,14 @@ class JobRunner(QObject):
             self._launch(request)
 
     def _progress(self, token: int, done: int, total: int) -> None:
+        if not isValid(self) or token != self._token:
+            return
         bar = self.progress_bar
-        if isValid(self) and bar is not None and token == self._token and total > 0:
+        if bar is not None and total > 0:
             bar.setFormat("%v of %m")
             bar.setRange(0, total)
             bar.setValue(done)
+        self.progressed.emit(done, total)
 
     def _show_busy(self) -> None:
         if self.progress_bar is not None:

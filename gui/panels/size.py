@@ -95,6 +95,7 @@ class SizePanel(StepPanel):
         self.body.insertWidget(4, self.guard_line)
         self.running_job = self.runner(progress=self.progress, cancel_button=self.cancel_button)
         self.running_job.busy_changed.connect(self._enable_settings)
+        self.running_job.progressed.connect(self._progress)
         self.fitting = self.runner(latest_wins=True)  # which sizes fit the paper
         self._bind()
         self.run_button.clicked.connect(self.run)
@@ -372,7 +373,6 @@ class SizePanel(StepPanel):
         self.running_job.start(run_derivation, session.table, session.dictionary, request,
                                session.size, done=self._done, failed=self._failed,
                                cancelled=self._cancelled)
-        self.running_job.job.signals.progress.connect(self._progress)
 
     def _cancel_pressed(self) -> None:
         if self.running_job.running:

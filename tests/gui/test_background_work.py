@@ -22,7 +22,7 @@ def test_cancel_stops_a_run_and_the_app_stays_usable(demo, qtbot, run):
     assert size.running and size.cancel_button.isEnabled() and not size.run_button.isEnabled()
     qtbot.waitUntil(lambda: size.progress.value() >= 2, timeout=20000)  # a fold or two done
     steps = []
-    size.running_job.job.signals.progress.connect(lambda done, total: steps.append((done, total)))
+    size.running_job.progressed.connect(lambda done, total: steps.append((done, total)))
     with qtbot.waitSignal(size.run_finished, timeout=20000):
         qtbot.mouseClick(size.cancel_button, Qt.LeftButton)
     # It stopped after the folds in hand, not at the end of all 300 fits.
