@@ -130,3 +130,25 @@ def test_use_column_agrees_with_step_2(demo):
     assert session.design.outcome == "admitted" and outcome.outcome_combo.currentData() == "admitted"
     assert _use(window, "los_hours") == "leave out"
     assert [c.name for c in session.dictionary.by_role("outcome")] == ["admitted"]
+
+
+def test_a_project_opened_in_the_same_window_restores_its_own(demo, qtbot, run, dialogs,
+                                                             ward_file, tmp_path):
+    window, session = demo, demo.session
+    session.set_chart(title="Who is admitted?")
+    dialogs.save_name = str(tmp_path / "demo.prunella")
+    assert window.save_as()
+    _open(window, qtbot, ward_file)  # another file, worked on a little
+    window.go_to("outcome")
+    _choose_outcome(window, "icu_transfer")
+    window.panels["size"].folds.setValue(5)
+    run(window)
+    session.set_chart(title="ICU transfers")
+    session.dirty = False
+    with qtbot.waitSignal(window.panels["size"].run_finished, timeout=60000):
+        window.open_any(str(tmp_path / "demo.prunella"))
+    assert session.chart.title == "Who is admitted?"  # the project's own title
+    assert session.model.outcome.name == "admitted" and session.design.outcome == "admitted"
+    assert all(r.kind == "held-out" for r in session.checks)
+    assert window.panels["chart"].title_edit.text() == "Who is admitted?"
+    assert "icu_transfer" not in session.dictionary.names
