@@ -29,7 +29,11 @@ NONE = ""
 
 
 def column_text(spec) -> str:
-    return spec.display if spec.display == spec.name else f"{spec.display} ({spec.name})"
+    """A column as step 2 lists it: its label with its header in brackets, or the header
+    alone when it starts with the label ("Age (yrs)", not "Age (Age (yrs))")."""
+    if spec.name.casefold().startswith(spec.display.casefold()):
+        return spec.name
+    return f"{spec.display} ({spec.name})"
 
 
 class OutcomePanel(StepPanel):

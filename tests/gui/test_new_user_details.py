@@ -121,3 +121,13 @@ def test_rows_tab_headers_fit_their_names(window, qtbot, tmp_path):
     assert header.defaultAlignment() & Qt.AlignLeft
     dictionary_header = window.panels["data"].dictionary_view.horizontalHeader()
     assert dictionary_header.defaultAlignment() & Qt.AlignLeft  # no fragment from the middle
+
+
+def test_step_2_names_each_column_once():
+    from core.variables import ColumnSpec
+    from gui.panels.outcome import column_text
+
+    assert column_text(ColumnSpec("Age (yrs)", label="Age")) == "Age (yrs)"
+    assert column_text(ColumnSpec("spo2", label="Oxygen saturation")) == \
+        "Oxygen saturation (spo2)"
+    assert column_text(ColumnSpec("crp")) == "crp"  # no label: the header alone
