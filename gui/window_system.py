@@ -79,4 +79,25 @@ def why_no_window(environ: Mapping[str, str] | None = None, platform: str | None
                 "Qt's display plugin needs is missing; on Debian or Ubuntu, install it with: "
                 f"sudo apt-get install {debian_package(missing.group(1))} (or all of them at "
                 "once: " + " ".join(XCB_PACKAGES) + ").")
+    if not _display_answers(environ["DISPLAY"], load):
+        return (f"Prunella cannot open a window: the display {environ['DISPLAY']} does not "
+                "answer; start it from a desktop session, or set DISPLAY to a running one.")
     return None
+
+
+def _display_answers(display: str, load: Callable[[str], object]) -> bool:
+    """Whether the X server named by ``display`` accepts a connection (asked through libxcb,
+    as Qt will; True when libxcb cannot be asked, so that Qt has the last word)."""
+    try:
+        xcb = load("libxcb.so.1")
+        connect, has_error, disconnect = (xcb.xcb_connect, xcb.xcb_connection_has_error,
+                                          xcb.xcb_disconnect)
+    except (OSError, AttributeError):
+        return True
+    connect.restype = ctypes.c_void_p
+    connect.argtypes = [ctypes.c_char_p, ctypes.c_void_p]
+    has_error.argtypes = disconnect.argtypes = [ctypes.c_void_p]
+    connection = connect(display.encode(), None)
+    answered = has_error(connection) == 0
+    disconnect(connection)
+    return answered

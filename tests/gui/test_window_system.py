@@ -65,7 +65,9 @@ def test_the_real_plugin_agrees_with_the_dynamic_loader():
         loads = True
     except OSError:
         loads = False
-    text = why_no_window(X11, "linux")
+    # The real plugin, but no X server asked (this test is about the libraries).
+    text = why_no_window(X11, "linux",
+                         load=lambda p: ctypes.CDLL(p) if p.endswith("libqxcb.so") else None)
     assert (text is None) == loads
     if text is not None:
         assert "sudo apt-get install" in text
@@ -80,3 +82,17 @@ def test_the_app_started_without_a_display_says_so_and_exits_2():
     assert done.returncode == 2
     assert done.stderr.strip().startswith("Prunella cannot open a window: no display is set")
     assert "qt.qpa" not in done.stderr and "Traceback" not in done.stderr
+
+
+def test_a_display_that_does_not_answer_is_named():
+    from gui.window_system import _display_answers
+
+    try:
+        ctypes.CDLL("libxcb.so.1")
+    except OSError:
+        pytest.skip("libxcb is not installed here (the plugin check names it first)")
+    assert not _display_answers(":4321", ctypes.CDLL)  # no X server has that number
+    text = why_no_window({"DISPLAY": ":4321"}, "linux", _x11_plugin(),
+                         load=lambda p: None if p.endswith("libqxcb.so") else ctypes.CDLL(p))
+    assert text == ("Prunella cannot open a window: the display :4321 does not answer; start "
+                    "it from a desktop session, or set DISPLAY to a running one.")
