@@ -97,9 +97,7 @@ def roc_figure(measures: ClassificationMeasures, title: str | None = None) -> Fi
     ax.set_ylabel("Sensitivity", fontsize=9)
     if title:
         ax.set_title(title, fontsize=9)
-    # Above the axes, never over a bar (a question asked in every resample fills the row).
-    fig.legend(*ax.get_legend_handles_labels(), loc="outside upper center", ncols=2,
-               fontsize=7.5, frameon=False)
+    ax.legend(fontsize=7.5, frameon=False, loc="lower right")
     return fig
 
 
