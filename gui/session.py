@@ -142,7 +142,8 @@ class Session(QObject):
             return
         # The same file guessed again: step 2's choices stay, the roles say them.
         self.notes = tuple(notes)
-        design = self._design_following(dictionary, dictionary)
+        design = (default_design(dictionary) if self.design is None
+                  else self._design_following(dictionary, dictionary))
         self._take_dictionary(dictionary, design)
 
     def set_dictionary(self, dictionary: DataDictionary,
