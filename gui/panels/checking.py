@@ -6,8 +6,8 @@ methods report. Every number comes from core (validate, nested, stability, repor
 
 from __future__ import annotations
 
-from html import escape
 from dataclasses import replace
+from html import escape
 from pathlib import Path
 
 from matplotlib.backends.backend_qtagg import FigureCanvasQTAgg
@@ -26,6 +26,7 @@ from core.data import read_table
 from core.report import (
     calibration_figure, prepare_report, roc_figure, stability_figure, write_report,
 )
+from gui.binding import Bindings
 from gui.panels.data import DATA_FILTER
 from gui.panels.step_panel import Banner, StepPanel, ask_open_path, scrolling, with_tooltip
 from gui.panels.wording import SIZE_RULES, errors_beside, warning_html

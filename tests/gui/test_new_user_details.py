@@ -15,7 +15,7 @@ import pandas as pd  # noqa: E402
 from PySide6.QtCore import Qt  # noqa: E402
 from PySide6.QtWidgets import QFileDialog  # noqa: E402
 
-from core.messages import explain as catalogue_entry  # noqa: E402
+from core.messages import kind_of as catalogue_entry  # noqa: E402
 from tests.helpers import DEMO_CSV  # noqa: E402
 
 
@@ -124,7 +124,7 @@ def test_rows_tab_headers_fit_their_names(window, qtbot, tmp_path):
 
 
 def test_step_2_names_each_column_once():
-    from core.variables import ColumnSpec
+    from core.dictionary import ColumnSpec
     from gui.panels.outcome import column_text
 
     assert column_text(ColumnSpec("Age (yrs)", label="Age")) == "Age (yrs)"
