@@ -1,7 +1,7 @@
 """The guards of step 2, kept up to date in the background.
 
 Whenever the outcome, the predictors, the patient identifier or the settings the guards depend
-on change, core.guards runs again on a pool thread (after a short pause, so ticking several
+on change, core.design.guards runs again on a pool thread (after a short pause, so ticking several
 columns starts one check, not one per tick); a check that is overtaken by a newer change is
 cancelled. Columns that look like they identify patients are left out of the predictors unless
 the user ticked one back deliberately (Session.kept). Everything judged here is judged by core;

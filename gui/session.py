@@ -108,8 +108,8 @@ class Session(QObject):
         self.checks: tuple = () if chosen is None or chosen.heldout_check is None \
             else (chosen.heldout_check,)  # CheckResults, held-out first
         self.print_external = True  # the chart prints the latest external check
-        self.nested = None  # a core.nested.NestedResult for the chosen tree
-        self.stability = None  # a core.stability.Stability for the chosen tree
+        self.nested = None  # a core.checking.nested.NestedResult for the chosen tree
+        self.stability = None  # a core.checking.stability.Stability for the chosen tree
 
     def _announce(self, *signals) -> None:
         for signal in signals:
@@ -226,7 +226,7 @@ class Session(QObject):
     def choose_predictors(self, ticked: tuple[str, ...], offered: tuple[str, ...],
                           many_at_once: bool = False) -> None:
         """The columns ticked on step 2; an identity-like column ticked back on purpose is
-        kept (core.guards.kept_on_purpose)."""
+        kept (core.design.guards.kept_on_purpose)."""
         if self.design is None:
             return
         left_out = () if self.screen is None else self.screen.left_out_columns

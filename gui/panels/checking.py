@@ -93,7 +93,7 @@ def check_html(result) -> str:
 
 
 def read_and_check(model, path: str):
-    """Read an external file and check the tree on it (core.validate). Runs in a worker."""
+    """Read an external file and check the tree on it (core.checking). Runs in a worker."""
     return check_table(model, read_table(path))
 
 

@@ -58,7 +58,7 @@ def guard_summary(screen) -> str:
 
 
 def run_derivation(table, dictionary, request, size, progress=None, cancel=None):
-    """Grow, prune and cross-validate (core.derive), then take the wanted size. In a worker."""
+    """Grow, prune and cross-validate (core.sizing.derive), then take the wanted size. In a worker."""
     derivation = derive(table, dictionary, request, progress=progress, cancel=cancel)
     if size == request.size:  # derive chose this size already (and checked it on held-out rows)
         return derivation, derivation

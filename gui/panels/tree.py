@@ -20,7 +20,7 @@ NOT_RECORDED = "(not recorded)"
 
 
 def details_html(model, box: int) -> str:
-    """The details of a box as a short HTML page (numbers from core.explain)."""
+    """The details of a box as a short HTML page (numbers from core.model.details)."""
     d = box_details(model, box)
     kind = "Outcome box" if d.leaf else "Question"
     rows = [f"<h3>Box {d.box}: {kind}</h3>", f"<p><b>{escape(d.text)}</b></p>",

@@ -8,7 +8,7 @@ from html import escape
 
 from core.messages import app_advice, app_wording
 
-# How each size rule is said (the codes are core.pathcv's).
+# How each size rule is said (the codes are core.sizing's).
 SIZE_RULES = {"1se": "the smallest tree within one standard error (SE) of the lowest error",
               "min": "the lowest cross-validated error", "user": "your choice"}
 

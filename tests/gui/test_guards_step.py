@@ -1,4 +1,4 @@
-"""The guards on step 2 (core.guards through gui/guard_watch.py): identity-like columns left out
+"""The guards on step 2 (core.design.guards through gui/guard_watch.py): identity-like columns left out
 with a warning and kept only on purpose, probable leakage flagged, the findings repeated on
 step 3 before Run, advice from the message catalogue beside core's messages, and the checks
 made off the UI thread, restarted when the choices change.
