@@ -15,6 +15,7 @@ from PySide6.QtWidgets import (
 from core import __version__
 from core.cautions import CAUTION_TITLE, CAUTIONS
 from core.errors import InputError
+from core.messages import say
 from core.data import read_table
 from core.dictionary import dictionary_for
 from core.project import PROJECT_SUFFIX, check_data_file, load_project, save_project
@@ -369,9 +370,8 @@ class MainWindow(QMainWindow):
         try:
             save_project(self.session.to_project(), path)
         except OSError as exc:
-            QMessageBox.warning(self, "The project could not be saved",
-                                f"{Path(path).name} could not be written ({exc.strerror}); "
-                                "choose another folder.")
+            QMessageBox.warning(self, "The project could not be saved", with_advice(
+                say("app.not_saved", file=Path(path).name, reason=exc.strerror)))
             return False
         self.session.mark_saved(path)
         self._remember(path)

@@ -15,6 +15,8 @@ import sys
 from pathlib import Path
 from typing import Callable, Mapping
 
+from core.messages import say
+
 # Every library the X11 plugin needs beyond a basic system, as Debian/Ubuntu packages (the
 # README lists the same line).
 XCB_PACKAGES = ("libxcb-cursor0", "libxcb-icccm4", "libxcb-image0", "libxcb-keysyms1",
@@ -62,8 +64,7 @@ def why_no_window(environ: Mapping[str, str] | None = None, platform: str | None
     if not platform.startswith("linux") or not _uses_x11(environ):
         return None
     if not environ.get("DISPLAY"):
-        return ("Prunella cannot open a window: no display is set (DISPLAY is empty); start it "
-                "from a desktop session, or use the command line (prunella fit --help).")
+        return say("app.no_display")
     plugin = _x11_plugin() if plugin is None else plugin
     if not plugin.is_file():
         return None  # a Qt built another way: let Qt say what it finds
@@ -71,17 +72,13 @@ def why_no_window(environ: Mapping[str, str] | None = None, platform: str | None
         load(str(plugin))
     except OSError as exc:
         missing = _MISSING.search(str(exc))
+        packages = " ".join(XCB_PACKAGES)
         if missing is None:
-            return (f"Prunella cannot open a window: Qt's display plugin does not load ({exc}); "
-                    "on Debian or Ubuntu, install its libraries with: sudo apt-get install "
-                    + " ".join(XCB_PACKAGES))
-        return (f"Prunella cannot open a window: the system library {missing.group(1)} that "
-                "Qt's display plugin needs is missing; on Debian or Ubuntu, install it with: "
-                f"sudo apt-get install {debian_package(missing.group(1))} (or all of them at "
-                "once: " + " ".join(XCB_PACKAGES) + ").")
+            return say("app.plugin_fails", detail=str(exc), packages=packages)
+        return say("app.missing_library", library=missing.group(1),
+                   package=debian_package(missing.group(1)), packages=packages)
     if not _display_answers(environ["DISPLAY"], load):
-        return (f"Prunella cannot open a window: the display {environ['DISPLAY']} does not "
-                "answer; start it from a desktop session, or set DISPLAY to a running one.")
+        return say("app.display_silent", display=environ["DISPLAY"])
     return None
 
 

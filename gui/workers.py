@@ -17,6 +17,7 @@ from PySide6.QtCore import QObject, QRunnable, QThreadPool, Signal
 from shiboken6 import isValid
 
 from core.errors import Cancelled, PrunellaError
+from core.messages import say
 
 
 class JobSignals(QObject):
@@ -66,12 +67,11 @@ class Job(QRunnable):
         except PrunellaError as exc:
             self.signals.failed.emit(str(exc))
         except MemoryError:
-            self.signals.failed.emit("The computer ran out of memory; close other programs, or "
-                                     "use fewer rows or predictors.")
+            self.signals.failed.emit(say("work.out_of_memory"))
         except Exception as exc:  # never let a bug take the window down
             traceback.print_exc(file=sys.stderr)
-            self.signals.failed.emit(f"Something went wrong inside Prunella ({type(exc).__name__}: "
-                                     f"{exc}). Your work is still open; please report this.")
+            self.signals.failed.emit(say("work.internal_error", kind=type(exc).__name__,
+                                         detail=str(exc)))
         else:
             self.signals.done.emit(result)
         finally:

@@ -16,7 +16,8 @@ STEPS = (("read", "reading the file"), ("xlsx", "reading a workbook"),
          ("check", "checking a tree"),
          ("nested", "methods report"), ("stability", "methods report"),
          ("file", "opening saved files"), ("project", "opening projects"),
-         ("model", "model files and scoring"), ("work", "any long work"))
+         ("model", "model files and scoring"), ("work", "any long work"),
+         ("app", "the desktop app"))
 
 
 def markdown_table() -> str:

@@ -19,6 +19,7 @@ from PySide6.QtWidgets import (
 from core.cautions import CAUTION_TITLE, CAUTIONS
 from core.chart import ChartOptions, ChartTooLarge, write_chart
 from core.errors import InputError
+from core.messages import say
 from core.model import scored_table
 from core.safe_files import write_bytes_atomic, write_csv_safely, write_text_atomic
 from gui.binding import Bindings
@@ -316,7 +317,7 @@ class ChartPanel(StepPanel):
         if self.pdf_path is not None:
             action()
         else:
-            self.warn(self.preview_error or "The chart could not be drawn.", title)
+            self.warn(self.preview_error or say("app.chart_not_drawn"), title)
 
     @property
     def preview_busy(self) -> bool:
@@ -355,7 +356,7 @@ class ChartPanel(StepPanel):
         try:  # the preview file is complete: its bytes are the chart
             write_bytes_atomic(target, Path(self.pdf_path).read_bytes())
         except OSError as exc:
-            self.warn(f"The chart could not be saved ({exc.strerror}); choose another folder.")
+            self.warn(say("app.not_saved", file=Path(target).name, reason=exc.strerror))
             return
         self.message.setText(f"Saved {Path(target).name}.")
 
@@ -379,7 +380,7 @@ class ChartPanel(StepPanel):
         if plan is None:
             plan = chart_plan(self.session.chart_derivation().model, self.session.chart)
         if not print_plan(plan, printer):
-            self.warn("The printer could not be started; check it in the system settings.")
+            self.warn(say("app.printer_failed"))
             return
         self.message.setText("Sent to the printer.")
 
@@ -420,8 +421,7 @@ class ChartPanel(StepPanel):
             self.warn(str(exc))
             return False
         except OSError as exc:
-            self.warn(f"{Path(target).name} could not be saved ({exc.strerror}); choose another "
-                      "folder.")
+            self.warn(say("app.not_saved", file=Path(target).name, reason=exc.strerror))
             return False
         self.message.setText(f"Saved {Path(target).name}.")
         return True

@@ -15,7 +15,7 @@ from PySide6.QtWidgets import (
 from core.data import EXCEL_SUFFIXES, list_sheets, read_table
 from core.dictionary import dictionary_beside, dictionary_for
 from core.errors import InputError
-from core.messages import app_advice, app_wording, kind_of as catalogue_entry
+from core.messages import app_advice, app_wording, kind_of as catalogue_entry, say
 from gui.panels.step_panel import StepPanel, ask_open_path, heading_font, with_tooltip
 from gui.widgets.dictionary_model import (
     KIND_WORDS, ROLE_WORDS, ChoiceDelegate, DictionaryModel,
@@ -332,7 +332,7 @@ class DataPanel(StepPanel):
         try:
             self.session.dictionary.save(path)
         except OSError as exc:
-            self.warn(f"The dictionary could not be saved ({exc.strerror}); choose another folder.")
+            self.warn(say("app.not_saved", file=Path(path).name, reason=exc.strerror))
 
     # --- showing ----------------------------------------------------------------------------
 

@@ -13,7 +13,7 @@ from PySide6.QtWidgets import (
 
 from core.design import default_design
 from core.dictionary import CATEGORY_KINDS, PREDICTOR_KINDS
-from core.messages import app_advice, app_wording
+from core.messages import app_advice, app_wording, say
 from gui.binding import Bindings
 from gui.guard_watch import GuardWatch, offered_columns
 from gui.panels.step_panel import StepPanel, side_by_side, with_tooltip
@@ -270,11 +270,9 @@ class OutcomePanel(StepPanel):
         for f in screen.kept:
             if f.column in design.predictors:
                 what = f.measures.get("what", "an identity")
-                rows.append(Finding(
-                    "warning", f"“{f.column}” is asked about because you ticked it, although it "
-                    f"looks like {what}. The chart prints every question the tree asks: keep it "
-                    "only if it identifies no one.", app_advice(f.message), "leave",
-                    "Leave it out", f.column, "identity_kept"))
+                kept = say("app.identity_kept", column=f.column, what=what)
+                rows.append(Finding("warning", kept, app_advice(kept), "leave", "Leave it out",
+                                    f.column, "identity_kept"))
         actions = {"leakage": ("leave", "Leave it out"),
                    "repeats_no_id": ("patient", "Use as patient number"),
                    "repeats_not_grouped": ("group", "Keep visits together")}
@@ -284,8 +282,8 @@ class OutcomePanel(StepPanel):
             rows.append(Finding(f.severity, app_wording(f.message), app_advice(f.message),
                                 action, words, f.column, f.kind))
         if screen.error:
-            rows.append(Finding("refused", "The checks could not be made: " + screen.error,
-                                None, kind="error"))
+            failed = say("app.checks_failed", problem=screen.error)
+            rows.append(Finding("refused", failed, app_advice(screen.error), kind="error"))
         return rows  # FindingsView puts the most serious first
 
     def show_guards(self) -> None:

@@ -15,6 +15,7 @@ from PySide6.QtWidgets import (
 
 from core.chart import sizes_that_fit
 from core.errors import InputError
+from core.messages import say
 from core.sizing import choose_model, derive
 from gui.binding import Bindings
 from gui.panels.step_panel import Banner, StepPanel, scrolling, side_by_side, with_tooltip
@@ -401,11 +402,8 @@ class SizePanel(StepPanel):
                 text += (" This is exactly the tree saved in the project (fingerprint "
                          f"{expected[:12]}).")
             else:
-                self.warn("The tree grown again differs from the one saved in the project "
-                          f"(fingerprint {chosen.model.fingerprint[:12]}, saved "
-                          f"{expected[:12]}). The data file or Prunella's version may have "
-                          "changed; check the data before relying on this tree.",
-                          "Not the saved tree")
+                self.warn(say("app.not_the_saved_tree", fingerprint=chosen.model.fingerprint[:12],
+                              saved=expected[:12]), "Not the saved tree")
         self.status.setText(text)
         self.run_finished.emit()
 

@@ -13,6 +13,7 @@ from PySide6.QtWidgets import (
     QSplitter, QToolButton, QVBoxLayout, QWidget,
 )
 
+from core.messages import say
 from core.safe_files import names_an_input
 from gui.panels.wording import with_advice
 from gui.session import STEP_TITLES, STEPS, Session
@@ -78,8 +79,7 @@ def ask_save_path(parent: QWidget, session: Session, caption: str, filter_text: 
     if suffix and not path.lower().endswith(suffix):
         path += suffix
     if names_an_input(path, data, session.project_path if protect_project else None):
-        QMessageBox.warning(parent, "Prunella", "That is one of your input files (the data or "
-                            "the project); choose another name so it stays unchanged.")
+        QMessageBox.warning(parent, "Prunella", with_advice(say("app.save_over_input")))
         return None
     return path
 

@@ -1,0 +1,43 @@
+"""Messages of the desktop app itself: opening a window, saving from a step, printing, and
+what a step says about the user's own choices."""
+
+ENTRIES = [
+    ("app.no_display", "refused", "Prunella cannot open a window: no display is set (DISPLAY "
+     "is empty); start it from a desktop session, or use the command line (prunella fit "
+     "--help).", "Start Prunella from a desktop, or run its commands without a window."),
+    ("app.missing_library", "refused", "Prunella cannot open a window: the system library "
+     "{library} that Qt's display plugin needs is missing; on Debian or Ubuntu, install it "
+     "with: sudo apt-get install {package} (or all of them at once: {packages}).",
+     "Install the system libraries named in the README, then start Prunella again."),
+    ("app.plugin_fails", "refused", "Prunella cannot open a window: Qt's display plugin does "
+     "not load ({detail}); on Debian or Ubuntu, install its libraries with: sudo apt-get "
+     "install {packages}", "Install the system libraries named in the README, then start "
+     "Prunella again."),
+    ("app.display_silent", "refused", "Prunella cannot open a window: the display {display} "
+     "does not answer; start it from a desktop session, or set DISPLAY to a running one.",
+     "Start Prunella from a desktop session, where the display is running."),
+    ("app.save_over_input", "refused", "That is one of your input files (the data or the "
+     "project); choose another name so it stays unchanged.",
+     "Prunella never writes over the files it reads; save under another name."),
+    ("app.not_saved", "refused", "{file} could not be saved ({reason}); choose another "
+     "folder.", "Choose a folder you may write to, with room on its disk."),
+    ("app.checks_failed", "refused", "The checks could not be made: {problem}",
+     "Read the problem named; the choices of step 2 may need changing."),
+    ("app.printer_failed", "refused", "The printer could not be started; check it in the "
+     "system settings.", "Check that the printer is on and set up, or export the PDF and "
+     "print that."),
+    ("app.chart_not_drawn", "refused", "The chart could not be drawn.",
+     "Look at the message on step 6, or choose a smaller tree or larger paper."),
+    ("app.not_the_saved_tree", "warning", "The tree grown again differs from the one saved "
+     "in the project (fingerprint {fingerprint}, saved {saved}). The data file or Prunella's "
+     "version may have changed; check the data before relying on this tree.",
+     "Compare the data file with the one the project was saved with."),
+    ("app.identity_kept", "warning", "“{column}” is asked about because you ticked it, "
+     "although it looks like {what}. The chart prints every question the tree asks: keep it "
+     "only if it identifies no one.", "Untick it unless it identifies no one."),
+    ("work.out_of_memory", "refused", "The computer ran out of memory; close other programs, "
+     "or use fewer rows or predictors.", "Close other programs, or use a smaller file."),
+    ("work.internal_error", "refused", "Something went wrong inside Prunella ({kind}: "
+     "{detail}). Your work is still open; please report this.",
+     "Save the project, and report what you did to the people who look after Prunella."),
+]
