@@ -118,6 +118,7 @@ class FindingsView(QWidget):
                 row.button.clicked.connect(
                     lambda _checked=False, f=finding: self.acted.emit(f.action, f.column or ""))
             self._list.insertWidget(self._list.count() - 1, row)
+            row.show()  # at once, not when the event loop next comes round
             self.rows.append(row)
 
     def texts(self) -> list[str]:
