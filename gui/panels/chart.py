@@ -19,7 +19,7 @@ from PySide6.QtWidgets import (
 from core.cautions import CAUTION_TITLE, CAUTIONS
 from core.chart import ChartOptions, ChartTooLarge, write_chart
 from core.errors import InputError
-from core.messages import say
+from core.messages import app_wording, say
 from core.model import scored_table
 from core.safe_files import write_bytes_atomic, write_csv_safely, write_text_atomic
 from gui.binding import Bindings
@@ -301,7 +301,7 @@ class ChartPanel(StepPanel):
         self.document.close()
         self.pdf_path = None
         self.preview_error = message
-        self.preview_note.setText(message)
+        self.preview_note.setText(app_wording(message) or message)  # not the command line's
         self.preview_stack.setCurrentIndex(0)
         self._render_over()
 
