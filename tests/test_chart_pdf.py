@@ -143,8 +143,8 @@ def test_every_question_answer_and_outcome_can_be_extracted(chosen, chosen_pdf) 
             # The outcome is named in the title and key, not in every box.
             assert f"Expect {node.prediction}" in inside
             assert chosen.outcome.display not in inside
-            assert f"of {node.n:,} visits" in inside  # rows are visits: patients came back
-            assert "95% CI" in inside
+            assert f"of {node.n:,}" in inside and "visits" not in inside  # named in the key
+            assert "CI " in inside
         else:
             assert node.text in inside
             branch = [k for k in range(2) if node.question.takes_missing(k)]
@@ -171,8 +171,8 @@ def test_observed_rates_and_wilson_intervals_are_the_model_counts(chosen, chosen
         inside = flat(text_inside(plan.tree.boxes[leaf.id].rect, frags))
         low, high = wilson_interval(leaf.counts[1], leaf.n)
         share = leaf.counts[1] / leaf.n
-        assert f"{100 * share:.0f}% of {leaf.n:,} visits" in inside
-        assert f"95% CI {100 * low:.0f}–{100 * high:.0f}%" in inside
+        assert f"{100 * share:.0f}% of {leaf.n:,}" in inside
+        assert f"CI {100 * low:.0f}–{100 * high:.0f}%" in inside
 
 
 def test_side_panel_shows_cross_validated_error_beside_training_error() -> None:
@@ -185,8 +185,10 @@ def test_side_panel_shows_cross_validated_error_beside_training_error() -> None:
     assert f"Training error rate: {100 * chosen_risk['train_risk']:.1f}%" in text
     assert text.index("Cross-validated error rate") < text.index("Training error rate")
     assert chosen.path["cv"].capitalize() in text
-    assert chosen.path["risk_measure"] in text
     assert "1-SE rule" in text
+    # What the numbers in a box are, said once in the key (rows are visits: patients came back).
+    assert "“P% of N”: share admitted to hospital among the N visits in the box" in text
+    assert "95% confidence interval (Wilson)" in text
     cohort = chosen.extra["cohort"]
     assert f"{cohort['visits']:,} visits by {cohort['patients']:,} patients" in text
     assert f"{cohort['first_date']} to {cohort['last_date']}" in text
@@ -356,7 +358,7 @@ def test_printed_thresholds_route_every_derivation_patient_like_the_grown_tree(s
         rows = by_page == leaf.id
         inside = flat(text_inside(plan.tree.boxes[leaf.id].rect, frags))
         share = float(np.mean(derivation.data.y[rows] == 1))
-        assert f"{100 * share:.0f}% of {int(rows.sum()):,} visits" in inside
+        assert f"{100 * share:.0f}% of {int(rows.sum()):,}" in inside
     # The printed thresholds are round numbers (core/thresholds.py), not float32 midpoints.
     for _, kind, rule, _ in printed.values():
         if kind == "above":
@@ -383,7 +385,7 @@ def test_small_groups_are_flagged_and_counts_can_be_hidden(chosen) -> None:
     for leaf in chosen.leaves:
         inside = flat(text_inside(hidden.tree.boxes[leaf.id].rect, frags))
         assert f"{leaf.n:,}" not in inside and "visits" not in inside
-        assert f"Rate {100 * leaf.counts[1] / leaf.n:.0f}%" in inside and "95% CI" in inside
+        assert f"Rate {100 * leaf.counts[1] / leaf.n:.0f}%" in inside and "CI " in inside
 
 
 # --- other outcomes -----------------------------------------------------------------------------
@@ -397,7 +399,7 @@ def test_a_regression_chart_shows_means_with_intervals() -> None:
         low, high = model.mean_interval(leaf)
         assert f"Mean {leaf.mean:.3g}" in text
     assert "Cross-validated mean squared error" in text and "Training mean squared error" in text
-    assert "95% CI" in text and "hours" in text
+    assert "CI " in text and "95% confidence interval (t interval" in text and "hours" in text
     assert any(word in text for word in ("LOWER", "HIGHER"))
 
 
@@ -417,7 +419,7 @@ def test_absolute_band_cut_points(chosen) -> None:
     for leaf in chosen.leaves:
         rate = leaf.counts[1] / leaf.n
         word = plan.text.bands[leaf.id].word
-        assert word == ("LOW RATE" if rate < 0.2 else "MODERATE RATE" if rate < 0.5 else "HIGH RATE")
+        assert word == ("LOW" if rate < 0.2 else "MODERATE" if rate < 0.5 else "HIGH")
 
 
 def test_relative_bands_follow_the_cohort_rate(chosen) -> None:
@@ -426,8 +428,8 @@ def test_relative_bands_follow_the_cohort_rate(chosen) -> None:
     for leaf in chosen.leaves:
         rate = leaf.counts[1] / leaf.n
         word = plan.text.bands[leaf.id].word
-        expected = ("HIGHER RATE" if rate >= 1.25 * overall else
-                    "LOWER RATE" if rate <= overall / 1.25 else "AVERAGE RATE")
+        expected = ("HIGHER" if rate >= 1.25 * overall else
+                    "LOWER" if rate <= overall / 1.25 else "AVERAGE")
         assert word == expected
 
 

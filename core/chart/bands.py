@@ -72,7 +72,7 @@ def number(value: float, unit: str = "") -> str:
 
 
 def rate_phrase(model: TreeModel) -> str:
-    """Who the rate counts, e.g. 'admitted to hospital' (yes/no outcomes) or 'class ward'."""
+    """Who the rate counts, e.g. 'admitted to hospital' (yes/no outcomes) or 'with Ward: ICU'."""
     from ..data.cells import YES_WORDS
 
     positive = model.positive
@@ -81,7 +81,7 @@ def rate_phrase(model: TreeModel) -> str:
         if len(label) > 1 and not label[1].isupper():
             label = label[0].lower() + label[1:]
         return label
-    return f"{model.outcome.display}: {positive}"
+    return f"with {model.outcome.display}: {positive}"
 
 
 def banding(model: TreeModel, cuts: tuple[float, ...] | None = None,
@@ -100,11 +100,9 @@ def banding(model: TreeModel, cuts: tuple[float, ...] | None = None,
         return number(v, unit) if regression else percent(v)
 
     what = "mean" if regression else "rate"
-    suffix = "" if regression else " RATE"  # "HIGHER RATE": what is higher, said outright
     if cuts:
         limits = tuple(c if regression else c / 100 for c in cuts)
         words = ("LOW", "HIGH") if len(limits) == 1 else ("LOW", "MODERATE", "HIGH")
-        words = tuple(w + suffix for w in words)
         meanings = [f"{what} below {show(limits[0])}"]
         if len(limits) == 2:
             meanings.append(f"{what} {show(limits[0])} up to {show(limits[1])}")
@@ -123,7 +121,8 @@ def banding(model: TreeModel, cuts: tuple[float, ...] | None = None,
             meanings = [f"{what} ≤ {show(limits[0])} (cohort {show(overall)} − ½ SD)",
                         "in between",
                         f"{what} ≥ {show(limits[1])} (cohort {show(overall)} + ½ SD)"]
-        words = tuple(w + suffix for w in ("LOWER", "AVERAGE", "HIGHER"))
+        # One short word in the strip (a narrow box); the key says it is the rate or mean.
+        words = ("LOWER", "AVERAGE", "HIGHER")
         # LOWER below limits[0]·(1+ε) so that "at most" is honest at the exact boundary.
         limits = (math.nextafter(limits[0], math.inf), limits[1])
         kind = "relative"

@@ -8,6 +8,7 @@ the tree text size, so a layout scales exactly with it.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from functools import lru_cache
 from typing import Mapping
 
 from .text import CAP, LEADING, Line, Measure, balanced_wrap
@@ -17,11 +18,13 @@ QUESTION_STRETCH = 1.25  # a question may widen by a quarter to save a line
 
 @dataclass(frozen=True)
 class Para:
-    """A paragraph of box text; ``scale`` multiplies the tree text size."""
+    """A paragraph of box text; ``scale`` multiplies the tree text size. A paragraph that
+    must read as one piece ("74% of 241", "CI 68–79%") is never broken (``keep``)."""
 
     text: str
     bold: bool = False
     scale: float = 1.0
+    keep: bool = False
 
 
 @dataclass(frozen=True)
@@ -54,9 +57,21 @@ class LayoutStyle:
     outcome_em: float = 14.0
     stacked_labels: bool = False  # top-down: "YES" above "or not recorded", not beside it
     leaves_beside: bool = False  # top-down: a question's one outcome box drawn beside it
+    wide_questions: bool = True  # top-down: a question over children spread wide takes their width
 
 
 # --- box geometry ----------------------------------------------------------------------
+
+
+def badge_radius(box: BoxSpec, s: float, measure: Measure) -> float:
+    """The radius of the circle holding a box's number."""
+    return max(0.78 * s, measure(box.number, True, s) / 2 + 0.22 * s)
+
+
+def question_frame(box: BoxSpec, s: float, measure: Measure) -> float:
+    """How much wider a question box is than its text: its pointed ends, padding and badge."""
+    pad_x, gap, point = 0.6 * s, 0.45 * s, 0.6 * s
+    return 2 * point + 1.3 * pad_x + 2 * badge_radius(box, s, measure) + gap
 
 
 @dataclass(frozen=True)
@@ -77,78 +92,111 @@ def _wrapped(paras: tuple[Para, ...], width_em: float, s: float, measure: Measur
     out = []
     for para in paras:
         size = s * para.scale
-        lines = balanced_wrap(para.text, width_em * s, para.bold, size, measure, stretch)
+        lines = [para.text] if para.keep else balanced_wrap(para.text, width_em * s, para.bold,
+                                                             size, measure, stretch)
         out.append((para, lines, max((measure(t, para.bold, size) for t in lines), default=0)))
     return out
 
 
-def size_boxes(spec: TreeSpec, style: LayoutStyle, measure: Measure) -> dict[int, SizedBox]:
+def size_boxes(spec: TreeSpec, style: LayoutStyle, measure: Measure,
+               wider: Mapping[int, float] | None = None) -> dict[int, SizedBox]:
+    """Every box's size and text. A question wraps at the style's width, or at its own
+    (in units of the text size) where ``wider`` gives one; a question given its own width
+    runs its paragraphs on one line when they fit it ("Age above 68 years?  If not
+    recorded: NO")."""
     s = style.size
+    wider = wider or {}
+    outcomes = [b for b in spec.boxes.values() if b.kind == "outcome"]
+    # Outcome boxes share one width (a calm row of cards): the widest any of them needs
+    # when its text wraps at the style's width.
+    shared = max((_outcome_width(b, style.outcome_em, s, measure) for b in outcomes), default=0.0)
+    return {i: _question_box(b, wider.get(i, style.question_em), i in wider, s, measure)
+            if b.kind == "question" else _outcome_box(b, shared, s, measure)
+            for i, b in spec.boxes.items()}
+
+
+# The same boxes are sized again and again while a page is planned (every layout tried,
+# every stretch): a box's size is a function of its content and these numbers alone.
+
+
+@lru_cache(maxsize=1 << 14)
+def _outcome_width(box: BoxSpec, wrap_em: float, s: float, measure: Measure) -> float:
+    """The text width an outcome box needs with its text wrapped at ``wrap_em``, its band
+    word after its badge."""
+    width = max((w for _, _, w in _wrapped(box.body, wrap_em, s, measure, 1.0)), default=0.0)
+    if box.heading is not None:
+        heading = measure(box.heading.text, box.heading.bold, s * box.heading.scale)
+        width = max(width, 2 * badge_radius(box, s, measure) + 0.45 * s + heading - 0.24 * s)
+    return width
+
+
+@lru_cache(maxsize=1 << 14)
+def _outcome_box(box: BoxSpec, text_w: float, s: float, measure: Measure) -> SizedBox:
     pad_x, pad_y, gap = 0.6 * s, 0.45 * s, 0.45 * s
-    wrapped = {i: _wrapped(b.body, style.question_em, s, measure, QUESTION_STRETCH)
-               if b.kind == "question"
-               else _wrapped(b.body, style.outcome_em, s, measure, 1.0)
-               for i, b in spec.boxes.items()}
+    r = badge_radius(box, s, measure)
+    # The text re-wrapped to the shared width: a line that no longer needs breaking isn't.
+    paras = _wrapped(box.body, text_w / s, s, measure, 1.0)
+    block = sum(len(lines) * p.scale * s * LEADING for p, lines, _ in paras)
+    strip = 2 * r + 0.4 * s
+    w, h = 2 * pad_x + text_w, strip + block + 2 * pad_y
+    badge = (pad_x * 0.6 + r, strip / 2, r)
+    lines = [Line(box.number, True, s, badge[0], badge[1] + CAP * s)]
+    if box.heading is not None:
+        hs = s * box.heading.scale
+        lines.append(Line(box.heading.text, box.heading.bold, hs, badge[0] + r + gap,
+                          strip / 2 + CAP * hs, False))
+    lines += _stacked(paras, w / 2, strip + pad_y, s)
+    return SizedBox(box.kind, w, h, tuple(lines), badge, strip, 0.0)
 
-    def badge_radius(box: BoxSpec) -> float:
-        return max(0.78 * s, measure(box.number, True, s) / 2 + 0.22 * s)
 
-    # Outcome boxes share one width (a calm row of cards); a question box is as wide as its
-    # own wrapped text. Either way a box's size depends only on its own content.
-    text_w = {"question": 0.0, "outcome": 0.0}
-    own_w = {i: max((w for _, _, w in wrapped[i]), default=0.0) for i in spec.boxes}
-    for i, box in spec.boxes.items():
-        width = own_w[i]
-        if box.kind == "outcome" and box.heading is not None:
-            r = badge_radius(box)
-            heading = measure(box.heading.text, box.heading.bold, s * box.heading.scale)
-            width = max(width, 2 * r + gap + heading - 0.4 * pad_x)  # band word after the badge
-        text_w[box.kind] = max(text_w[box.kind], width)
-    # Outcome text re-wrapped to the shared width: a line that no longer needs breaking isn't.
-    for i, box in spec.boxes.items():
-        if box.kind == "outcome":
-            wrapped[i] = _wrapped(box.body, text_w["outcome"] / s, s, measure, 1.0)
-
-    sized: dict[int, SizedBox] = {}
-    for i, box in spec.boxes.items():
-        r = badge_radius(box)
-        paras = wrapped[i]
+@lru_cache(maxsize=1 << 14)
+def _question_box(box: BoxSpec, wrap_em: float, inline: bool, s: float,
+                  measure: Measure) -> SizedBox:
+    pad_x, pad_y, gap, point = 0.6 * s, 0.45 * s, 0.45 * s, 0.6 * s
+    r = badge_radius(box, s, measure)
+    text_left = point + 0.3 * pad_x + 2 * r + gap
+    space = 0.6 * s  # between paragraphs run on one line
+    widths = [measure(p.text, p.bold, s * p.scale) for p in box.body]
+    one_line = inline and len(box.body) > 1 and (
+        sum(widths) + space * (len(widths) - 1) <= wrap_em * s + 1e-9)
+    if one_line:
+        text_w = sum(widths) + space * (len(widths) - 1)
+        block = max(p.scale for p in box.body) * s * LEADING
+    else:
+        paras = _wrapped(box.body, wrap_em, s, measure, QUESTION_STRETCH)
+        text_w = max((w for _, _, w in paras), default=0.0)
         block = sum(len(lines) * p.scale * s * LEADING for p, lines, _ in paras)
-        if box.kind == "question":
-            point = 0.6 * s
-            text_left = point + 0.3 * pad_x + 2 * r + gap
-            w = text_left + own_w[i] + pad_x + point
-            h = max(2 * r + 2 * 0.4 * s, block + 2 * pad_y)
-            badge = (point + 0.3 * pad_x + r, h / 2, r)
-            centre = text_left + own_w[i] / 2
-            top = (h - block) / 2
-            strip = 0.0
-        else:
-            point = 0.0
-            strip = 2 * r + 0.4 * s
-            w = 2 * pad_x + text_w["outcome"]
-            h = strip + block + 2 * pad_y
-            badge = (pad_x * 0.6 + r, strip / 2, r)
-            centre = w / 2
-            top = strip + pad_y
-        # The number is tree text too: never below the tree's size (the legibility floor).
-        lines = [Line(box.number, True, s, badge[0], badge[1] + CAP * s)]
-        if box.heading is not None:
-            hs = s * box.heading.scale
-            lines.append(Line(box.heading.text, box.heading.bold, hs, badge[0] + r + gap,
-                              strip / 2 + CAP * hs, False))
-        y = top
-        for para, texts, _ in paras:
-            size = para.scale * s
-            for text in texts:
-                lines.append(Line(text, para.bold, size, centre, y + size * LEADING / 2 + CAP * size))
-                y += size * LEADING
-        sized[i] = SizedBox(box.kind, w, h, tuple(lines), badge, strip, point)
-    return sized
+    w = text_w + question_frame(box, s, measure)
+    h = max(2 * r + 2 * 0.4 * s, block + 2 * pad_y)
+    badge = (point + 0.3 * pad_x + r, h / 2, r)
+    # The number is tree text too: never below the tree's size (the legibility floor).
+    lines = [Line(box.number, True, s, badge[0], badge[1] + CAP * s)]
+    top = (h - block) / 2
+    if one_line:
+        x, size = text_left, max(p.scale for p in box.body) * s
+        for para, width in zip(box.body, widths):
+            lines.append(Line(para.text, para.bold, s * para.scale, x,
+                              top + size * LEADING / 2 + CAP * size, False))
+            x += width + space
+    else:
+        lines += _stacked(paras, text_left + text_w / 2, top, s)
+    return SizedBox(box.kind, w, h, tuple(lines), badge, 0.0, point)
 
 
+def _stacked(paras, centre: float, top: float, s: float) -> list[Line]:
+    """Wrapped paragraphs one line under another, each line centred on ``centre``."""
+    lines, y = [], top
+    for para, texts, _ in paras:
+        size = para.scale * s
+        for text in texts:
+            lines.append(Line(text, para.bold, size, centre, y + size * LEADING / 2 + CAP * size))
+            y += size * LEADING
+    return lines
+
+
+@lru_cache(maxsize=1 << 12)
 def size_label(paras: tuple[Para, ...], s: float, measure: Measure,
-           one_line: bool) -> tuple[float, float, list]:
+               one_line: bool) -> tuple[float, float, tuple[Line, ...]]:
     """An arrow label: its paragraphs on one line (top-down) or stacked (left-to-right)."""
     pad_x, pad_y = 0.35 * s, 0.1 * s
     if one_line:
@@ -162,7 +210,7 @@ def size_label(paras: tuple[Para, ...], s: float, measure: Measure,
             lines.append(Line(para.text, para.bold, s * para.scale, x,
                               pad_y + size * LEADING / 2 + CAP * size, False))
             x += width + space
-        return w, h, lines
+        return w, h, tuple(lines)
     widths = [measure(p.text, p.bold, s * p.scale) for p in paras]
     h = sum(s * p.scale * LEADING for p in paras) + 2 * pad_y
     lines, y = [], pad_y
@@ -171,4 +219,4 @@ def size_label(paras: tuple[Para, ...], s: float, measure: Measure,
         size = s * para.scale
         lines.append(Line(para.text, para.bold, size, w / 2, y + size * LEADING / 2 + CAP * size))
         y += size * LEADING
-    return w, h, lines
+    return w, h, tuple(lines)

@@ -16,8 +16,8 @@ from .bands import Band, Banding, banding, number, percent, rate_phrase
 from .layout import BoxSpec, Para, TreeSpec
 from .options import ChartOptions
 
-HOW_TO_READ = ("How to read: start at box 1. Answer each question; follow YES or NO until "
-               "you reach an outcome box.")
+HOW_TO_READ = ("How to read: start at box 1, answer each question and follow YES or NO to an "
+               "outcome box.")
 HOW_TO_READ_RULES = ("How to read: find the row whose answers all hold for the patient; its "
                      "outcome box is the tree's answer. Exactly one row fits each patient.")
 NOT_RECORDED = "If not recorded"  # a question's own line: which answer a missing value takes
@@ -77,24 +77,26 @@ def span(low: str, high: str) -> str:
 
 def outcome_paras(model: TreeModel, node: Node, options: ChartOptions) -> tuple[Para, ...]:
     """What an outcome box says, in a few short lines: the expected outcome (or mean), the
-    rate and how many it rests on, the 95% interval. The outcome itself is named once, in the
-    title and the key, not in every box. Built here alone, so that what a box says changes in
-    one place."""
-    count = "" if options.hide_counts else _count(node.n, model)
+    rate and how many it rests on ("74% of 241"), the 95% interval ("CI 68–79%"). The
+    outcome itself is named once, in the title and the key, and the key says what the
+    numbers are, so that a box stays narrow. Built here alone, so that what a box says
+    changes in one place."""
     if model.task == "regression":
         low, high = model.mean_interval(node)
         paras = [Para(f"Mean {number(float(node.mean), model.outcome.unit)}", bold=True),
-                 Para(f"95% CI {span(number(low), number(high, model.outcome.unit))}")]
-        if count:
-            paras.append(Para(count))
+                 Para(f"CI {span(number(low), number(high))}", keep=True)]
+        if not options.hide_counts:
+            paras.append(Para(_count(node.n, model), keep=True))
     else:
         share = model.box_share(node)
         rate = percent(share.value or 0.0)
         paras = [Para(f"Expect {node.prediction}", bold=True),
-                 Para(f"{rate} of {count}" if count else f"Rate {rate}"),
-                 Para(f"95% CI {span(percent(share.low or 0.0)[:-1], percent(share.high or 1.0))}")]
+                 Para(f"Rate {rate}" if options.hide_counts else f"{rate} of {node.n:,}",
+                      keep=True),
+                 Para(f"CI {span(percent(share.low or 0.0)[:-1], percent(share.high or 1.0))}",
+                      keep=True)]
     if node.n < options.small_cell:
-        paras.append(Para("Small group", bold=True))
+        paras.append(Para("Small group", keep=True))
     return tuple(paras)
 
 
@@ -144,12 +146,7 @@ def default_subtitle(model: TreeModel) -> str:
         outcome = f"Outcome: {model.outcome.display} ({model.positive} or {model.classes[0]})"
     else:
         outcome = f"Outcome: {model.outcome.display} ({', '.join(model.classes)})"
-    cohort = model.extra.get("cohort", {})
-    dates = ""
-    if cohort.get("first_date"):
-        dates = f", {cohort['first_date']} to {cohort['last_date']}"
-    visits = cohort.get("visits", model.n_rows)
-    return f"{outcome}. Derived from {_count(visits, model)}{dates}."
+    return f"{outcome}."  # who it was derived from: the panel's first section
 
 
 def _cohort_size(model: TreeModel) -> str:
@@ -187,8 +184,7 @@ def _rule(model: TreeModel) -> str:
     rule = chosen.get("rule")
     boxes = plural(int(chosen["leaves"]), "outcome box", "outcome boxes")
     if rule == "1se":
-        return (f"Size: {boxes} (1-SE rule: the smallest tree within one SE of the lowest "
-                "cross-validated error).")
+        return f"Size: {boxes} (1-SE rule: the smallest tree within one SE of the lowest error)."
     if rule == "min":
         return f"Size: {boxes} (the lowest cross-validated error)."
     return f"Size: {boxes}, chosen by the user."
@@ -201,19 +197,18 @@ def _performance(model: TreeModel) -> PanelSection:
         name = "mean squared error"
         unit = f" {model.outcome.unit}" if model.outcome.unit else ""
         extra = f" (root {number(math.sqrt(max(chosen['cv_risk'], 0)))}{unit})"
-        about = f"error = {measure}"
+        about = ""
     elif _is_error_rate(model):
-        name, extra = "error rate", ""
-        about = f"error = {measure}, equal costs"
+        name, extra, about = "error rate", "", ""
     else:
         name, extra = "misclassification cost", ""
-        about = f"error = {measure}, with the costs set at derivation"
+        about = f"; error = {measure}, with the costs set at derivation"
     items = (
         PanelItem(f"Cross-validated {name}: {_risk(model, chosen['cv_risk'])} "
                   f"(SE {_risk(model, chosen['cv_se'])}){extra}", bold=True),
         PanelItem(f"Training {name}: {_risk(model, chosen['train_risk'])} (optimistic: "
-                  "the same patients)"),
-        PanelItem(f"{path.get('cv', 'Cross-validation').capitalize()}; {about}."),
+                  "same patients)"),
+        PanelItem(f"{path.get('cv', 'Cross-validation').capitalize()}{about}."),
         PanelItem(_rule(model)),
     )
     return PanelSection("How well it predicts", items)
@@ -261,18 +256,18 @@ def _key(model: TreeModel, bands: Banding, options: ChartOptions) -> PanelSectio
     items = [PanelItem(f"{band.word}: {band.meaning}", band=band) for band in bands.bands]
     if options.small_cell > 0:
         items.append(PanelItem(f"Dashed: under {options.small_cell} {count_word(model)}, "
-                               "so the rate is uncertain", dashed=True))
+                               "uncertain", dashed=True))
     if model.task == "regression":
-        what = (f"Mean: average {model.outcome.display.lower()}, with its 95% CI (t interval, "
-                "kept within the observed range).")
-    elif model.positive is not None:
-        what = (f"Expect: the outcome the tree predicts. Rate: share {rate_phrase(model)}, "
-                "with its 95% CI (Wilson).")
+        what = (f"Mean: average {model.outcome.display.lower()} in the box; CI: its 95% "
+                "confidence interval (t interval, kept within the observed range).")
     else:
-        what = ("Expect: the outcome the tree predicts. Rate: share with that outcome, with "
-                "its 95% CI (Wilson).")
+        who = rate_phrase(model) if model.positive is not None else "with the expected outcome"
+        rows = count_word(model)
+        share = (f"Rate: share {who} among the box's {rows}" if options.hide_counts
+                 else f"“P% of N”: share {who} among the N {rows} in the box")
+        what = f"{share}; CI: its 95% confidence interval (Wilson)."
     missing = "(or not recorded)" if options.form == "rules" else NOT_RECORDED
-    items.append(PanelItem(f"{what} “{missing}”: the way to go when the value is missing."))
+    items.append(PanelItem(f"{what} “{missing}”: where a missing value goes."))
     return PanelSection("Key", tuple(items), kind="key")
 
 

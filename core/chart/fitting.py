@@ -21,7 +21,8 @@ from ..model.tree import TreeModel
 from .content import chart_text
 from .layout import BoxSpec, LayoutStyle, Measure, Para, TreeSpec, layout_tree, reportlab_measure
 from .options import LARGER_PAPER, PAPER_NAMES, ChartOptions, margin_for, page_size
-from .page import ChartPlan, deepest_possible, plan_page
+from .arrange import deepest_possible, plan_page
+from .page import ChartPlan
 
 if TYPE_CHECKING:
     from ..sizing.derivation import Derivation

@@ -18,7 +18,10 @@ from __future__ import annotations
 from dataclasses import dataclass, replace
 from typing import Mapping
 
-from .boxes import BoxSpec, LayoutStyle, Para, TreeSpec, size_boxes, size_label
+from .boxes import (
+    QUESTION_STRETCH, BoxSpec, LayoutStyle, Para, SizedBox, TreeSpec, question_frame, size_boxes,
+    size_label,
+)
 from .text import Line, Measure, Rect, balanced_wrap, reportlab_measure, wrap
 
 __all__ = ["BoxSpec", "LayoutStyle", "Line", "Measure", "Para", "PlacedArrow", "PlacedBox",
@@ -90,6 +93,8 @@ class TreeLayout:
         """Every box and every arrow label: nothing of these may overlap."""
         return [b.rect for b in self.boxes.values()] + [a.label for a in self.arrows]
 
+
+WIDEST_QUESTION_EM = 26.0  # a question widened over its children still reads as one phrase
 
 # --- tidy placement ----------------------------------------------------------------------
 
@@ -240,20 +245,11 @@ def layout_tree(spec: TreeSpec, style: LayoutStyle, measure: Measure = reportlab
     if style.direction not in ("down", "right"):
         raise ValueError("direction must be 'down' or 'right'")
     s, down = style.size, style.direction == "down"
-    sized = size_boxes(spec, style, measure)
     labels = {key: size_label(paras, s, measure, down and not style.stacked_labels)
               for key, paras in spec.labels.items()}
     parent_of = {c: p for p, kids in spec.children.items() for c in kids}
     stem, arrow, label_pad = 0.6 * s, 0.9 * s, 0.2 * s
     side = beside_parent(spec) if style.leaves_beside and down else set()
-    across, along = {}, {}
-    for i, box in sized.items():
-        own = box.w if down else box.h
-        if i in parent_of and i not in side:  # the label lies in its breadth, just before it
-            lw, lh, _ = labels[(parent_of[i], i)]
-            # top-down, beside the arrow's drop: on the outer side of the child's centre
-            own = max(own, 2 * (lw + label_pad) if down else lh)
-        across[i], along[i] = own, (box.h if down else box.w)
     label_depth = max(((lh if down else lw) for key, (lw, lh, _) in labels.items()
                        if key[1] not in side), default=0.0)
     # Top-down, a label stands beside the arrow's drop, between the bus and the child, so the
@@ -262,14 +258,45 @@ def layout_tree(spec: TreeSpec, style: LayoutStyle, measure: Measure = reportlab
         connector = (stem + label_depth + 2 * label_pad) * depth_stretch
     else:
         connector = (stem + label_depth + 2 * label_pad + arrow) * depth_stretch
-    # A box beside its parent: its arrow runs level from the parent's point, its label
-    # above the arrow, so the arrow is at least as long as the label.
-    placed_beside = {}
-    for i in side:
-        lw, lh, _ = labels[(parent_of[i], i)]
-        level = along[parent_of[i]] / 2
-        placed_beside[i] = (lw + 2 * label_pad + arrow, level - label_pad - lh, level)
-    centres, depths = _tidy(spec, across, along, connector, 1.25 * s, 0.4 * s, placed_beside)
+
+    def tidy(sized: Mapping[int, SizedBox]):
+        across, along = {}, {}
+        for i, box in sized.items():
+            own = box.w if down else box.h
+            if i in parent_of and i not in side:  # the label lies in its breadth, just before it
+                lw, lh, _ = labels[(parent_of[i], i)]
+                # top-down, beside the arrow's drop: on the outer side of the child's centre
+                own = max(own, 2 * (lw + label_pad) if down else lh)
+            across[i], along[i] = own, (box.h if down else box.w)
+        # A box beside its parent: its arrow runs level from the parent's point, its label
+        # above the arrow, so the arrow is at least as long as the label.
+        placed_beside = {}
+        for i in side:
+            lw, lh, _ = labels[(parent_of[i], i)]
+            level = along[parent_of[i]] / 2
+            placed_beside[i] = (lw + 2 * label_pad + arrow, level - label_pad - lh, level)
+        centres, depths = _tidy(spec, across, along, connector, 1.25 * s, 0.4 * s, placed_beside)
+        return across, centres, depths
+
+    sized = size_boxes(spec, style, measure)
+    across, centres, depths = tidy(sized)
+    if down and style.wide_questions:
+        # A question above children spread wide may take their width and so fewer lines: the
+        # tree grows less deep, and no wider. The widths follow from each subtree alone, so
+        # identical subtrees stay identical.
+        wider = {}
+        for parent, kids in spec.children.items():
+            below = [k for k in kids if k not in side]
+            if len(below) < len(kids) or not below:
+                continue  # an outcome box beside it would be pushed out
+            room = 2 * min(centres[parent] - min(centres[k] - across[k] / 2 for k in below),
+                           max(centres[k] + across[k] / 2 for k in below) - centres[parent])
+            em = (room - question_frame(spec.boxes[parent], s, measure)) / s
+            if em > style.question_em * QUESTION_STRETCH:
+                wider[parent] = min(em, WIDEST_QUESTION_EM)
+        if wider:
+            sized = size_boxes(spec, style, measure, wider)
+            across, centres, depths = tidy(sized)
     centres = {k: v * breadth_stretch for k, v in centres.items()}
 
     boxes: dict[int, PlacedBox] = {}
@@ -286,7 +313,7 @@ def layout_tree(spec: TreeSpec, style: LayoutStyle, measure: Measure = reportlab
     arrows = []
     for parent, kids in spec.children.items():
         pb = boxes[parent]
-        bus = depths[parent] + along[parent] + stem
+        bus = (pb.rect.bottom if down else pb.rect.right) + stem
         for k, child in enumerate(kids):
             cb = boxes[child]
             lw, lh, llines = labels[(parent, child)]

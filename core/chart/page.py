@@ -1,29 +1,28 @@
-"""Planning one page: header, tree, side panel and footer, at the largest legible text size.
+"""The page around the tree: header, the side panel's sections, cautions, footer and QR code.
 
-The planner tries portrait and landscape (unless fixed), the side panel below the tree or
-beside it, the tree growing down or to the right, and a few wrap widths; it keeps the
-arrangement whose tree text is largest (never below the minimum, at most 1.5 × it), then
-top-down over left-to-right, then the one the tree fills best. The cautions always run across
-the page above the footer. A tree that fits no arrangement at the minimum size gets None (the
-caller refuses it), and spare room is shared out by spreading the tree.
+A frame is one orientation of the page: the header across the top (the banner beside the title
+on a wide page), the cautions with the footer and the QR code across the bottom, and between
+them the zone that the tree and the panel's other sections share. Where the sections go in
+that zone (in the tree's empty top corners, beside it, or in columns below it) is decided for
+each tree by core/chart/arrange.py; the frame lays out a section at any width it is asked for.
 """
 
 from __future__ import annotations
 
 import itertools
 import math
-from dataclasses import dataclass, replace
-from functools import lru_cache
+from dataclasses import dataclass
 
 from .content import ChartText, PanelItem, PanelSection
-from .layout import BoxSpec, LayoutStyle, Para, TreeLayout, TreeSpec, layout_tree
-from .text import CAP, LEADING, Line, Measure, Rect, wrap
+from .layout import TreeLayout
 from .options import ChartOptions, margin_for, page_size
 from .style import TypeScale
+from .text import CAP, LEADING, Line, Measure, Rect, wrap
 
-MAX_TREE_SCALE = 1.5  # tree text up to 1.5 × the minimum when the tree leaves room
-WRAPS = ((12.0, 11.0), (14.0, 13.0), (18.0, 15.0))  # (question, outcome) wrap widths in em
 QR_EM = 4.2  # QR code side in units of the body size (about 13 mm at 9 pt)
+COLUMN_EM = 15.0  # the narrowest column a panel section is set in, in units of the body size
+SECTION_GAP = 0.9  # between sections of one column, in units of the body size
+GAP = 1.2  # between the panel and the tree, and between columns, in units of the body size
 
 
 @dataclass(frozen=True)
@@ -35,6 +34,11 @@ class PanelBlock:
     lines: tuple[Line, ...]
     swatches: tuple[tuple[PanelItem, Rect], ...]  # key items' band swatches
 
+    def moved(self, dx: float, dy: float) -> "PanelBlock":
+        return PanelBlock(self.section, self.rect.moved(dx, dy),
+                          tuple(ln.moved(dx, dy) for ln in self.lines),
+                          tuple((item, r.moved(dx, dy)) for item, r in self.swatches))
+
 
 @dataclass(frozen=True)
 class ChartPlan:
@@ -45,37 +49,39 @@ class ChartPlan:
     width: float
     height: float
     landscape: bool
-    placement: str  # "bottom" or "side": where the panel goes
     printable: Rect  # inside the margins: nothing is drawn outside
     scale: TypeScale
     header: tuple[Line, ...]
     banner: Rect | None
     banner_lines: tuple[Line, ...]
-    tree_area: Rect  # where the tree (or the rows of the rules form) goes
+    tree_area: Rect  # where the tree (or the rows of the rules form) may go
     tree: TreeLayout | None  # None for the rules form
     rules: tuple  # the rules form's rows (core/chart/rules.py), () for a tree
     text_size: float  # the size of the tree's (or the rows') text
-    panel: tuple[PanelBlock, ...]
+    panel: tuple[PanelBlock, ...]  # the cautions first, then the other sections
     footer: tuple[Line, ...]
     qr: Rect
+    dividers: tuple[tuple[float, float, float, float], ...]  # thin lines (x0, y0, x1, y1)
 
     @property
     def direction(self) -> str | None:
         return None if self.tree is None else self.tree.direction
 
 
-class _Frame:
-    """Header, panel and footer for one orientation and panel placement, the cautions across
-    the page or among the other sections."""
+class Frame:
+    """Header, cautions, footer and QR code of one orientation; the zone between them; the
+    other panel sections, laid out at whatever width they are given."""
 
-    def __init__(self, text: ChartText, options: ChartOptions, landscape: bool, placement: str,
-                 cautions_across: bool, measure: Measure):
+    def __init__(self, text: ChartText, options: ChartOptions, landscape: bool,
+                 measure: Measure):
         self.width, self.height = page_size(options.paper, landscape)
         m = margin_for(options.paper)
         self.printable = Rect(m, m, self.width - 2 * m, self.height - 2 * m)
         self.scale = scale = TypeScale(body=options.min_text)
-        self.measure, self.placement = measure, placement
-        b, cw = scale.body, self.printable.w
+        self.measure = measure
+        self.body = b = scale.body
+        cw = self.printable.w
+        self.gap = GAP * b
 
         header: list[Line] = []
         # On a wide page the banner stands beside the title, not below it: the tree keeps
@@ -96,57 +102,42 @@ class _Frame:
             self.banner_lines = tuple(inner)
             if not beside:
                 y = self.banner.bottom + 0.5 * b
-        y = self._lines(header, text.how_to_read, m, y, title_w, True, b)
+        lead, _, rest = text.how_to_read.partition(": ")  # "How to read:" in bold
+        y = self.runs(header, [(lead + ":", True), (rest, False)], m, y, title_w, b)
         if beside:
             y = max(y, self.banner.bottom)
         self.header = tuple(header)
-        self.header_bottom = y + 0.9 * b
+        top = y + 0.9 * b
 
+        # The bottom: the cautions across the page, the footer lines under them, the QR code
+        # to their right.
         qr = QR_EM * b
+        left_w = cw - qr - b
+        cautions = [sec for sec in text.sections if sec.kind == "caution"]
+        blocks = [self._section(sec, left_w) for sec in cautions]
         footer: list[Line] = []
         text_h = 0.0
         for k, t in enumerate(text.footer):
-            text_h = self._lines(footer, t, m, text_h, cw - qr - b, k == 0, b)
-        foot_h = max(qr, text_h)
-        footer_top = self.height - m - foot_h
-        self.footer = tuple(ln.moved(0, footer_top + (foot_h - text_h) / 2) for ln in footer)
-        self.qr = Rect(m + cw - qr, footer_top + (foot_h - qr) / 2, qr, qr)
+            text_h = self._lines(footer, t, m, text_h, left_w, k == 0, b)
+        stacked = sum(blk.rect.h for blk in blocks) + 0.6 * b * len(blocks) + text_h
+        bottom_h = max(qr, stacked)
+        y = self.printable.bottom - bottom_h
+        self.cautions = []
+        for blk in blocks:
+            self.cautions.append(blk.moved(m, y))
+            y += blk.rect.h + 0.6 * b
+        self.footer = tuple(ln.moved(0, y) for ln in footer)
+        self.qr = Rect(m + cw - qr, self.printable.bottom - qr, qr, qr)
+        self.zone = Rect(m, top, cw, self.printable.bottom - bottom_h - self.gap - top)
 
-        gap = 1.2 * b
-        column_em = 15 * b
-        # The cautions run across the whole page just above the footer, or join the other
-        # sections: in columns below the tree, or in one column beside it.
-        cautions = [sec for sec in text.sections if sec.kind == "caution"]
-        others = [sec for sec in text.sections if sec.kind != "caution"]
-        if not cautions_across:
-            others, cautions = others + cautions, []
-        bottom = footer_top - gap
-        self.panel = ()
-        for sec in cautions:
-            block = self._section(sec, cw, joined=True)
-            bottom -= block.rect.h
-            self.panel += (_moved_block(block, m, bottom),)
-            bottom -= gap
-        if placement == "bottom":
-            k = max(1, min(4, len(others), int((cw + gap) // (column_em + gap))))
-            col_w = (cw - (k - 1) * gap) / k
-            blocks = self._columns(others, k, col_w, gap)
-            panel_top = bottom - max((blk.rect.bottom for blk in blocks), default=0)
-            self.panel = tuple(_moved_block(blk, m, panel_top) for blk in blocks) + self.panel
-            self.tree_area = Rect(m, self.header_bottom, cw,
-                                  panel_top - 1.5 * gap - self.header_bottom)
-            self.panel_overflows = self.tree_area.h <= 0
-        else:
-            col_w = min(max(0.28 * cw, column_em), 22 * b)
-            top = self.header_bottom
-            blocks = self._columns(others, 1, col_w, gap)
-            self.panel = tuple(_moved_block(blk, m + cw - col_w, top) for blk in blocks) + self.panel
-            lowest = max((blk.rect.bottom for blk in blocks), default=0) + top
-            self.panel_overflows = lowest > bottom + 1e-6
-            self.tree_area = Rect(m, top, cw - col_w - 2 * gap, bottom - 0.5 * gap - top)
+        self.sections = tuple(sec for sec in text.sections if sec.kind != "caution")
+        self._blocks: dict[tuple[int, float], PanelBlock] = {}
+        self._bands: dict = {}  # columns below, and running sums of stack heights
+
+    # --- text --------------------------------------------------------------------------
 
     def runs(self, out: list[Line], runs: list[tuple[str, bool]], x: float, y: float,
-              width: float, size: float) -> float:
+             width: float, size: float) -> float:
         """Wrap a paragraph whose words are bold or not (a bold headline running into its
         explanation); returns the y below the last line."""
         words = [(w, bold) for text, bold in runs for w in text.split()]
@@ -170,8 +161,10 @@ class _Frame:
                     pieces[-1] = (pieces[-1][0] + " " + word, bold)
                 else:
                     pieces.append((word, bold))
-            for text, bold in pieces:
-                out.append(Line(text, bold, size, left, baseline, False))
+            for k, (text, bold) in enumerate(pieces):
+                # a piece followed by another on its line keeps the space, for copied text
+                tail = " " if k < len(pieces) - 1 else ""
+                out.append(Line(text + tail, bold, size, left, baseline, False))
                 left += self.measure(text, bold, size) + space
             y += size * LEADING
         return y
@@ -184,17 +177,19 @@ class _Frame:
             y += size * LEADING
         return y
 
-    def _section(self, section: PanelSection, width: float, joined: bool = False) -> PanelBlock:
-        """A section laid out at (0, 0); ``joined`` runs its items on as one paragraph."""
-        if joined:
-            section = PanelSection(section.title, (PanelItem(" ".join(
-                i.text for i in section.items)),), section.kind)
+    def _section(self, section: PanelSection, width: float) -> PanelBlock:
+        """A section laid out at (0, 0). The cautions run on as one paragraph after their
+        title, in bold; the other sections have a heading line."""
         b, heading = self.scale.body, self.scale.heading
         boxed = section.kind in ("caution", "checked")
         pad = 0.6 * b if boxed else 0.0
         inner = width - 2 * pad
         lines: list[Line] = []
         swatches = []
+        if section.kind == "caution":
+            runs = [(section.title + ".", True), (" ".join(i.text for i in section.items), False)]
+            y = self.runs(lines, runs, pad, pad, inner, b)
+            return PanelBlock(section, Rect(0, 0, width, y + pad), tuple(lines), ())
         y = pad
         for t in wrap(section.title, inner, True, heading, self.measure):
             lines.append(Line(t, True, heading, pad, y + heading * LEADING / 2 + CAP * heading, False))
@@ -212,183 +207,95 @@ class _Frame:
         return PanelBlock(section, Rect(0, 0, width, y - 0.3 * b + pad), tuple(lines),
                           tuple(swatches))
 
-    def _columns(self, sections, k: int, width: float, gap: float) -> list[PanelBlock]:
-        """Sections in order, split into ``k`` columns so the tallest column is shortest."""
-        blocks = [self._section(s, width) for s in sections]
-        spacing = 0.9 * self.scale.body
-        heights = [blk.rect.h for blk in blocks]
-        n = len(blocks)
-        k = min(k, n)
+    # --- the panel's other sections ------------------------------------------------------
+
+    def block(self, index: int, width: float) -> PanelBlock:
+        """Section ``index`` laid out at ``width``, at (0, 0); kept, as the planner asks for
+        the same widths again and again."""
+        key = (index, round(width, 3))
+        if key not in self._blocks:
+            self._blocks[key] = self._section(self.sections[index], width)
+        return self._blocks[key]
+
+    def stack(self, first: int, last: int, width: float) -> tuple[list[PanelBlock], float]:
+        """Sections ``first`` to ``last`` (exclusive) one under another at ``width``, from
+        (0, 0); and their height."""
+        placed, y = [], 0.0
+        for k in range(first, last):
+            blk = self.block(k, width)
+            placed.append(blk.moved(0, y))
+            y += blk.rect.h + SECTION_GAP * self.body
+        return placed, max(0.0, y - SECTION_GAP * self.body)
+
+    def stack_height(self, first: int, last: int, width: float) -> float:
+        """The height of :meth:`stack` without placing it."""
+        key = (-1, round(width, 3))
+        if key not in self._bands:  # running sums of the heights at this width
+            sums = [0.0]
+            for k in range(len(self.sections)):
+                sums.append(sums[-1] + self.block(k, width).rect.h + SECTION_GAP * self.body)
+            self._bands[key] = sums
+        sums = self._bands[key]
+        return max(0.0, sums[last] - sums[first] - SECTION_GAP * self.body)
+
+    def columns_below(self, first: int) -> int:
+        """How many columns the sections from ``first`` on take across the page."""
+        wide = int((self.zone.w + self.gap) // (COLUMN_EM * self.body + self.gap))
+        return max(1, min(4, len(self.sections) - first, wide))
+
+    def band(self, first: int) -> tuple[tuple[PanelBlock, ...], float]:
+        """Sections ``first`` to the end in columns across the zone's width, from (0, 0),
+        split in order so that the tallest column is shortest; and the tallest's height."""
+        columns = self.columns_below(first)
+        key = (first, columns)
+        if key not in self._bands:
+            self._bands[key] = self._columns(first, columns)
+        return self._bands[key]
+
+    def _columns(self, first: int, k: int) -> tuple[tuple[PanelBlock, ...], float]:
+        n = len(self.sections)
+        if first >= n:
+            return (), 0.0
+        width = (self.zone.w - (k - 1) * self.gap) / k
+        spacing = SECTION_GAP * self.body
+        heights = [self.block(i, width).rect.h for i in range(first, n)]
         best, best_cuts = math.inf, ()
-        for cuts in itertools.combinations(range(1, n), k - 1):
-            bounds = (0,) + cuts + (n,)
-            tallest = max(sum(heights[a:b]) + spacing * (b - a - 1) for a, b in zip(bounds, bounds[1:]))
+        for cuts in itertools.combinations(range(1, len(heights)), k - 1):
+            bounds = (0,) + cuts + (len(heights),)
+            tallest = max(sum(heights[a:z]) + spacing * (z - a - 1)
+                          for a, z in zip(bounds, bounds[1:]))
             if tallest < best - 1e-9:
                 best, best_cuts = tallest, bounds
         placed = []
         for column, (a, z) in enumerate(zip(best_cuts, best_cuts[1:])):
-            y = 0.0
-            for blk in blocks[a:z]:
-                placed.append(_moved_block(blk, column * (width + gap), y))
-                y += blk.rect.h + spacing
-        return placed
+            blocks, _ = self.stack(first + a, first + z, width)
+            placed += [blk.moved(column * (width + self.gap), 0) for blk in blocks]
+        return tuple(placed), best
 
 
-def _moved_block(block: PanelBlock, dx: float, dy: float) -> PanelBlock:
-    return PanelBlock(block.section, block.rect.moved(dx, dy),
-                      tuple(ln.moved(dx, dy) for ln in block.lines),
-                      tuple((item, r.moved(dx, dy)) for item, r in block.swatches))
+def frames(text: ChartText, options: ChartOptions, measure: Measure) -> list[Frame]:
+    """The page in each orientation the options allow."""
+    return [Frame(text, options, landscape, measure) for landscape in orientations(options)]
 
 
-def _fits(layout: TreeLayout, area: Rect) -> bool:
-    return layout.width <= area.w + 1e-6 and layout.height <= area.h + 1e-6
-
-
-def _largest(make, area: Rect, low: float, high: float, step: float):
-    """The largest value in [low, high] (on a ``step`` grid) whose layout fits ``area``."""
-    best = make(low)
-    if not _fits(best, area):
-        return None
-    lo, hi = 0, int(math.floor((high - low) / step + 1e-9))
-    while lo < hi:  # layouts grow with the value; bisect on the grid
-        mid = (lo + hi + 1) // 2
-        trial = make(low + mid * step)
-        if _fits(trial, area):
-            lo, best = mid, trial
-        else:
-            hi = mid - 1
-    return best
-
-
-def _depth(spec) -> int:
-    deepest, stack = 0, [(spec.root, 0)]
-    while stack:
-        node, d = stack.pop()
-        deepest = max(deepest, d)
-        stack.extend((c, d + 1) for c in spec.children.get(node, ()))
-    return deepest
-
-
-@lru_cache(maxsize=64)
-def _smallest_level(direction: str, size: float, measure: Measure) -> tuple[float, float]:
-    """Along the depth axis: the least a level (question box and its arrows) and an outcome
-    box can take, from boxes with the least possible text."""
-    x = Para("x")
-    spec = TreeSpec(1, {1: (2, 3)}, {1: BoxSpec("question", "1", (x,)),
-                                     2: BoxSpec("outcome", "2", (x, x), Para("LOW", True)),
-                                     3: BoxSpec("outcome", "3", (x, x), Para("LOW", True))},
-                    {(1, 2): (Para("YES", True),), (1, 3): (Para("NO", True),)})
-    layout = layout_tree(spec, LayoutStyle(size, direction), measure)
-    root, child = layout.boxes[1].rect, layout.boxes[2].rect
-    if direction == "down":
-        return child.y - root.y, child.h
-    return child.x - root.x, child.w
-
-
-def _too_deep(spec, direction: str, size: float, measure: Measure, area: Rect) -> bool:
-    """A cheap refusal: even the smallest boxes, one level after another along the tree's
-    deepest path, would not fit ``area``."""
-    level, outcome = _smallest_level(direction, size, measure)
-    need = _depth(spec) * level + outcome
-    return need > (area.h if direction == "down" else area.w) + 1e-6
-
-
-def deepest_possible(text: ChartText, options: ChartOptions, measure: Measure) -> int:
-    """The greatest tree depth that any page arrangement could hold (a cheap bound: a deeper
-    tree is refused by :func:`_too_deep` everywhere). Three body lines of slack allow for
-    panels whose wording differs a little from ``text``'s."""
-    floor, deepest = options.min_text, 0
-    slack = 3 * floor * LEADING
-    for frame in frames(text, options, measure):
-        area = frame.tree_area
-        for direction in _directions(options):
-            level, outcome = _smallest_level(direction, floor, measure)
-            room = (area.h if direction == "down" else area.w) + slack
-            deepest = max(deepest, int((room - outcome) // level))
-    return deepest
-
-
-def frames(text: ChartText, options: ChartOptions, measure: Measure) -> list[_Frame]:
-    """Every arrangement of the page around the tree."""
-    return [_Frame(text, options, landscape, placement, across, measure)
-            for landscape, placement, across in itertools.product(
-                _orientations(options), ("bottom", "side"), (True, False))]
-
-
-def _orientations(options: ChartOptions) -> tuple[bool, ...]:
+def orientations(options: ChartOptions) -> tuple[bool, ...]:
     return {"portrait": (False,), "landscape": (True,)}.get(options.orientation, (False, True))
 
 
-def _directions(options: ChartOptions) -> tuple[str, ...]:
-    return ("down", "right") if options.direction == "auto" else (options.direction,)
-
-
-def plan_page(text: ChartText, options: ChartOptions, measure: Measure,
-              quick: bool = False) -> ChartPlan | None:
-    """The best arrangement of ``text`` on the page, or None when the tree fits nowhere at
-    the minimum text size. ``quick`` only answers whether it fits (no enlarging).
-
-    A layout is exactly proportional to its text size (every length is a multiple of it,
-    wrap widths included), so one layout at the minimum tells the largest size that fits."""
-    floor = options.min_text
-    candidates = [frame for frame in frames(text, options, measure) if not frame.panel_overflows]
-    best, best_key = None, None
-    for direction, wraps, beside in itertools.product(_directions(options), WRAPS, (False, True)):
-        if beside and direction != "down":
-            continue
-        # The tree's layout does not depend on the page around it: one per direction and wrap.
-        fitting = [f for f in candidates if not _too_deep(text.tree, direction, floor, measure,
-                                                       f.tree_area)]
-        if not fitting:
-            continue
-        style = LayoutStyle(floor, direction, *wraps, leaves_beside=beside)
-        layout = layout_tree(text.tree, style, measure)
-        for frame in fitting:
-            area = frame.tree_area
-            room = min(area.w / layout.width, area.h / layout.height)
-            if room < 1 - 1e-9:
-                continue
-            if quick:
-                return _finish(text, options, frame, layout, measure, stretch=False)
-            size = math.floor(floor * min(room, MAX_TREE_SCALE) * 20 + 1e-6) / 20
-            grown = layout_tree(text.tree, replace(style, size=max(size, floor)), measure)
-            while not _fits(grown, area) and grown.size > floor:  # rounding only
-                grown = layout_tree(text.tree, replace(style, size=max(floor, grown.size - 0.05)),
-                                    measure)
-            used = (grown.width * grown.height) / (area.w * area.h)
-            # Largest text first; then top-down (how flowcharts are read), then the
-            # arrangement the tree fills best.
-            key = (round(grown.size, 2), direction == "down", round(used, 3),
-                   frame.width < frame.height)
-            if best_key is None or key > best_key:
-                best_key, best = key, (frame, grown)
-    if best is None:
-        return None
-    frame, layout = best
-    return _finish(text, options, frame, layout, measure, stretch=True)
-
-
-def _finish(text: ChartText, options: ChartOptions, frame: _Frame, layout: TreeLayout,
-            measure: Measure, stretch: bool) -> ChartPlan:
-    area = frame.tree_area
-    if stretch:  # spread the tree into spare room; the tidy properties all survive stretching
-        style, reach = layout.style, layout.depth_stretch
-        layout = _largest(lambda f: layout_tree(text.tree, style, measure, f, reach), area,
-                          1.0, 1.6, 0.05) or layout
-        wide = layout.breadth_stretch
-        layout = _largest(lambda d: layout_tree(text.tree, style, measure, wide, reach + d), area,
-                          0.0, 1.0, 0.05) or layout
-    placed = layout.moved(area.x + (area.w - layout.width) / 2,
-                          area.y + (area.h - layout.height) / 2)
-    return finished_plan(text, options, frame, placed, (), layout.size)
-
-
-def finished_plan(text: ChartText, options: ChartOptions, frame: _Frame,
-                  tree: TreeLayout | None, rules: tuple, size: float) -> ChartPlan:
-    """The page of ``frame`` holding a placed tree, or the rows of the rules form."""
+def finished_plan(text: ChartText, options: ChartOptions, frame: Frame, area: Rect,
+                  panel: tuple[PanelBlock, ...], tree: TreeLayout | None, rules: tuple,
+                  size: float) -> ChartPlan:
+    """The page of ``frame`` with the panel's other sections placed as ``panel`` and the
+    tree (placed) or the rows of the rules form in ``area``."""
+    b, pr = frame.body, frame.printable
+    dividers = []
+    below = [blk.rect.y for blk in panel if blk.rect.y > area.bottom - 1e-6]
+    if below:  # a thin rule between the tree and the sections below it
+        y = min(below) - 0.5 * frame.gap
+        dividers.append((pr.x, y, pr.right, y))
     return ChartPlan(text=text, options=options, width=frame.width, height=frame.height,
-                     landscape=frame.width > frame.height, placement=frame.placement,
-                     printable=frame.printable, scale=TypeScale(body=options.min_text),
-                     header=frame.header, banner=frame.banner, banner_lines=frame.banner_lines,
-                     tree_area=frame.tree_area, tree=tree, rules=rules, text_size=size,
-                     panel=frame.panel, footer=frame.footer, qr=frame.qr)
+                     landscape=frame.width > frame.height, printable=pr,
+                     scale=frame.scale, header=frame.header, banner=frame.banner,
+                     banner_lines=frame.banner_lines, tree_area=area, tree=tree, rules=rules,
+                     text_size=size, panel=tuple(frame.cautions) + panel, footer=frame.footer,
+                     qr=frame.qr, dividers=tuple(dividers))

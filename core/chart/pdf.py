@@ -214,17 +214,10 @@ def paint(c: pdfcanvas.Canvas, plan: ChartPlan) -> set[tuple[str, str]]:
         _outcome(p, row.box, plan, s)
         for line in row.route:
             p.text(line, style.INK, style.WHITE)
-    area, pr = plan.tree_area, plan.printable
-    if plan.placement == "bottom":
-        top = min(blk.rect.y for blk in plan.panel) - 0.9 * b
-        p.hline(pr.x, pr.right, top, style.RULE, 0.6)
-    else:
-        x = min(blk.rect.x for blk in plan.panel if blk.section.kind != "caution") - 1.0 * b
-        p.polyline(((x, area.y), (x, area.bottom)), style.RULE, 0.6)
+    for x0, y0, x1, y1 in plan.dividers:
+        p.polyline(((x0, y0), (x1, y1)), style.RULE, 0.6)
     for block in plan.panel:
         _panel(p, block, b)
-    p.hline(pr.x, pr.right, min(plan.qr.y, min(ln.baseline for ln in plan.footer) - b) - 0.5 * b,
-            style.RULE, 0.6)
     for k, line in enumerate(plan.footer):
         p.text(line, style.INK if k == 0 else style.SOFT_INK, style.WHITE)
     _qr(c, plan)

@@ -3,7 +3,7 @@
 When a tree is too large to draw legibly on the page, the same tree still prints on one page
 as rows: each outcome box as the tree chart draws it (number, band, expected outcome, rate,
 interval, count), beside the answers that lead to it. The header, side panel, cautions,
-footer and QR code are the tree chart's own (core/chart/page.py plans them); only the tree's
+footer and QR code are the tree chart's own (core/chart/page.py lays them out); only the tree's
 place on the page holds rows instead.
 """
 
@@ -18,7 +18,8 @@ from .boxes import LayoutStyle, TreeSpec, size_boxes
 from .content import ChartText
 from .layout import PlacedBox
 from .options import ChartOptions
-from .page import MAX_TREE_SCALE, ChartPlan, finished_plan, frames
+from .arrange import MAX_TREE_SCALE, STEP, rows_arrangements
+from .page import ChartPlan, finished_plan, frames
 from .text import LEADING, Line, Measure, Rect
 
 ROUTE_EM = 16.0  # the route column is at least this wide, in units of the text size
@@ -100,24 +101,24 @@ def plan_rules(model: TreeModel, text: ChartText, options: ChartOptions,
     the rows fit no arrangement at the minimum text size."""
     floor = options.min_text
     best, best_key = None, None
-    for frame, columns in itertools.product(frames(text, options, measure), (1, 2, 3)):
-        if frame.panel_overflows or _rows(model, text.tree, frame, frame.tree_area, floor,
-                                          columns, measure) is None:
-            continue
-        lo, hi = 0, int(math.floor(floor * (MAX_TREE_SCALE - 1) * 20 + 1e-9))
-        while lo < hi:  # the rows grow with the text: bisect on a 0.05 pt grid
-            mid = (lo + hi + 1) // 2
-            if _rows(model, text.tree, frame, frame.tree_area, floor + mid / 20, columns,
-                     measure) is None:
-                hi = mid - 1
-            else:
-                lo = mid
-        size = floor + lo / 20
-        key = (round(size, 2), -columns, frame.width < frame.height)
-        if best_key is None or key > best_key:
-            best_key, best = key, (frame, columns, size)
+    for frame in frames(text, options, measure):
+        for (area, panel), columns in itertools.product(rows_arrangements(frame), (1, 2, 3)):
+            if _rows(model, text.tree, frame, area, floor, columns, measure) is None:
+                continue
+            lo, hi = 0, int(math.floor(floor * (MAX_TREE_SCALE - 1) / STEP + 1e-9))
+            while lo < hi:  # the rows grow with the text: bisect on the grid
+                mid = (lo + hi + 1) // 2
+                if _rows(model, text.tree, frame, area, floor + mid * STEP, columns,
+                         measure) is None:
+                    hi = mid - 1
+                else:
+                    lo = mid
+            size = floor + lo * STEP
+            key = (round(size, 2), -columns, frame.width < frame.height)
+            if best_key is None or key > best_key:
+                best_key, best = key, (frame, area, panel, columns, size)
     if best is None:
         return None
-    frame, columns, size = best
-    rows = _rows(model, text.tree, frame, frame.tree_area, size, columns, measure)
-    return finished_plan(text, options, frame, None, tuple(rows), size)
+    frame, area, panel, columns, size = best
+    rows = _rows(model, text.tree, frame, area, size, columns, measure)
+    return finished_plan(text, options, frame, area, panel, None, tuple(rows), size)

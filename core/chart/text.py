@@ -59,6 +59,12 @@ def balanced_wrap(text: str, width: float, bold: bool, size: float, measure: Mea
                   stretch: float = 1.0) -> list[str]:
     """Wrap within ``width`` (or up to ``stretch`` × it when that saves a line), then narrow
     the lines as far as the line count allows, so they come out of even length."""
+    return list(_balanced(text, width, bold, size, measure, stretch))
+
+
+@lru_cache(maxsize=1 << 14)
+def _balanced(text: str, width: float, bold: bool, size: float, measure: Measure,
+              stretch: float) -> tuple[str, ...]:
     lines = wrap(text, width, bold, size, measure)
     if stretch > 1 and len(lines) > 1:
         wider = wrap(text, width * stretch, bold, size, measure)
@@ -73,7 +79,7 @@ def balanced_wrap(text: str, width: float, bold: bool, size: float, measure: Mea
             else:
                 lo = mid
         lines = wrap(text, hi, bold, size, measure)
-    return lines
+    return tuple(lines)
 
 
 
