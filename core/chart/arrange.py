@@ -269,15 +269,16 @@ def _directions(options: ChartOptions) -> tuple[str, ...]:
 
 def _styles(options: ChartOptions):
     """The layouts tried, at the minimum text size: top-down ones with outcome boxes below
-    or beside their question and questions widened over their children or not; and
-    left-to-right ones; each with question and outcome text wrapped wider or narrower."""
+    or beside their question, questions widened over their children, on one line or
+    wrapped; and left-to-right ones; each with question and outcome text wrapped wider or
+    narrower."""
     for direction in _directions(options):
         down = direction == "down"
-        for question_em, outcome_em, beside, wide in itertools.product(
-                QUESTION_EMS, OUTCOME_EMS, (False, True) if down else (False,),
-                (True, False) if down else (False,)):
+        for question_em, outcome_em, widths, beside, questions in itertools.product(
+                QUESTION_EMS, OUTCOME_EMS, ("shared", "own"), (False, True) if down else (False,),
+                ("widened", "one line", "wrapped") if down else ("wrapped",)):
             yield LayoutStyle(options.min_text, direction, question_em, outcome_em,
-                              leaves_beside=beside, wide_questions=wide)
+                              leaves_beside=beside, questions=questions, outcome_widths=widths)
 
 
 # --- the search -------------------------------------------------------------------------
@@ -292,12 +293,18 @@ def plan_page(text: ChartText, options: ChartOptions, measure: Measure,
     steps = int(floor * (MAX_TREE_SCALE - 1) / STEP + 1e-6)
     pages = frames(text, options, measure)
     best, best_key = None, None
+    drawn = set()
     for style in _styles(options):
         fitting = [f for f in pages if not _too_deep(text.tree, style.direction, floor, measure,
                                                       f.zone)]
         if not fitting:
             continue
         layout = layout_tree(text.tree, style, measure)
+        shape = tuple((k, round(b.rect.x, 3), round(b.rect.y, 3), round(b.rect.w, 3),
+                       round(b.rect.h, 3)) for k, b in sorted(layout.boxes.items()))
+        if shape in drawn:  # another style that draws the same tree
+            continue
+        drawn.add(shape)
         outline = Outline(layout)
         for frame in fitting:
             # Only what could match the best so far is tried further: one check at its size.

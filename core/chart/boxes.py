@@ -57,7 +57,14 @@ class LayoutStyle:
     outcome_em: float = 14.0
     stacked_labels: bool = False  # top-down: "YES" above "or not recorded", not beside it
     leaves_beside: bool = False  # top-down: a question's one outcome box drawn beside it
-    wide_questions: bool = True  # top-down: a question over children spread wide takes their width
+    # Top-down, a question over children spread wide may take their width ("widened"), and
+    # then runs its note on the same line when that fits; with "one line" every question
+    # does so wherever its text fits WIDEST_QUESTION_EM; "wrapped" keeps every question at
+    # question_em.
+    questions: str = "widened"
+    # Outcome boxes all as wide as the widest ("shared": a calm row of cards), or each as
+    # wide as its own text, two side by side under one question as wide as the wider ("own").
+    outcome_widths: str = "shared"
 
 
 # --- box geometry ----------------------------------------------------------------------
@@ -98,20 +105,34 @@ def _wrapped(paras: tuple[Para, ...], width_em: float, s: float, measure: Measur
     return out
 
 
+WIDEST_QUESTION_EM = 26.0  # a question on one line still reads as one phrase
+
+
 def size_boxes(spec: TreeSpec, style: LayoutStyle, measure: Measure,
                wider: Mapping[int, float] | None = None) -> dict[int, SizedBox]:
     """Every box's size and text. A question wraps at the style's width, or at its own
     (in units of the text size) where ``wider`` gives one; a question given its own width
     runs its paragraphs on one line when they fit it ("Age above 68 years?  If not
-    recorded: NO")."""
+    recorded: NO"), and with the style's "one line" questions every question does where
+    they fit WIDEST_QUESTION_EM."""
     s = style.size
     wider = wider or {}
-    outcomes = [b for b in spec.boxes.values() if b.kind == "outcome"]
-    # Outcome boxes share one width (a calm row of cards): the widest any of them needs
-    # when its text wraps at the style's width.
-    shared = max((_outcome_width(b, style.outcome_em, s, measure) for b in outcomes), default=0.0)
-    return {i: _question_box(b, wider.get(i, style.question_em), i in wider, s, measure)
-            if b.kind == "question" else _outcome_box(b, shared, s, measure)
+    everywhere = style.questions == "one line" and style.direction == "down"
+
+    def one_line_em(i: int) -> float:
+        return WIDEST_QUESTION_EM if everywhere else wider.get(i, 0.0)
+
+    widths = {i: _outcome_width(b, style.outcome_em, s, measure)
+              for i, b in spec.boxes.items() if b.kind == "outcome"}
+    if style.outcome_widths == "shared":
+        widths = dict.fromkeys(widths, max(widths.values(), default=0.0))
+    else:
+        for kids in spec.children.values():
+            pair = [k for k in kids if k in widths]
+            if len(pair) > 1:
+                widths.update(dict.fromkeys(pair, max(widths[k] for k in pair)))
+    return {i: _question_box(b, wider.get(i, style.question_em), one_line_em(i), s, measure)
+            if b.kind == "question" else _outcome_box(b, widths[i], s, measure)
             for i, b in spec.boxes.items()}
 
 
@@ -150,15 +171,15 @@ def _outcome_box(box: BoxSpec, text_w: float, s: float, measure: Measure) -> Siz
 
 
 @lru_cache(maxsize=1 << 14)
-def _question_box(box: BoxSpec, wrap_em: float, inline: bool, s: float,
+def _question_box(box: BoxSpec, wrap_em: float, one_line_em: float, s: float,
                   measure: Measure) -> SizedBox:
     pad_x, pad_y, gap, point = 0.6 * s, 0.45 * s, 0.45 * s, 0.6 * s
     r = badge_radius(box, s, measure)
     text_left = point + 0.3 * pad_x + 2 * r + gap
     space = 0.6 * s  # between paragraphs run on one line
     widths = [measure(p.text, p.bold, s * p.scale) for p in box.body]
-    one_line = inline and len(box.body) > 1 and (
-        sum(widths) + space * (len(widths) - 1) <= wrap_em * s + 1e-9)
+    one_line = len(box.body) > 1 and (
+        sum(widths) + space * (len(widths) - 1) <= one_line_em * s + 1e-9)
     if one_line:
         text_w = sum(widths) + space * (len(widths) - 1)
         block = max(p.scale for p in box.body) * s * LEADING

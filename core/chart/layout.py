@@ -19,8 +19,8 @@ from dataclasses import dataclass, replace
 from typing import Mapping
 
 from .boxes import (
-    QUESTION_STRETCH, BoxSpec, LayoutStyle, Para, SizedBox, TreeSpec, question_frame, size_boxes,
-    size_label,
+    QUESTION_STRETCH, WIDEST_QUESTION_EM, BoxSpec, LayoutStyle, Para, SizedBox, TreeSpec,
+    question_frame, size_boxes, size_label,
 )
 from .text import Line, Measure, Rect, balanced_wrap, reportlab_measure, wrap
 
@@ -93,8 +93,6 @@ class TreeLayout:
         """Every box and every arrow label: nothing of these may overlap."""
         return [b.rect for b in self.boxes.values()] + [a.label for a in self.arrows]
 
-
-WIDEST_QUESTION_EM = 26.0  # a question widened over its children still reads as one phrase
 
 # --- tidy placement ----------------------------------------------------------------------
 
@@ -275,12 +273,12 @@ def layout_tree(spec: TreeSpec, style: LayoutStyle, measure: Measure = reportlab
             lw, lh, _ = labels[(parent_of[i], i)]
             level = along[parent_of[i]] / 2
             placed_beside[i] = (lw + 2 * label_pad + arrow, level - label_pad - lh, level)
-        centres, depths = _tidy(spec, across, along, connector, 1.25 * s, 0.4 * s, placed_beside)
+        centres, depths = _tidy(spec, across, along, connector, 1.0 * s, 0.4 * s, placed_beside)
         return across, centres, depths
 
     sized = size_boxes(spec, style, measure)
     across, centres, depths = tidy(sized)
-    if down and style.wide_questions:
+    if down and style.questions != "wrapped":
         # A question above children spread wide may take their width and so fewer lines: the
         # tree grows less deep, and no wider. The widths follow from each subtree alone, so
         # identical subtrees stay identical.
