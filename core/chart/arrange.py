@@ -23,6 +23,7 @@ from dataclasses import dataclass, replace
 from functools import lru_cache
 
 from .content import ChartText
+from .boxes import size_boxes
 from .layout import BoxSpec, LayoutStyle, Para, TreeLayout, TreeSpec, layout_tree
 from .options import ChartOptions
 from .page import ChartPlan, Frame, PanelBlock, finished_plan, frames
@@ -268,17 +269,23 @@ def _directions(options: ChartOptions) -> tuple[str, ...]:
 
 
 def _styles(options: ChartOptions):
-    """The layouts tried, at the minimum text size: top-down ones with outcome boxes below
-    or beside their question, questions widened over their children, on one line or
-    wrapped; and left-to-right ones; each with question and outcome text wrapped wider or
-    narrower."""
+    """The layouts tried, at the minimum text size, each with how far it departs from the
+    calmest drawing (0): top-down ones with questions widened over their children, on one
+    line or wrapped, outcome boxes below or beside their question; and left-to-right ones;
+    each with question and outcome text wrapped wider or narrower, outcome boxes of one width
+    or of their own."""
     for direction in _directions(options):
         down = direction == "down"
         for question_em, outcome_em, widths, beside, questions in itertools.product(
-                QUESTION_EMS, OUTCOME_EMS, ("shared", "own"), (False, True) if down else (False,),
+                QUESTION_EMS[::-1], OUTCOME_EMS[::-1], ("shared", "own"),
+                (False, True) if down else (False,),
                 ("widened", "one line", "wrapped") if down else ("wrapped",)):
-            yield LayoutStyle(options.min_text, direction, question_em, outcome_em,
-                              leaves_beside=beside, questions=questions, outcome_widths=widths)
+            departs = (0.5 * (question_em != QUESTION_EMS[-1]) + (outcome_em != OUTCOME_EMS[-1])
+                       + (widths == "own") + beside
+                       + {"widened": 0, "one line": 1, "wrapped": 2}[questions] * down)
+            yield departs, LayoutStyle(options.min_text, direction, question_em, outcome_em,
+                                       leaves_beside=beside, questions=questions,
+                                       outcome_widths=widths)
 
 
 # --- the search -------------------------------------------------------------------------
@@ -294,21 +301,26 @@ def plan_page(text: ChartText, options: ChartOptions, measure: Measure,
     pages = frames(text, options, measure)
     best, best_key = None, None
     drawn = set()
-    for style in _styles(options):
+    # Text sizes within one twentieth of the minimum count as equal, so that a calmer
+    # drawing is not given up for text a hair larger.
+    bucket = max(1, round(floor * 0.05 / STEP))
+    for departs, style in _styles(options):
         fitting = [f for f in pages if not _too_deep(text.tree, style.direction, floor, measure,
                                                       f.zone)]
         if not fitting:
             continue
-        layout = layout_tree(text.tree, style, measure)
-        shape = tuple((k, round(b.rect.x, 3), round(b.rect.y, 3), round(b.rect.w, 3),
-                       round(b.rect.h, 3)) for k, b in sorted(layout.boxes.items()))
-        if shape in drawn:  # another style that draws the same tree
+        # Styles whose boxes come out the same draw the same tree: laid out once.
+        shape = (style.direction, style.leaves_beside, style.questions,
+                 style.question_em if style.questions == "widened" else None,
+                 tuple((k, b.w, b.h) for k, b in size_boxes(text.tree, style, measure).items()))
+        if shape in drawn:
             continue
         drawn.add(shape)
+        layout = layout_tree(text.tree, style, measure)
         outline = Outline(layout)
         for frame in fitting:
             # Only what could match the best so far is tried further: one check at its size.
-            need = best_key[0] if best_key else 0
+            need = best_key[0] * bucket if best_key else 0
             if _arrange(frame, outline, (floor + need * STEP) / floor, calmest=False) is None:
                 continue
             if quick:
@@ -323,8 +335,8 @@ def plan_page(text: ChartText, options: ChartOptions, measure: Measure,
             scale = (floor + lo * STEP) / floor
             calm = _arrange(frame, outline, scale, calmest=True)
             used = (outline.width * outline.height * scale ** 2) / (frame.zone.w * frame.zone.h)
-            key = (lo, style.direction == "down", -calm.groups(len(frame.sections)),
-                   round(used, 3), frame.width < frame.height)
+            key = (lo // bucket, style.direction == "down", -calm.groups(len(frame.sections)),
+                   -departs, lo, round(used, 3), frame.width < frame.height)
             if best_key is None or key > best_key:
                 best_key, best = key, (frame, style, scale)
     if best is None:

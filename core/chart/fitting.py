@@ -41,10 +41,12 @@ class ChartTooLarge(InputError):
 
     @cached_property
     def largest_fitting(self) -> int | None:
-        """Outcome boxes of the largest tree of the model's pruning sequence that fits."""
+        """Outcome boxes of the largest tree of the model's pruning sequence that fits (up
+        from the smallest, as :func:`fitting_sizes` searches)."""
         model, options, measure = self._model, self._options, self._measure
-        return next((leaves for leaves, collapsed in smaller_trees(model)[1:]
-                     if tree_fits(model, options, measure, collapsed)), None)
+        trees = dict(smaller_trees(model)[1:])
+        return max(fitting_sizes(trees, lambda n: tree_fits(model, options, measure,
+                                                             trees[n])), default=None)
 
     @cached_property
     def rules_fit(self) -> bool:
@@ -218,7 +220,7 @@ def sizes_that_fit(derivation: "Derivation", options: ChartOptions | None = None
     patients: a candidate carries the chosen tree's check in its place, worded alike, so
     its side panel is the one it will print. Trees with more boxes than the page could hold
     packed edge to edge, or deeper than any arrangement allows, are skipped before they are
-    built."""
+    built, and the sizes are tried from the smallest up as :func:`fitting_sizes` says."""
     from ..sizing.chosen_tree import build_model
 
     if options is not None and not isinstance(options, ChartOptions):
@@ -233,17 +235,40 @@ def sizes_that_fit(derivation: "Derivation", options: ChartOptions | None = None
     path = derivation.path
     checked = derivation.model.extra.get("validation")
     depths = _subtree_depths(path)
-    sizes = []
+    candidates = []
     for index, leaves in enumerate(int(v) for v in path.leaves):
-        if leaves in sizes or leaves > most or depths[index] > deepest:
-            continue
+        if leaves not in candidates and leaves <= most and depths[index] <= deepest:
+            candidates.append(leaves)
+
+    def fits(leaves: int) -> bool:
         model = build_model(path, *path.index_for(leaves), derivation.table,
                             derivation.dictionary, derivation.request)
         if checked:
             model = replace(model, extra={**model.extra, "validation": checked})
-        if tree_fits(model, options, measure):
-            sizes.append(leaves)
-    return sizes
+        return tree_fits(model, options, measure)
+
+    found = fitting_sizes(candidates, fits)
+    return [leaves for leaves in candidates if leaves in found]
+
+
+GIVE_UP = 3  # larger trees are not tried after this many sizes in a row that do not fit
+
+
+def fitting_sizes(sizes, fits) -> set[int]:
+    """The sizes (numbers of outcome boxes of one pruning sequence) for which ``fits``
+    holds, tried from the smallest up. Each tree of a pruning sequence holds every smaller
+    one, so once :data:`GIVE_UP` sizes in a row do not fit, the larger ones are not tried:
+    refusing a large tree tries every page arrangement, the slowest answer there is."""
+    found, misses = set(), 0
+    for leaves in sorted(set(sizes)):
+        if fits(leaves):
+            found.add(leaves)
+            misses = 0
+        else:
+            misses += 1
+            if misses == GIVE_UP:
+                break
+    return found
 
 
 def _subtree_depths(path) -> list[int]:

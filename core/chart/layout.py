@@ -104,22 +104,36 @@ Profile = list[tuple[float, float, float]]
 def _combine(a: Profile, b: Profile, outer) -> Profile:
     """The outline of two profiles together: ``outer`` (min or max) wherever both are; a
     sweep over both sorted piece lists."""
+    if not a or not b:
+        return list(a or b)
+    if a[-1][1] <= b[0][0] or b[-1][1] <= a[0][0]:  # one wholly before the other
+        first, second = (a, b) if a[-1][1] <= b[0][0] else (b, a)
+        out = list(first)
+        if out[-1][1] == second[0][0] and out[-1][2] == second[0][2]:
+            out[-1] = (out[-1][0], second[0][1], out[-1][2])
+            return out + second[1:]
+        return out + second
+    smaller = outer is min
     cuts = sorted({t for piece in a for t in piece[:2]} | {t for piece in b for t in piece[:2]})
     out: Profile = []
     i = j = 0
+    na, nb = len(a), len(b)
     for t0, t1 in zip(cuts, cuts[1:]):
-        while i < len(a) and a[i][1] <= t0:
+        while i < na and a[i][1] <= t0:
             i += 1
-        while j < len(b) and b[j][1] <= t0:
+        while j < nb and b[j][1] <= t0:
             j += 1
-        edges = []
-        if i < len(a) and a[i][0] <= t0:
-            edges.append(a[i][2])
-        if j < len(b) and b[j][0] <= t0:
-            edges.append(b[j][2])
-        if not edges:
+        in_a = i < na and a[i][0] <= t0
+        in_b = j < nb and b[j][0] <= t0
+        if in_a and in_b:
+            ea, eb = a[i][2], b[j][2]
+            edge = (ea if ea < eb else eb) if smaller else (ea if ea > eb else eb)
+        elif in_a:
+            edge = a[i][2]
+        elif in_b:
+            edge = b[j][2]
+        else:
             continue
-        edge = outer(edges)
         if out and out[-1][1] == t0 and out[-1][2] == edge:
             out[-1] = (out[-1][0], t1, edge)
         else:
@@ -297,45 +311,51 @@ def layout_tree(spec: TreeSpec, style: LayoutStyle, measure: Measure = reportlab
             across, centres, depths = tidy(sized)
     centres = {k: v * breadth_stretch for k, v in centres.items()}
 
-    boxes: dict[int, PlacedBox] = {}
+    rects: dict[int, Rect] = {}
     for i, box in sized.items():
         if down:
-            x, y = centres[i] - box.w / 2, depths[i]
+            rects[i] = Rect(centres[i] - box.w / 2, depths[i], box.w, box.h)
         else:
-            x, y = depths[i], centres[i] - box.h / 2
-        boxes[i] = PlacedBox(i, box.kind, Rect(x, y, box.w, box.h),
-                             tuple(ln.moved(x, y) for ln in box.lines),
-                             (box.badge[0] + x, box.badge[1] + y, box.badge[2]),
-                             box.strip, box.point)
+            rects[i] = Rect(depths[i], centres[i] - box.h / 2, box.w, box.h)
 
-    arrows = []
+    routes = []  # (parent, child, branch, points, label rect)
     for parent, kids in spec.children.items():
-        pb = boxes[parent]
-        bus = (pb.rect.bottom if down else pb.rect.right) + stem
+        pb = rects[parent]
+        bus = (pb.bottom if down else pb.right) + stem
         for k, child in enumerate(kids):
-            cb = boxes[child]
-            lw, lh, llines = labels[(parent, child)]
+            cb = rects[child]
+            lw, lh, _ = labels[(parent, child)]
             if child in side:  # level with the parent, from its pointed end
-                y = pb.rect.cy
-                start, end = (pb.rect.x, cb.rect.right) if k == 0 else (pb.rect.right, cb.rect.x)
+                y = pb.cy
+                start, end = (pb.x, cb.right) if k == 0 else (pb.right, cb.x)
                 points = ((start, y), (end, y))
                 head = arrow if end > start else -arrow  # the label keeps clear of the head
                 lx, ly = (start + end - head) / 2 - lw / 2, y - label_pad - lh
             elif down:
-                points = ((pb.rect.cx, pb.rect.bottom), (pb.rect.cx, bus), (cb.rect.cx, bus),
-                          (cb.rect.cx, cb.rect.y))
+                points = ((pb.cx, pb.bottom), (pb.cx, bus), (cb.cx, bus), (cb.cx, cb.y))
                 # YES to the left of its drop, NO to the right: outward, away from the stem
-                lx = cb.rect.cx - label_pad - lw if k == 0 else cb.rect.cx + label_pad
-                ly = (bus + cb.rect.y) / 2 - lh / 2
+                lx = cb.cx - label_pad - lw if k == 0 else cb.cx + label_pad
+                ly = (bus + cb.y) / 2 - lh / 2
             else:
-                points = ((pb.rect.right, pb.rect.cy), (bus, pb.rect.cy), (bus, cb.rect.cy),
-                          (cb.rect.x, cb.rect.cy))
-                zone = (bus + cb.rect.x - arrow) / 2
-                lx, ly = zone - lw / 2, cb.rect.cy - lh / 2
-            arrows.append(PlacedArrow(parent, child, k, points, Rect(lx, ly, lw, lh),
-                                      tuple(ln.moved(lx, ly) for ln in llines)))
-    rects = [b.rect for b in boxes.values()] + [a.label for a in arrows]
-    x0, y0 = min(r.x for r in rects), min(r.y for r in rects)
-    layout = TreeLayout(boxes, tuple(arrows), max(r.right for r in rects) - x0,
-                        max(r.bottom for r in rects) - y0, style, breadth_stretch, depth_stretch)
-    return layout.moved(-x0, -y0)
+                points = ((pb.right, pb.cy), (bus, pb.cy), (bus, cb.cy), (cb.x, cb.cy))
+                zone = (bus + cb.x - arrow) / 2
+                lx, ly = zone - lw / 2, cb.cy - lh / 2
+            routes.append((parent, child, k, points, Rect(lx, ly, lw, lh)))
+
+    # Everything moved once, so that the drawing starts at (0, 0).
+    every = list(rects.values()) + [route[4] for route in routes]
+    x0, y0 = min(r.x for r in every), min(r.y for r in every)
+    boxes: dict[int, PlacedBox] = {}
+    for i, box in sized.items():
+        r = rects[i].moved(-x0, -y0)
+        boxes[i] = PlacedBox(i, box.kind, r, tuple(ln.moved(r.x, r.y) for ln in box.lines),
+                             (box.badge[0] + r.x, box.badge[1] + r.y, box.badge[2]),
+                             box.strip, box.point)
+    arrows = []
+    for parent, child, k, points, label in routes:
+        label = label.moved(-x0, -y0)
+        arrows.append(PlacedArrow(parent, child, k, tuple((x - x0, y - y0) for x, y in points),
+                                  label, tuple(ln.moved(label.x, label.y)
+                                               for ln in labels[(parent, child)][2])))
+    return TreeLayout(boxes, tuple(arrows), max(r.right for r in every) - x0,
+                      max(r.bottom for r in every) - y0, style, breadth_stretch, depth_stretch)
