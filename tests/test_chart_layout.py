@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import random
 import subprocess
+from dataclasses import replace
 import sys
 from pathlib import Path
 
@@ -19,7 +20,8 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from core.chart.layout import (
-    BoxSpec, LayoutStyle, Para, TreeSpec, balanced_wrap, layout_tree, reportlab_measure, wrap,
+    BoxSpec, LayoutStyle, Para, TreeSpec, balanced_wrap, beside_parent, layout_tree,
+    reportlab_measure, wrap,
 )
 
 ROOT = Path(__file__).resolve().parents[1]
@@ -88,6 +90,34 @@ def random_tree(seed: int, max_leaves: int = 14, duplicate: bool = False) -> Tre
     return TreeSpec(root, children, boxes, labels)
 
 
+def _segments(layout):
+    """Every straight stretch of every arrow: (arrow, (x0, y0), (x1, y1))."""
+    return [(arrow, a, b) for arrow in layout.arrows for a, b in zip(arrow.points, arrow.points[1:])]
+
+
+def _cuts_through(a, b, rect, tol: float) -> bool:
+    """An axis-parallel stretch from a to b passes through the inside of ``rect``."""
+    (x0, y0), (x1, y1) = a, b
+    lo_x, hi_x, lo_y, hi_y = min(x0, x1), max(x0, x1), min(y0, y1), max(y0, y1)
+    return (lo_x < rect.right - tol and hi_x > rect.x + tol and
+            lo_y < rect.bottom - tol and hi_y > rect.y + tol) if lo_x < hi_x or lo_y < hi_y \
+        else False
+
+
+def _cross(first, second, tol: float) -> bool:
+    """Two axis-parallel stretches meet anywhere but at an end of both."""
+    (a0, a1), (b0, b1) = first, second
+    ax, ay = sorted((a0[0], a1[0])), sorted((a0[1], a1[1]))
+    bx, by = sorted((b0[0], b1[0])), sorted((b0[1], b1[1]))
+    meet_x = ax[0] <= bx[1] + tol and bx[0] <= ax[1] + tol
+    meet_y = ay[0] <= by[1] + tol and by[0] <= ay[1] + tol
+    if not (meet_x and meet_y):
+        return False
+    ends = {(round(x, 6), round(y, 6)) for x, y in (a0, a1)} & {
+        (round(x, 6), round(y, 6)) for x, y in (b0, b1)}
+    return not ends
+
+
 def check_tidy(spec: TreeSpec, layout, tol: float = 1e-6) -> None:
     rects = layout.rects()
     # No two boxes (or arrow labels) overlap (Reingold & Tilford 1981; Walker 1990).
@@ -95,24 +125,42 @@ def check_tidy(spec: TreeSpec, layout, tol: float = 1e-6) -> None:
         for j in range(i + 1, len(rects)):
             assert not rects[i].overlaps(rects[j]), (rects[i], rects[j])
     down = layout.direction == "down"
+    beside = {a.child for a in layout.arrows if a.beside}
     for parent, kids in spec.children.items():
         p = layout.boxes[parent].rect
-        first, last = layout.boxes[kids[0]].rect, layout.boxes[kids[-1]].rect
-        # A parent is centred over its first and last child (Reingold & Tilford 1981).
+        below = [k for k in kids if k not in beside]
+        first, last = layout.boxes[below[0]].rect, layout.boxes[below[-1]].rect
+        # A parent is centred over its first and last child (Reingold & Tilford 1981), or,
+        # with an outcome box beside it, over its one child below.
         if down:
             assert p.cx == pytest.approx((first.cx + last.cx) / 2, abs=tol)
-            assert all(layout.boxes[k].rect.y > p.bottom for k in kids)
+            assert all(layout.boxes[k].rect.y > p.bottom for k in below)
         else:
             assert p.cy == pytest.approx((first.cy + last.cy) / 2, abs=tol)
-            assert all(layout.boxes[k].rect.x > p.right for k in kids)
+            assert all(layout.boxes[k].rect.x > p.right for k in below)
         # Siblings start level with each other, in YES-then-NO order.
-        starts = [layout.boxes[k].rect.y if down else layout.boxes[k].rect.x for k in kids]
+        starts = [layout.boxes[k].rect.y if down else layout.boxes[k].rect.x for k in below]
         assert max(starts) - min(starts) < tol
-        assert (first.cx < last.cx) if down else (first.cy < last.cy)
+        if len(below) > 1:
+            assert (first.cx < last.cx) if down else (first.cy < last.cy)
+        # The documented variant: an outcome box beside its question, level with its top,
+        # YES to the left and NO to the right, reached by one level arrow.
+        for k, kid in enumerate(kids):
+            if kid in beside:
+                c = layout.boxes[kid].rect
+                assert down and spec.boxes[kid].kind == "outcome" and len(below) == 1
+                assert c.y == pytest.approx(p.y, abs=tol) and c.y < p.cy < c.bottom
+                assert (c.right < p.x) if k == 0 else (c.x > p.right)
     for arrow in layout.arrows:
         p, c = layout.boxes[arrow.parent].rect, layout.boxes[arrow.child].rect
         (x0, y0), (x1, y1) = arrow.points[0], arrow.points[-1]
-        if down:  # leaves the parent's bottom edge, enters the child's top edge
+        if arrow.beside:  # from the parent's pointed end, level, into the child's side
+            assert y0 == pytest.approx(p.cy) and y1 == pytest.approx(p.cy)
+            assert x0 == pytest.approx(p.x if arrow.branch == 0 else p.right)
+            assert x1 == pytest.approx(c.right if arrow.branch == 0 else c.x)
+            assert (arrow.label.bottom < y0 or arrow.label.y > y0)  # above or below the line
+            assert min(x0, x1) < arrow.label.cx < max(x0, x1)
+        elif down:  # leaves the parent's bottom edge, enters the child's top edge
             assert y0 == pytest.approx(p.bottom) and p.x < x0 < p.right
             assert y1 == pytest.approx(c.y) and x1 == pytest.approx(c.cx)
             assert p.bottom < arrow.label.y and arrow.label.bottom < c.y
@@ -125,6 +173,25 @@ def check_tidy(spec: TreeSpec, layout, tol: float = 1e-6) -> None:
         # Every segment is horizontal or vertical.
         for (ax, ay), (bx, by) in zip(arrow.points, arrow.points[1:]):
             assert ax == pytest.approx(bx) or ay == pytest.approx(by)
+    # No arrow runs through a box or another arrow's label (left to right, a label sits on
+    # its own arrow), and arrows from different questions never cross or run together
+    # (Reingold & Tilford 1981: a planar drawing).
+    segments = _segments(layout)
+    for arrow, a, b in segments:
+        for rect in rects:
+            if rect is not arrow.label:
+                assert not _cuts_through(a, b, rect, tol), (arrow.parent, arrow.child, rect)
+    for i, (arrow, a, b) in enumerate(segments):
+        for other, c, d in segments[i + 1:]:
+            if other.parent != arrow.parent:
+                assert not _cross((a, b), (c, d), tol), (arrow.parent, other.parent)
+
+
+STYLES = [  # every drawing the page planner tries (core/chart/arrange.py)
+    {}, {"leaves_beside": True}, {"questions": "one line"}, {"questions": "wrapped"},
+    {"outcome_widths": "own"}, {"leaves_beside": True, "questions": "one line",
+                                "outcome_widths": "own", "outcome_em": 0.0},
+]
 
 
 def subtree(spec: TreeSpec, node: int) -> list[int]:
@@ -140,19 +207,33 @@ def subtree(spec: TreeSpec, node: int) -> list[int]:
 @pytest.mark.parametrize("seed", range(40))
 def test_random_trees_are_tidy(seed: int, direction: str) -> None:
     spec = random_tree(seed)
-    layout = layout_tree(spec, LayoutStyle(9.0, direction, 12 + seed % 6, 11 + seed % 4),
-                         fake_measure)
+    style = replace(LayoutStyle(9.0, direction, 12 + seed % 6, 11 + seed % 4),
+                    **STYLES[seed % len(STYLES)])
+    layout = layout_tree(spec, style, fake_measure)
     check_tidy(spec, layout)
     assert set(layout.boxes) == set(spec.boxes)
     assert len(layout.arrows) == 2 * len(spec.children)
 
 
+@pytest.mark.parametrize("style", STYLES)
+@pytest.mark.parametrize("seed", range(15))
+def test_every_drawing_the_planner_tries_is_tidy(seed: int, style: dict) -> None:
+    """With the real font's widths: outcome boxes beside their question, questions widened
+    over their children or on one line, outcome boxes of their own width."""
+    spec = random_tree(seed)
+    layout = layout_tree(spec, LayoutStyle(9.0, "down", **style), reportlab_measure)
+    check_tidy(spec, layout)
+    if style.get("leaves_beside"):
+        assert any(a.beside for a in layout.arrows) or not beside_parent(spec)
+
+
 @settings(max_examples=40, deadline=None)
 @given(seed=st.integers(0, 10_000), size=st.floats(6, 20), direction=st.sampled_from(["down", "right"]),
-       breadth=st.floats(1.0, 1.6), depth=st.floats(1.0, 2.0))
-def test_tidy_properties_survive_any_size_and_stretch(seed, size, direction, breadth, depth) -> None:
+       breadth=st.floats(1.0, 1.6), depth=st.floats(1.0, 2.0), style=st.sampled_from(STYLES))
+def test_tidy_properties_survive_any_size_and_stretch(seed, size, direction, breadth, depth,
+                                                      style) -> None:
     spec = random_tree(seed, max_leaves=10)
-    layout = layout_tree(spec, LayoutStyle(size, direction), fake_measure, breadth, depth)
+    layout = layout_tree(spec, LayoutStyle(size, direction, **style), fake_measure, breadth, depth)
     check_tidy(spec, layout)
 
 
@@ -161,7 +242,8 @@ def test_tidy_properties_survive_any_size_and_stretch(seed, size, direction, bre
 def test_identical_subtrees_are_drawn_identically(seed: int, direction: str) -> None:
     """Reingold & Tilford (1981): a subtree is drawn the same wherever it occurs."""
     spec = random_tree(seed, max_leaves=12, duplicate=True)
-    layout = layout_tree(spec, LayoutStyle(10.0, direction), fake_measure)
+    layout = layout_tree(spec, LayoutStyle(10.0, direction, **STYLES[seed % len(STYLES)]),
+                         fake_measure)
     check_tidy(spec, layout)
     yes, no = spec.children[spec.root]
     a, b = subtree(spec, yes), subtree(spec, no)
@@ -182,8 +264,9 @@ def test_identical_subtrees_are_drawn_identically(seed: int, direction: str) -> 
 def test_layout_is_proportional_to_the_text_size(seed: int) -> None:
     """The page planner relies on it: every length is a multiple of the text size."""
     spec = random_tree(seed)
-    small = layout_tree(spec, LayoutStyle(9.0, "down", 14, 12), fake_measure)
-    large = layout_tree(spec, LayoutStyle(13.5, "down", 14, 12), fake_measure)
+    style = STYLES[seed % len(STYLES)]
+    small = layout_tree(spec, replace(LayoutStyle(9.0, "down", 14, 12), **style), fake_measure)
+    large = layout_tree(spec, replace(LayoutStyle(13.5, "down", 14, 12), **style), fake_measure)
     assert large.width == pytest.approx(small.width * 1.5, rel=1e-9)
     assert large.height == pytest.approx(small.height * 1.5, rel=1e-9)
     for k, box in small.boxes.items():

@@ -281,12 +281,15 @@ def layout_tree(spec: TreeSpec, style: LayoutStyle, measure: Measure = reportlab
                 own = max(own, 2 * (lw + label_pad) if down else lh)
             across[i], along[i] = own, (box.h if down else box.w)
         # A box beside its parent: its arrow runs level from the parent's point, its label
-        # above the arrow, so the arrow is at least as long as the label.
+        # along the arrow, so the arrow is at least as long as the label.
         placed_beside = {}
         for i in side:
             lw, lh, _ = labels[(parent_of[i], i)]
             level = along[parent_of[i]] / 2
-            placed_beside[i] = (lw + 2 * label_pad + arrow, level - label_pad - lh, level)
+            # above the arrow, or below it when a short question leaves no room above: it
+            # stays level with the question, clear of the label of the arrow into it
+            top = level - label_pad - lh if level - label_pad - lh >= 0 else level + label_pad
+            placed_beside[i] = (lw + 2 * label_pad + arrow, top, top + lh)
         centres, depths = _tidy(spec, across, along, connector, 1.0 * s, 0.4 * s, placed_beside)
         return across, centres, depths
 
@@ -330,7 +333,8 @@ def layout_tree(spec: TreeSpec, style: LayoutStyle, measure: Measure = reportlab
                 start, end = (pb.x, cb.right) if k == 0 else (pb.right, cb.x)
                 points = ((start, y), (end, y))
                 head = arrow if end > start else -arrow  # the label keeps clear of the head
-                lx, ly = (start + end - head) / 2 - lw / 2, y - label_pad - lh
+                lx = (start + end - head) / 2 - lw / 2
+                ly = y - label_pad - lh if y - label_pad - lh >= pb.y else y + label_pad
             elif down:
                 points = ((pb.cx, pb.bottom), (pb.cx, bus), (cb.cx, bus), (cb.cx, cb.y))
                 # YES to the left of its drop, NO to the right: outward, away from the stem
