@@ -1,36 +1,40 @@
 """Arranging the tree and the panel's sections on the page, at the largest legible text size.
 
-A tidy tree is narrow at the top and wide at the bottom, so its top corners are empty. The
-panel's sections (where the tree comes from, how well it predicts, the key) go in order into
-a stack in the top-left corner, a stack in the top-right corner and columns below the tree,
-any of these empty: all below is the classic page, all top-right a column beside the tree.
-The planner tries every such split, a few stack widths, both orientations (unless fixed), the
-tree growing down or to the right and a few wrap widths, and keeps the arrangement whose tree
-text is largest (never below the minimum, at most 1.5 × it); then top-down over left-to-right
-(how flowcharts are read), then the one with fewer groups of sections, then the one the tree
-fills best. Spare room is shared out by spreading the tree. A tree that fits no arrangement
-at the minimum size gets None (the caller refuses it).
+A tidy tree is narrow at the top (and a deep one often at the bottom too), so the corners of
+the zone beside it are empty. The panel's sections (where the tree comes from, how well it
+predicts, its check on separate patients, the key) go in order into stacks in those corners
+and into columns below the tree: all below is the classic page, all in one corner a column
+beside the tree. For each tree the planner tries both orientations (unless one is fixed),
+several drawings of the tree (core/chart/boxes.py's LayoutStyle: growing down or to the
+right; questions widened over their children, on one line or wrapped; outcome boxes below
+their question or beside it, of one width or each of its own) and, for each, where the
+sections fit around it. It keeps the arrangement whose tree text is largest (never below
+the minimum, at most 1.5 × it; sizes within a twentieth of the minimum count as equal), then
+top-down over left-to-right (how flowcharts are read), then the one with fewer groups of
+sections, then the calmer drawing, then the larger text, then the one the tree fills best.
+Spare room is shared out by spreading the tree. A tree that fits no arrangement at the
+minimum size gets None (the caller refuses it).
 
 A layout is exactly proportional to its text size, so one layout at the minimum answers every
-size: its outline (the boxes, labels and arrows, sorted by their top) is scaled, not redrawn.
+size: its outline (the boxes, labels and arrows, sorted by their top and by their bottom) is
+scaled, not drawn again; and a search at a size stops at the first arrangement that fits.
 """
 
 from __future__ import annotations
 
-import bisect
 import itertools
 from dataclasses import dataclass, replace
 from functools import lru_cache
 
-from .content import ChartText
 from .boxes import size_boxes
+from .content import ChartText
 from .layout import BoxSpec, LayoutStyle, Para, TreeLayout, TreeSpec, layout_tree
 from .options import ChartOptions
 from .page import ChartPlan, Frame, PanelBlock, finished_plan, frames
 from .text import LEADING, Measure, Rect
 
 MAX_TREE_SCALE = 1.5  # tree text up to 1.5 × the minimum when the tree leaves room
-QUESTION_EMS = (11.0, 14.0)  # wrap widths of question text tried, in units of the text size
+QUESTION_EMS = (9.0, 11.0, 14.0)  # wrap widths of question text tried, in units of the text size
 OUTCOME_EMS = (0.0, 15.0)  # outcome text wrapped as narrow as its numbers, or not at all
 STACK_EMS = (15.0, 19.0, 24.0)  # widths of a corner stack, in units of the body size
 STEP = 0.05  # text sizes are tried on a 0.05 pt grid
@@ -112,7 +116,7 @@ def _arrange(frame: Frame, outline: Outline, scale: float, calmest: bool) -> Arr
     if width > zone.w + 1e-6:
         return None
     best = None
-    for band in range(count, -1, -1):  # all below first, then fewer and fewer
+    for band in range(count + 1):  # all below first (the classic page), then fewer and fewer
         bottom = zone.bottom - (frame.band(band)[1] + gap if band < count else 0.0)
         if height > bottom - zone.y + 1e-6:
             continue
@@ -164,22 +168,25 @@ def _fill(frame: Frame, outline: Outline, scale: float, x: float, y: float, area
             k = first
             while k < last and frame.stack_height(first, k + 1, stack_w) <= room + 1e-6:
                 k += 1
-            while k > first:  # clear of the stacks in the other corners
-                height = frame.stack_height(first, k, stack_w)
-                rect = Rect(area.x if left else area.right - stack_w,
-                            area.y if top else area.bottom - height, stack_w, height + gap)
-                if not any(rect.overlaps(other) for other in taken):
-                    break
-                k -= 1
+            while k > first and any(_stack_rect(area, corner, stack_w, frame.stack_height(
+                    first, k, stack_w)).overlaps(other) for other in taken):
+                k -= 1  # one gap clear of the stacks in the other corners
             if k > first and (best is None or k > best[1]):
-                best = (stack_w, k, rect)
+                best = (stack_w, k)
         if best is None:
             continue
-        stack_w, k, rect = best
-        taken.append(rect)
+        stack_w, k = best
+        rect = _stack_rect(area, corner, stack_w, frame.stack_height(first, k, stack_w))
+        taken.append(Rect(rect.x - gap, rect.y - gap, rect.w + 2 * gap, rect.h + 2 * gap))
         stacks.append((corner, first, k, stack_w))
         first = k
     return tuple(stacks) if first == last else None
+
+
+def _stack_rect(area: Rect, corner: str, width: float, height: float) -> Rect:
+    """Where a stack of sections ``width`` × ``height`` goes in ``corner`` of ``area``."""
+    return Rect(area.x if corner.endswith("left") else area.right - width,
+                area.y if corner.startswith("top") else area.bottom - height, width, height)
 
 
 def _panel(frame: Frame, arr: Arrangement) -> tuple[PanelBlock, ...]:
@@ -187,9 +194,8 @@ def _panel(frame: Frame, arr: Arrangement) -> tuple[PanelBlock, ...]:
     area, placed = arr.area, []
     for corner, first, last, width in arr.stacks:
         blocks, height = frame.stack(first, last, width)
-        x = area.x if corner.endswith("left") else area.right - width
-        y = area.y if corner.startswith("top") else area.bottom - height
-        placed += [b.moved(x, y) for b in blocks]
+        rect = _stack_rect(area, corner, width, height)
+        placed += [b.moved(rect.x, rect.y) for b in blocks]
     if arr.band < len(frame.sections):
         placed += [b.moved(area.x, area.bottom + frame.gap) for b in frame.band(arr.band)[0]]
     return tuple(placed)
@@ -265,7 +271,10 @@ def deepest_possible(text: ChartText, options: ChartOptions, measure: Measure) -
 
 
 def _directions(options: ChartOptions) -> tuple[str, ...]:
-    return ("down", "right") if options.direction == "auto" else (options.direction,)
+    """Top-down unless left to right is asked for: on the capacity benchmark's trees
+    (tests/benchmarks/bench_chart_capacity.py) left to right never held a tree that one of
+    the top-down drawings could not, so trying it would only slow the planning."""
+    return ("down",) if options.direction == "auto" else (options.direction,)
 
 
 def _styles(options: ChartOptions):
@@ -280,7 +289,8 @@ def _styles(options: ChartOptions):
                 QUESTION_EMS[::-1], OUTCOME_EMS[::-1], ("shared", "own"),
                 (False, True) if down else (False,),
                 ("widened", "one line", "wrapped") if down else ("wrapped",)):
-            departs = (0.5 * (question_em != QUESTION_EMS[-1]) + (outcome_em != OUTCOME_EMS[-1])
+            departs = (0.5 * (len(QUESTION_EMS) - 1 - QUESTION_EMS.index(question_em))
+                       + (outcome_em != OUTCOME_EMS[-1])
                        + (widths == "own") + beside
                        + {"widened": 0, "one line": 1, "wrapped": 2}[questions] * down)
             yield departs, LayoutStyle(options.min_text, direction, question_em, outcome_em,

@@ -57,8 +57,8 @@ class PlacedArrow:
 
     @property
     def beside(self) -> bool:
-        """The child is drawn level with its parent, beside it (one straight arrow)."""
-        return len(self.points) == 2
+        """The child is drawn level with its parent, beside it (one level arrow)."""
+        return len(self.points) == 2 and self.points[0][1] == self.points[1][1]
 
     def moved(self, dx: float, dy: float) -> "PlacedArrow":
         return PlacedArrow(self.parent, self.child, self.branch,
@@ -165,7 +165,7 @@ def _separation(right: Profile, left: Profile, gap: float) -> float:
 def _tidy(spec: TreeSpec, across: Mapping[int, float], along: Mapping[int, float],
           connector: float, gap: float, margin: float,
           beside: Mapping[int, tuple[float, float, float]] | None = None,
-          ) -> tuple[dict[int, float], dict[int, float]]:
+          straight: float | None = None) -> tuple[dict[int, float], dict[int, float]]:
     """Breadth centre and depth start of every box, relative to the root.
 
     Non-layered tidy drawing (van der Ploeg 2014, after Reingold & Tilford 1981 and Walker
@@ -175,7 +175,8 @@ def _tidy(spec: TreeSpec, across: Mapping[int, float], along: Mapping[int, float
     ``beside`` names outcome boxes drawn level with their parent, to its side (YES to the
     left, NO to the right), each with (the least length of its side arrow, and the depth
     range its arrow label takes, from the parent's start); the parent is then centred over
-    its other child alone, whose subtree may run on below the outcome box."""
+    its other child alone, whose subtree may run on below the outcome box, ``straight`` (the
+    connector of one straight arrow, no bus) below it."""
     beside = beside or {}
 
     def place(node: int):
@@ -185,13 +186,13 @@ def _tidy(spec: TreeSpec, across: Mapping[int, float], along: Mapping[int, float
         kids = spec.children.get(node, ())
         if not kids:
             return {node: 0.0}, {node: 0.0}, own_left, own_right
-        start = size + connector
+        below = [k for k in kids if k not in beside]
+        start = size + (connector if len(below) > 1 or straight is None else straight)
         centres: dict[int, float] = {}
         depths: dict[int, float] = {}
         left: Profile = []
         right: Profile = []
         offsets = []
-        below = [k for k in kids if k not in beside]
         for child in below:
             c, d, cl, cr = place(child)
             shift = _separation(right, _shifted(cl, start, 0.0), gap) if right else 0.0
@@ -270,6 +271,9 @@ def layout_tree(spec: TreeSpec, style: LayoutStyle, measure: Measure = reportlab
         connector = (stem + label_depth + 2 * label_pad) * depth_stretch
     else:
         connector = (stem + label_depth + 2 * label_pad + arrow) * depth_stretch
+    # A question whose one child below is straight under it (its outcome box beside it)
+    # needs no bus: the drop is as long as its label is high.
+    straight = (label_depth + 2 * label_pad) * depth_stretch if down else None
 
     def tidy(sized: Mapping[int, SizedBox]):
         across, along = {}, {}
@@ -290,7 +294,8 @@ def layout_tree(spec: TreeSpec, style: LayoutStyle, measure: Measure = reportlab
             # stays level with the question, clear of the label of the arrow into it
             top = level - label_pad - lh if level - label_pad - lh >= 0 else level + label_pad
             placed_beside[i] = (lw + 2 * label_pad + arrow, top, top + lh)
-        centres, depths = _tidy(spec, across, along, connector, 1.0 * s, 0.4 * s, placed_beside)
+        centres, depths = _tidy(spec, across, along, connector, 1.0 * s, 0.4 * s, placed_beside,
+                                straight)
         return across, centres, depths
 
     sized = size_boxes(spec, style, measure)
@@ -335,6 +340,10 @@ def layout_tree(spec: TreeSpec, style: LayoutStyle, measure: Measure = reportlab
                 head = arrow if end > start else -arrow  # the label keeps clear of the head
                 lx = (start + end - head) / 2 - lw / 2
                 ly = y - label_pad - lh if y - label_pad - lh >= pb.y else y + label_pad
+            elif down and any(kid in side for kid in kids):  # one straight drop
+                points = ((pb.cx, pb.bottom), (cb.cx, cb.y))
+                lx = cb.cx - label_pad - lw if k == 0 else cb.cx + label_pad
+                ly = (pb.bottom + cb.y) / 2 - lh / 2
             elif down:
                 points = ((pb.cx, pb.bottom), (pb.cx, bus), (cb.cx, bus), (cb.cx, cb.y))
                 # YES to the left of its drop, NO to the right: outward, away from the stem

@@ -65,7 +65,7 @@ class ChartOptions:
 
     paper: str = "a4"
     orientation: str = "auto"  # auto | portrait | landscape
-    direction: str = "auto"  # auto | down (top-down) | right (left-to-right)
+    direction: str = "auto"  # auto (top-down: see core/chart/arrange.py) | down | right
     title: str | None = None
     subtitle: str | None = None
     min_text: float | None = None  # points; default from the paper

@@ -115,10 +115,10 @@ class Frame:
         left_w = cw - qr - b
         cautions = [sec for sec in text.sections if sec.kind == "caution"]
         blocks = [self._section(sec, left_w) for sec in cautions]
-        footer: list[Line] = []
-        text_h = 0.0
-        for k, t in enumerate(text.footer):
-            text_h = self._lines(footer, t, m, text_h, left_w, k == 0, b)
+        footer: list[Line] = []  # the fingerprints in bold, what they are run on after them
+        first, *rest = text.footer
+        text_h = self.runs(footer, [(first, True)] + [(t, False) for t in rest], m, 0.0,
+                           left_w, b)
         stacked = sum(blk.rect.h for blk in blocks) + 0.6 * b * len(blocks) + text_h
         bottom_h = max(qr, stacked)
         y = self.printable.bottom - bottom_h

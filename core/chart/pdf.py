@@ -218,8 +218,8 @@ def paint(c: pdfcanvas.Canvas, plan: ChartPlan) -> set[tuple[str, str]]:
         p.polyline(((x0, y0), (x1, y1)), style.RULE, 0.6)
     for block in plan.panel:
         _panel(p, block, b)
-    for k, line in enumerate(plan.footer):
-        p.text(line, style.INK if k == 0 else style.SOFT_INK, style.WHITE)
+    for line in plan.footer:
+        p.text(line, style.INK if line.bold else style.SOFT_INK, style.WHITE)
     _qr(c, plan)
     return p.pairs
 
