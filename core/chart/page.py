@@ -115,10 +115,18 @@ class Frame:
         left_w = cw - qr - b
         cautions = [sec for sec in text.sections if sec.kind == "caution"]
         blocks = [self._section(sec, left_w) for sec in cautions]
-        footer: list[Line] = []  # the fingerprints in bold, what they are run on after them
+        # The fingerprints in bold, what they are run on after them when all fits one line,
+        # else on lines of their own.
+        footer: list[Line] = []
         first, *rest = text.footer
-        text_h = self.runs(footer, [(first, True)] + [(t, False) for t in rest], m, 0.0,
-                           left_w, b)
+        runs = [(first, True)] + [(t, False) for t in rest]
+        whole = sum(measure(t, bold, b) for t, bold in runs) + measure(" ", False, b) * len(rest)
+        if whole <= left_w:
+            text_h = self.runs(footer, runs, m, 0.0, left_w, b)
+        else:
+            text_h = 0.0
+            for t, bold in runs:
+                text_h = self.runs(footer, [(t, bold)], m, text_h, left_w, b)
         stacked = sum(blk.rect.h for blk in blocks) + 0.6 * b * len(blocks) + text_h
         bottom_h = max(qr, stacked)
         y = self.printable.bottom - bottom_h
