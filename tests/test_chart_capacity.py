@@ -7,7 +7,7 @@ Reference trees (tests/chart_references.py): the Breast Cancer Wisconsin (Diagno
 Statistics 32:407–499), both shipped with scikit-learn; the invented demo cohort; seeded
 random shapes. Paper sizes in points: ISO 216 (A4 210 × 297 mm, A3 297 × 420 mm) and
 ANSI/ASME Y14.1 (Letter 8.5 × 11 in, Tabloid 11 × 17 in), as tests/test_chart_pdf.py holds
-them (docs/references.md is to describe these sources once it exists).
+them; docs/references.md describes these sources.
 
 A tree that the tree form cannot hold at the floor still prints, as numbered rules, on one
 page (core/chart/rules.py); where each tree fits as a tree is measured by

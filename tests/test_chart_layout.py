@@ -4,7 +4,8 @@ Outside references for the properties (Reingold & Tilford 1981, IEEE TSE 7:223�
 1990, Software: Practice and Experience 20:685–705; Buchheim, Jünger & Leipert 2002; and, for
 boxes of different lengths, the non-layered variant of van der Ploeg 2014, Software: Practice
 and Experience 44:1467–1484) (from memory): no two boxes overlap, a parent is centred over its
-children, and identical subtrees are drawn identically.
+children, no lines cross, and identical subtrees are drawn identically; see
+docs/references.md. Prunella's variant, an outcome box beside its question, is checked too.
 """
 
 from __future__ import annotations
