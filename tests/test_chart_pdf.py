@@ -123,6 +123,8 @@ def test_same_model_same_date_gives_identical_bytes(chosen, chosen_pdf) -> None:
     other = render_chart(chosen, options(printed=dt.date(2026, 1, 2)))
     assert other != chosen_pdf
     assert "Printed 2026-01-02" in page_text(other)
+    # The file's own date is the printed date, not reportlab's fixed 2000-01-01.
+    assert pypdf.PdfReader(io.BytesIO(other)).metadata.creation_date.date() == dt.date(2026, 1, 2)
 
 
 # --- what it says ---------------------------------------------------------------------------

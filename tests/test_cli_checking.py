@@ -47,20 +47,25 @@ def test_report_reruns_the_derivation_and_writes_the_pdf(fitted):
     # the report warns about the fingerprint and re-derives the same tree.
     done = run_prunella("report", model, DEMO_XLSX, "--external",
                         DEMO_CSV, "--external-source", "demo CSV file",
-                        "--bootstrap", "2", "--outer-folds", "2", "--out", out, cwd=folder)
+                        "--bootstrap", "2", "--outer-folds", "2", "--date", "2025-06-30",
+                        "--out", out, cwd=folder)
     assert done.returncode == 0, done.stderr
     assert "SHA-256" in done.stderr and "differs from the one the model was fitted on" in done.stderr
     assert "re-derived from the data differs" not in done.stderr
     words = " ".join(" ".join(p.extract_text() for p in PdfReader(out).pages).split())
     for piece in ("1. Data source", "8.2 Nested cross-validation", "Held-out check",
                   "External check: demo CSV file", "9. Stability", "11. TRIPOD checklist",
-                  "differs from the one the model was fitted on"):
+                  "differs from the one the model was fitted on", "printed 2025-06-30"):
         assert piece in words, piece
+    # The file's own date is the report's (not reportlab's fixed 2000-01-01), so reruns with
+    # the same --date give the same bytes.
+    assert PdfReader(out).metadata.creation_date.date().isoformat() == "2025-06-30"
 
 
 @pytest.mark.parametrize("args, says", [
     (("check", "{data}", "{data}"), "not a Prunella model"),
     (("report", "{model}", "{data}", "--out", "{data}"), "input file"),
+    (("report", "{model}", "{data}", "--out", "r.pdf", "--date", "30/06/2025"), "YYYY-MM-DD"),
 ])
 def test_bad_input_is_one_sentence_and_exit_2(fitted, args, says):
     folder, model = fitted

@@ -181,3 +181,63 @@ def test_stability_key_stands_clear_of_the_bars(contents):
     assert key.y0 >= ax.get_window_extent().y1 - 1
     assert [t.get_text() for t in fig.legends[0].get_texts()] == [
         "asked anywhere in the tree", "first question"]
+
+
+def test_report_details_read_as_one_document(contents, written):
+    """Issue 12, item 8: counts with thousands separators throughout, captions that open
+    with a capital, the size rule worded as it reads, the file dated with the report's date
+    (the title page's and the chart's), the pruning curve in the app's colours."""
+    import datetime as dt
+
+    from core.chart.style import CURVE
+
+    words = re.sub(r"\s+", " ", _text(written))
+    visits = contents.model.n_rows
+    assert visits >= 1000 and f"{visits:,}" in words
+    assert not re.search(rf"(?<![\d,.]){visits}(?![\d,])", words)  # never "3950" beside "3,950"
+    captions = re.findall(r"Figure \d+\. (\S)", words)
+    assert captions and all(first.isupper() for first in captions), captions
+    assert "choosing the size by the 1-SE rule" in words and "by the at most" not in words
+    assert "(CART)" not in words  # the method is spelled out, never the product's name
+    assert "canonical JSON" in words  # what the model fingerprint is the SHA-256 of
+    created = PdfReader(io.BytesIO(written)).metadata.creation_date
+    assert created.date() == dt.date(2026, 1, 31) == contents.printed_on
+    curve = pruning_curve_figure(contents.model.path).axes[0]
+    colours = {line.get_label(): line.get_color() for line in curve.get_lines()}
+    assert colours["training risk (same patients; optimistic)"] == CURVE["training"]
+    assert colours["minimum + 1 SE"] == CURVE["limit"]
+    assert CURVE["cross-validated"] in {line.get_color() for line in curve.get_lines()}
+
+
+def test_a_size_given_as_a_number_reads_after_choosing_the_size():
+    from core.checking.nested import _size_rule
+
+    assert _size_rule(4) == "as the largest tree of at most 4 outcome boxes"
+    assert _size_rule("min") == "at the minimum cross-validated risk"
+
+
+def test_the_chart_figure_shrinks_into_the_rest_of_a_page_rather_than_leave_it_empty(contents):
+    """The chart no longer jumps to the next page, leaving this one mostly blank, when a
+    smaller drawing of it fits; it still moves when it would have to shrink too far."""
+    import datetime as dt
+
+    from reportlab.platypus import Paragraph, Spacer
+
+    from core.chart import ChartOptions, plan_chart
+    from core.report.style import PAGE, LEAST_CHART, Styles, build_pdf, chart_figure
+
+    s = Styles()
+    plan = plan_chart(contents.model, ChartOptions(printed=dt.date(2026, 1, 31)))
+    frame = PAGE[1] - 4.0 * 28.35  # the body frame: 2 cm top and bottom margins
+    full = chart_figure(plan, "Figure 1. The chart.", s)._content[0].height
+
+    def page_of_the_chart(before: float) -> int:
+        story = [Spacer(10, before), Paragraph("7. The chosen tree", s.h1),
+                 chart_figure(plan, "Figure 1. The chart.", s)]
+        pdf = build_pdf(story, "header", "footer", "title", "Prunella", dt.date(2026, 1, 31))
+        texts = [page.extract_text() for page in PdfReader(io.BytesIO(pdf)).pages]
+        return next(k for k, t in enumerate(texts, 1) if "Figure 1. The chart." in t)
+
+    room = frame - full  # what is left beside the chart at full size, with heading and caption
+    assert page_of_the_chart(room - 40) == 1  # a little short: the chart is drawn smaller
+    assert page_of_the_chart(room + (1 - LEAST_CHART + 0.1) * full) == 2  # far too short

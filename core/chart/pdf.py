@@ -1,12 +1,13 @@
 """Drawing a planned chart as a one-page vector PDF with reportlab.
 
 All text is real text in the embedded DejaVu fonts (searchable, selectable). The file is
-deterministic (reportlab's ``invariant=1``): two runs with the same model, options and printed
-date give identical bytes.
+deterministic (reportlab's ``invariant=1``, and the printed date as the file's own date): two
+runs with the same model, options and printed date give identical bytes.
 """
 
 from __future__ import annotations
 
+import datetime as dt
 import io
 from pathlib import Path
 
@@ -224,6 +225,12 @@ def paint(c: pdfcanvas.Canvas, plan: ChartPlan) -> set[tuple[str, str]]:
     return p.pairs
 
 
+def stamp_date(canvas: pdfcanvas.Canvas, day: dt.date) -> None:
+    """Give the file ``day`` as its creation and modification date. reportlab's invariant
+    mode, which keeps reruns byte for byte the same, would write 1 January 2000."""
+    canvas.setDateFormatter(lambda *_clock: f"D:{day:%Y%m%d}000000+00'00'")
+
+
 def draw(plan: ChartPlan) -> tuple[bytes, set[tuple[str, str]]]:
     """The PDF of ``plan``, and every (text colour, fill) pair it drew."""
     regular, _ = style.register_fonts()
@@ -236,6 +243,7 @@ def draw(plan: ChartPlan) -> tuple[bytes, set[tuple[str, str]]]:
     c.setCreator(f"Prunella {__version__}")
     c.setSubject(plan.text.subtitle)
     c.setKeywords(f"model sha256 {plan.text.fingerprint}")
+    stamp_date(c, plan.options.printed)
     pairs = paint(c, plan)
     c.showPage()
     c.save()

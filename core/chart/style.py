@@ -1,4 +1,5 @@
-"""The chart's colours, fonts and type scale; WCAG 2.1 contrast arithmetic.
+"""The chart's colours (and the pruning curve's), fonts and type scale; WCAG 2.1 contrast
+arithmetic.
 
 Colours come from the Okabe–Ito colour-blind-safe palette. Colour never carries meaning alone:
 every risk band also has a printed word and its own border weight, and the band fills are
@@ -40,6 +41,16 @@ UNCHECKED_FILL = "#FBE3D3"  # pale tint of vermillion
 UNCHECKED_EDGE = OKABE_ITO["vermillion"]
 CHECKED_FILL = "#DDF2EB"  # pale tint of bluish green
 CHECKED_EDGE = OKABE_ITO["bluish green"]
+
+# The pruning curve, one look wherever it is drawn: the app's size step (gui/widgets/curve.py)
+# and the report (core/report/figures.py). Each series also has its own marker and line.
+CURVE = {
+    "cross-validated": OKABE_ITO["blue"],  # error ± 1 SE, circles on a solid line
+    "training": OKABE_ITO["vermillion"],  # squares on a dashed line
+    "limit": "#555555",  # the lowest error + 1 SE, dotted
+    "chosen": OKABE_ITO["black"],  # the size chosen
+    "fits": OKABE_ITO["bluish green"],  # the sizes that fit the paper (the app's shading)
+}
 
 REGULAR_FONT = "DejaVuSans"
 BOLD_FONT = "DejaVuSans-Bold"

@@ -18,6 +18,7 @@ from joblib import Parallel, delayed
 from ..design.analysis import AnalysisData
 from ..errors import InputError
 from ..messages.message import say
+from ..phrases import plural
 from ..progress import CancelFlag, Progress, stop_if_cancelled
 from ..sizing.cross_validated_path import case_losses, cross_validate_path, path_nodes
 from ..sizing.folds import CVSettings, fold_plan
@@ -62,11 +63,12 @@ class NestedResult:
 
 
 def _size_rule(size) -> str:
+    """How the size was chosen, as it reads after 'choosing the size'."""
     if size in ("1se", "1-se"):
-        return "1-SE rule"
+        return "by the 1-SE rule"
     if size == "min":
-        return "minimum cross-validated risk"
-    return f"at most {size} leaves"
+        return "at the minimum cross-validated risk"
+    return f"as the largest tree of at most {plural(int(size), 'outcome box', 'outcome boxes')}"
 
 
 def _outer_fold(data: AnalysisData, request: DerivationRequest, costs, train, test,

@@ -54,16 +54,21 @@ def add_parsers(sub) -> None:
     chart.add_argument("--date", help="date printed on the chart, YYYY-MM-DD (default: today)")
 
 
-def chart_options_from_args(args):
-    """The chart options that ``prunella chart`` / ``fit --chart`` arguments describe."""
+def printed_date(given: str | None):
+    """The date a ``--date YYYY-MM-DD`` option names (None when it is not given)."""
     import datetime as dt
 
-    printed = None
-    if getattr(args, "date", None):
-        try:
-            printed = dt.date.fromisoformat(args.date)
-        except ValueError:
-            raise InputError(say("cli.chart_date", given=args.date)) from None
+    if not given:
+        return None
+    try:
+        return dt.date.fromisoformat(given)
+    except ValueError:
+        raise InputError(say("cli.chart_date", given=given)) from None
+
+
+def chart_options_from_args(args):
+    """The chart options that ``prunella chart`` / ``fit --chart`` arguments describe."""
+    printed = printed_date(getattr(args, "date", None))
     cuts = None
     if getattr(args, "bands", None):
         try:

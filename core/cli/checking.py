@@ -49,6 +49,8 @@ def add_parsers(sub) -> None:
     report.add_argument("--no-nested", action="store_true", help="skip nested cross-validation")
     report.add_argument("--jobs", type=int, default=1, help="parallel work (default 1; -1 = all cores)")
     report.add_argument("--out", required=True, help="where to write the PDF")
+    report.add_argument("--date", help="date printed on the report and its chart, YYYY-MM-DD "
+                        "(default: today); the same date gives the same bytes")
 
 
 def run_check(args) -> int:
@@ -83,6 +85,7 @@ def run_report(args) -> int:
     import datetime as dt
 
     from ..checking.new_patients import check_table
+    from .chart import printed_date
     from ..report.contents import prepare_report
     from ..report.rendering import write_report
     from ..sizing.derivation import choose_model, derive
@@ -94,6 +97,7 @@ def run_report(args) -> int:
         raise InputError(say("cli.report_needs_pdf"))
     if args.bootstrap < 0:
         raise InputError(say("cli.bootstrap"))
+    printed = printed_date(args.date) or dt.date.today()  # told before any reading
     model = TreeModel.load(args.model)
     settings = model.extra.get("settings")
     if not settings:
@@ -127,7 +131,7 @@ def run_report(args) -> int:
     contents = prepare_report(derivation, external=external, nested=not args.no_nested,
                               outer_folds=args.outer_folds, bootstrap=args.bootstrap,
                               jobs=args.jobs, notes=tuple(notes),
-                              printed=dt.date.today().isoformat())
+                              printed=printed.isoformat())
     write_report(contents, args.out)
     print(f"Wrote the methods and validation report to {args.out}.")
     return 0

@@ -8,6 +8,7 @@ read a :class:`ReportContents`; core/report/rendering.py lays them out.
 
 from __future__ import annotations
 
+import datetime as dt
 from dataclasses import dataclass, field
 
 from ..checking.nested import DEFAULT_OUTER_FOLDS, NestedResult, nested_cross_validate
@@ -26,11 +27,16 @@ class ReportContents:
     nested: NestedResult | None = None
     stability: Stability | None = None
     notes: tuple[str, ...] = ()  # e.g. "the data file differs from the model's"
-    printed: str | None = None  # date printed, as it should appear
+    printed: str | None = None  # date printed (YYYY-MM-DD); None: the day it is written
 
     @property
     def model(self):
         return self.derivation.model
+
+    @property
+    def printed_on(self) -> dt.date:
+        """The report's date: on its title page, its chart and in the PDF's own dates."""
+        return dt.date.fromisoformat(self.printed) if self.printed else dt.date.today()
 
 
 def prepare_report(derivation: Derivation, external: tuple[CheckResult, ...] = (),

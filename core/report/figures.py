@@ -13,12 +13,12 @@ import io
 import numpy as np
 from matplotlib.figure import Figure
 
+from ..chart.style import CURVE, OKABE_ITO
 from ..checking.metrics import ClassificationMeasures, Measures
 from ..checking.stability import Stability
 
-BLUE, ORANGE, GREEN, VERMILION, SKY, PURPLE = ("#0072B2", "#E69F00", "#009E73", "#D55E00",
-                                              "#56B4E9", "#CC79A7")
-GREY = "#555555"
+BLUE, ORANGE, GREEN, VERMILION, SKY, PURPLE = (OKABE_ITO[name] for name in (
+    "blue", "orange", "bluish green", "vermillion", "sky blue", "reddish purple"))
 _CLASS_STYLES = [(BLUE, "o", "-"), (VERMILION, "s", "--"), (GREEN, "^", "-."),
                  (PURPLE, "D", ":"), (ORANGE, "v", (0, (5, 1, 1, 1)))]
 WIDTH = 6.3  # inches: the text width of an A4 page with 2.2 cm margins
@@ -38,7 +38,8 @@ def _style(ax) -> None:
 
 
 def pruning_curve_figure(path: dict) -> Figure:
-    """Cross-validated risk ±1 SE beside training risk over the pruning path.
+    """Cross-validated risk ±1 SE beside training risk over the pruning path, in the colours
+    and markers of the app's curve (core.chart.style.CURVE).
 
     ``path`` is ``TreeModel.path`` (lists ``leaves``, ``train_risk``, ``cv_risk``, ``cv_se``,
     ``min_leaves``, ``one_se_leaves``, ``risk_measure``); the minimum and the 1-SE choice are
@@ -50,19 +51,20 @@ def pruning_curve_figure(path: dict) -> Figure:
     fig = _figure(3.9)
     ax = fig.add_subplot()
     _style(ax)
-    ax.errorbar(leaves, cv, yerr=se, color=BLUE, marker="o", markersize=3.5, linewidth=1.2,
+    cross, training = CURVE["cross-validated"], CURVE["training"]
+    ax.errorbar(leaves, cv, yerr=se, color=cross, marker="o", markersize=3.5, linewidth=1.2,
                 elinewidth=0.8, capsize=2, label="cross-validated risk ± 1 SE")
-    ax.plot(leaves, train, color=GREY, linestyle="--", marker="x", markersize=3,
+    ax.plot(leaves, train, color=training, linestyle="--", marker="s", markersize=2.5,
             linewidth=1.0, label="training risk (same patients; optimistic)")
     k_min = int(np.flatnonzero(leaves == path["min_leaves"])[0])
     k_one = int(np.flatnonzero(leaves == path["one_se_leaves"])[0])
-    ax.axhline(cv[k_min] + se[k_min], color=BLUE, linestyle=":", linewidth=0.8,
+    ax.axhline(cv[k_min] + se[k_min], color=CURVE["limit"], linestyle=":", linewidth=0.8,
                label="minimum + 1 SE")
-    ax.plot([leaves[k_min]], [cv[k_min]], linestyle="none", marker="D", markersize=8,
-            markerfacecolor="none", markeredgecolor=VERMILION, markeredgewidth=1.5,
+    ax.plot([leaves[k_min]], [cv[k_min]], linestyle="none", marker="v", markersize=9,
+            markerfacecolor="white", markeredgecolor=cross, markeredgewidth=1.5,
             label=f"minimum risk: {int(leaves[k_min])} boxes")
-    ax.plot([leaves[k_one]], [cv[k_one]], linestyle="none", marker="s", markersize=9,
-            markerfacecolor="none", markeredgecolor=GREEN, markeredgewidth=1.5,
+    ax.plot([leaves[k_one]], [cv[k_one]], linestyle="none", marker="D", markersize=8,
+            markerfacecolor="white", markeredgecolor=cross, markeredgewidth=1.5,
             label=f"1-SE choice: {int(leaves[k_one])} boxes")
     if leaves.max() > 12:
         ax.set_xscale("log")

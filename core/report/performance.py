@@ -28,16 +28,16 @@ def risk_text(value: float, task: str) -> str:
 def _perf_row(name: str, basis: str, n: int, m: Measures | None, risk: str, s: Styles) -> list:
     first = Paragraph(f"<b>{text(name)}</b><br/>{text(basis)}", s.cell)
     if m is None:
-        return [first, str(n), risk, "–", "–", "–", "–"]
+        return [first, f"{n:,}", risk, "–", "–", "–", "–"]
     if isinstance(m, ClassificationMeasures):
         head = m.headline
         if head is not None:
             auc = head.roc.text() if head.roc is not None else "–"
-            return [first, str(n), risk, m.accuracy.text(), head.sensitivity.text(),
+            return [first, f"{n:,}", risk, m.accuracy.text(), head.sensitivity.text(),
                     head.specificity.text(), auc]
-        return [first, str(n), risk, m.accuracy.text(),
+        return [first, f"{n:,}", risk, m.accuracy.text(),
                 f"{m.auc_macro:.2f}" if m.auc_macro is not None else "–"]
-    return [first, str(n), risk, f"{m.rmse:.3g}", f"{m.mae:.3g}", f"{m.r2:.2f}"]
+    return [first, f"{n:,}", risk, f"{m.rmse:.3g}", f"{m.mae:.3g}", f"{m.r2:.2f}"]
 
 
 def performance_section(c: ReportContents, s: Styles) -> list:
@@ -97,11 +97,11 @@ def _nested_detail(nested: NestedResult, number: str, s: Styles) -> list:
     rows = [["Outer fold", "Growing patients", "Test visits", "Boxes chosen inside",
              "Inner CV risk", "Outer test risk"]]
     for f in nested.folds:
-        rows.append([str(f.fold), str(f.n_train), str(f.n_test), str(f.leaves),
+        rows.append([str(f.fold), f"{f.n_train:,}", f"{f.n_test:,}", str(f.leaves),
                      risk_text(f.inner_cv_risk, task), risk_text(f.test_risk, task)])
     return [para(f"{number} Nested cross-validation", s.h2),
             para(f"{nested.description}. Inside every outer fold the whole procedure ran again "
-                 f"(growing, cross-validating the pruning path, choosing the size by the "
+                 f"(growing, cross-validating the pruning path, choosing the size "
                  f"{nested.size_rule}); the chosen tree was then measured on the outer fold. "
                  "The spread of the chosen sizes shows how firmly the data fix the size.", s.body),
             table(rows, [0.13, 0.18, 0.15, 0.2, 0.17, 0.17], s, align_right=(1, 2, 3, 4, 5))]
@@ -111,7 +111,7 @@ def _measure_tables(m: Measures, s: Styles) -> list:
     if not isinstance(m, ClassificationMeasures) or m.positive is not None:
         return [table([["Measure", "Value (95% interval)"]] + [list(r) for r in m.rows()],
                       [0.5, 0.5], s)]
-    overall = [["Measure", "Value (95% interval)"], ["Patients", str(m.n)],
+    overall = [["Measure", "Value (95% interval)"], ["Patients", f"{m.n:,}"],
                ["Accuracy", m.accuracy.text()],
                ["Misclassification cost per patient", f"{m.cost:.3f} (SE {m.cost_se:.3f})"],
                ["Brier score (summed over classes)", f"{m.brier:.3f}"]]
@@ -120,7 +120,7 @@ def _measure_tables(m: Measures, s: Styles) -> list:
     per_class = [["Class (against the rest)", "Patients", "Sensitivity", "Specificity", "PPV",
                   "NPV", "ROC area (DeLong)"]]
     for r in m.per_class:
-        per_class.append([r.label, str(r.n_with), r.sensitivity.text(), r.specificity.text(),
+        per_class.append([r.label, f"{r.n_with:,}", r.sensitivity.text(), r.specificity.text(),
                           r.ppv.text(), r.npv.text(), r.roc.text() if r.roc else "–"])
     return [table(overall, [0.5, 0.5], s),
             table(per_class, [0.19, 0.1, 0.14, 0.14, 0.14, 0.14, 0.15], s, align_right=(1,))]
@@ -138,7 +138,8 @@ def _check_detail(check: CheckResult, number: str, s: Styles) -> list:
     story += _measure_tables(m, s)
     if isinstance(m, ClassificationMeasures):
         header = ["Observed \\ predicted"] + list(m.classes)
-        rows = [header] + [[label] + [str(v) for v in row] for label, row in zip(m.classes, m.confusion)]
+        rows = [header] + [[label] + [f"{int(v):,}" for v in row]
+                           for label, row in zip(m.classes, m.confusion)]
         share = 0.7 / (len(m.classes) + 1)
         story.append(KeepTogether([
             para("Confusion matrix (rows: observed outcome; columns: the tree's prediction).",
@@ -152,8 +153,8 @@ def _check_detail(check: CheckResult, number: str, s: Styles) -> list:
                  "Derivation patients", f"Observed {what} (95% CI)", "New patients", "Agrees"]]
         for r in m.calibration:
             derived = f"{r.derivation_value:.0%}" if percent else f"{r.derivation_value:.3g}"
-            rows.append([str(r.box), r.label, derived, str(r.derivation_n),
-                         r.observed_text(percent), str(r.n),
+            rows.append([str(r.box), r.label, derived, f"{r.derivation_n:,}",
+                         r.observed_text(percent), f"{r.n:,}",
                          {True: "yes", False: "NO: outside", None: "–"}[r.agrees]])
         intro = para(f"Calibration by outcome box: the derivation {what} against the {what} "
                      f"observed in the new patients. 'Agrees' means the derivation {what} lies "
@@ -169,8 +170,9 @@ def _check_detail(check: CheckResult, number: str, s: Styles) -> list:
     if figures:
         fig = s.next_figure()
         names = " (left) and calibration by box (right)" if len(figures) == 2 else ""
-        caption = (f"Figure {fig}. {check.source}: ROC curve of the box rates{names}. "
-                   if len(figures) == 2 else f"Figure {fig}. {check.source}. ")
+        source = check.source[:1].upper() + check.source[1:]  # a caption opens a sentence
+        caption = (f"Figure {fig}. {source}: ROC curve of the box rates{names}. "
+                   if len(figures) == 2 else f"Figure {fig}. {source}. ")
         caption += ("Open markers: boxes whose derivation value lies outside the observed "
                     "interval." if m.calibration else "")
         story.append(figures_side_by_side(figures, caption, s) if len(figures) > 1

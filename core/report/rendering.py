@@ -29,7 +29,8 @@ def render_report(contents: ReportContents) -> bytes:
         story += SECTION_WRITERS[name](contents, s)
     footer = (f"Prunella {__version__} · model {model.short_fingerprint} · decision support only "
               f"(section {section('Limitations and cautions')})")
-    return build_pdf(story, header=title, footer=footer, title=title, author="Prunella")
+    return build_pdf(story, header=title, footer=footer, title=title, author="Prunella",
+                     dated=contents.printed_on)
 
 
 def write_report(contents: ReportContents, path: str | Path) -> None:

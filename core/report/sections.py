@@ -35,7 +35,7 @@ def _grouped(digest: str) -> str:
 
 
 def _count_pct(k: int, n: int) -> str:
-    return f"{k} ({100 * k / n:.1f}%)" if n else str(k)
+    return f"{k:,} ({100 * k / n:.1f}%)" if n else f"{k:,}"
 
 
 def _site_counts(contents: ReportContents) -> dict[str, int]:
@@ -57,22 +57,21 @@ def _site_counts(contents: ReportContents) -> dict[str, int]:
 def title_page(c: ReportContents, title: str, s: Styles) -> list:
     model = c.model
     data = model.extra.get("data", {})
-    printed = f" · printed {c.printed}" if c.printed else ""
     story = [para(title, s.title),
              para(f"Prepared with Prunella {__version__} · model fingerprint "
                   f"{model.short_fingerprint} · data SHA-256 {short_fingerprint(data.get('sha256', ''))}"
-                  f"{printed}", s.subtitle)]
+                  f" · printed {c.printed_on.isoformat()}", s.subtitle)]
     story.append(para("", s.body))
     cohort = model.extra.get("cohort", {})
-    patients = f" from {cohort['patients']} patients" if cohort.get("patients") else ""
+    patients = f" from {cohort['patients']:,} patients" if cohort.get("patients") else ""
     asked = ", ".join(model.spec(col).display for col in model.columns_asked()) or "no question"
     boxes = plural(len(model.leaves), "outcome box", "outcome boxes")
 
     def risk(value: float) -> str:
         return risk_text(value, model.task)
 
-    summary = (f"A classification and regression tree (CART) for <b>{text(model.outcome.display)}"
-               f"</b> was grown on {model.n_rows} visits{patients} "
+    summary = (f"A classification and regression tree for <b>{text(model.outcome.display)}"
+               f"</b> was grown on {model.n_rows:,} visits{patients} "
                f"({text(data.get('file', 'the data file'))}), pruned by weakest-link "
                f"cost-complexity pruning, and sized by {text(model.path.get('cv', 'cross-validation'))}. "
                f"The chosen tree has {boxes} and asks about {text(asked)}. "
@@ -84,7 +83,7 @@ def title_page(c: ReportContents, title: str, s: Styles) -> list:
     if c.nested is not None:
         lines.append(f"Honest error of the whole procedure: {c.nested.summary()}.")
     for check in c.checks:
-        lines.append(f"Checked on {check.source} ({check.n} visits): {check.summary}.")
+        lines.append(f"Checked on {check.source} ({check.n:,} visits): {check.summary}.")
     if c.stability is not None:
         lines.append(f"Stability: {c.stability.summary()}.")
     story += [Paragraph(text(line), s.bullet, bulletText="•") for line in lines]
@@ -107,11 +106,12 @@ def _data_source(c: ReportContents, s: Styles) -> list:
     if p.sheet:
         rows.append(["Sheet", p.sheet])
     rows += [["SHA-256 fingerprint of the file", _grouped(p.sha256)],
-             ["Rows and columns in the file", f"{p.n_rows} rows, {p.n_columns} columns"]]
+             ["Rows and columns in the file", f"{p.n_rows:,} rows, {p.n_columns:,} columns"]]
     if p.encoding:
         rows.append(["Text encoding, delimiter, decimal mark",
                      f"{p.encoding}, {p.delimiter!r}, {p.decimal!r}"])
-    rows.append(["Model fingerprint (SHA-256 of the model file's content)",
+    rows.append(["Model fingerprint (SHA-256 of the model's canonical JSON: keys sorted, "
+                 "no spaces)",
                  _grouped(model.fingerprint)])
     story = [para("The tree was derived from the file below. The fingerprint identifies its exact "
                   "bytes: a file with another fingerprint is other data.", s.body),
@@ -125,9 +125,10 @@ def _participants(c: ReportContents, s: Styles) -> list:
     der, model = c.derivation, c.model
     cohort = model.extra.get("cohort", {})
     rows = [["Item", "Derivation"]]
-    rows.append(["Visits (rows with a recorded outcome, used for growing)", str(cohort.get("visits", model.n_rows))])
+    rows.append(["Visits (rows with a recorded outcome, used for growing)",
+                 f"{cohort.get('visits', model.n_rows):,}"])
     if cohort.get("patients"):
-        rows.append(["Patients", str(cohort["patients"])])
+        rows.append(["Patients", f"{cohort['patients']:,}"])
     for site, n in _site_counts(c).items():
         rows.append([f"Visits at {site}", _count_pct(n, model.n_rows)])
     if cohort.get("first_date"):
@@ -142,7 +143,7 @@ def _participants(c: ReportContents, s: Styles) -> list:
     if der.heldout is not None:
         held = der.heldout
         patients = f" ({np.unique(held.groups).size} patients)" if held.groups is not None else ""
-        rows.append(["Set aside before growing (held-out check)", f"{held.n} visits{patients}"])
+        rows.append(["Set aside before growing (held-out check)", f"{held.n:,} visits{patients}"])
     story = [para("Eligible were all rows of the file with a recorded outcome. Repeat visits of "
                   "one patient are kept together in every fold when a patient identifier is set.",
                   s.body), table(rows, [0.62, 0.38], s)]
@@ -215,7 +216,7 @@ def _settings(c: ReportContents, s: Styles) -> list:
             ["Task", model.task],
             ["Grower", f"scikit-learn {sklearn.__version__} decision tree, split criterion "
                        f"{criterion}, best splitter"],
-            ["Minimum patients per outcome box", str(t.min_leaf)],
+            ["Minimum patients per outcome box", f"{t.min_leaf:,}"],
             ["Maximum depth", str(t.max_depth) if t.max_depth else "none (grown to the minimum box size)"]]
     costs = model.extra.get("costs")
     if model.task == "classification":
@@ -230,7 +231,7 @@ def _settings(c: ReportContents, s: Styles) -> list:
                         for i in range(len(loss)) for j in range(len(loss)) if i != j]
             rows.append(["Misclassification costs", "; ".join(mistakes)])
         rows.append(["Node risk used for pruning",
-                     "expected misclassification cost (CART)" if t.risk == "cost"
+                     "expected misclassification cost (Breiman et al. 1984)" if t.risk == "cost"
                      else "impurity of the split criterion"])
     rows += [["Pruning", "weakest-link cost-complexity pruning (Breiman et al. 1984)"],
              ["Cross-validation", model.path.get("cv", cv.describe(cv.grouped))],
@@ -260,8 +261,8 @@ def _pruning(c: ReportContents, s: Styles) -> list:
     path = c.model.path
     story = [figure(pruning_curve_figure(path),
                     f"Figure {s.next_figure()}. Cross-validated risk (±1 SE) and training risk for each size on "
-                    f"the pruning path. Diamond: minimum cross-validated risk "
-                    f"({plural(int(path['min_leaves']), 'box', 'boxes')}); square: the 1-SE choice "
+                    f"the pruning path. Triangle: minimum cross-validated risk "
+                    f"({plural(int(path['min_leaves']), 'box', 'boxes')}); diamond: the 1-SE choice "
                     f"({plural(int(path['one_se_leaves']), 'box', 'boxes')}). Training risk always falls as the tree "
                     "grows; only the cross-validated risk says how it does on new patients.", s)]
     leaves = path["leaves"]
@@ -295,16 +296,13 @@ def _leaf_paths(model) -> dict[int, list[str]]:
 
 def _chart(c: ReportContents, s: Styles) -> list:
     """The wall chart as it prints (A4, else A3), reduced; nothing if it fits neither."""
-    import datetime as dt
-
     from ..chart.fitting import plan_chart
     from ..chart.options import ChartOptions
     from ..errors import InputError
 
-    printed = dt.date.fromisoformat(c.printed) if c.printed else None
     for paper in ("a4", "a3"):
         try:
-            plan = plan_chart(c.model, ChartOptions(paper=paper, printed=printed))
+            plan = plan_chart(c.model, ChartOptions(paper=paper, printed=c.printed_on))
         except InputError:
             continue
         return [chart_figure(plan, f"Figure {s.next_figure()}. The one-page wall chart of the "
@@ -339,7 +337,7 @@ def _tree(c: ReportContents, s: Styles) -> list:
         if mark:
             small.append(leaf_id)
         route = " → ".join(steps) if steps else "every patient"
-        rows.append([f"{leaf_id}{mark}", route, expected, str(leaf.n), rate])
+        rows.append([f"{leaf_id}{mark}", route, expected, f"{leaf.n:,}", rate])
     story.append(table(rows, [0.07, 0.48, 0.13, 0.1, 0.22], s, align_right=(3,)))
     if small:
         story.append(para(f"† rests on fewer than {SMALL_GROUP} derivation patients: the rate is "

@@ -2,12 +2,13 @@
 
 DejaVu Sans (shipped inside matplotlib) carries the Unicode the report needs (≤, ≥, ±, –,
 °C, ², ·). Pages are A4 with a running header, and a footer with the model fingerprint and
-"page X of Y". reportlab's ``invariant`` mode keeps dates out of the file, so a rerun gives
-the same bytes.
+"page X of Y". reportlab's ``invariant`` mode keeps the clock out of the file, and the file
+carries the report's own date, so a rerun with the same date gives the same bytes.
 """
 
 from __future__ import annotations
 
+import datetime as dt
 import io
 from pathlib import Path
 from xml.sax.saxutils import escape
@@ -25,6 +26,7 @@ from reportlab.platypus import (
     TableStyle,
 )
 
+from ..chart.pdf import stamp_date
 from .figures import figure_png
 
 PAGE = A4
@@ -223,14 +225,16 @@ def keep_headings_with_next(story: list) -> list:
     for flowable in reversed(story):
         if out and isinstance(out[-1], KeepTogether) and flowable.getKeepWithNext() \
                 and not isinstance(flowable, KeepTogether):
-            out[-1] = KeepTogether([flowable] + list(out[-1]._content))
+            out[-1]._content.insert(0, flowable)  # the block keeps its own kind
         else:
             out.append(flowable)
     return out[::-1]
 
 
-def build_pdf(story: list, header: str, footer: str, title: str, author: str) -> bytes:
-    """Lay out ``story`` on A4 pages with the running header and numbered footer."""
+def build_pdf(story: list, header: str, footer: str, title: str, author: str,
+              dated: dt.date) -> bytes:
+    """Lay out ``story`` on A4 pages with the running header and numbered footer; the file
+    is dated ``dated``."""
     story = keep_headings_with_next(story)
     register_fonts()
     buffer = io.BytesIO()
@@ -243,7 +247,9 @@ def build_pdf(story: list, header: str, footer: str, title: str, author: str) ->
     doc.addPageTemplates([PageTemplate(id="page", frames=[frame])])
 
     class Canvas(_NumberedCanvas):
-        pass
+        def __init__(self, *args, **kwargs):
+            super().__init__(*args, **kwargs)
+            stamp_date(self, dated)
 
     Canvas.header, Canvas.footer_left = header, footer
     doc.build(story, canvasmaker=Canvas)
@@ -256,8 +262,13 @@ class ChartFigure(Flowable):
     def __init__(self, plan, max_width: float, max_height: float):
         super().__init__()
         self.plan = plan
-        self.scale = min(max_width / plan.width, max_height / plan.height)
-        self.width, self.height = plan.width * self.scale, plan.height * self.scale
+        self.full = min(max_width / plan.width, max_height / plan.height)
+        self.reduce(1.0)
+
+    def reduce(self, share: float) -> None:
+        """Draw at ``share`` of the full reduced size."""
+        self.scale = self.full * share
+        self.width, self.height = self.plan.width * self.scale, self.plan.height * self.scale
 
     def wrap(self, available_width, available_height):
         return self.width, self.height
@@ -277,8 +288,32 @@ class ChartFigure(Flowable):
         canvas.restoreState()
 
 
+LEAST_CHART = 0.6  # a chart reduced below this share of its figure size moves to the next page
+
+
+class _KeepChart(KeepTogether):
+    """The chart, its caption (and the heading pulled in before them) on one page; when they
+    would not fit the rest of the page, the chart is drawn smaller to fit it, rather than
+    leave the page nearly empty, unless that takes it below LEAST_CHART of its size."""
+
+    def __init__(self, flowables, chart: ChartFigure):
+        super().__init__(flowables)
+        self.chart = chart
+
+    def wrap(self, available_width, available_height):
+        self.chart.reduce(1.0)
+        result = super().wrap(available_width, available_height)
+        over = self._H - available_height
+        if over > 0:
+            share = (self.chart.height - over) / self.chart.height
+            if share >= LEAST_CHART:
+                self.chart.reduce(share)
+                result = super().wrap(available_width, available_height)
+        return result
+
+
 def chart_figure(plan, caption: str, styles: Styles, height: float = 0.62 * PAGE[1]) -> KeepTogether:
     """The chart as printed, reduced to fit the text width and ``height``, with its caption."""
     drawing = ChartFigure(plan, TEXT_WIDTH, height)
     drawing.hAlign = "CENTER"
-    return KeepTogether([drawing, Paragraph(caption, styles.caption)])
+    return _KeepChart([drawing, Paragraph(caption, styles.caption)], drawing)

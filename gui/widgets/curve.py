@@ -15,14 +15,13 @@ from matplotlib.ticker import FuncFormatter, LogLocator, NullFormatter
 from PySide6.QtCore import Signal
 from PySide6.QtWidgets import QSizePolicy
 
+from core.chart.style import CURVE
 from core.sizing import one_se_limit
 
 
-# Okabe & Ito (2008) colour-blind-safe colours; every series also differs by marker/line.
-CV_COLOUR = "#0072B2"
-TRAIN_COLOUR = "#D55E00"
-CHOSEN_COLOUR = "#000000"
-FIT_SHADE = "#009E73"
+# The report's colours (core.chart.style.CURVE); every series also differs by marker/line.
+CV_COLOUR, TRAIN_COLOUR, LIMIT_COLOUR, CHOSEN_COLOUR, FIT_SHADE = (CURVE[role] for role in (
+    "cross-validated", "training", "limit", "chosen", "fits"))
 
 
 @dataclass(frozen=True)
@@ -106,7 +105,7 @@ class CurveCanvas(FigureCanvasQTAgg):
                     first = False
         limit = one_se_limit(data.cv_risk, data.cv_se,
                              int(np.flatnonzero(data.leaves == data.min_leaves)[0]))
-        ax.axhline(limit, color="#555555", lw=0.8, ls=":", label="Lowest error + 1 SE")
+        ax.axhline(limit, color=LIMIT_COLOUR, lw=0.8, ls=":", label="Lowest error + 1 SE")
         ax.errorbar(x, data.cv_risk, yerr=data.cv_se, fmt="o-", color=CV_COLOUR, ms=4, lw=1.2,
                     capsize=2, elinewidth=0.8, label="Cross-validated error (±1 SE)")
         ax.plot(x, data.train_risk, "s--", color=TRAIN_COLOUR, ms=3, lw=1.0,
