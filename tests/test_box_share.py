@@ -6,6 +6,8 @@ core/checking/intervals.py, which tests/test_metrics.py checks against published
 
 from __future__ import annotations
 
+import datetime as dt
+
 import pytest
 
 import _chart_demo as demo
@@ -80,7 +82,8 @@ def test_the_reporttitle_page_prints_risks_and_fingerprints_as_elsewhere() -> No
         model = getattr(demo, which)().model
 
         class Contents:  # just what the title page reads
-            nested, checks, stability, notes, printed = None, [], None, [], "2026-01-02"
+            nested, checks, stability, notes = None, [], None, []
+            printed_on = dt.date(2026, 1, 2)
 
         Contents.model = model
         story = title_page(Contents, "Report", Styles())

@@ -1,8 +1,9 @@
 """What goes into the tree layout, and how big each box is: wrapped text, badge, band strip.
 
-A box's size depends only on its own text (and, for outcome boxes, the shared width of all
-outcome boxes), measured with the given ``measure`` function; every length is a multiple of
-the tree text size, so a layout scales exactly with it.
+A box's size depends only on its own text (and, for outcome boxes, the width they share: all
+of them, or two under one question), measured with the given ``measure`` function, and for a
+question on the width the layout gives it; every length is a multiple of the tree text size,
+so a layout scales exactly with it.
 """
 
 from __future__ import annotations

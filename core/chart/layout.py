@@ -11,6 +11,12 @@ boxes of any size (van der Ploeg 2014): each subtree is laid out on its own, sib
 pushed together until their outlines are one gap apart, a parent is centred over its first
 and last child, and children start one connector length past their parent. A subtree's
 drawing depends only on the subtree, so identical subtrees are drawn identically.
+
+Prunella's variants, each a style the page planner may choose (core/chart/arrange.py): an
+outcome box may stand beside its question when the question's other answer asks on, the
+question then centred over that other child, straight above it, with one short drop and no
+bus; and a question over children spread wide may take their width (fewer lines), which is
+worked out from its own subtree, so identical subtrees still come out identical.
 """
 
 from __future__ import annotations

@@ -77,12 +77,23 @@ class Frame:
         self.width, self.height = page_size(options.paper, landscape)
         m = margin_for(options.paper)
         self.printable = Rect(m, m, self.width - 2 * m, self.height - 2 * m)
-        self.scale = scale = TypeScale(body=options.min_text)
+        self.scale = TypeScale(body=options.min_text)
         self.measure = measure
-        self.body = b = scale.body
-        cw = self.printable.w
-        self.gap = GAP * b
+        self.body = self.scale.body
+        self.gap = GAP * self.body
+        top = self._header(text, landscape)
+        bottom = self._bottom(text)
+        self.zone = Rect(m, top, self.printable.w, bottom - self.gap - top)
 
+        self.sections = tuple(sec for sec in text.sections if sec.kind != "caution")
+        self._blocks: dict[tuple[int, float], PanelBlock] = {}
+        self._bands: dict[tuple[int, int], tuple[tuple[PanelBlock, ...], float]] = {}
+        self._sums: dict[float, list[float]] = {}  # running heights of a stack, per width
+
+    def _header(self, text: ChartText, landscape: bool) -> float:
+        """Title, subtitle, banner and how to read, from the top margin; returns where the
+        zone below them starts."""
+        m, b, scale, cw = self.printable.x, self.body, self.scale, self.printable.w
         header: list[Line] = []
         # On a wide page the banner stands beside the title, not below it: the tree keeps
         # the height, which a wide page has least of.
@@ -107,10 +118,13 @@ class Frame:
         if beside:
             y = max(y, self.banner.bottom)
         self.header = tuple(header)
-        top = y + 0.9 * b
+        return y + 0.9 * b
 
-        # The bottom: the cautions across the page, the footer lines under them, the QR code
-        # to their right.
+    def _bottom(self, text: ChartText) -> float:
+        """The cautions across the page, the footer lines under them, the QR code to their
+        right, up from the bottom margin; returns where they start."""
+        m, b, cw = self.printable.x, self.body, self.printable.w
+        measure = self.measure
         qr = QR_EM * b
         left_w = cw - qr - b
         cautions = [sec for sec in text.sections if sec.kind == "caution"]
@@ -136,11 +150,7 @@ class Frame:
             y += blk.rect.h + 0.6 * b
         self.footer = tuple(ln.moved(0, y) for ln in footer)
         self.qr = Rect(m + cw - qr, self.printable.bottom - qr, qr, qr)
-        self.zone = Rect(m, top, cw, self.printable.bottom - bottom_h - self.gap - top)
-
-        self.sections = tuple(sec for sec in text.sections if sec.kind != "caution")
-        self._blocks: dict[tuple[int, float], PanelBlock] = {}
-        self._bands: dict = {}  # columns below, and running sums of stack heights
+        return self.printable.bottom - bottom_h
 
     # --- text --------------------------------------------------------------------------
 
@@ -237,13 +247,13 @@ class Frame:
 
     def stack_height(self, first: int, last: int, width: float) -> float:
         """The height of :meth:`stack` without placing it."""
-        key = (-1, round(width, 3))
-        if key not in self._bands:  # running sums of the heights at this width
+        key = round(width, 3)
+        if key not in self._sums:
             sums = [0.0]
             for k in range(len(self.sections)):
                 sums.append(sums[-1] + self.block(k, width).rect.h + SECTION_GAP * self.body)
-            self._bands[key] = sums
-        sums = self._bands[key]
+            self._sums[key] = sums
+        sums = self._sums[key]
         return max(0.0, sums[last] - sums[first] - SECTION_GAP * self.body)
 
     def columns_below(self, first: int) -> int:
