@@ -14,13 +14,13 @@ import math
 from dataclasses import dataclass
 
 from ..model.tree import TreeModel
+from .arrange import MAX_TREE_SCALE, STEP, rows_arrangements
 from .boxes import LayoutStyle, TreeSpec, size_boxes
 from .content import ChartText
 from .layout import PlacedBox
 from .options import ChartOptions
-from .arrange import MAX_TREE_SCALE, STEP, rows_arrangements
 from .page import ChartPlan, finished_plan, frames
-from .text import LEADING, Line, Measure, Rect
+from .text import Line, Measure, Rect
 
 ROUTE_EM = 16.0  # the route column is at least this wide, in units of the text size
 
