@@ -7,6 +7,11 @@ from collections.abc import Sequence
 
 import numpy as np
 
+# The method, always spelled out: its four-letter acronym is also a commercial program's name.
+METHOD = "classification and regression trees"
+METHOD_SOURCE = "Breiman, Friedman, Olshen and Stone, 1984"
+METHOD_NAME = f"{METHOD} ({METHOD_SOURCE})"
+
 
 def plural(n: int, singular: str, plural: str) -> str:
     """A count with its noun: '1 outcome box', '2,104 outcome boxes'.

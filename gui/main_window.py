@@ -16,6 +16,7 @@ from core import __version__
 from core.cautions import CAUTION_TITLE, CAUTIONS
 from core.errors import InputError
 from core.messages import say
+from core.phrases import METHOD_NAME
 from core.data import read_table
 from core.dictionary import dictionary_for
 from core.project import PROJECT_SUFFIX, check_data_file, load_project, save_project
@@ -480,5 +481,6 @@ class MainWindow(QMainWindow):
             f"<h3>Prunella {__version__}</h3><p>Small, honest decision trees from a spreadsheet "
             "of past patients: grown, pruned by cross-validated error, checked on patients they "
             "never saw, and printed as a one-page chart.</p>"
+            f"<p>The method: {METHOD_NAME}.</p>"
             f"<p><b>{CAUTION_TITLE}.</b></p><ul>"
             + "".join(f"<li>{c}</li>" for c in CAUTIONS) + "</ul>")

@@ -198,7 +198,10 @@ def test_report_details_read_as_one_document(contents, written):
     captions = re.findall(r"Figure \d+\. (\S)", words)
     assert captions and all(first.isupper() for first in captions), captions
     assert "choosing the size by the 1-SE rule" in words and "by the at most" not in words
-    assert "(CART)" not in words  # the method is spelled out, never the product's name
+    # Issue 10, item 11: the method is spelled out, never the product's four-letter name.
+    assert not re.search(r"\bCART\b", words, re.IGNORECASE)
+    assert "classification and regression trees (Breiman, Friedman, Olshen and Stone, 1984)" \
+        in words
     assert "canonical JSON" in words  # what the model fingerprint is the SHA-256 of
     created = PdfReader(io.BytesIO(written)).metadata.creation_date
     assert created.date() == dt.date(2026, 1, 31) == contents.printed_on

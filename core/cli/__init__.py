@@ -12,6 +12,7 @@ import sys
 from .. import __version__
 from ..errors import Cancelled, InputError
 from ..messages.message import say
+from ..phrases import METHOD_NAME
 from . import chart, checking, fit
 from .arguments import EXIT_BAD_INPUT, Parser
 
@@ -24,7 +25,8 @@ __all__ = ["SUBCOMMANDS", "EXIT_BAD_INPUT", "build_parser", "main"]
 
 def build_parser() -> Parser:
     parser = Parser(prog="prunella", description="Cross-validated, cost-complexity-pruned "
-                    "decision trees for clinical spreadsheets. Run without a command to open the app.")
+                    f"decision trees for clinical spreadsheets, by the method of {METHOD_NAME}. "
+                    "Run without a command to open the app.")
     parser.add_argument("--version", action="version", version=f"prunella {__version__}")
     sub = parser.add_subparsers(dest="command", parser_class=Parser)
     fit.add_parsers(sub)

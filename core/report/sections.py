@@ -15,7 +15,7 @@ from reportlab.platypus import KeepTogether, Paragraph
 from .. import __version__
 from ..cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER, UNCHECKED_DETAIL
 from ..chart.options import SMALL_GROUP  # the chart dashes the boxes the report flags
-from ..phrases import plural, short_fingerprint
+from ..phrases import METHOD_NAME, plural, short_fingerprint
 from .figures import pruning_curve_figure, stability_figure
 from .performance import performance_section, risk_text
 from .section_numbers import section
@@ -70,8 +70,8 @@ def title_page(c: ReportContents, title: str, s: Styles) -> list:
     def risk(value: float) -> str:
         return risk_text(value, model.task)
 
-    summary = (f"A classification and regression tree for <b>{text(model.outcome.display)}"
-               f"</b> was grown on {model.n_rows:,} visits{patients} "
+    summary = (f"A tree for <b>{text(model.outcome.display)}</b>, by the method of "
+               f"{METHOD_NAME}, was grown on {model.n_rows:,} visits{patients} "
                f"({text(data.get('file', 'the data file'))}), pruned by weakest-link "
                f"cost-complexity pruning, and sized by {text(model.path.get('cv', 'cross-validation'))}. "
                f"The chosen tree has {boxes} and asks about {text(asked)}. "
