@@ -34,7 +34,8 @@ def add_parsers(sub) -> None:
     fit.add_argument("--sheet", help="XLSX sheet name (default: the first sheet)")
     fit.add_argument("--task", choices=("classification", "regression"),
                      help="default: classification for categories, regression for numbers")
-    fit.add_argument("--positive", help="positive class of a two-class outcome (default: yes/1)")
+    fit.add_argument("--positive", help="the level of a two-class outcome to catch (default: the "
+                     "event, e.g. 'fell' over 'no fall', 'yes' over 'no'; else the rarer level)")
     fit.add_argument("--predictors", help="comma-separated columns to ask about "
                      "(default: every predictor in the data dictionary)")
     fit.add_argument("--exclude", help="comma-separated columns to leave out")

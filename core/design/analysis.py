@@ -207,7 +207,8 @@ def _outcome_values(values: pd.Series, spec: ColumnSpec, task: str, positive: st
     remap = np.full(len(spec.levels), -1, dtype=np.int64)
     if len(levels) == 2:
         pos = positive or (spec.positive if spec.positive in levels else None) or \
-            positive_level(ColumnSpec(spec.name, kind="binary", levels=tuple(levels)))
+            positive_level(ColumnSpec(spec.name, kind="binary", levels=tuple(levels)),
+                           np.bincount(column.codes[keep])[present].tolist())
         if pos not in levels:
             raise InputError(say("design.positive_not_level", positive=pos, name=name,
                                  levels=", ".join(map(repr, levels))))

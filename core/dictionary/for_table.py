@@ -3,10 +3,11 @@ by a saved dictionary (a file beside the data, one given, or a project's)."""
 
 from __future__ import annotations
 
+from dataclasses import replace
 from pathlib import Path
 
 from ..messages.message import say
-from .columns import DataDictionary
+from .columns import ColumnSpec, DataDictionary
 from .inference import infer_dictionary
 
 
@@ -14,13 +15,24 @@ def merge_dictionary(inferred: DataDictionary, given: DataDictionary) -> tuple[D
     """Entries from a saved dictionary override the inferred ones, column by column."""
     notes = []
     given_names = set(given.names)
-    merged = tuple(given.get(c.name) if c.name in given_names else c for c in inferred.columns)
+    merged = tuple(_over(c, given.get(c.name)) if c.name in given_names else c
+                   for c in inferred.columns)
     absent = [n for n in given.names if n not in inferred]
     if absent:
         notes.append(say("dictionary.absent_columns",
                          columns=", ".join(map(repr, absent[:20]))
                          + (" …" if len(absent) > 20 else "")))
     return DataDictionary(merged), notes
+
+
+def _over(inferred: ColumnSpec, given: ColumnSpec) -> ColumnSpec:
+    """A saved entry over the inferred one; a two-level entry that names no positive level
+    keeps the inferred one (the event, or the rarer level), which the saved entry cannot
+    know without the data."""
+    if given.positive is None and inferred.positive is not None and len(given.levels) == 2 \
+            and inferred.positive in given.levels:
+        return replace(given, positive=inferred.positive)
+    return given
 
 
 def dictionary_beside(path: str | Path) -> Path | None:

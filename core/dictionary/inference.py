@@ -20,6 +20,7 @@ from ..data.cells import missing_texts, parse_dates, parse_numbers, profile_cell
 from ..messages.message import say
 from ..phrases import rows_phrase
 from .columns import MAX_NOMINAL_LEVELS, ColumnSpec, DataDictionary, canonical_levels
+from .typed_columns import event_level
 from .identity import identity_hint, looks_like_record_numbers
 
 _ORDINAL_HINT = re.compile(r"(level|grade|score|stage|class|category|triage|scale|rank)", re.I)
@@ -121,7 +122,10 @@ def _infer(name: str, values: pd.Series, rows) -> tuple[ColumnSpec, list[str]]:
                                  spellings=", ".join(repr(s) for s in list(by_text)[:6])))
             return ColumnSpec(kind="binary", levels=("no", "yes"), positive=None, **base), notes
         role = "site" if _SITE_HINT.search(name) else "predictor"
-        return ColumnSpec(kind="binary", levels=tuple(_levels(by_text)), role=role,
+        levels = tuple(_levels(by_text))
+        # The event to catch if this is the outcome: "fell" over "no fall", else the rarer.
+        positive = event_level(levels, [by_folded[level.casefold()] for level in levels])
+        return ColumnSpec(kind="binary", levels=levels, role=role, positive=positive,
                           **base), notes
     if n_unique >= 0.95 * n_present and n_present >= 20:
         if _mostly_dates(distinct):

@@ -6,13 +6,15 @@ Numbers stay numbers (NaN where not recorded); categories become codes into the 
 
 from __future__ import annotations
 
+import re
+from collections.abc import Sequence
 from dataclasses import dataclass, field, replace
 
 import numpy as np
 import pandas as pd
 
 from ..data.cells import (
-    YES_WORDS, counted, is_missing_text, level_text, parse_levels, parse_numbers,
+    NO_WORDS, YES_WORDS, counted, is_missing_text, level_text, parse_levels, parse_numbers,
 )
 from ..errors import InputError
 from ..messages.message import say
@@ -52,14 +54,41 @@ def typed_column(values: pd.Series, spec: ColumnSpec) -> TypedColumn:
     raise InputError(say("variables.kind_not_in_tree", name=spec.display, kind=spec.kind))
 
 
-def positive_level(spec: ColumnSpec) -> str:
-    """The positive class of a binary outcome: as set, else 'yes'/'1'/the second level."""
+# A level that says the event did not happen: "no", "none", "negative", "no fall", "not
+# admitted", "non-smoker", "without delirium", "normal" (common practice in coding outcomes).
+_NOT_EVENT_WORDS = NO_WORDS | {"none", "nil", "never", "normal", "not", "non", "without"}
+_NEGATED = re.compile(r"^(no|not|non|without|never)[\s_\-]+\S")
+
+
+def says_no_event(level: str) -> bool:
+    """Whether ``level`` names the absence of an event ("no", "no fall", "not admitted")."""
+    folded = str(level).strip().casefold()
+    return folded in _NOT_EVENT_WORDS or bool(_NEGATED.match(folded))
+
+
+def event_level(levels: Sequence[str], counts: Sequence[int] | None = None) -> str:
+    """The level of a two-class outcome a tree should catch: the event. Where one level is
+    a negation ("no fall") the other is the event ("fell"); else a yes-word ("yes", "1",
+    "positive"); else the rarer level, when ``counts`` (one per level) are given and differ;
+    else the second level."""
+    levels = list(levels)
+    negated = [says_no_event(level) for level in levels]
+    if len(levels) == 2 and sum(negated) == 1:
+        return levels[negated.index(False)]
+    for level in levels:
+        if level.strip().casefold() in YES_WORDS:
+            return level
+    if counts is not None and len(counts) == len(levels) and len(set(counts)) == len(counts):
+        return levels[int(np.argmin(counts))]
+    return levels[-1]
+
+
+def positive_level(spec: ColumnSpec, counts: Sequence[int] | None = None) -> str:
+    """The positive class of a binary outcome: as set, else the event (:func:`event_level`;
+    ``counts`` per level let the rarer level be the event)."""
     if spec.positive:
         if spec.positive not in spec.levels:
             raise InputError(say("variables.positive_not_level", positive=spec.positive,
                                  name=spec.display, levels=", ".join(spec.levels)))
         return spec.positive
-    for level in spec.levels:
-        if level.casefold() in YES_WORDS:
-            return level
-    return spec.levels[-1]
+    return event_level(spec.levels, counts)
