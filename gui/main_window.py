@@ -445,6 +445,7 @@ class MainWindow(QMainWindow):
             return
         for panel in self.panels.values():
             panel.stop_work()
+        self.panels["chart"].discard_previews()
         self.project_reading.forget()
         self.settings.setValue("window/geometry", self.saveGeometry())
         self.settings.sync()

@@ -48,6 +48,8 @@ class ChartResult:
 
 def draw_chart(model, options: ChartOptions, path: str) -> ChartResult:
     """Write the one-page chart PDF of ``model`` with core.chart. Runs in a worker."""
+    if not Path(path).parent.is_dir():  # the window closed meanwhile: leave no folder behind
+        return ChartResult(None, "", target=path)
     try:
         write_chart(model, path, options)
     except ChartTooLarge as exc:
@@ -77,7 +79,7 @@ class ChartPanel(StepPanel):
     def __init__(self, session, parent=None) -> None:
         super().__init__(session, parent)
         self.bindings = Bindings()
-        self._temp = QTemporaryDir()
+        self._temp: QTemporaryDir | None = None  # made at the first preview, removed on closing
         self._serial = 0
         self.pdf_path: str | None = None  # the file the preview shows
         self.preview_error: str | None = None
@@ -267,7 +269,7 @@ class ChartPanel(StepPanel):
             return
         self._serial += 1
         self._outdated = False
-        path = str(Path(self._temp.path()) / f"preview-{self._serial}.pdf")
+        path = str(self._preview_folder() / f"preview-{self._serial}.pdf")
         self.preview_note.setText("Drawing the chart…")
         self.drawing.start(draw_chart, self.session.chart_derivation().model, self.session.chart,
                            path, takes_progress=False, done=self._preview_ready,
@@ -285,13 +287,31 @@ class ChartPanel(StepPanel):
         self.document.close()
         self.document.load(result.path)
         self.pdf_path = result.path
-        for old in Path(self._temp.path()).glob("preview-*.pdf"):  # only the shown one is kept
+        for old in Path(result.path).parent.glob("preview-*.pdf"):  # only the shown one is kept
             if str(old) != result.path:
                 old.unlink(missing_ok=True)
         self.preview_error = None
         self.preview_stack.setCurrentIndex(1)
         self.message.setText("")
         self._render_over()
+
+    def _preview_folder(self) -> Path:
+        """The temporary folder the previews are drawn into (one per panel, made when first
+        needed)."""
+        if self._temp is None or not self._temp.isValid() or not Path(self._temp.path()).is_dir():
+            self._temp = QTemporaryDir()
+        return Path(self._temp.path())
+
+    def discard_previews(self) -> None:
+        """Remove the preview folder and its file (the window calls this on closing), so no
+        empty folder is left in the system's temporary place."""
+        self.drawing.forget()
+        self.document.close()
+        self.pdf_path = None
+        self._outdated = True
+        if self._temp is not None:
+            self._temp.remove()
+            self._temp = None
 
     def _choose_fitting(self) -> None:
         if self._fitting is not None:

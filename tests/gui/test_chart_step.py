@@ -8,6 +8,8 @@ import os
 
 os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 
+from pathlib import Path  # noqa: E402
+
 import pytest  # noqa: E402
 from pypdf import PdfReader  # noqa: E402
 from PySide6.QtCore import Qt  # noqa: E402
@@ -167,3 +169,18 @@ def test_the_numbered_rules_form_prints_as_text_too(charted, qtbot, tmp_path):
     exported = " ".join(PdfReader(chart.pdf_path).pages[0].extract_text().split())
     assert CAUTIONS[2] in printed and window.session.model.fingerprint[:12] in printed
     assert len(printed) > 0.9 * len(exported)
+
+
+def test_previews_share_one_temporary_folder_removed_on_closing(charted, qtbot):
+    """Every preview is drawn into the panel's one temporary folder, only the shown file is
+    kept, and closing the window removes the folder (no empty Prunella-XXXX folders left)."""
+    window = charted
+    chart = window.panels["chart"]
+    folder = Path(chart.pdf_path).parent
+    chart.render_preview()
+    qtbot.waitUntil(lambda: not chart.preview_busy and chart.pdf_path is not None
+                    and chart.pdf_path.endswith(f"preview-{chart._serial}.pdf"), timeout=30000)
+    assert Path(chart.pdf_path).parent == folder
+    assert [p.name for p in folder.iterdir()] == [Path(chart.pdf_path).name]
+    assert window.close()
+    assert not folder.exists()
