@@ -566,6 +566,33 @@ def _percent(p):
     write_text(p, csv_text(["age", "saturation", "resp_rate", "sex", "admitted"], rows))
 
 
+def _answers_kept(f, d) -> bool:
+    """'none' stays an answer of its own: a level, read in every row that holds it."""
+    from core.dictionary import typed_column
+    spec = d.get("oxygen")
+    typed = typed_column(f["oxygen"], spec)
+    none = f["oxygen"].str.strip().str.casefold() == "none"
+    return "none" in spec.levels and not typed.missing[none.to_numpy()].any()
+
+
+@case("none_is_an_answer", "oxygen.csv", check=_frame_check(_answers_kept))
+def _none_answers(p):
+    # Issue 10.5: 'none' (oxygen given: none) in 47% of the rows is a real answer.
+    values = (["none"] * 38 + ["nasal", "mask", "nasal"] * 14)[:80]
+    write_text(p, csv_text(HEADER + ["oxygen"], add_column(base_rows(), values)))
+
+
+@case("probable_missing_codes", "smoking.csv",
+      says=["'unknown' (12 cells) and 'NR' (3 cells)", "may mean 'not recorded'",
+            "until you confirm"],
+      check=_frame_check(lambda f, d: {"unknown", "NR"} <= set(d.get("smoker").levels)
+                         and d.get("smoker").missing_codes == ()))
+def _probable_codes(p):
+    # Issue 10.5: probable missing codes are proposed with their counts, not applied.
+    values = ["unknown"] * 12 + ["NR"] * 3 + ["never", "former", "current"] * 22
+    write_text(p, csv_text(HEADER + ["smoker"], add_column(base_rows(), values[:80])))
+
+
 case("text_named_xls", "export.xls", says=["named .xls but holds a text table"],
      check=_frame_check(lambda f, d: list(f.columns) == HEADER))(
     lambda p: write_text(p, csv_text(HEADER, base_rows(), sep="\t")))

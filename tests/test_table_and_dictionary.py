@@ -128,9 +128,11 @@ def test_inferred_roles_and_kinds_on_a_small_clinic_table():
     assert get("triage_level").kind == "ordinal" and get("triage_level").levels == ("1", "2", "3", "4", "5")
     assert get("smoker").kind == "binary" and get("smoker").levels == ("no", "yes")
     assert get("complaint").kind == "nominal" and get("complaint").levels == ("cough", "pain", "wheeze")
-    assert get("sbp").missing_codes == ("-99",)
+    # -99 is only proposed as "not recorded" (issue 10.5): read as a number until confirmed.
+    assert get("sbp").missing_codes == ()
     assert get("lab").kind == "numeric"
-    assert any("-99" in n for n in notes) and any("capitals" in n for n in notes)
+    assert any("-99" in n and "until you confirm" in n for n in notes)
+    assert any("capitals" in n for n in notes)
 
 
 @pytest.mark.parametrize("suffix", [".json", ".csv"])

@@ -21,12 +21,21 @@ import pandas as pd
 from ..messages.message import say
 from ..phrases import rows_phrase
 
-# Cell texts read as "not recorded" in every column (compared case-insensitively, trimmed).
+# Cell texts read as "not recorded" in every column (compared case-insensitively, trimmed):
+# only texts that say so and mean nothing else. "none", "nil", "no", "absent" and "normal" are
+# answers (levels), never missing.
 DEFAULT_MISSING_CODES: tuple[str, ...] = (
-    "", "na", "n/a", "n.a.", "nan", "null", "none", ".", "-", "?", "unknown", "not known",
-    "not recorded", "missing", "#n/a",
+    "", "na", "nan", "null", "#n/a", "not recorded", "missing",
 )
 _DEFAULT_MISSING = frozenset(DEFAULT_MISSING_CODES)
+# Texts that often, but not always, mean "not recorded" ("unknown" may be an answer). They stay
+# values until the user or the data dictionary names them as missing codes; reading proposes
+# them (core/dictionary/inference.py) with their counts.
+PROBABLE_MISSING_CODES = frozenset({
+    "n/a", "n.a.", "n.a", "unknown", "unk", "not known", "nk", "nr", "n.r.", "not stated",
+    "not available", "not applicable", ".", "-", "--", "?", "??", "-9", "-99", "-999", "-9999",
+    "999", "9999",
+})
 # What spreadsheet programs write in a cell whose formula failed.
 SPREADSHEET_ERRORS = frozenset({"#div/0!", "#value!", "#ref!", "#name?", "#num!", "#null!",
                                 "#spill!", "#calc!", "#getting_data", "#field!", "#blocked!"})
@@ -131,10 +140,27 @@ def _numeric_codes(codes: tuple[str, ...]) -> list[float]:
     return found
 
 
-def missing_texts(texts: np.ndarray, extra_codes: tuple[str, ...] = ()) -> np.ndarray:
-    """For trimmed texts, True where the text is a missing-value code."""
-    codes = _DEFAULT_MISSING | {c.strip().casefold() for c in extra_codes}
+def missing_texts(texts: np.ndarray, extra_codes: tuple[str, ...] = (),
+                  levels: tuple[str, ...] = ()) -> np.ndarray:
+    """For trimmed texts, True where the text is a missing-value code; a text listed among
+    ``levels`` is a level, never missing."""
+    codes = (_DEFAULT_MISSING | {c.strip().casefold() for c in extra_codes}) - \
+        {lv.strip().casefold() for lv in levels}
     return np.array([t.casefold() in codes for t in texts], dtype=bool)
+
+
+def probable_missing(texts: np.ndarray, counts: np.ndarray, extra_codes: tuple[str, ...] = (),
+                     levels: tuple[str, ...] = ()) -> list[tuple[str, int]]:
+    """Texts that may mean "not recorded" but are not named as such (nor listed as levels),
+    with how many cells hold each (spellings differing in capitals counted together)."""
+    named = {c.strip().casefold() for c in extra_codes} | {lv.strip().casefold() for lv in levels}
+    found: dict[str, list] = {}
+    for text, count in zip(texts, counts):
+        folded = text.casefold()
+        if count and folded in PROBABLE_MISSING_CODES and folded not in named:
+            entry = found.setdefault(folded, [text, 0])
+            entry[1] += int(count)
+    return sorted(((t, n) for t, n in found.values()), key=lambda tn: -tn[1])
 
 
 def is_missing_text(values: pd.Series, extra_codes: tuple[str, ...] = ()) -> np.ndarray:
@@ -149,9 +175,10 @@ def is_missing_text(values: pd.Series, extra_codes: tuple[str, ...] = ()) -> np.
     return _missing_cells(index, _unique_texts(uniques), extra_codes)
 
 
-def _missing_cells(index: np.ndarray, texts: np.ndarray, extra_codes: tuple[str, ...]) -> np.ndarray:
-    """Per cell of a factorised text column: empty, or a missing-value code."""
-    return (index < 0) | np.append(missing_texts(texts, extra_codes), True)[index]
+def _missing_cells(index: np.ndarray, texts: np.ndarray, extra_codes: tuple[str, ...],
+                   levels: tuple[str, ...] = ()) -> np.ndarray:
+    """Per cell of a factorised text column: empty, or a missing-value code (not a level)."""
+    return (index < 0) | np.append(missing_texts(texts, extra_codes, levels), True)[index]
 
 
 def level_text(values: pd.Series) -> pd.Series:
@@ -276,12 +303,15 @@ def parse_levels(values: pd.Series, levels: tuple[str, ...], extra_codes: tuple[
     """Cells as a categorical over ``levels``; unknown cells become missing with a note.
 
     Matching ignores case and surrounding spaces. A yes/no column accepts every common
-    spelling of yes and no ("Y", "TRUE", "1").
+    spelling of yes and no ("Y", "TRUE", "1"). A cell matching a listed level is that level
+    even where a missing-value code spells the same.
     """
     index, uniques = _factorize(values)  # hashed once: for the missing codes and the levels
     texts = _unique_texts(uniques)
-    missing = is_missing_text(values, extra_codes) if _is_numeric(values) else \
-        _missing_cells(index, texts, extra_codes)
+    kept_codes = tuple(c for c in extra_codes
+                       if c.strip().casefold() not in {lv.casefold() for lv in levels})
+    missing = is_missing_text(values, kept_codes) if _is_numeric(values) else \
+        _missing_cells(index, texts, kept_codes, levels)
     lookup = {lv.casefold(): lv for lv in levels}
     if set(lookup) == {"yes", "no"}:
         lookup.update({w: lookup["yes"] for w in YES_WORDS})

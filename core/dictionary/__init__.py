@@ -6,6 +6,7 @@ __getattr__, __dir__, __all__ = lazy_face(__name__, {
     "columns": ("CATEGORY_KINDS", "KINDS", "PREDICTOR_KINDS", "ROLES", "ColumnSpec",
         "DataDictionary"),
     "inference": ("infer_dictionary",),
-    "for_table": ("dictionary_beside", "dictionary_for", "merge_dictionary"),
+    "for_table": ("confirm_missing_codes", "dictionary_beside", "dictionary_for",
+        "merge_dictionary", "open_proposals"),
     "typed_columns": ("positive_level", "typed_column"),
 })

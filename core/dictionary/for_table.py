@@ -6,9 +6,13 @@ from __future__ import annotations
 from dataclasses import replace
 from pathlib import Path
 
-from ..messages.message import say
+from ..data.cells import yes_no_levels
+from ..messages.message import Message, say
 from .columns import ColumnSpec, DataDictionary
 from .inference import infer_dictionary
+
+# Notes that propose missing-value codes (their ``codes`` field names them).
+PROPOSALS = ("infer.sentinel", "infer.probable_missing")
 
 
 def merge_dictionary(inferred: DataDictionary, given: DataDictionary) -> tuple[DataDictionary, list[str]]:
@@ -35,6 +39,42 @@ def _over(inferred: ColumnSpec, given: ColumnSpec) -> ColumnSpec:
     return given
 
 
+def open_proposals(notes, dictionary: DataDictionary) -> list:
+    """The notes without the proposed missing codes the dictionary has settled: every code
+    named as "not recorded" or listed as a level by the user's or the project's dictionary."""
+    kept = []
+    for note in notes:
+        if getattr(note, "code", "") in PROPOSALS and note.fields.get("column") in dictionary:
+            spec = dictionary.get(note.fields["column"])
+            named = {c.casefold() for c in spec.missing_codes}
+            if all(str(c).casefold() in named for c in note.fields.get("codes", ())):
+                continue
+        kept.append(note)
+    return kept
+
+
+def confirm_missing_codes(dictionary: DataDictionary, column: str, codes,
+                          ) -> tuple[DataDictionary, Message]:
+    """``codes`` of ``column`` read as "not recorded" from now on, as the user confirmed: added
+    to its missing codes and taken out of its levels (two yes/no levels left make it a yes/no
+    column again); with the note that says so."""
+    spec = dictionary.get(column)
+    folded = {str(c).casefold() for c in codes}
+    missing = tuple(spec.missing_codes) + tuple(
+        str(c) for c in codes if str(c).casefold() not in {m.casefold() for m in spec.missing_codes})
+    levels = tuple(lv for lv in spec.levels if lv.casefold() not in folded)
+    kind = spec.kind
+    if kind in ("nominal", "binary") and len(levels) == 2:
+        kind = "binary"
+        if yes_no_levels(list(levels)):
+            levels = ("no", "yes")
+    positive = spec.positive if spec.positive in levels else None
+    note = say("infer.confirmed_missing", column=column,
+               codes=", ".join(repr(str(c)) for c in codes))
+    return dictionary.with_column(column, missing_codes=missing, levels=levels, kind=kind,
+                                  positive=positive), note
+
+
 def dictionary_beside(path: str | Path) -> Path | None:
     """A dictionary saved next to the data as NAME.dictionary.json (or .csv), if there is one."""
     path = Path(path)
@@ -53,8 +93,9 @@ def dictionary_for(table, dictionary_path: str | Path | DataDictionary | None = 
     inferred, notes = infer_dictionary(table.frame, table.row_numbers)
     if isinstance(dictionary_path, DataDictionary):
         merged, more = merge_dictionary(inferred, dictionary_path)
-        return merged, notes + more
+        return merged, open_proposals(notes, merged) + more
     if dictionary_path:
         merged, more = merge_dictionary(inferred, DataDictionary.load(dictionary_path))
-        return merged, [say("dictionary.used", file=Path(dictionary_path).name)] + notes + more
+        return merged, [say("dictionary.used", file=Path(dictionary_path).name)] + \
+            open_proposals(notes, merged) + more
     return inferred, notes

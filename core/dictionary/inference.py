@@ -16,7 +16,9 @@ from dataclasses import replace
 import numpy as np
 import pandas as pd
 
-from ..data.cells import missing_texts, parse_dates, parse_numbers, profile_cells, yes_no_levels
+from ..data.cells import (
+    missing_texts, parse_dates, parse_numbers, probable_missing, profile_cells, yes_no_levels,
+)
 from ..messages.message import say
 from ..phrases import rows_phrase
 from .columns import MAX_NOMINAL_LEVELS, ColumnSpec, DataDictionary, canonical_levels
@@ -52,6 +54,9 @@ def infer_column(name: str, values: pd.Series,
     """
     rows = None if rows is None or len(rows) != len(values) else np.asarray(rows)
     spec, notes = _infer(name, values, rows)
+    if spec.kind in ("binary", "ordinal", "nominal") and spec.note != "no recorded values" \
+            and not any(getattr(n, "code", "") == "infer.sentinel" for n in notes):
+        notes.extend(_probable_missing_note(name, values, spec, rows))
     if spec.role == "patient_id" or spec.note in ("no recorded values", "constant"):
         return spec, notes
     hint = identity_hint(name, values)
@@ -61,6 +66,27 @@ def infer_column(name: str, values: pd.Series,
         notes.append(say("infer.identity", column=name, reason=hint.reason))
         spec = replace(spec, role="ignore", note=f"identity: {hint.what}")
     return spec, notes
+
+
+def _probable_missing_note(name: str, values: pd.Series, spec: ColumnSpec, rows) -> list[str]:
+    """A category column's answers that may mean "not recorded" ("unknown", "n/a", "NR",
+    "-99"), proposed with their counts; they stay answers until confirmed."""
+    profile = profile_cells(values)
+    found = probable_missing(profile.texts, profile.counts, spec.missing_codes)
+    if not found:
+        return []
+    folded = {t.casefold() for t, _ in found}
+    hit = np.append(np.array([t.casefold() in folded for t in profile.texts], bool),
+                    False)[profile.index]
+    where = None if rows is None else rows[np.flatnonzero(hit)[:1000]]
+    return [say("infer.probable_missing", column=name,
+                found=_and(f"{t!r} ({n} cell{'s' if n != 1 else ''})" for t, n in found),
+                codes=tuple(t for t, _ in found), rows=rows_phrase(where))]
+
+
+def _and(parts) -> str:
+    parts = list(parts)
+    return parts[0] if len(parts) == 1 else ", ".join(parts[:-1]) + " and " + parts[-1]
 
 
 def _infer(name: str, values: pd.Series, rows) -> tuple[ColumnSpec, list[str]]:
@@ -142,7 +168,7 @@ def _infer(name: str, values: pd.Series, rows) -> tuple[ColumnSpec, list[str]]:
                          limit=MAX_NOMINAL_LEVELS))
         return ColumnSpec(kind="text", role="ignore", **base), notes
     levels = _levels(by_text)
-    if 0.5 < readable_share < 0.95 and numbers.n_unreadable < n_present:
+    if 0.25 <= readable_share < 0.95 and numbers.n_unreadable < n_present:
         word_rows = rows_phrase(numbers.unreadable_rows) if rows is not None else ""
         notes.append(say("infer.mixed_categories", column=name, rows=word_rows))
     role = "site" if _SITE_HINT.search(name) and len(levels) >= 2 else "predictor"
@@ -196,20 +222,22 @@ def _numeric(name: str, base: dict, numbers, n_present: int, notes: list[str], r
     sentinels = tuple(str(int(v)) for v in distinct[np.isin(distinct, _SENTINELS)]
                       if not (finite[finite != v] < 0).any()
                       and np.sum(finite == v) < 0.5 * len(finite))
+    sentinel_note = []
     if sentinels:
-        code = float(sentinels[0])
-        where = None if rows is None else rows[np.flatnonzero(numbers.values == code)]
-        notes.append(say("infer.sentinel", column=name, code=", ".join(sentinels),
-                         n=int(np.sum(finite == code)), rows=rows_phrase(where)))
+        # Only proposed: the value stays a number until the user or the dictionary names it
+        # as "not recorded" (an ordinal column's level, too).
+        hit = np.isin(numbers.values, [float(v) for v in sentinels])
+        where = None if rows is None else rows[np.flatnonzero(hit)]
+        sentinel_note = [say("infer.sentinel", column=name, code=", ".join(sentinels),
+                             n=int(hit.sum()), rows=rows_phrase(where), codes=sentinels)]
     if whole and len(distinct) <= 10 and _ORDINAL_HINT.search(name):
-        levels = tuple(str(int(v)) for v in distinct if str(int(v)) not in sentinels)
-        return ColumnSpec(kind="ordinal", levels=levels, missing_codes=sentinels,
-                          **base), notes
+        levels = tuple(str(int(v)) for v in distinct)
+        return ColumnSpec(kind="ordinal", levels=levels, **base), notes + sentinel_note
     if looks_like_record_numbers(numbers.values, n_present, bool(_ID_HINT.search(name))):
         notes.append(say("infer.record_numbers", column=name))
         return ColumnSpec(kind="identifier", role="ignore", **base), notes
     notes.extend(numbers.notes)
-    return ColumnSpec(kind="numeric", missing_codes=sentinels, **base), notes
+    return ColumnSpec(kind="numeric", **base), notes + sentinel_note
 
 
 def infer_dictionary(frame: pd.DataFrame,

@@ -13,7 +13,9 @@ from PySide6.QtWidgets import (
 )
 
 from core.data import EXCEL_SUFFIXES, list_sheets, read_table
-from core.dictionary import dictionary_beside, dictionary_for
+from core.dictionary import (
+    confirm_missing_codes, dictionary_beside, dictionary_for, open_proposals,
+)
 from core.errors import InputError
 from core.messages import app_advice, app_wording, kind_of as catalogue_entry, say
 from gui.panels.step_panel import StepPanel, ask_open_path, heading_font, with_tooltip
@@ -26,6 +28,7 @@ from gui.widgets.frame_model import FrameModel
 SPREADSHEET_PATTERNS = "*.csv *.tsv *.txt *.tab *.xlsx *.xlsm"
 DATA_FILTER = f"Spreadsheets ({SPREADSHEET_PATTERNS});;All files (*)"
 DICTIONARY_FILTER = "Data dictionary (*.json *.csv)"
+PROPOSED_MISSING = ("infer.sentinel", "infer.probable_missing")
 
 
 def note_finding(note: str) -> Finding:
@@ -33,8 +36,13 @@ def note_finding(note: str) -> Finding:
     note, and the catalogue's "what to do"."""
     kind = catalogue_entry(note)
     severity = kind.severity if kind is not None else "note"
-    return Finding(severity, app_wording(note) or note, app_advice(note), kind=
-                   "" if kind is None else kind.code)
+    code = "" if kind is None else kind.code
+    if code in PROPOSED_MISSING and getattr(note, "fields", {}).get("column"):
+        # A probable missing-value code: one click confirms it as "not recorded".
+        return Finding(severity, app_wording(note) or note, app_advice(note),
+                       action="not_recorded", action_text="Read as not recorded",
+                       column=note.fields["column"], kind=code)
+    return Finding(severity, app_wording(note) or note, app_advice(note), kind=code)
 
 
 def read_data(path: str, sheet: str | None, dictionary_path: str | None):
@@ -172,6 +180,7 @@ class DataPanel(StepPanel):
         self.tabs.setTabToolTip(1, "The spreadsheet as read (blank = not recorded).")
         self.notes_view = FindingsView()
         self.notes_view.setAccessibleName("Things to check")
+        self.notes_view.acted.connect(self._act_on_note)
         notes_box = QWidget()
         notes_layout = QVBoxLayout(notes_box)
         notes_layout.setContentsMargins(0, 4, 0, 0)
@@ -334,6 +343,20 @@ class DataPanel(StepPanel):
         except OSError as exc:
             self.warn(say("app.not_saved", file=Path(path).name, reason=exc.strerror))
 
+    def _act_on_note(self, action: str, column: str) -> None:
+        """The button beside a proposed missing-value code: read those cells as not recorded
+        from now on (the dictionary's codes for 'not recorded'; undone by editing them)."""
+        if action != "not_recorded" or self.session.dictionary is None:
+            return
+        proposal = next((n for n in self.session.notes if getattr(n, "code", "") in
+                         PROPOSED_MISSING and n.fields.get("column") == column), None)
+        if proposal is None or column not in self.session.dictionary:
+            return
+        dictionary, note = confirm_missing_codes(self.session.dictionary, column,
+                                                 proposal.fields.get("codes", ()))
+        notes = tuple(n for n in self.session.notes if n is not proposal) + (note,)
+        self.session.set_dictionary(dictionary, notes)
+
     # --- showing ----------------------------------------------------------------------------
 
     def refresh(self) -> None:
@@ -356,7 +379,8 @@ class DataPanel(StepPanel):
             f"<b>{Path(p.path).name}</b>{sheet}: {p.n_rows:,} rows, {p.n_columns} columns · "
             f"fingerprint {p.short_fingerprint}")
         self.file_label.setToolTip(f"{p.path}\nSHA-256 (the file's fingerprint): {p.sha256}")
-        notes = list(dict.fromkeys(list(p.warnings) + list(self.session.notes)))
+        notes = open_proposals(dict.fromkeys(list(p.warnings) + list(self.session.notes)),
+                               self.session.dictionary)
         findings = [note_finding(n) for n in notes]
         if not findings:
             findings = [Finding("note", "Nothing to check: every column was read without "

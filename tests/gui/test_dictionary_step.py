@@ -5,6 +5,8 @@ from __future__ import annotations
 
 import os
 
+import numpy as np
+
 os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 
 from conftest import DEMO  # noqa: E402
@@ -34,8 +36,13 @@ def test_a_project_whose_file_changed_is_inferred_with_row_numbers(demo, dialogs
     assert window.save_as()
     project = load_project(dialogs.save_name)
     changed = tmp_path / "fewer_columns.csv"
-    read_table(DEMO).frame.drop(columns=["campus"]).to_csv(changed, index=False)
+    frame = read_table(DEMO).frame.drop(columns=["campus"])
+    frame["pain_score"] = np.where(np.arange(len(frame)) % 50 == 3, -99, np.arange(len(frame)) % 11)
+    frame.to_csv(changed, index=False)
     table, dictionary, notes = read_for_project(project, str(changed))
     assert "campus" not in dictionary.names
     assert dictionary.get("systolic_bp") == project.dictionary.get("systolic_bp")  # kept whole
-    assert any("(rows 20, 289" in n for n in notes)
+    # The project's dictionary names -99 as not recorded for systolic_bp: nothing to propose;
+    # the new column's -99 is proposed, naming its rows.
+    assert not any("'systolic_bp'" in n and "-99" in n for n in notes)
+    assert any("'pain_score'" in n and "(rows 5, 55" in n for n in notes)

@@ -39,9 +39,18 @@ ENTRIES = [
     ("infer.capitals", "note", "{column!r} spells some categories with different capitals; "
      "they were merged.", "Nothing to do."),
     ("infer.sentinel", "warning", "{column!r}: the value {code}, found in {n} cell(s){rows}, "
-     "looks like a code for 'not recorded' and is treated as missing; remove it from the "
-     "column's missing-value codes if it is a real value.",
-     "Check the data dictionary's missing-value codes for this column."),
+     "looks like a code for 'not recorded' but is read as a value until you confirm it; to "
+     "read it as not recorded, add it to the column's codes for 'not recorded' in the data "
+     "dictionary.",
+     "If it means 'not recorded', confirm it (the app's button beside this note, or the "
+     "column's missing_codes in the data dictionary)."),
+    ("infer.probable_missing", "warning", "{column!r} holds {found}{rows}, which may mean "
+     "'not recorded'; they are read as answers of their own until you confirm them as not "
+     "recorded in the column's codes for 'not recorded' in the data dictionary.",
+     "If they mean 'not recorded', confirm them (the app's button beside this note, or the "
+     "column's missing_codes in the data dictionary); if they are answers, nothing to do."),
+    ("infer.confirmed_missing", "note", "{column!r}: {codes} now read as not recorded, as "
+     "you confirmed.", "To undo it, remove them from the column's codes for 'not recorded'."),
     ("dictionary.entry_not_object", "refused", "A column of the data dictionary is written "
      "as {found}, not as an object with a 'name'; save the dictionary again from Prunella.",
      "Fix the dictionary file or save it again."),
