@@ -113,7 +113,8 @@ def run_report(args) -> int:
     dictionary = model_dictionary(table, model, dictionary_path(args.dictionary, args.data))
     derivation = derive(table, dictionary, request, jobs=args.jobs)
     rule = model.chosen.get("rule")
-    derivation = choose_model(derivation, rule if rule in ("1se", "min") else model.chosen["leaves"])
+    derivation = choose_model(derivation,
+                              rule if rule in ("1se", "min", "goal") else model.chosen["leaves"])
     if derivation.model.nodes != model.nodes:
         notes.append(say("cli.report_tree_differs"))
         print(f"prunella: warning: {notes[-1]}", file=sys.stderr)

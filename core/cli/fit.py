@@ -55,6 +55,12 @@ def add_parsers(sub) -> None:
                      "comma-separated numbers in class order")
     fit.add_argument("--miss-cost", type=float, help="two classes: missing a positive is X times "
                      "as bad as a needless alarm")
+    fit.add_argument("--min-sensitivity", type=float, metavar="S",
+                     help="two classes: the smallest tree whose cross-validated sensitivity is "
+                     "at least S (e.g. 0.95, to rule out); the miss cost is searched")
+    fit.add_argument("--min-specificity", type=float, metavar="S",
+                     help="two classes: the smallest tree whose cross-validated specificity is "
+                     "at least S (e.g. 0.95, to rule in); the miss cost is searched")
     fit.add_argument("--risk", choices=("cost", "impurity"), default="cost",
                      help="node risk for pruning a classification tree (default cost)")
     fit.add_argument("--size", default="1se", help="tree size: 1se (default), min, or a number of leaves")
@@ -100,7 +106,23 @@ def request_from_args(args, dictionary: DataDictionary) -> DerivationRequest:
             size = int(size)
         except ValueError:
             raise InputError(say("cli.size")) from None
-    return DerivationRequest(design=design, tree=tree, cv=cv, holdout=args.holdout, size=size)
+    return DerivationRequest(design=design, tree=tree, cv=cv, holdout=args.holdout, size=size,
+                             goal=_goal(args))
+
+
+def _goal(args):
+    """The goal named by --min-sensitivity or --min-specificity (one at most), or None."""
+    from ..sizing.goal import Goal
+
+    given = [(m, getattr(args, f"min_{m}", None)) for m in ("sensitivity", "specificity")]
+    given = [(m, v) for m, v in given if v is not None]
+    if not given:
+        return None
+    if len(given) > 1:
+        raise InputError(say("goal.one_goal"))
+    if args.miss_cost is not None:
+        raise InputError(say("goal.with_cost"))
+    return Goal(*given[0])
 
 
 def curve_frame(derivation: Derivation) -> pd.DataFrame:
@@ -170,27 +192,48 @@ def _guarded(args, table, dictionary: DataDictionary, request: DerivationRequest
 def summary_text(derivation: Derivation) -> str:
     """What a fit found: the pruning path with CV beside training risk, and the chosen tree."""
     path, model = derivation.path, derivation.model
+    counts = path.counts
     lines = [f"Prunella {__version__}: {model.outcome.display} ({model.task}), {model.n_rows} rows, "
              f"{path.description}.",
              f"Risk: {model.path['risk_measure']}.", "",
-             f"{'leaves':>7} {'training':>9} {'cross-validated':>16} {'± SE':>7}"]
+             f"{'leaves':>7} {'training':>9} {'cross-validated':>16} {'± SE':>7}"
+             + (f" {'CV sens.':>9} {'CV spec.':>9}" if counts is not None else "")]
+    chosen = model.chosen
     for k in range(len(path.leaves)):
         mark = ""
         if k == path.min_index:
             mark += "  minimum"
         if k == path.one_se_index:
             mark += "  1-SE choice"
+        if chosen["rule"] == "goal" and path.leaves[k] == chosen["leaves"]:
+            mark += "  goal choice"
+        beside = (f" {counts.sensitivity[k]:>9.1%} {counts.specificity[k]:>9.1%}"
+                  if counts is not None else "")
         lines.append(f"{path.leaves[k]:>7} {path.train_risk[k]:>9.4f} {path.cv_risk[k]:>16.4f} "
-                     f"{path.cv_se[k]:>7.4f}{mark}")
-    chosen = model.chosen
+                     f"{path.cv_se[k]:>7.4f}{beside}{mark}")
     lines += ["", f"Chosen: {chosen['leaves']} leaves ({chosen['rule']}), cross-validated risk "
               f"{chosen['cv_risk']:.4f} ± {chosen['cv_se']:.4f} (training {chosen['train_risk']:.4f}).",
               f"Model fingerprint: {model.short_fingerprint}"]
+    if chosen["rule"] == "goal":
+        lines[-1:-1] = [goal_text(chosen)]
     check = model.extra.get("validation")
     if check:
         lines.append(f"Checked on {check['source']} ({check['n']} visits): {check['summary']}.")
     lines += ["", model.rules(), f"{CAUTION_TITLE}. {caution_text()}"]
     return "\n".join(lines)
+
+
+def goal_text(chosen: dict) -> str:
+    """One line on the goal a tree was built for and what it reached under cross-validation."""
+    from ..sizing.goal import cost_words
+
+    goal = chosen["goal"]
+    sens, spec = chosen["cv_sensitivity_interval"], chosen["cv_specificity_interval"]
+    return (f"Built for cross-validated {goal['measure']} of at least {goal['at_least']:.0%}: "
+            f"sensitivity {chosen['cv_sensitivity']:.1%} ({sens[0]:.1%} to {sens[1]:.1%}), "
+            f"specificity {chosen['cv_specificity']:.1%} ({spec[0]:.1%} to {spec[1]:.1%}), "
+            f"95% Wilson intervals; {cost_words(chosen['miss_cost'])} "
+            f"({chosen['grid_description']}).")
 
 
 def run_score(args) -> int:

@@ -21,8 +21,10 @@ from .request import DerivationRequest
 
 
 def build_model(path: CrossValidatedPath, index: int, rule: str, table: LoadedTable,
-                dictionary: DataDictionary, request: DerivationRequest) -> TreeModel:
-    """The subtree at position ``index`` of the pruning sequence, as a plain TreeModel."""
+                dictionary: DataDictionary, request: DerivationRequest,
+                chosen_extra: dict | None = None) -> TreeModel:
+    """The subtree at position ``index`` of the pruning sequence, as a plain TreeModel;
+    ``chosen_extra`` adds to what ``chosen`` records (a goal and its search)."""
     grown = path.grown
     data, tree, encoding = grown.data, grown.tree, grown.encoding
     internal = grown.sequence.internal_at(path.grid[index])
@@ -67,6 +69,13 @@ def build_model(path: CrossValidatedPath, index: int, rule: str, table: LoadedTa
     chosen = {"leaves": int(sequence.leaves[index]), "rule": rule,
               "cv_risk": float(path.cv_risk[index]), "cv_se": float(path.cv_se[index]),
               "train_risk": float(sequence.train_risk[index])}
+    if path.counts is not None:
+        counts = path.counts
+        by_size = [counts.measures_at(k) for k in range(len(sequence.leaves))]
+        for name in ("cv_sensitivity", "cv_specificity"):
+            path_dict[name] = [m[name] for m in by_size]
+            path_dict[name + "_interval"] = [m[name + "_interval"] for m in by_size]
+    chosen.update(chosen_extra or {})
     used = sorted({encoding.columns[f].spec.name for f in set(tree.feature[internal].tolist())})
     predictors = tuple(p.spec for p in data.predictors)
     extra = {

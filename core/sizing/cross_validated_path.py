@@ -9,7 +9,7 @@ case, how many path nodes are still internal at each α′ gives every predictio
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from functools import cached_property
 from typing import Sequence
 
@@ -21,6 +21,7 @@ from ..design.matrix import Encoding, fit_encoding
 from ..errors import InputError
 from ..messages.message import say
 from ..progress import CancelFlag, Progress, stop_if_cancelled
+from .cv_counts import PathCounts, empty_counts, fold_counts
 from .folds import CVSettings, fold_plan
 from .grow import ClassCosts, FullTree, TreeSettings, class_costs, grow_tree
 from .prune import PruningSequence, collapse_alphas, pruning_sequence
@@ -70,6 +71,8 @@ class CrossValidatedPath:
     n_folds: int
     n_cases: int
     description: str
+    # Two-class outcomes: pooled held-out counts per size (sensitivity, specificity, net benefit).
+    counts: PathCounts | None = field(default=None, repr=False)
 
     @property
     def leaves(self) -> np.ndarray:
@@ -150,20 +153,28 @@ def case_losses(tree: FullTree, nodes: np.ndarray, y: np.ndarray,
     return costs.loss[y[:, None], predicted] * costs.case_weight[y][:, None]
 
 
-def _fold_losses(data: AnalysisData, settings: TreeSettings, costs: ClassCosts | None,
-                 train: np.ndarray, test: np.ndarray, grid: np.ndarray):
+def fold_losses(data: AnalysisData, settings: TreeSettings, costs: ClassCosts | None,
+                train: np.ndarray, test: np.ndarray, grid: np.ndarray):
+    """One fold: grow on ``train``, route ``test`` once; each held-out case's loss at every
+    grid α′, and (two classes) the fold's counts."""
     encoding = fit_encoding(data, train)
     tree = grow_tree(encoding.matrix(data, train), data.y[train], data.task, settings, costs)
     collapse = collapse_alphas(tree.children_left, tree.children_right, tree.prune_risk)
     X_test = encoding.matrix(data, test)
     y_test = data.y[test]
     chunk = max(1, _CHUNK_CELLS // max(1, len(grid)))
+    two_classes = tree.task == "classification" and tree.class_counts.shape[1] == 2
+    counts = empty_counts(len(grid)) if two_classes else None
+    if two_classes:
+        share = tree.class_counts[:, 1] / np.maximum(tree.n, 1)
     parts = []
     for start in range(0, len(test), chunk):
         stop = start + chunk
         nodes = path_nodes(tree, collapse, X_test[start:stop], grid)
         parts.append(case_losses(tree, nodes, y_test[start:stop], costs).astype(np.float64))
-    return test, np.concatenate(parts) if parts else np.zeros((0, len(grid)))
+        if two_classes:
+            counts = counts + fold_counts(tree.label[nodes], share[nodes], y_test[start:stop])
+    return test, np.concatenate(parts) if parts else np.zeros((0, len(grid))), counts
 
 
 def cross_validate_path(data: AnalysisData, settings: TreeSettings, cv: CVSettings,
@@ -184,28 +195,50 @@ def cross_validate_path(data: AnalysisData, settings: TreeSettings, cv: CVSettin
     if progress:
         progress(1, total)
     grid = grown.sequence.grid
-    sums = np.zeros((data.n, len(grid)))
-    times = np.zeros(data.n)
-    costs = grown.costs
-    tasks = (delayed(_fold_losses)(data, settings, costs, f.train, f.test, grid) for f in folds)
+    tally = PathTally(data.n, len(grid))
+    tasks = (delayed(fold_losses)(data, settings, grown.costs, f.train, f.test, grid)
+             for f in folds)
     done = 1
     # Always through joblib, so a joblib backend set by the caller (a cluster, say) spreads the
     # folds without code changes; jobs=None defers to that backend's own default.
     results = Parallel(n_jobs=jobs, return_as="generator_unordered")(tasks)
-    for test, losses in results:
+    for result in results:
         stop_if_cancelled(cancel)
-        sums[test] += losses
-        times[test] += 1
+        tally.add(*result)
         done += 1
         if progress:
             progress(done, total)
-    seen = times > 0
-    per_case = sums[seen] / times[seen][:, None]
-    n_cases = int(seen.sum())
-    cv_risk = per_case.mean(axis=0)
-    # Breiman et al. (1984, §3.4.3): SE from the spread of the per-case losses.
-    cv_se = per_case.std(axis=0) / np.sqrt(n_cases)
-    grouped = cv.grouped and data.groups is not None and cv.plan in ("kfold", "loo", "split")
-    return CrossValidatedPath(grown=grown, cv=cv, grid=grid, cv_risk=cv_risk, cv_se=cv_se,
-                              n_folds=len(folds), n_cases=n_cases,
-                              description=cv.describe(grouped))
+    return tally.path(grown, cv, data, len(folds))
+
+
+class PathTally:
+    """Held-out losses and counts gathered fold by fold, made into a CrossValidatedPath."""
+
+    def __init__(self, n: int, sizes: int):
+        self.sums = np.zeros((n, sizes))
+        self.times = np.zeros(n)
+        self.counts: PathCounts | None = None
+
+    def add(self, test: np.ndarray, losses: np.ndarray, counts: PathCounts | None) -> None:
+        self.sums[test] += losses
+        self.times[test] += 1
+        if counts is not None:
+            self.counts = counts if self.counts is None else self.counts + counts
+
+    def path(self, grown: DerivationTree, cv: CVSettings, data: AnalysisData,
+             n_folds: int) -> "CrossValidatedPath":
+        seen = self.times > 0
+        per_case = self.sums[seen] / self.times[seen][:, None]
+        n_cases = int(seen.sum())
+        cv_risk = per_case.mean(axis=0)
+        # Breiman et al. (1984, §3.4.3): SE from the spread of the per-case losses.
+        cv_se = per_case.std(axis=0) / np.sqrt(n_cases)
+        grouped = cv.grouped and data.groups is not None and cv.plan in ("kfold", "loo", "split")
+        counts = None
+        if self.counts is not None:
+            held = data.y[seen]
+            counts = replace(self.counts, class_cases=(int((held == 0).sum()),
+                                                       int((held == 1).sum())))
+        return CrossValidatedPath(grown=grown, cv=cv, grid=grown.sequence.grid, cv_risk=cv_risk,
+                                  cv_se=cv_se, n_folds=n_folds, n_cases=n_cases,
+                                  description=cv.describe(grouped), counts=counts)

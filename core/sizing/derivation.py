@@ -22,6 +22,8 @@ from ..progress import CancelFlag, Progress
 from .chosen_tree import build_model
 from .cross_validated_path import CrossValidatedPath, cross_validate_path
 from .folds import holdout_split
+from .goal import cost_words
+from .goal_search import GoalSearch, search_goal
 from .request import DerivationRequest
 
 
@@ -39,6 +41,8 @@ class Derivation:
     notes: tuple[str, ...] = ()
     # The chosen tree's check on the held-out rows, made once here so no caller redoes it.
     heldout_check: CheckResult | None = field(default=None, repr=False)
+    # A goal's search over miss costs (``path`` is then the chosen cost's path).
+    goal_search: GoalSearch | None = field(default=None, repr=False)
 
     def check_on_heldout(self) -> CheckResult:
         """The chosen tree checked on the rows set aside before growing (refused when none
@@ -63,6 +67,16 @@ def derive(table: LoadedTable, dictionary: DataDictionary, request: DerivationRe
         notes.append(say("holdout.set_aside", n=len(out), total=full.n))
     if data.task == "classification" and np.unique(data.y).size < len(data.classes):
         raise InputError(say("holdout.class_left_out"))
+    if request.goal is not None:
+        search = search_goal(data, request.tree, request.cv, request.goal, jobs=jobs,
+                             progress=progress, cancel=cancel)
+        path = search.path
+        model = build_model(path, search.size_index, "goal", table, dictionary, request,
+                            chosen_extra=search.chosen_record())
+        notes.append(say("goal.searched", goal=request.goal.describe(),
+                         grid=search.describe_grid(), cost=cost_words(search.miss_cost)))
+        return _checked(Derivation(request, table, dictionary, data, heldout, path, model,
+                                   tuple(notes), goal_search=search))
     path = cross_validate_path(data, request.tree, request.cv, jobs=jobs, progress=progress,
                                cancel=cancel)
     index, rule = path.index_for(request.size)
@@ -72,10 +86,18 @@ def derive(table: LoadedTable, dictionary: DataDictionary, request: DerivationRe
 
 
 def choose_model(derivation: Derivation, size: str | int) -> Derivation:
-    """The same run with another size chosen from the pruning path (no refitting)."""
+    """The same run with another size chosen from the pruning path (no refitting); "goal"
+    returns to the goal's own tree when the run searched for one."""
+    search = derivation.goal_search
+    if size == "goal" and search is not None:
+        model = build_model(search.path, search.size_index, "goal", derivation.table,
+                            derivation.dictionary, derivation.request,
+                            chosen_extra=search.chosen_record())
+        return _checked(replace(derivation, model=model, heldout_check=None))
     index, rule = derivation.path.index_for(size)
+    extra = None if search is None else {"miss_cost": search.miss_cost}
     model = build_model(derivation.path, index, rule, derivation.table, derivation.dictionary,
-                        derivation.request)
+                        derivation.request, chosen_extra=extra)
     return _checked(replace(derivation, model=model, heldout_check=None))
 
 

@@ -8,6 +8,7 @@ from dataclasses import dataclass
 
 from ..design.analysis import DesignSpec
 from .folds import CVSettings
+from .goal import Goal
 from .grow import TreeSettings
 
 
@@ -20,13 +21,19 @@ class DerivationRequest:
     cv: CVSettings = CVSettings()
     holdout: float | None = None  # share of patients set aside before growing
     size: str | int = "1se"
+    # Two classes: the smallest tree reaching this CV sensitivity or specificity (the miss
+    # cost is searched); the size rule is then the goal's.
+    goal: Goal | None = None
 
     def to_dict(self) -> dict:
         d = self.design
-        return {"design": {"outcome": d.outcome, "predictors": list(d.predictors), "task": d.task,
+        out = {"design": {"outcome": d.outcome, "predictors": list(d.predictors), "task": d.task,
                            "positive": d.positive, "patient_id": d.patient_id, "site": d.site},
-                "tree": self.tree.to_dict(), "cv": self.cv.to_dict(), "holdout": self.holdout,
-                "size": self.size}
+               "tree": self.tree.to_dict(), "cv": self.cv.to_dict(), "holdout": self.holdout,
+               "size": self.size}
+        if self.goal is not None:
+            out["goal"] = self.goal.to_dict()
+        return out
 
     @classmethod
     def from_dict(cls, data: dict) -> "DerivationRequest":
@@ -36,4 +43,4 @@ class DerivationRequest:
                             patient_id=d.get("patient_id"), site=d.get("site"))
         return cls(design=design, tree=TreeSettings.from_dict(data.get("tree", {})),
                    cv=CVSettings.from_dict(data.get("cv", {})), holdout=data.get("holdout"),
-                   size=data.get("size", "1se"))
+                   size=data.get("size", "1se"), goal=Goal.from_dict(data.get("goal")))

@@ -41,6 +41,23 @@ ENTRIES = [
      "pruning path are {sizes}.", "Pick one of the listed sizes."),
     ("size.size_word", "refused", "The tree size must be '1se', 'min' or a number of leaves, "
      "not {size!r}.", "Use 1se, min or a number."),
+    ("goal.measure", "refused", "A goal is a least sensitivity or a least specificity, not "
+     "{given!r}.", "Use --min-sensitivity or --min-specificity."),
+    ("goal.share", "refused", "A goal must be a share between 0 and 1 (for example 0.95 for "
+     "95%), not {given!r}.", "Give a share such as 0.95."),
+    ("goal.two_classes", "refused", "A sensitivity or specificity goal needs an outcome with "
+     "two classes.", "Choose a two-class outcome, or size the tree by its error."),
+    ("goal.with_cost", "refused", "A goal chooses the cost of missing a positive itself; give "
+     "either a goal or costs, not both.", "Leave out --miss-cost (or the goal)."),
+    ("goal.one_goal", "refused", "Give one goal: a least sensitivity or a least specificity, "
+     "not both.", "Keep --min-sensitivity or --min-specificity."),
+    ("goal.not_reached", "refused", "No tree reaches {goal}. The best reached is {measure} "
+     "{best} ({leaves} outcome boxes, {other} {other_value}, {cost}).", "Lower the goal, or add predictors or patients."),
+    ("goal.no_tree", "refused", "No tree that asks a question and calls some patients each "
+     "way was found while searching for {goal}.", "Lower the minimum leaf size, or add "
+     "predictors or patients."),
+    ("goal.searched", "note", "Built for {goal}: searched {grid}; the chosen tree was "
+     "grown with {cost}.", "Nothing to do."),
     ("holdout.set_aside", "note", "{n} of {total} rows were set aside before growing, to "
      "check the tree on patients it never saw.", "Nothing to do."),
     ("holdout.class_left_out", "refused", "After setting patients aside, one outcome class "
