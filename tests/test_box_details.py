@@ -65,17 +65,19 @@ def test_route_patient_agrees_with_scoring_the_file(demo):
 def test_route_patient_missing_and_unreadable_values(demo):
     _, model = demo
     nothing = route_patient(model, {})
-    assert model.node(nothing.outcome_box).leaf  # every question has a branch for "not recorded"
+    # SpO2 is never blank in the demo: no branch for it, so the lookup asks for it (issue 10).
+    assert (nothing.outcome_box, nothing.needs, nothing.waiting_box) == (0, "spo2", 1)
+    assert nothing.prediction is None and nothing.boxes == (1,)
     odd = route_patient(model, {"spo2": "very low"})
-    assert odd.outcome_box == nothing.outcome_box
+    assert (odd.outcome_box, odd.needs) == (0, "spo2")
     assert any("not numbers" in w for w in odd.warnings)
 
 
 def test_scored_table_columns(demo):
     table, model = demo
     scored, _ = scored_table(model, table.frame)
-    assert list(scored.columns[-3:]) == ["prunella_box", "prunella_prediction",
-                                         "prunella_share_yes"]
+    assert list(scored.columns[-4:]) == ["prunella_box", "prunella_prediction",
+                                         "prunella_share_yes", "prunella_missing"]
     assert len(scored) == len(table.frame)
     assert "prunella_box" not in table.frame.columns  # the input is not touched
     leaf = model.leaves[0]

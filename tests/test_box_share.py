@@ -49,10 +49,18 @@ def test_derived_outcome_text_is_the_shared_phrase_with_counts(which: str) -> No
 
 
 def test_which_branch_takes_a_value_not_recorded() -> None:
-    above = Question("age", "above", threshold=70, missing_goes="yes")
+    above = Question("age", "above", threshold=70, missing_goes="yes", missing_in_derivation=4)
     assert [above.takes_missing(b) for b in (0, 1)] == [True, False]
-    levels = Question("sex", "in", yes_levels=("F",), no_levels=("M",), missing_goes="no")
+    levels = Question("sex", "in", yes_levels=("F",), no_levels=("M",), missing_goes="no",
+                      missing_in_derivation=1)
     assert [levels.takes_missing(b) for b in (0, 1)] == [False, True]
+    # No derivation patient lacked the value (or an older file that did not count them): no
+    # branch takes it (issue 10 item 1).
+    for count in (0, None):
+        unseen = Question("age", "above", threshold=70, missing_goes="yes",
+                          missing_in_derivation=count)
+        assert [unseen.takes_missing(b) for b in (0, 1)] == [False, False]
+        assert not unseen.routes_missing
     asks = Question("age", "missing", missing_goes="yes")
     assert [asks.takes_missing(b) for b in (0, 1)] == [False, False]
     assert ANSWERS == ("YES", "NO")

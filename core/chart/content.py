@@ -10,7 +10,7 @@ from dataclasses import dataclass
 
 from .. import __version__
 from ..cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER, UNCHECKED_DETAIL
-from ..model.tree import ANSWERS, Node, TreeModel
+from ..model.tree import ANSWERS, MEASURE_FIRST, Node, TreeModel
 from ..phrases import plural, short_fingerprint
 from .bands import Band, Banding, banding, number, percent, rate_phrase
 from .layout import BoxSpec, Para, TreeSpec
@@ -266,9 +266,19 @@ def _key(model: TreeModel, bands: Banding, options: ChartOptions) -> PanelSectio
         share = (f"Rate: share {who} among the box's {rows}" if options.hide_counts
                  else f"“P% of N”: share {who} among the N {rows} in the box")
         what = f"{share}; CI: its 95% confidence interval (Wilson)."
-    missing = "(or not recorded)" if options.form == "rules" else NOT_RECORDED
-    items.append(PanelItem(f"{what} “{missing}”: where a missing value goes."))
+    if any(n.question is not None and n.question.kind != "missing" and n.question.routes_missing
+           for n in model.nodes):
+        missing = "(or not recorded)" if options.form == "rules" else NOT_RECORDED
+        what += f" “{missing}”: where a missing value goes."
+    items.append(PanelItem(what))
     return PanelSection("Key", tuple(items), kind="key")
+
+
+def _how_to_read(model: TreeModel, options: ChartOptions) -> str:
+    """How to read the chart; where a question has no branch for a missing value, that such a
+    value is measured first (said once, here)."""
+    how = HOW_TO_READ_RULES if options.form == "rules" else HOW_TO_READ
+    return f"{how} {MEASURE_FIRST}" if model.asks_unroutable() else how
 
 
 def chart_text(model: TreeModel, options: ChartOptions) -> ChartText:
@@ -292,7 +302,7 @@ def chart_text(model: TreeModel, options: ChartOptions) -> ChartText:
     return ChartText(title=options.title or default_title(model),
                      subtitle=options.subtitle if options.subtitle is not None
                      else default_subtitle(model),
-                     how_to_read=HOW_TO_READ_RULES if options.form == "rules" else HOW_TO_READ,
+                     how_to_read=_how_to_read(model, options),
                      banner=banner, tree=spec, bands=band_of,
                      small=small, sections=tuple(sections), footer=footer,
                      fingerprint=model.fingerprint)

@@ -29,6 +29,7 @@ from ..dictionary.columns import ColumnSpec
 from ..dictionary.typed_columns import typed_column
 from ..errors import InputError
 from ..messages.message import say
+from ..model.scoring import needs_counts, needs_warning
 from ..model.tree import TreeModel, column_values
 from .metrics import (
     ClassificationMeasures, DerivationBox, Measures, RegressionMeasures, classification_measures,
@@ -74,6 +75,8 @@ class CheckResult:
     warnings: tuple[str, ...]
     model_fingerprint: str
     data_sha256: str | None = None
+    # (column, rows left out): a value not recorded where no derivation patient lacked it
+    needs_value: tuple[tuple[str, int], ...] = ()
 
     @property
     def summary(self) -> str:
@@ -131,6 +134,9 @@ class CheckResult:
         if self.n_excluded:
             lines.append(f"Left out: {self.n_excluded} of {self.n_rows} rows (outcome not "
                          "recorded or not a class the tree knows).")
+        if self.needs_value:
+            lines.append("Left out, a value to measure first: " + ", ".join(
+                f"{c} {k}" for c, k in self.needs_value) + ".")
         if self.columns is not None:
             lines += self.columns.lines()
         lines += [f"Warning: {w}" for w in self.warnings]
@@ -221,15 +227,20 @@ def _seen_levels(model: TreeModel) -> dict[str, set[str]]:
 
 
 def _route(model: TreeModel, values: dict[str, np.ndarray], n: int,
-           unknown: dict[str, int]) -> tuple[np.ndarray, tuple[tuple[str, int], ...]]:
-    """Boxes reached, and per column how many cells hold a level the tree never saw."""
+           unknown: dict[str, int]) -> tuple[np.ndarray, tuple[tuple[str, int], ...],
+                                             tuple[tuple[str, int], ...]]:
+    """Boxes reached (0 = none: a value must be measured), per column how many cells hold a
+    level the tree never saw, and per column how many rows wait for its value."""
     counts = dict(unknown)
     for column, levels in _seen_levels(model).items():
         cells = values[column]
         present = ~pd.isna(cells)
         never = present & ~np.isin(cells.astype(object), list(levels))
         counts[column] = counts.get(column, 0) + int(never.sum())
-    return model.route(values, n), tuple((c, k) for c, k in sorted(counts.items()) if k)
+    leaves, waiting = model.route_waiting(values, n)
+    return (leaves, tuple((c, k) for c, k in sorted(counts.items()) if k),
+            needs_counts(model, waiting))
+
 
 
 def _unseen_warning(unseen: tuple[tuple[str, int], ...], model: TreeModel) -> list[str]:
@@ -250,15 +261,19 @@ def check_heldout(model: TreeModel, heldout: AnalysisData | None, share: float,
     if heldout is None:
         raise InputError(say("check.no_heldout"))
     values = model.asked_values(heldout.predictors)
-    leaves, unseen = _route(model, values, heldout.n, {})
+    leaves, unseen, needs = _route(model, values, heldout.n, {})
+    routed = leaves > 0
     source = (f"held-out part of {model.extra.get('data', {}).get('file', 'the derivation file')} "
               f"({share:.0%} of patients set aside before growing)")
-    patients = int(np.unique(heldout.groups).size) if heldout.groups is not None else None
+    patients = (int(np.unique(heldout.groups[routed]).size) if heldout.groups is not None
+                else None)
+    warnings = _unseen_warning(unseen, model) + needs_warning("check.needs_value", needs, model)
     return CheckResult(
-        source=source, kind="held-out", n=heldout.n, n_rows=heldout.n, n_excluded=0,
-        patients=patients, measures=measure_model(model, heldout.y, leaves), columns=None,
-        unseen_levels=unseen, warnings=tuple(_unseen_warning(unseen, model)),
-        model_fingerprint=_fingerprint_without_check(model), data_sha256=data_sha256)
+        source=source, kind="held-out", n=int(routed.sum()), n_rows=heldout.n, n_excluded=0,
+        patients=patients, measures=measure_model(model, heldout.y[routed], leaves[routed]),
+        columns=None, unseen_levels=unseen, warnings=tuple(warnings),
+        model_fingerprint=_fingerprint_without_check(model), data_sha256=data_sha256,
+        needs_value=needs)
 
 
 # --- an external file -------------------------------------------------------------------------
@@ -356,9 +371,12 @@ def check_table(model: TreeModel, table: LoadedTable, source: str | None = None)
             unknown[column] = int((present & (typed.codes < 0)).sum())
         else:
             notes.extend(typed.notes)
-    leaves, unseen = _route(model, values, len(rows), unknown)
+    leaves, unseen, needs = _route(model, values, len(rows), unknown)
     notes.extend(_unseen_warning(unseen, model))
+    notes.extend(needs_warning("check.needs_value", needs, model))
     notes = list(table.provenance.warnings) + notes
+    routed = leaves > 0
+    y, leaves, rows = y[routed], leaves[routed], rows.loc[routed].reset_index(drop=True)
     design = model.extra.get("settings", {}).get("design", {})
     patient = design.get("patient_id")
     patients = None
@@ -372,7 +390,7 @@ def check_table(model: TreeModel, table: LoadedTable, source: str | None = None)
         source=source, kind="external", n=len(rows), n_rows=n_rows, n_excluded=no_outcome,
         patients=patients, measures=measure_model(model, y, leaves), columns=report,
         unseen_levels=unseen, warnings=tuple(notes), model_fingerprint=_fingerprint_without_check(model),
-        data_sha256=table.provenance.sha256)
+        data_sha256=table.provenance.sha256, needs_value=needs)
 
 
 def with_check(model: TreeModel, result: CheckResult) -> TreeModel:
@@ -397,4 +415,6 @@ def training_measures(model: TreeModel, data: AnalysisData) -> Measures:
 
     Optimistic by construction: show it only beside the cross-validated and checked measures.
     """
-    return measure_model(model, data.y, model.route(model.asked_values(data.predictors), data.n))
+    leaves = model.route(model.asked_values(data.predictors), data.n)
+    routed = leaves > 0  # every derivation patient is, unless an older file is read the safe way
+    return measure_model(model, data.y[routed], leaves[routed])

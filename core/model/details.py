@@ -63,15 +63,20 @@ def box_details(model: TreeModel, box: int) -> BoxDetails:
 class PatientRoute:
     """Where one patient's values lead: the boxes passed, the answers, the outcome box."""
 
-    boxes: tuple[int, ...]  # box 1 ... outcome box
+    boxes: tuple[int, ...]  # box 1 ... outcome box (or the question still to answer)
     steps: tuple[Step, ...]
-    outcome_box: int
-    prediction: str | float
+    outcome_box: int  # 0 when a value must be measured first
+    prediction: str | float | None
     warnings: tuple[str, ...] = ()
+    needs: str | None = None  # the column to measure: not recorded, and no branch for it
+    waiting_box: int = 0  # the question box where the patient waits for that value
 
 
 def route_patient(model: TreeModel, values: dict[str, object]) -> PatientRoute:
     """Route one patient given as {column: value}; a value left out or None is not recorded.
+
+    Where a value is not recorded at a question with no branch for it (no derivation patient
+    there lacked it), the route stops at that question and ``needs`` names the column.
 
     Values are read as the model reads any spreadsheet cell (text like "92" or "ambulance"
     is fine), so the lookup and scoring a file agree.
@@ -80,10 +85,12 @@ def route_patient(model: TreeModel, values: dict[str, object]) -> PatientRoute:
     frame = pd.DataFrame({c: pd.Series(v, dtype=object) for c, v in row.items()})
     scored = model.apply(frame)
     leaf = int(scored.leaf[0])
-    steps = model.steps_to(leaf)
+    needs = scored.needs[0] if scored.needs is not None else None
+    waiting = int(scored.waiting[0]) if scored.waiting is not None else 0
+    steps = model.steps_to(waiting or leaf)
     boxes = tuple([1] + [s.to for s in steps]) if steps else (1,)
-    prediction = scored.prediction[0]
+    prediction = scored.prediction[0] if leaf else None
     if isinstance(prediction, (np.floating, float)):
         prediction = float(prediction)
     return PatientRoute(boxes=boxes, steps=steps, outcome_box=leaf, prediction=prediction,
-                        warnings=scored.warnings)
+                        warnings=scored.warnings, needs=needs, waiting_box=waiting)

@@ -97,7 +97,7 @@ def check_model_document(data: dict) -> None:
 def _check_split(split, where: str, predictors: set) -> None:
     if not isinstance(split, dict):
         raise _damaged(where, "a box with children needs its question ('split')")
-    if split.get("column") not in predictors:
+    if not isinstance(split.get("column"), str) or split["column"] not in predictors:
         raise _damaged(where, "it asks about a column that is not among the predictors")
     kind = split.get("kind")
     if kind not in SPLIT_KINDS:
@@ -109,8 +109,11 @@ def _check_split(split, where: str, predictors: set) -> None:
             _texts(split[key], where, key)
     if kind == "in" and not split.get("yes_levels"):
         raise _damaged(where, "a question about levels needs at least one YES level")
-    if split.get("missing_goes", "no") not in ("yes", "no"):
-        raise _damaged(where, "'missing_goes' must be 'yes' or 'no'")
+    if split.get("missing_goes", "no") not in ("yes", "no", None):
+        raise _damaged(where, "'missing_goes' must be 'yes', 'no' or null")
+    count = split.get("missing_in_derivation")
+    if count is not None and (not is_whole_number(count) or count < 0):
+        raise _damaged(where, "'missing_in_derivation' must be a whole number")
 
 
 def _check_leaf(node: dict, where: str, classification: bool, classes: list) -> None:

@@ -8,19 +8,52 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
+from ..messages.message import say
 from .tree import TreeModel
 
 
 def scored_table(model: TreeModel, frame: pd.DataFrame) -> tuple[pd.DataFrame, tuple[str, ...]]:
     """A copy of ``frame`` with the box number, the prediction and (two classes) the share of
-    positives in that box added; returns the table and the notes raised while reading values."""
+    positives in that box added; returns the table and the notes raised while reading values.
+
+    A row stopped at a question whose value is not recorded, where no derivation patient
+    lacked it, gets none of these; ``prunella_missing`` names the column to measure."""
     scored = model.apply(frame)
     out = frame.copy()
-    out["prunella_box"] = scored.leaf
+    leaf = np.asarray(scored.leaf)
+    routed = leaf > 0
+    # A row waiting for a value (box 0) gets no box, no prediction and no share: the scored
+    # file leaves them empty and names the column to measure.
+    box = pd.array(leaf, dtype="Int64")
+    box[~routed] = pd.NA
+    out["prunella_box"] = box
     out["prunella_prediction"] = scored.prediction
     if model.positive is not None:
-        share = np.zeros(len(model.nodes) + 1)  # looked up by box number, as predictions are
-        for leaf in model.leaves:
-            share[leaf.id] = leaf.counts[1] / max(leaf.n, 1)
-        out[f"prunella_share_{model.positive}"] = np.round(share[np.asarray(scored.leaf)], 4)
-    return out, scored.warnings
+        share = np.full(len(model.nodes) + 1, np.nan)  # looked up by box number, as predictions are
+        for node in model.leaves:
+            share[node.id] = node.counts[1] / max(node.n, 1)
+        out[f"prunella_share_{model.positive}"] = np.round(share[leaf], 4)
+    warnings = list(scored.warnings)
+    if model.asks_unroutable():
+        out["prunella_missing"] = scored.needs
+        warnings += needs_warning("check.scored_needs_value", _counted(scored.needs), model)
+    return out, tuple(warnings)
+
+
+def _counted(needed: np.ndarray) -> tuple[tuple[str, int], ...]:
+    names, counts = np.unique(needed[pd.notna(needed)].astype(str), return_counts=True)
+    return tuple((str(c), int(k)) for c, k in zip(names, counts))
+
+
+def needs_counts(model: TreeModel, waiting: np.ndarray) -> tuple[tuple[str, int], ...]:
+    """Per column, how many rows wait at one of its questions for the value to be measured
+    (``waiting`` as :meth:`TreeModel.route_waiting` gives it)."""
+    return _counted(model.needed_columns(waiting))
+
+
+def needs_warning(code: str, needs: tuple[tuple[str, int], ...], model: TreeModel) -> list[str]:
+    """The sentence naming the rows that wait for a value (none when every row was routed)."""
+    if not needs:
+        return []
+    parts = ", ".join(f"{model.spec(c).display} {k}" for c, k in needs)
+    return [say(code, n=sum(k for _, k in needs), parts=parts)]

@@ -40,25 +40,47 @@ class Question:
     threshold: float | None = None
     yes_levels: tuple[str, ...] = ()
     no_levels: tuple[str, ...] = ()
-    missing_goes: str = "no"  # "yes" or "no": the branch for a value that is not recorded
+    # "yes" or "no": the branch for a value that is not recorded; None when the derivation
+    # patients at this box gave no evidence (none had the value missing): measure it instead.
+    missing_goes: str | None = "no"
+    # Derivation patients reaching the box whose value was not recorded; None in model files
+    # written before it was counted.
+    missing_in_derivation: int | None = None
+
+    @property
+    def routes_missing(self) -> bool:
+        """Whether a value that is not recorded is sent down a branch at all.
+
+        Only where the derivation patients at this box had missing values is there evidence
+        for a branch. A model file that does not say how many had (written before the count
+        was kept) is read the safe way: no evidence, so the value must be measured."""
+        if self.kind == "missing":
+            return True
+        return self.missing_goes in ("yes", "no") and bool(self.missing_in_derivation)
 
     def takes_missing(self, branch: int) -> bool:
         """Whether branch ``branch`` (0 = YES, 1 = NO) also takes a value that is not recorded.
 
         A question that asks "not recorded?" says so itself, so neither branch adds it."""
-        return self.kind != "missing" and self.missing_goes == ("yes" if branch == 0 else "no")
+        return (self.kind != "missing" and self.routes_missing
+                and self.missing_goes == ("yes" if branch == 0 else "no"))
 
     def to_dict(self) -> dict:
-        return {"column": self.column, "kind": self.kind, "threshold": self.threshold,
+        data = {"column": self.column, "kind": self.kind, "threshold": self.threshold,
                 "yes_levels": list(self.yes_levels), "no_levels": list(self.no_levels),
                 "missing_goes": self.missing_goes}
+        if self.missing_in_derivation is not None:  # absent from older files: kept absent
+            data["missing_in_derivation"] = self.missing_in_derivation
+        return data
 
     @classmethod
     def from_dict(cls, data: dict) -> "Question":
+        count = data.get("missing_in_derivation")
         return cls(column=data["column"], kind=data["kind"], threshold=data.get("threshold"),
                    yes_levels=tuple(data.get("yes_levels", ())),
                    no_levels=tuple(data.get("no_levels", ())),
-                   missing_goes=data.get("missing_goes", "no"))
+                   missing_goes=data.get("missing_goes", "no"),
+                   missing_in_derivation=None if count is None else int(count))
 
 
 def question_text(question: Question, spec: ColumnSpec) -> str:
@@ -79,6 +101,8 @@ def question_text(question: Question, spec: ColumnSpec) -> str:
 
 
 ANSWERS = ("YES", "NO")  # the words on a question's branches, children in this order
+# Said once on a chart (and in the rules) whose questions have no branch for a missing value.
+MEASURE_FIRST = "If a value asked for is not recorded, measure it before using this chart."
 
 
 def shared_count(counts: tuple[int, ...], classes: tuple[str, ...], prediction) -> int:
@@ -176,9 +200,11 @@ def column_values(numbers: np.ndarray | None, codes: np.ndarray | None,
 class Scored:
     """The result of routing rows through a model."""
 
-    leaf: np.ndarray  # box number of the outcome box reached
-    prediction: np.ndarray  # class label or mean
+    leaf: np.ndarray  # box number of the outcome box reached; 0 where a value is needed
+    prediction: np.ndarray  # class label or mean (None or NaN where a value is needed)
     warnings: tuple[str, ...] = ()
+    needs: np.ndarray | None = None  # the column whose value must be measured, else None
+    waiting: np.ndarray | None = None  # the question box where that row waits, else 0
 
 
 @dataclass(frozen=True)
@@ -329,8 +355,9 @@ class TreeModel:
             typed = typed_column(frame[column].reset_index(drop=True), spec)
             warnings.extend(typed.notes)
             values[column] = column_values(typed.numbers, typed.codes, spec)
-        at = self.route(values, len(frame))
-        return Scored(leaf=at, prediction=self.predictions(at), warnings=tuple(warnings))
+        at, waiting = self.route_waiting(values, len(frame))
+        return Scored(leaf=at, prediction=self.predictions(at), warnings=tuple(warnings),
+                      needs=self.needed_columns(waiting), waiting=waiting)
 
     def columns_asked(self) -> list[str]:
         return sorted({n.question.column for n in self.nodes if n.question is not None})
@@ -343,40 +370,64 @@ class TreeModel:
                 if t.spec.name in asked}
 
     def route(self, values: dict[str, np.ndarray], n: int) -> np.ndarray:
-        """Box number reached by each of ``n`` rows, given each asked column's values."""
+        """Box number reached by each of ``n`` rows, given each asked column's values; 0 for a
+        row stopped at a question whose value is not recorded and has no branch (see
+        :meth:`route_waiting`)."""
+        return self.route_waiting(values, n)[0]
+
+    def route_waiting(self, values: dict[str, np.ndarray],
+                      n: int) -> tuple[np.ndarray, np.ndarray]:
+        """The boxes reached (0 = none) and, per row, the question box where it waits for a
+        value to be measured (0 = it reached an outcome box)."""
         at = np.ones(n, dtype=np.int64)
+        waiting = np.zeros(n, dtype=np.int64)
         for node in self.nodes:  # parents come before children
             if node.leaf:
                 continue
             here = np.flatnonzero(at == node.id)
             if here.size == 0:
                 continue
-            yes = self._answers(node.question, values[node.question.column][here])
+            yes, unknown = self._answers(node.question, values[node.question.column][here])
             at[here] = np.where(yes, node.children[0], node.children[1])
-        return at
+            stopped = here[unknown]
+            at[stopped] = 0
+            waiting[stopped] = node.id
+        return at, waiting
+
+    def needed_columns(self, waiting: np.ndarray) -> np.ndarray:
+        """The column each row must have measured (None where it reached a box)."""
+        table = np.array([None] + [n.question.column if n.question else None
+                                   for n in self.nodes], dtype=object)
+        return table[np.asarray(waiting)]
 
     def predictions(self, leaves: np.ndarray) -> np.ndarray:
-        table = np.array([None] + [n.prediction for n in self.nodes], dtype=object)
+        # Box 0 (no box: a value must be measured first) predicts nothing.
+        empty = np.nan if self.task == "regression" else None
+        table = np.array([empty] + [n.prediction for n in self.nodes], dtype=object)
         out = table[leaves]
         return out.astype(float) if self.task == "regression" else out
 
     @staticmethod
-    def _answers(question: Question, values: np.ndarray) -> np.ndarray:
+    def _answers(question: Question, values: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """YES per row, and which rows cannot be answered (not recorded, no branch for it)."""
+        if question.kind == "missing":
+            answer = pd.isna(values)
+            return answer, np.zeros(len(answer), dtype=bool)
         missing_yes = question.missing_goes == "yes"
         if question.kind == "above":
             values = values.astype(float)
             missing = np.isnan(values)
             with np.errstate(invalid="ignore"):
                 answer = values > question.threshold
-        elif question.kind == "missing":
-            return pd.isna(values)
         else:
             missing = pd.isna(values)
             answer = np.isin(values.astype(object), list(question.yes_levels))
             # A level the tree never saw at derivation is treated as not recorded.
             known = np.isin(values.astype(object), list(question.yes_levels + question.no_levels))
             missing = missing | ~known
-        return np.where(missing, missing_yes, answer)
+        missing = np.asarray(missing, dtype=bool)
+        unknown = missing if not question.routes_missing else np.zeros(len(missing), dtype=bool)
+        return np.where(missing, missing_yes, answer), unknown
 
     # --- plain text ---------------------------------------------------------------------
 
@@ -393,9 +444,16 @@ class TreeModel:
             current = node.id
         return tuple(reversed(steps))
 
+    def asks_unroutable(self) -> bool:
+        """Whether some question has no branch for a value that is not recorded (so the value
+        must be measured before the tree is used)."""
+        return any(n.question is not None and not n.question.routes_missing for n in self.nodes)
+
     def rules(self) -> str:
         """The tree as numbered plain-text rules, one line per path to an outcome box."""
         lines = [f"Outcome: {self.outcome.display}", ""]
+        if self.asks_unroutable():
+            lines[1:1] = [MEASURE_FIRST]
         for leaf in self.leaves:
             condition = " AND ".join(s.phrase() for s in self.steps_to(leaf.id)) or "(every patient)"
             lines.append(f"Box {leaf.id}: IF {condition}")

@@ -194,17 +194,20 @@ def _missing(c: ReportContents, s: Styles) -> list:
     routing = {}
     for node in model.nodes:
         if node.question is not None and node.question.kind != "missing":
-            routing.setdefault(node.question.column, []).append(
-                f"box {node.id}: {node.question.missing_goes.upper()}")
+            q = node.question
+            where = q.missing_goes.upper() if q.routes_missing else "none seen, measured first"
+            routing.setdefault(q.column, []).append(f"box {node.id}: {where}")
     rows = [["Predictor", "Not recorded (derivation visits)", "Where the tree sends them"]]
     for column in der.data.predictors:
         k = int(column.missing.sum())
         rows.append([column.spec.display, _count_pct(k, n),
                      "; ".join(routing.get(column.spec.name, [])) or "–"])
-    return [para("Values not recorded are not imputed. At every question the grower learns which "
-                 "branch such patients follow (the larger branch when the derivation patients "
-                 "at that box had none), and the chart prints that branch. A level the tree "
-                 "never saw at derivation is treated as not recorded.", s.body),
+    return [para("Values not recorded are not imputed. At every question where some derivation "
+                 "patients lacked the value, the grower learns which branch such patients follow, "
+                 "and the chart prints that branch. Where none at that box lacked it, the tree "
+                 "has no evidence for either branch: the chart prints none and says to measure "
+                 "the value first, and scoring leaves such a patient without a box. A level the "
+                 "tree never saw at derivation is treated as not recorded.", s.body),
             table(rows, [0.36, 0.3, 0.34], s)]
 
 

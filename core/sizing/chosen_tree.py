@@ -129,21 +129,27 @@ def _outcome_text(stats: dict, data: AnalysisData) -> str:
 def _question(column: MatrixColumn, tree, node: int, X_rows: np.ndarray, data: AnalysisData,
               rows: np.ndarray) -> Question:
     threshold = np.float64(tree.threshold[node])
-    missing_goes = "no" if tree.missing_left[node] else "yes"
     values = X_rows[:, tree.feature[node]].astype(np.float64)
     present = ~np.isnan(values)
+    missing = int((~present).sum())
+    # Where no derivation patient at this box lacked the value, the grower's branch for a
+    # missing value is only its default (the larger branch), not evidence: none is printed,
+    # and such a patient is measured first.
+    missing_goes = None if missing == 0 else ("no" if tree.missing_left[node] else "yes")
     left = values <= threshold  # scikit-learn's own test, float32 value against float64 threshold
     if not (present & ~left).any() or not (present & left).any():
         # All recorded values on one side: the split is "recorded or not".
-        return Question(column=column.spec.name, kind="missing", missing_goes="yes")
+        return Question(column=column.spec.name, kind="missing", missing_goes="yes",
+                        missing_in_derivation=missing)
     if column.kind == "numeric":
         original = data.predictors[column.predictor].numbers[rows]
         lo = float(np.max(original[present & left]))
         hi = float(np.min(original[present & ~left]))
         return Question(column=column.spec.name, kind="above", threshold=round_threshold(lo, hi),
-                        missing_goes=missing_goes)
+                        missing_goes=missing_goes, missing_in_derivation=missing)
     return Question(column=column.spec.name, kind="in", yes_levels=column.yes_levels(threshold),
-                    no_levels=column.no_levels(threshold), missing_goes=missing_goes)
+                    no_levels=column.no_levels(threshold), missing_goes=missing_goes,
+                    missing_in_derivation=missing)
 
 
 def _check_routes(model: TreeModel, tree, internal, X, data: AnalysisData, box_of) -> None:

@@ -11,6 +11,7 @@ from PySide6.QtWidgets import (
     QSplitter, QTextBrowser, QVBoxLayout, QWidget,
 )
 
+from core.messages import say
 from core.model import box_details, format_number, route_patient
 from gui.panels.step_panel import StepPanel, scrolling, side_by_side, tool_buttons, with_tooltip
 from gui.panels.wording import warning_html
@@ -42,6 +43,14 @@ def details_html(model, box: int) -> str:
                     f"{format_number(round(d.sd, 3))}); 95% interval "
                     f"{format_number(round(d.mean_low, 3))} to {format_number(round(d.mean_high, 3))}"
                     f"{unit}.</p>")
+    question = model.node(box).question
+    if question is not None and question.kind != "missing":
+        if not question.routes_missing:
+            rows.append("<p>None of the patients reaching this box lacked this value, so the "
+                        "tree has no branch for a patient without it: measure it first.</p>")
+        else:
+            rows.append(f"<p>{question.missing_in_derivation:,} of them had it not recorded; "
+                        f"such patients follow {question.missing_goes.upper()}.</p>")
     if d.steps:
         rows.append("<p><b>How patients get here</b></p><ol>")
         rows.extend(f"<li>{escape(s.text())}</li>" for s in d.steps)
@@ -216,8 +225,15 @@ class TreePanel(StepPanel):
         route = route_patient(model, values)
         self.last_route = route
         self.view.light_path(route.boxes)
-        leaf = model.node(route.outcome_box)
         warn = "".join(warning_html(w) for w in route.warnings)
+        if route.needs is not None:  # no branch for this missing value: which one to measure
+            label = model.spec(route.needs).display
+            self.result.setText(f"<p><b>Stops at box {route.waiting_box}.</b></p>"
+                                + warning_html(say("app.measure_first", label=label,
+                                                   box=route.waiting_box)) + warn)
+            self.show_box(route.waiting_box)
+            return
+        leaf = model.node(route.outcome_box)
         # The way there is lit in the diagram and listed in the box details above.
         self.result.setText(f"<p><b>Reaches box {route.outcome_box}:</b> {escape(leaf.text)}</p>"
                             f"{warn}")

@@ -26,6 +26,9 @@ ENTRIES = [
     ("app.printer_failed", "refused", "The printer could not be started; check it in the "
      "system settings.", "Check that the printer is on and set up, or export the PDF and "
      "print that."),
+    ("app.measure_first", "warning", "{label} is needed: it is not recorded, and at box {box} "
+     "no patient the tree was grown on lacked it, so the tree cannot say which way this "
+     "patient goes; measure it first.", "Enter the measured value to see the outcome box."),
     ("app.chart_not_drawn", "refused", "The chart could not be drawn.",
      "Look at the message on step 6, or choose a smaller tree or larger paper."),
     ("app.not_the_saved_tree", "warning", "The tree grown again differs from the one saved "

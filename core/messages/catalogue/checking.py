@@ -24,6 +24,13 @@ ENTRIES = [
      "derivation and were routed as not recorded ({parts}).",
      "Check the spelling of these levels in the new file; a category the tree never saw "
      "follows the branch for values not recorded."),
+    ("check.needs_value", "warning", "{n} row(s) were left out of the check because a value "
+     "the tree asks for was not recorded where no derivation patient lacked it ({parts}).",
+     "Measure these values; the tree has no evidence for where such a patient belongs."),
+    ("check.scored_needs_value", "warning", "{n} row(s) got no outcome box because a value the tree "
+     "asks for was not recorded where no derivation patient lacked it ({parts}); the column "
+     "prunella_missing names it.",
+     "Measure these values and score the rows again."),
     ("check.columns_found", "note", "{n} of the model's columns were found.", "Nothing to do."),
     ("check.column_renamed", "note", "Column {found!r} was taken as {wanted!r} (the names "
      "differ only in capitals or spaces).", "Nothing to do."),
