@@ -537,8 +537,11 @@ def _leak(p):
     write_text(p, csv_text(HEADER + ["bed_booked"], add_column(rows, booked)))
 
 
+# A record-number column that repeats is proposed as the patient number (issue 10.4).
 @case("repeat_visits_without_id", "repeats.csv",
-      says=["'hospital number' repeats for", "--patient-id"])
+      says=["'hospital number' looks like a patient identifier",
+            "keeps each patient's rows in the same fold"],
+      check=_frame_check(lambda f, d: d.get("hospital number").role == "patient_id"))
 def _repeats(p):
     numbers = [f"H{1000 + i // 2}" for i in range(80)]
     write_text(p, csv_text(HEADER + ["hospital number"], add_column(base_rows(), numbers)))

@@ -15,6 +15,7 @@ import numpy as np
 import pandas as pd
 
 from ..dictionary.columns import CATEGORY_KINDS, PREDICTOR_KINDS, ColumnSpec, DataDictionary
+from ..dictionary.identity import may_group_patients
 from ..dictionary.typed_columns import TypedColumn, positive_level, typed_column
 from ..errors import InputError
 from ..messages.message import say
@@ -98,11 +99,15 @@ def default_design(dictionary: DataDictionary, outcome: str | None = None, *,
             return None
         outcome = outcomes[0].name
     spec = dictionary.get(outcome)
-    if patient_id is None:
-        patient_id = next((c.name for c in dictionary.by_role("patient_id")), None)
+    if patient_id is None:  # a name marked as the patient number is not taken as one
+        patient_id = next((c.name for c in dictionary.by_role("patient_id")
+                           if may_group_patients(c)), None)
     if site is None:
         site = next((c.name for c in dictionary.by_role("site")), None)
     patient_id = None if patient_id == outcome else patient_id
+    if patient_id is not None and not may_group_patients(dictionary.get(patient_id)):
+        # Names, addresses, phone numbers and e-mails are never the patient number.
+        raise InputError(say("design.patient_id_identifying", column=patient_id))
     site = None if site == outcome else site
     for name in exclude:
         dictionary.get(name)  # an unknown column is refused by name

@@ -30,9 +30,10 @@ import numpy as np
 import pandas as pd
 
 from ..data.cells import is_missing_text, level_text, parse_numbers
-from ..dictionary.columns import DataDictionary
+from ..dictionary.columns import ColumnSpec, DataDictionary
 from ..dictionary.identity import (
     IdentityHint, identity_by_header, identity_hint, looks_like_record_numbers,
+    may_group_patients,
 )
 from ..errors import InputError
 from ..messages.message import message_kinds, say
@@ -257,8 +258,9 @@ def repeat_visit_findings(frame: pd.DataFrame, dictionary: DataDictionary, desig
         counts = _repeat_counts(frame[name])
         repeats = counts[counts > 1]
         if len(repeats) >= 2:
-            # A repeating name hints at repeat visits but must not become the identifier.
-            by_name = not named and hint.what == "names"
+            # A repeating name hints at repeat visits but must not become the identifier:
+            # only record numbers may be proposed as the patient number.
+            by_name = not may_group_patients(spec if spec is not None else ColumnSpec(name))
             code = "guard.repeats_by_name" if by_name else "guard.repeats_no_id"
             found.append(_finding("repeat_visits", name, code,
                                   measures={"patients_with_repeats": len(repeats)},

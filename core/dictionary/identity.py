@@ -30,7 +30,8 @@ _HEADER_RULES: tuple[tuple[str, re.Pattern], ...] = (
     ("names", re.compile(r"\b(first|last|given|family|full|middle|maiden|patient|person|"
                          r"client|pt)\s?names?\b|\b(sur|fore)names?\b|^names?$|^initials$")),
     ("record numbers", re.compile(r"\b(mrn|urn|medical record|record (no|number)|"
-                                  r"hospital (no|number)|nhs (no|number)|chi (no|number)|ssn|"
+                                  r"(hospital|hosp|unit|chart) (no|number|num)|hosp ?no|"
+                                  r"nhs (no|number)|chi (no|number)|ssn|"
                                   r"social security|insurance (no|number)|passport|"
                                   r"national id|health card|case (no|number))\b")),
 )
@@ -97,6 +98,13 @@ def identity_by_contents(values: pd.Series) -> IdentityHint | None:
         return None
     if _share(texts, _EMAIL) >= 0.5:
         return IdentityHint("e-mail addresses", "contents")
+    if _share(texts, _DATE_LIKE) >= 0.9:
+        # Dates first: a dd/mm/yyyy date is written with digits and slashes like a phone
+        # number, but only dates spread over decades identify (dates of birth).
+        dates = pd.to_datetime(pd.Series(texts, dtype=object), errors="coerce", format="mixed",
+                               dayfirst=True)
+        if dates.notna().mean() >= 0.9:
+            return _birth_dates(dates.dropna())
     if distinct >= 0.5 and _share(texts, _PHONE) >= 0.8 and \
             float(np.median([sum(ch.isdigit() for ch in t) for t in texts])) >= 7 and \
             (_share(texts, _PHONE_PUNCTUATION) >= 0.5 or
@@ -106,11 +114,6 @@ def identity_by_contents(values: pd.Series) -> IdentityHint | None:
         return IdentityHint("addresses", "contents")
     if distinct >= 0.5 and len(texts) >= 10 and _person_names(texts) >= 0.8:
         return IdentityHint("names", "contents")
-    if _share(texts, _DATE_LIKE) >= 0.9:
-        dates = pd.to_datetime(pd.Series(texts, dtype=object), errors="coerce", format="mixed",
-                               dayfirst=True)
-        if dates.notna().mean() >= 0.9:
-            return _birth_dates(dates.dropna())
     return None
 
 
@@ -135,6 +138,23 @@ def _birth_dates(dates: pd.Series) -> IdentityHint | None:
     if span >= 30 and int(np.min(years)) >= 1880 and pd.Timestamp(np.max(dates)) <= pd.Timestamp.now():
         return IdentityHint("dates of birth", "contents")
     return None
+
+
+# What a patient-number column may hold: record numbers (one per person, never shared).
+GROUPING_IDENTITIES = ("record numbers", "an identifier unique to each row")
+
+
+def may_group_patients(spec) -> bool:
+    """Whether a column (its dictionary entry) may be the patient number that keeps a patient's
+    rows together: record numbers may; names, addresses, phone numbers, e-mail addresses and
+    dates of birth never (different people share them, and one person's are written in
+    several ways)."""
+    hint = identity_by_header(spec.name)
+    if hint is not None and hint.what not in GROUPING_IDENTITIES:
+        return False
+    note = getattr(spec, "note", "") or ""
+    return not (note.startswith("identity: ") and
+                note[len("identity: "):] not in GROUPING_IDENTITIES)
 
 
 def identity_hint(name: str, values: pd.Series) -> IdentityHint | None:

@@ -23,7 +23,7 @@ from ..messages.message import say
 from ..phrases import rows_phrase
 from .columns import MAX_NOMINAL_LEVELS, ColumnSpec, DataDictionary, canonical_levels
 from .typed_columns import event_level
-from .identity import identity_hint, looks_like_record_numbers
+from .identity import GROUPING_IDENTITIES, identity_hint, looks_like_record_numbers
 
 _ORDINAL_HINT = re.compile(r"(level|grade|score|stage|class|category|triage|scale|rank)", re.I)
 _SITE_HINT = re.compile(r"(site|campus|hospital|centre|center|clinic|facility)", re.I)
@@ -57,15 +57,31 @@ def infer_column(name: str, values: pd.Series,
     if spec.kind in ("binary", "ordinal", "nominal") and spec.note != "no recorded values" \
             and not any(getattr(n, "code", "") == "infer.sentinel" for n in notes):
         notes.extend(_probable_missing_note(name, values, spec, rows))
-    if spec.role == "patient_id" or spec.note in ("no recorded values", "constant"):
+    if spec.note in ("no recorded values", "constant"):
         return spec, notes
     hint = identity_hint(name, values)
+    if spec.role == "patient_id" and (hint is None or hint.what in GROUPING_IDENTITIES):
+        return spec, notes
+    if hint is not None and hint.what == "record numbers" and spec.role != "patient_id" \
+            and _repeats(values):
+        # Record numbers that repeat: the patient number of repeat visits (proposed).
+        notes = [n for n in notes if getattr(n, "code", "") not in ("infer.identifier",
+                                                                     "infer.too_many_levels")]
+        notes.append(say("infer.patient_id", column=name))
+        return replace(spec, kind="identifier", role="patient_id", levels=()), notes
     if hint is not None:
+        # Names, addresses, phone numbers, e-mails: identifying, never the patient number.
         if spec.kind == "identifier":  # the privacy reason says more than "unique per row"
-            notes = [n for n in notes if n != say("infer.identifier", column=name)]
+            notes = [n for n in notes if getattr(n, "code", "") not in ("infer.identifier",
+                                                                         "infer.patient_id")]
         notes.append(say("infer.identity", column=name, reason=hint.reason))
         spec = replace(spec, role="ignore", note=f"identity: {hint.what}")
     return spec, notes
+
+
+def _repeats(values: pd.Series) -> bool:
+    present = values.dropna()
+    return 0 < present.nunique() < len(present)
 
 
 def _probable_missing_note(name: str, values: pd.Series, spec: ColumnSpec, rows) -> list[str]:

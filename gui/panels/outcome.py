@@ -12,7 +12,7 @@ from PySide6.QtWidgets import (
 )
 
 from core.design import default_design
-from core.dictionary import CATEGORY_KINDS, PREDICTOR_KINDS
+from core.dictionary import CATEGORY_KINDS, PREDICTOR_KINDS, may_group_patients
 from core.messages import app_advice, app_wording, say
 from gui.binding import Bindings
 from gui.guard_watch import GuardWatch, offered_columns
@@ -146,7 +146,7 @@ class OutcomePanel(StepPanel):
         bind(self.patient_combo, lambda: (design().patient_id if design() else None) or NONE,
              lambda name: self._role_chosen("patient_id", name),
              lambda: self._column_choices("(none: every row is a different patient)",
-                                          lambda spec: True))
+                                          may_group_patients))
         bind(self.site_combo, lambda: (design().site if design() else None) or NONE,
              lambda name: self._role_chosen("site", name),
              lambda: self._column_choices("(none: one site)", lambda spec: spec.kind in

@@ -54,3 +54,19 @@ def test_probable_missing_codes_are_confirmed_with_one_click(window, qtbot, tmp_
     assert not any("'Smoking' holds" in t for t in texts)
     assert any("'Smoking': 'unknown' now read as not recorded" in t for t in texts)
     assert (sha256_of(path), path.stat().st_mtime_ns) == before
+
+
+def test_names_are_never_offered_as_the_patient_number(window, qtbot, tmp_path):
+    path = tmp_path / "icu.csv"
+    clinic_sheet(path)
+    _open(window, qtbot, path)
+    dictionary = window.session.dictionary
+    assert dictionary.get("Patient name").role == "ignore"
+    assert dictionary.get("Seen on").kind == "date"  # dd/mm/yyyy: a date, not phone numbers
+    window.session.choose_outcome("ICU")
+    window.go_to("outcome")
+    combo = window.panels["outcome"].patient_combo
+    offered = [combo.itemData(i) for i in range(combo.count())]
+    assert "Hosp No" in offered and "Patient name" not in offered
+    assert window.session.design.patient_id == "Hosp No"
+    assert "Patient name" not in window.session.design.predictors

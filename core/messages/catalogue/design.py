@@ -61,6 +61,12 @@ ENTRIES = [
      "together.",
      "Without it, one patient can be in the training and the test part, and the error looks "
      "better than it is."),
+    ("design.patient_id_identifying", "refused", "{column!r} holds names, addresses, phone "
+     "numbers or e-mail addresses, which are not a safe patient number (different people share "
+     "them); name a record-number column as the patient number instead (on the command line: "
+     "--patient-id COLUMN).",
+     "Add a patient or record number column to the data and use it to keep each patient's "
+     "rows together."),
     ("guard.repeats_by_name", "warning", "{column!r} repeats for {patients} name(s) "
      "({n_rows} rows): some patients probably came more than once. A name is not a safe "
      "patient identifier (different people share names), so add a patient number column and "

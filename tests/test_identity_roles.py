@@ -1,0 +1,84 @@
+"""Names are never patient numbers (issue 10.4): names, addresses, phone numbers and e-mail
+addresses identify people but are shared and written in several ways, so only record-number
+columns may be proposed as the patient identifier (common practice in record linkage: link
+visits by a record number, never by name). Also: a dd/mm/yyyy date column is a date, not phone
+numbers (issue 15.14). The data are invented."""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from core.design import DesignSpec, default_design
+from core.design.guards import repeat_visit_findings
+from core.dictionary import ColumnSpec, DataDictionary, infer_dictionary, may_group_patients
+from core.errors import InputError
+from tests.helpers import prunella, sha256_of
+
+FIRST = ["Margaret", "John", "Aisha", "Tomasz", "Li", "Fatima", "Peter", "Grace"]
+LAST = ["Okafor", "Smith", "Khan", "Nowak", "Wei", "Haddad", "Jones", "Mensah"]
+
+
+def visits(n: int = 120) -> pd.DataFrame:
+    rng = np.random.default_rng(2)
+    sats = rng.integers(84, 100, n)
+    return pd.DataFrame({
+        "Hosp No": [f"H{400000 + i // 2}" for i in range(n)],
+        "Patient name": [f"{FIRST[i // 2 % 8]} {LAST[(i // 16) % 8]}" for i in range(n)],
+        "Patient": [f"{FIRST[(i // 2 + 3) % 8]} {LAST[(i // 16 + 1) % 8]}" for i in range(n)],
+        "Phone": [f"07700 900{(i // 2) % 50:03d}" for i in range(n)],
+        "Seen on": [f"{1 + i % 28:02d}/{1 + i % 12:02d}/2024" for i in range(n)],
+        "Sats": sats,
+        "ICU": np.where(sats < 88, "yes", "no"),
+    })
+
+
+def test_names_are_left_out_and_record_numbers_proposed():
+    dictionary, notes = infer_dictionary(visits())
+    assert dictionary.get("Hosp No").role == "patient_id"
+    for name in ("Patient name", "Patient", "Phone"):
+        spec = dictionary.get(name)
+        assert spec.role == "ignore" and spec.note.startswith("identity: "), spec
+        assert not may_group_patients(spec)
+        assert any(n.code == "infer.identity" and f"{name!r}" in n for n in notes), name
+    assert not any(n.code == "infer.patient_id" and "'Patient" in n for n in notes)
+    assert may_group_patients(dictionary.get("Hosp No"))
+
+
+def test_a_dd_mm_yyyy_column_is_a_date_not_phone_numbers():
+    dictionary, notes = infer_dictionary(visits())
+    assert dictionary.get("Seen on").kind == "date"
+    assert not any("'Seen on'" in n and "phone" in n for n in notes)
+
+
+def test_a_name_marked_as_patient_number_is_never_used_as_one():
+    frame = visits().drop(columns=["Hosp No"])
+    dictionary, _ = infer_dictionary(frame)
+    marked = dictionary.with_column("Patient name", role="patient_id", kind="identifier")
+    assert default_design(marked, "ICU").patient_id is None  # not taken from the dictionary
+    with pytest.raises(InputError, match="not a safe patient number"):
+        default_design(marked, "ICU", patient_id="Patient name")
+    # Repeat visits seen through the names are reported, but the name is never offered.
+    found = repeat_visit_findings(frame, marked, DesignSpec("ICU", ("Sats",)))
+    assert found and found[0].code == "guard.repeats_by_name"
+    assert "--patient-id" not in found[0].message
+    plain = DataDictionary((ColumnSpec("Email", kind="identifier"),))
+    assert not may_group_patients(plain.get("Email"))
+
+
+def test_the_command_line_refuses_a_name_as_patient_number(tmp_path):
+    path = tmp_path / "icu.csv"
+    visits().to_csv(path, index=False)
+    before = (sha256_of(path), path.stat().st_mtime_ns)
+    run = prunella("fit", path, "--outcome", "ICU", "--patient-id", "Patient name",
+                   "--model", tmp_path / "m.json", "--folds", "3")
+    assert run.returncode == 2 and "Traceback" not in run.stderr
+    lines = [line for line in run.stderr.splitlines() if line.startswith("prunella: ")]
+    assert len(lines) == 1 and "'Patient name'" in lines[0] and "not a safe patient number" \
+        in lines[0]
+    run = prunella("fit", path, "--outcome", "ICU", "--model", tmp_path / "m.json",
+                   "--folds", "3", "--min-leaf", "5")
+    assert run.returncode == 0, run.stderr
+    assert '"patient_id": "Hosp No"' in (tmp_path / "m.json").read_text()
+    assert (sha256_of(path), path.stat().st_mtime_ns) == before
