@@ -93,7 +93,7 @@ def _bad(tmp_path, name, rows):
     ("one class", "only one class"),
     ("all missing", "not recorded for any row"),
     ("too few rows", "too few for leaves"),
-    ("bad size", "--size must be"),
+    ("bad size", "--size: must be"),
     ("bad option", "unrecognized arguments"),
 ])
 def test_bad_input_is_one_sentence_and_exit_2(tmp_path, case, expected):

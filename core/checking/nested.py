@@ -18,6 +18,7 @@ from joblib import Parallel, delayed
 from ..design.analysis import AnalysisData
 from ..errors import InputError
 from ..messages.message import say
+from ..option_limits import check_request_limits, check_setting
 from ..phrases import plural
 from ..progress import CancelFlag, Progress, stop_if_cancelled
 from ..sizing.cross_validated_path import case_losses, cross_validate_path, path_nodes
@@ -105,6 +106,8 @@ def nested_cross_validate(data: AnalysisData, request: DerivationRequest,
     """
     if outer_folds < 2:
         raise InputError(say("nested.outer_folds"))
+    check_setting("outer_folds", outer_folds, where="outer folds")
+    check_request_limits(request)
     seed = request.cv.seed if seed is None else seed
     outer = CVSettings(plan="kfold", folds=outer_folds, grouped=request.cv.grouped,
                        stratified=True, seed=seed + 1)  # other folds than the inner CV's

@@ -29,6 +29,7 @@ from ..design.analysis import AnalysisData
 from ..errors import InputError
 from ..messages.message import say
 from ..model.tree import Question, TreeModel
+from ..option_limits import check_request_limits, check_setting
 from ..progress import CancelFlag, Progress, stop_if_cancelled
 from ..sizing.cross_validated_path import cross_validate_path
 from ..sizing.request import DerivationRequest
@@ -224,6 +225,8 @@ def bootstrap_stability(data: AnalysisData, request: DerivationRequest, model: T
     """
     if resamples < 1:
         raise InputError(say("stability.resamples"))
+    check_setting("bootstrap", resamples, where="bootstrap resamples")
+    check_request_limits(request)
     seed = request.cv.seed if seed is None else seed
     patient_level = data.groups is not None
     if not patient_level:  # each visit is its own patient, so its copies share a fold

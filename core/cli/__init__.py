@@ -32,16 +32,22 @@ def build_parser() -> Parser:
     fit.add_parsers(sub)
     checking.add_parsers(sub)
     chart.add_parsers(sub)
+    parser.subcommands = dict(sub.choices)
     return parser
 
 
 def main(argv: list[str] | None = None) -> int:
     """Run a subcommand; returns the exit status."""
     parser = build_parser()
-    args = parser.parse_args(argv)
+    args, unknown = parser.parse_known_args(argv)
     if args.command is None:
+        if unknown:
+            parser.error(say("cli.unknown_arguments", arguments=" ".join(unknown)))
         parser.print_help()
         return EXIT_BAD_INPUT
+    if unknown:  # said by the subcommand, so the advice names 'prunella fit --help'
+        parser.subcommands[args.command].error(
+            say("cli.unknown_arguments", arguments=" ".join(unknown)))
     try:
         return _RUN[args.command](args)
     except InputError as exc:

@@ -12,8 +12,26 @@ EXIT_BAD_INPUT = 2
 
 class Parser(argparse.ArgumentParser):
     def error(self, message: str):  # one sentence, exit 2, like every other bad input
-        usage = say("cli.usage", problem=message, command=self.prog.split()[-1])
+        usage = say("cli.usage", problem=message, command=self.prog)
         self.exit(EXIT_BAD_INPUT, f"prunella: {usage}\n")
+
+
+def size_option(text: str) -> str | int:
+    """--size: '1se', 'min' or a number of leaves inside the table of limits."""
+    import argparse
+
+    from ..option_limits import problem_with
+
+    if text in ("1se", "min"):
+        return text
+    try:
+        value: str | int = int(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(say("cli.size_words", given=text[:40])) from None
+    problem = problem_with("size", value)
+    if problem is not None:
+        raise argparse.ArgumentTypeError(problem)
+    return value
 
 
 def csv_list(text: str | None) -> tuple[str, ...]:

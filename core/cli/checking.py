@@ -13,6 +13,7 @@ from ..dictionary.for_table import dictionary_for, merge_dictionary
 from ..errors import InputError
 from ..messages.message import say
 from ..model.tree import TreeModel
+from ..option_limits import option_type
 from ..phrases import short_fingerprint
 from ..safe_files import refuse_overwrite, write_text_atomic
 from .arguments import dictionary_path
@@ -40,14 +41,16 @@ def add_parsers(sub) -> None:
     report.add_argument("--external", help="a file of patients from elsewhere to check the tree on")
     report.add_argument("--external-sheet", help="XLSX sheet name of the external file")
     report.add_argument("--external-source", help="where the external patients come from, in words")
-    report.add_argument("--bootstrap", type=int, default=DEFAULT_RESAMPLES,
+    report.add_argument("--bootstrap", type=option_type("bootstrap"), default=DEFAULT_RESAMPLES,
                         help=f"bootstrap resamples for stability (default {DEFAULT_RESAMPLES}; "
                         "0 = none)")
-    report.add_argument("--outer-folds", type=int, default=DEFAULT_OUTER_FOLDS,
+    report.add_argument("--outer-folds", type=option_type("outer_folds"),
+                        default=DEFAULT_OUTER_FOLDS,
                         help="outer folds of the nested cross-validation "
                         f"(default {DEFAULT_OUTER_FOLDS})")
     report.add_argument("--no-nested", action="store_true", help="skip nested cross-validation")
-    report.add_argument("--jobs", type=int, default=1, help="parallel work (default 1; -1 = all cores)")
+    report.add_argument("--jobs", type=option_type("jobs"), default=1,
+                        help="parallel work (default 1; -1 = all cores)")
     report.add_argument("--out", required=True, help="where to write the PDF")
     report.add_argument("--date", help="date printed on the report and its chart, YYYY-MM-DD "
                         "(default: today); the same date gives the same bytes")
@@ -95,8 +98,6 @@ def run_report(args) -> int:
     refuse_overwrite(args.out, *inputs)
     if not str(args.out).lower().endswith(".pdf"):
         raise InputError(say("cli.report_needs_pdf"))
-    if args.bootstrap < 0:
-        raise InputError(say("cli.bootstrap"))
     printed = printed_date(args.date) or dt.date.today()  # told before any reading
     model = TreeModel.load(args.model)
     settings = model.extra.get("settings")

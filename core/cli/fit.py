@@ -19,7 +19,8 @@ from ..errors import InputError
 from ..messages.message import distinct_messages, kind_of, say
 from ..model.tree import TreeModel
 from ..safe_files import refuse_overwrite, write_csv_safely, write_text_atomic
-from .arguments import DICTIONARY_HELP, csv_list, dictionary_path
+from ..option_limits import check_setting, option_type
+from .arguments import DICTIONARY_HELP, csv_list, dictionary_path, size_option
 from .chart import add_fit_chart_options, fit_chart
 
 if TYPE_CHECKING:  # scikit-learn loads only when a tree is grown, so bad input is refused fast
@@ -42,18 +43,24 @@ def add_parsers(sub) -> None:
     fit.add_argument("--dictionary", help=DICTIONARY_HELP)
     fit.add_argument("--patient-id", help="patient identifier column: repeat visits stay in one fold")
     fit.add_argument("--site", help="site column: cross-validate by leaving one site out at a time")
-    fit.add_argument("--folds", type=int, default=10, help="number of folds (default 10)")
-    fit.add_argument("--repeats", type=int, default=1, help="repeat the k-fold split R times")
+    fit.add_argument("--folds", type=option_type("folds"),
+                     default=10, help="number of folds (default 10)")
+    fit.add_argument("--repeats", type=option_type("repeats"),
+                     default=1, help="repeat the k-fold split R times")
     fit.add_argument("--loo", action="store_true", help="leave-one-out cross-validation")
-    fit.add_argument("--holdout", type=float, help="share of patients set aside before growing, "
+    fit.add_argument("--holdout", type=option_type("holdout"),
+                     help="share of patients set aside before growing, "
                      "to check the tree on (e.g. 0.25)")
-    fit.add_argument("--min-leaf", type=int, default=5, help="minimum patients per leaf (default 5)")
-    fit.add_argument("--max-depth", type=int, help="maximum depth of the grown tree")
+    fit.add_argument("--min-leaf", type=option_type("min_leaf"),
+                     default=5, help="minimum patients per leaf (default 5)")
+    fit.add_argument("--max-depth", type=option_type("max_depth"),
+                     help="maximum depth of the grown tree")
     fit.add_argument("--criterion", help="split criterion: gini or entropy (classification), "
                      "squared_error or friedman_mse (regression)")
     fit.add_argument("--priors", default="observed", help="class priors: observed, equal, or "
                      "comma-separated numbers in class order")
-    fit.add_argument("--miss-cost", type=float, help="two classes: missing a positive is X times "
+    fit.add_argument("--miss-cost", type=option_type("miss_cost"),
+                     help="two classes: missing a positive is X times "
                      "as bad as a needless alarm")
     fit.add_argument("--min-sensitivity", type=float, metavar="S",
                      help="two classes: the smallest tree whose cross-validated sensitivity is "
@@ -63,9 +70,12 @@ def add_parsers(sub) -> None:
                      "at least S (e.g. 0.95, to rule in); the miss cost is searched")
     fit.add_argument("--risk", choices=("cost", "impurity"), default="cost",
                      help="node risk for pruning a classification tree (default cost)")
-    fit.add_argument("--size", default="1se", help="tree size: 1se (default), min, or a number of leaves")
-    fit.add_argument("--seed", type=int, default=0, help="random seed (default 0)")
-    fit.add_argument("--jobs", type=int, default=1, help="parallel folds (default 1; -1 = all cores)")
+    fit.add_argument("--size", default="1se", type=size_option,
+                     help="tree size: 1se (default), min, or a number of leaves")
+    fit.add_argument("--seed", type=option_type("seed"),
+                     default=0, help="random seed (default 0)")
+    fit.add_argument("--jobs", type=option_type("jobs"),
+                     default=1, help="parallel folds (default 1; -1 = all cores)")
     fit.add_argument("--model", required=True, help="where to write the model JSON")
     fit.add_argument("--curve", help="write the pruning curve as CSV")
     fit.add_argument("--rules", help="write the tree as plain-text rules")
@@ -90,23 +100,12 @@ def request_from_args(args, dictionary: DataDictionary) -> DerivationRequest:
     design = default_design(dictionary, args.outcome, predictors=csv_list(args.predictors) or None,
                             exclude=csv_list(args.exclude), patient_id=args.patient_id,
                             site=args.site, task=args.task, positive=args.positive)
-    priors: str | tuple[float, ...] = args.priors
-    if priors not in ("observed", "equal"):
-        try:
-            priors = tuple(float(p) for p in csv_list(args.priors))
-        except ValueError:
-            raise InputError(say("cli.priors")) from None
+    priors = priors_option(args.priors)
     tree = TreeSettings(min_leaf=args.min_leaf, max_depth=args.max_depth, criterion=args.criterion,
                         priors=priors, miss_cost=args.miss_cost, risk=args.risk, seed=args.seed)
     plan = "loo" if args.loo else ("site" if args.site else "kfold")
     cv = CVSettings(plan=plan, folds=args.folds, repeats=args.repeats, seed=args.seed)
-    size: str | int = args.size
-    if size not in ("1se", "min"):
-        try:
-            size = int(size)
-        except ValueError:
-            raise InputError(say("cli.size")) from None
-    return DerivationRequest(design=design, tree=tree, cv=cv, holdout=args.holdout, size=size,
+    return DerivationRequest(design=design, tree=tree, cv=cv, holdout=args.holdout, size=args.size,
                              goal=_goal(args))
 
 
@@ -125,6 +124,21 @@ def _goal(args):
     return Goal(*given[0])
 
 
+def priors_option(text: str) -> str | tuple[float, ...]:
+    """--priors: 'observed', 'equal' or one number per class, each inside the limits."""
+    if text in ("observed", "equal"):
+        return text
+    try:
+        priors = tuple(float(p) for p in csv_list(text))
+    except ValueError:
+        raise InputError(say("cli.priors")) from None
+    if not priors:
+        raise InputError(say("cli.priors"))
+    for value in priors:
+        check_setting("prior", value)
+    return priors
+
+
 def curve_frame(derivation: Derivation) -> pd.DataFrame:
     """The pruning curve as a table: size, α, training risk, CV risk and its SE."""
     path = derivation.path
@@ -137,6 +151,7 @@ def curve_frame(derivation: Derivation) -> pd.DataFrame:
 
 
 def run_fit(args) -> int:
+    priors_option(args.priors)  # told before any reading
     refuse_overwrite(args.model, args.data)
     refuse_overwrite(args.curve, args.data)
     refuse_overwrite(args.rules, args.data)

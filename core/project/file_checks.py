@@ -12,6 +12,7 @@ from __future__ import annotations
 from ..design.analysis import TASKS
 from ..errors import InputError
 from ..messages.message import say
+from ..option_limits import allowed, problem_with
 from ..safe_files import is_finite_number, is_whole_number
 from ..sizing.folds import PLANS
 from ..sizing.grow import CLASSIFICATION_CRITERIA, REGRESSION_CRITERIA, RISKS
@@ -54,6 +55,14 @@ class _Checker:
         if not is_whole_number(value) or value < least:
             self.fail(key, f"it must be a whole number of {least} or more")
 
+    def limited(self, key: str, setting: str | None = None) -> None:
+        """A number inside the table of limits (core/option_limits.py)."""
+        if key not in self.data:
+            return
+        problem = problem_with(setting or key, self.data[key])
+        if problem is not None:
+            self.fail(key, problem)
+
     def number(self, key: str, low: float, high: float | None = None,
                optional: bool = True) -> None:
         value = self.data.get(key)
@@ -92,9 +101,9 @@ def check_project_document(data: dict, file: str = "The project") -> None:
     if request is not None:
         _check_request(request)
     size = data.get("size", "1se")
-    if not (size in ("1se", "min") or (is_whole_number(size) and size >= 1)):
+    if not (size in ("1se", "min") or allowed("size", size)):
         top.fail("size", "it must be '1se', 'min' or a whole number of outcome boxes")
-    top.whole("seed", 0)
+    top.limited("seed")
     chart = top.object("chart")
     if chart is not None:
         for key in ("title", "subtitle"):
@@ -118,33 +127,33 @@ def _check_request(request: _Checker) -> None:
         design.text(key)
     tree = request.object("tree")
     if tree is not None:
-        tree.whole("min_leaf", 1)
-        tree.whole("max_depth", 1)
+        tree.limited("min_leaf")
+        tree.limited("max_depth")
         tree.text("criterion", choices=CLASSIFICATION_CRITERIA + REGRESSION_CRITERIA)
         tree.text("risk", choices=RISKS)
-        tree.number("miss_cost", 0)
-        tree.whole("seed", 0)
+        tree.limited("miss_cost")
+        tree.limited("seed")
         priors = tree.data.get("priors")
         if priors is not None and priors not in ("observed", "equal") and not (
                 isinstance(priors, list) and priors and
-                all(is_finite_number(p) and p >= 0 for p in priors)):
+                all(allowed("prior", p) for p in priors)):
             tree.fail("priors", "it must be 'observed', 'equal' or a list of numbers")
         loss = tree.data.get("loss")
         if loss is not None and not (
                 isinstance(loss, list) and loss and
-                all(isinstance(r, list) and all(is_finite_number(v) and v >= 0 for v in r)
+                all(isinstance(r, list) and all(allowed("cost", v) for v in r)
                     for r in loss)):
             tree.fail("loss", "it must be a table (list of lists) of numbers")
     cv = request.object("cv")
     if cv is not None:
         cv.text("plan", choices=PLANS)
-        cv.whole("folds", 2)
-        cv.whole("repeats", 1)
-        cv.number("validation_share", 0, 1)
+        cv.limited("folds")
+        cv.limited("repeats")
+        cv.limited("validation_share")
         cv.truth("grouped")
         cv.truth("stratified")
-        cv.whole("seed", 0)
-    request.number("holdout", 0, 1)
+        cv.limited("seed")
+    request.limited("holdout")
     size = request.data.get("size", "1se")
-    if not (size in ("1se", "min") or (is_whole_number(size) and size >= 1)):
+    if not (size in ("1se", "min") or allowed("size", size)):
         request.fail("size", "it must be '1se', 'min' or a whole number of outcome boxes")

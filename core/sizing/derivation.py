@@ -18,6 +18,7 @@ from ..dictionary.columns import DataDictionary
 from ..errors import InputError
 from ..messages.message import say
 from ..model.tree import TreeModel
+from ..option_limits import check_request_limits
 from ..progress import CancelFlag, Progress
 from .chosen_tree import build_model
 from .cross_validated_path import CrossValidatedPath, cross_validate_path
@@ -55,6 +56,7 @@ def derive(table: LoadedTable, dictionary: DataDictionary, request: DerivationRe
            jobs: int = 1, progress: Progress | None = None,
            cancel: CancelFlag | None = None) -> Derivation:
     """Grow, prune and cross-validate a tree and choose its size as the request says."""
+    check_request_limits(request)  # every number inside the table, before any work
     full = prepare_analysis(table.frame, dictionary, request.design)
     notes = list(full.notes)
     heldout = None

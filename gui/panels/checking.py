@@ -23,6 +23,7 @@ from core.checking import (
     check_table, nested_cross_validate,
 )
 from core.data import read_table
+from core.option_limits import spin_range
 from core.report import (
     calibration_figure, prepare_report, roc_figure, stability_figure, write_report,
 )
@@ -189,7 +190,7 @@ class CheckingPanel(StepPanel):
         self.outer_folds = with_tooltip(QSpinBox(), "How many outer parts the whole procedure "
                                         "is repeated on (each part is tested after growing and "
                                         "sizing on the rest).")
-        self.outer_folds.setRange(2, 20)
+        self.outer_folds.setRange(*(int(v) for v in spin_range("outer_folds")))
         self.outer_folds.setValue(DEFAULT_OUTER_FOLDS)
         self.nested_button = with_tooltip(QPushButton("Run nested cross-validation"),
                                           "Nested cross-validation: repeat growing, sizing and "
@@ -207,7 +208,7 @@ class CheckingPanel(StepPanel):
         self.resamples = with_tooltip(QSpinBox(), "How many bootstrap resamples (patients drawn "
                                       "again at random, with replacement) the whole procedure "
                                       "is refitted on; 200 is usual.")
-        self.resamples.setRange(10, 2000)
+        self.resamples.setRange(10, int(spin_range("bootstrap")[1]))  # 10: fewest useful
         self.resamples.setSingleStep(50)
         self.resamples.setValue(DEFAULT_RESAMPLES)
         self.stability_button = with_tooltip(QPushButton("Run stability check"),

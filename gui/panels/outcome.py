@@ -14,6 +14,7 @@ from PySide6.QtWidgets import (
 from core.design import default_design
 from core.dictionary import CATEGORY_KINDS, PREDICTOR_KINDS, may_group_patients
 from core.messages import app_advice, app_wording, say
+from core.option_limits import spin_range
 from gui.binding import Bindings
 from gui.guard_watch import GuardWatch, offered_columns
 from gui.panels.step_panel import StepPanel, side_by_side, with_tooltip
@@ -78,7 +79,7 @@ class OutcomePanel(StepPanel):
                                       "times worse it is to miss a patient with this outcome "
                                       "than to raise a needless alarm; above 1 makes the tree "
                                       "more cautious.")
-        self.cost_spin.setRange(0.1, 100.0)
+        self.cost_spin.setRange(0.1, spin_range("miss_cost")[1])
         self.cost_spin.setSingleStep(0.5)
         self.cost_spin.setDecimals(1)
         self.cost_spin.setValue(1.0)

@@ -16,6 +16,7 @@ from PySide6.QtWidgets import (
 from core.chart import sizes_that_fit
 from core.errors import InputError
 from core.messages import say
+from core.option_limits import spin_range
 from core.sizing import choose_model, derive
 from gui.binding import Bindings
 from gui.panels.step_panel import Banner, StepPanel, scrolling, side_by_side, with_tooltip
@@ -35,6 +36,12 @@ PLANS = (
     ("One site at a time (leave-one-site-out)", "site"),
     ("One validation split", "split"),
 )
+
+
+def _spin(setting: str) -> tuple[int, int]:
+    """A spin box's range from core's one table of limits."""
+    low, high = spin_range(setting)
+    return int(low), int(high)
 
 
 def guard_summary(screen) -> str:
@@ -122,10 +129,10 @@ class SizePanel(StepPanel):
         """How the tree grows."""
         self.min_leaf = with_tooltip(QSpinBox(), "The grower never makes an outcome box with "
                                      "fewer patients than this (the minimum leaf size).")
-        self.min_leaf.setRange(1, 100000)
+        self.min_leaf.setRange(*_spin("min_leaf"))
         self.max_depth = with_tooltip(QSpinBox(), "The most questions in a row from box 1 to an "
                                       "outcome box; 'no limit' lets pruning decide.")
-        self.max_depth.setRange(0, 40)
+        self.max_depth.setRange(0, _spin("max_depth")[1])  # 0: no limit
         self.max_depth.setSpecialValueText("no limit")
         self.criterion = with_tooltip(QComboBox(), "The split criterion: how the grower scores "
                                       "a candidate question; the usual one rarely needs "
@@ -152,10 +159,10 @@ class SizePanel(StepPanel):
                                  "how each size does on patients it did not see.")
         self.folds = with_tooltip(QSpinBox(), "How many parts (folds) the patients are split "
                                   "into; 10 is usual.")
-        self.folds.setRange(2, 100)
+        self.folds.setRange(*_spin("folds"))
         self.repeats = with_tooltip(QSpinBox(), "Repeat the whole split with other random parts "
                                     "and average, for a steadier curve (takes longer).")
-        self.repeats.setRange(1, 50)
+        self.repeats.setRange(*_spin("repeats"))
         self.share = with_tooltip(QSpinBox(), "The share of patients kept out of growing to "
                                   "test on, for a single validation split.")
         self.share.setRange(5, 60)
@@ -169,7 +176,7 @@ class SizePanel(StepPanel):
                                        "each outcome as the whole data.")
         self.seed = with_tooltip(QSpinBox(), "The seed: the number that fixes the random split "
                                  "into parts, so the same settings always give the same tree.")
-        self.seed.setRange(0, 2_000_000_000)
+        self.seed.setRange(*_spin("seed"))
         self.holdout = with_tooltip(QSpinBox(), "Set these patients aside before anything is "
                                     "grown, to check the finished tree on them (step 5); 0 "
                                     "keeps everyone for growing.")

@@ -83,3 +83,14 @@ def test_run_that_core_refuses_shows_its_message(demo, qtbot, run, dialogs):
     assert any("too few" in t for t in dialogs.texts("warning")), dialogs.texts("warning")
     assert window.session.model is None
     assert window.panels["size"].run_button.isEnabled()
+
+
+def test_spin_boxes_take_their_limits_from_core_s_table(window):
+    from core.option_limits import spin_range
+
+    size, checking = window.panels["size"], window.panels["checking"]
+    assert (size.min_leaf.minimum(), size.min_leaf.maximum()) == spin_range("min_leaf")
+    assert (size.folds.minimum(), size.folds.maximum()) == spin_range("folds")
+    assert (size.repeats.minimum(), size.repeats.maximum()) == spin_range("repeats")
+    assert size.max_depth.maximum() == spin_range("max_depth")[1]  # 0 is "no limit"
+    assert checking.outer_folds.maximum() == spin_range("outer_folds")[1]

@@ -7,11 +7,12 @@ another message's template (worded here so it is worded once; not a message of i
 template's {rows} is a row list such as " (rows 4, 9 and 22)", or empty; {where} names the
 file (and sheet). Code families name the step: read, xlsx, values, infer, dictionary,
 variables, design, guard, grow, folds, size, holdout, check, nested, stability, chart, file,
-project, model, cli, work, app (the desktop app's own).
+project, model, cli, limit, work, app (the desktop app's own).
 """
 
-from . import app, chart, checking, command_line, design, dictionary, files, reading, sizing
+from . import (app, chart, checking, command_line, design, dictionary, files, limits, reading,
+               sizing)
 
 ENTRIES = (reading.ENTRIES + dictionary.ENTRIES + design.ENTRIES + sizing.ENTRIES
-           + checking.ENTRIES + files.ENTRIES + chart.ENTRIES + command_line.ENTRIES
+           + limits.ENTRIES + checking.ENTRIES + files.ENTRIES + chart.ENTRIES + command_line.ENTRIES
            + app.ENTRIES)

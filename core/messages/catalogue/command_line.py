@@ -5,12 +5,9 @@ ENTRIES = [
      "the output so the input stays unchanged.", "Write results to a new file."),
     ("cli.priors", "refused", "--priors must be observed, equal, or numbers separated by "
      "commas (one per class).", "For example --priors 0.7,0.3."),
-    ("cli.size", "refused", "--size must be 1se, min or a number of leaves.",
-     "For example --size 1se or --size 4."),
+    ("cli.size_words", "part", "must be 1se, min or a number of leaves, not {given!r}", ""),
     ("cli.report_needs_pdf", "refused", "--out must name a PDF file (ending in .pdf).",
      "Give an output name ending in .pdf."),
-    ("cli.bootstrap", "refused", "--bootstrap must be 0 (none) or a positive number of "
-     "resamples.", "200 is usual."),
     ("cli.report_data_differs", "warning", "The data file's SHA-256 ({found}...) differs "
      "from the one the model was fitted on ({expected}...): this report re-derives the tree "
      "from the data given, which is not the model's data.",
@@ -29,8 +26,9 @@ ENTRIES = [
      "printed. {reason}",
      "Choose the size the message names, or larger paper, and print the chart with 'prunella "
      "chart'."),
-    ("cli.usage", "refused", "{problem}; see 'prunella {command} --help'.",
+    ("cli.usage", "refused", "{problem}; see '{command} --help'.",
      "Run the command with --help to see its options."),
+    ("cli.unknown_arguments", "part", "unrecognized arguments: {arguments}", ""),
     ("cli.interrupted", "note", "interrupted.",
      "Nothing to do; run the command again to start over."),
     ("work.cancelled", "note", "The computation was cancelled.",
