@@ -37,7 +37,7 @@ from tests.helpers import analysis_from_arrays, prunella
 def _small_breast_cancer(n=70, seed=3):
     X, y = load_breast_cancer(return_X_y=True)
     rows = np.random.default_rng(seed).choice(len(y), n, replace=False)
-    # Class codes as the tests' helper names them: c0 (malignant) negative, c1 positive.
+    # Classes c0 (malignant) and c1 (benign); the default positive class is the rarer, c0.
     return analysis_from_arrays(X[rows][:, :8], y[rows], "classification")[0]
 
 

@@ -16,6 +16,9 @@ from dataclasses import dataclass
 import numpy as np
 
 from .intervals import LEVEL, Proportion, as_percent, mean_interval, normal_quantile, proportion
+from .net_benefit import NetBenefitPoint, net_benefit
+
+NET_BENEFIT_ROWS = (0.05, 0.1, 0.2)  # the thresholds listed among the measures' rows
 
 # --- building blocks --------------------------------------------------------------------------
 
@@ -161,6 +164,8 @@ class ClassificationMeasures:
     auc_macro: float | None  # several classes: mean of the one-vs-rest areas
     calibration: tuple[CalibrationRow, ...]
     task: str = "classification"
+    # Two classes: net benefit at thresholds 1%–50% (Vickers & Elkin 2006), from box shares.
+    net_benefit: tuple[NetBenefitPoint, ...] = ()
 
     @property
     def headline(self) -> ClassResult | None:
@@ -196,6 +201,11 @@ class ClassificationMeasures:
                 lines.append((f"ROC area{name}", f"{result.roc.text()} ({result.roc.method})"))
         if self.auc_macro is not None:
             lines.append(("Mean one-vs-rest ROC area", f"{self.auc_macro:.2f}"))
+        for point in self.net_benefit:
+            if round(point.threshold, 2) in NET_BENEFIT_ROWS:
+                lines.append((f"Net benefit at a {point.threshold:.0%} threshold",
+                              f"{point.tree:.3f} (treating all {point.treat_all:.3f}, "
+                              "treating none 0)"))
         return lines
 
 
@@ -245,11 +255,12 @@ def classification_measures(y: np.ndarray, predicted: np.ndarray, probabilities:
     calibration = ()
     if leaves is not None and boxes:
         calibration = _class_calibration(y, np.asarray(leaves), boxes, classes)
+    benefit = net_benefit(y, probabilities[:, 1]) if two and n else ()
     return ClassificationMeasures(
         n=n, classes=tuple(classes), positive=classes[1] if two else None,
         confusion=tuple(tuple(int(v) for v in row) for row in matrix), accuracy=accuracy,
         cost=cost, cost_se=cost_se, brier=brier, per_class=tuple(results), auc_macro=auc_macro,
-        calibration=calibration)
+        calibration=calibration, net_benefit=benefit)
 
 
 def _one_class(label: str, truth: np.ndarray, said: np.ndarray, score: np.ndarray) -> ClassResult:

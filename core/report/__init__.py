@@ -6,5 +6,6 @@ __getattr__, __dir__, __all__ = lazy_face(__name__, {
     "contents": ("ReportContents", "prepare_report"),
     "rendering": ("render_report", "write_report"),
     "section_numbers": ("SECTIONS",),
-    "figures": ("calibration_figure", "roc_figure", "stability_figure"),
+    "figures": ("DECISION_CURVE_READING", "calibration_figure", "decision_curve_figure",
+                "roc_figure", "stability_figure"),
 })

@@ -103,6 +103,45 @@ def roc_figure(measures: ClassificationMeasures, title: str | None = None) -> Fi
     return fig
 
 
+# How to read the decision curve, worded once for the report and the app.
+DECISION_CURVE_READING = (
+    "Net benefit counts, per patient, those with the outcome whom the tree treats (sends for "
+    "the test, admits) less those without it whom it treats needlessly, weighted by the odds of "
+    "the threshold probability: the risk at which a clinician would treat. Read it at the "
+    "threshold you would use: the tree is worth using where its curve lies above both "
+    "'treat all' and 'treat none' (Vickers & Elkin 2006).")
+
+
+def decision_curve_figure(points, title: str | None = None) -> Figure:
+    """Net benefit of the tree, of treating all and of treating none at threshold
+    probabilities 1%–50% (decision curve analysis, Vickers & Elkin 2006), in the curve
+    palette (core.chart.style.CURVE). ``points`` are NetBenefitPoint records or their dicts."""
+    def get(p, name):
+        return p[name] if isinstance(p, dict) else getattr(p, name)
+
+    pt = np.array([get(p, "threshold") for p in points], dtype=float)
+    tree = np.array([get(p, "tree") for p in points], dtype=float)
+    everyone = np.array([get(p, "treat_all") for p in points], dtype=float)
+    fig = _figure(3.4, 4.6)
+    ax = fig.add_subplot()
+    _style(ax)
+    ax.plot(pt * 100, tree, color=CURVE["cross-validated"], marker="o", markersize=2.5,
+            linewidth=1.4, label="the tree")
+    ax.plot(pt * 100, everyone, color=CURVE["training"], linestyle="--", linewidth=1.1,
+            label="treat all")
+    ax.axhline(0, color=CURVE["limit"], linestyle=":", linewidth=1.0, label="treat none")
+    if len(tree):
+        top = max(float(tree.max()), float(everyone.max()), 0.0)
+        ax.set_ylim(-max(0.05, 0.15 * top), top * 1.1 + 0.01)
+    ax.set_xlim(0, 51)
+    ax.set_xlabel("Threshold probability (%)", fontsize=9)
+    ax.set_ylabel("Net benefit", fontsize=9)
+    if title:
+        ax.set_title(title, fontsize=9)
+    ax.legend(fontsize=7.5, frameon=False, loc="upper right")
+    return fig
+
+
 def calibration_figure(measures: Measures, title: str | None = None) -> Figure:
     """Per outcome box: the derivation rate (or mean) against the new patients' observed rate
     (or mean) with its 95% interval. Filled markers: the derivation value lies inside the

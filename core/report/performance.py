@@ -10,7 +10,8 @@ from ..cautions import UNCHECKED_BANNER, UNCHECKED_DETAIL
 from ..checking.metrics import ClassificationMeasures, Measures
 from ..checking.nested import NestedResult
 from ..checking.new_patients import CheckResult, training_measures
-from .figures import calibration_figure, roc_figure
+from .figures import (DECISION_CURVE_READING, calibration_figure, decision_curve_figure,
+                      roc_figure)
 from .section_numbers import section
 from .style import Styles, figure, figures_side_by_side, para, table, text
 
@@ -89,6 +90,13 @@ def performance_section(c: ReportContents, s: Styles) -> list:
         story += _check_detail(check, f"{number}.{i}", s)
     if not c.checks:
         story.append(para(f"{UNCHECKED_BANNER}. {UNCHECKED_DETAIL}", s.body))
+        cv_points = model.chosen.get("cv_net_benefit")
+        if cv_points:
+            fig = s.next_figure()
+            story.append(figure(decision_curve_figure(cv_points),
+                                f"Figure {fig}. Decision curve from the cross-validated "
+                                "predictions on the derivation patients (no patients were set "
+                                f"aside). {DECISION_CURVE_READING}", s, width=0.6))
     return story
 
 
@@ -167,6 +175,12 @@ def _check_detail(check: CheckResult, number: str, s: Styles) -> list:
         figures.append(roc_figure(m))
     if m.calibration:
         figures.append(calibration_figure(m))
+    if isinstance(m, ClassificationMeasures) and m.net_benefit:
+        fig = s.next_figure()
+        source = check.source[:1].upper() + check.source[1:]
+        story.append(figure(decision_curve_figure(m.net_benefit),
+                            f"Figure {fig}. {source}: decision curve. {DECISION_CURVE_READING}",
+                            s, width=0.6))
     if figures:
         fig = s.next_figure()
         names = " (left) and calibration by box (right)" if len(figures) == 2 else ""

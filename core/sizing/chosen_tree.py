@@ -75,6 +75,8 @@ def build_model(path: CrossValidatedPath, index: int, rule: str, table: LoadedTa
         for name in ("cv_sensitivity", "cv_specificity"):
             path_dict[name] = [m[name] for m in by_size]
             path_dict[name + "_interval"] = [m[name + "_interval"] for m in by_size]
+        # Net benefit of this size from the held-out predictions (Vickers & Elkin 2006).
+        chosen["cv_net_benefit"] = [vars(p) for p in counts.net_benefit_at(index)]
     chosen.update(chosen_extra or {})
     used = sorted({encoding.columns[f].spec.name for f in set(tree.feature[internal].tolist())})
     predictors = tuple(p.spec for p in data.predictors)

@@ -14,9 +14,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-# Threshold probabilities of the decision curve: 1% to 50% in steps of 1% (Vickers & Elkin 2006
-# show 1%–50% or narrower; common practice).
-THRESHOLDS = np.round(np.arange(1, 51) / 100.0, 2)
+from ..checking.net_benefit import THRESHOLDS, NetBenefitPoint, net_benefit_from_counts
 
 
 @dataclass(frozen=True)
@@ -73,6 +71,13 @@ class PathCounts:
             out[name] = float(value)
             out[name + "_interval"] = [low, high]
         return out
+
+
+    def net_benefit_at(self, index: int) -> tuple[NetBenefitPoint, ...]:
+        """Net benefit of size ``index`` from the held-out predictions (Vickers & Elkin 2006)."""
+        return net_benefit_from_counts(self.treated[index, :, 1], self.treated[index, :, 0],
+                                       float(self.positives[index]),
+                                       float(self.negatives[index]))
 
 
 def empty_counts(sizes: int) -> PathCounts:

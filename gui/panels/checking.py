@@ -25,7 +25,8 @@ from core.checking import (
 from core.data import read_table
 from core.option_limits import spin_range
 from core.report import (
-    calibration_figure, prepare_report, roc_figure, stability_figure, write_report,
+    DECISION_CURVE_READING, calibration_figure, decision_curve_figure, prepare_report,
+    roc_figure, stability_figure, write_report,
 )
 from gui.binding import Bindings
 from gui.panels.data import DATA_FILTER
@@ -285,7 +286,7 @@ class CheckingPanel(StepPanel):
             return
         self.cv_label.setText(cross_validated_html(model))
         session = self.session
-        if self._shown.get("checks") != session.checks:
+        if self._shown.get("checks") != (session.checks, model.fingerprint):
             self._show_checks()
         self.on_chart.setVisible(any(r.kind == "external" for r in session.checks))
         self.bindings.show()
@@ -297,12 +298,18 @@ class CheckingPanel(StepPanel):
 
     def _show_checks(self) -> None:
         checks = self.session.checks
-        self._shown["checks"] = checks
+        model = self.session.model
+        self._shown["checks"] = (checks, model.fingerprint)
         _clear(self.checks_area)
         if not checks:
             self.unchecked.show_text(f"<b>{UNCHECKED_BANNER}.</b> {UNCHECKED_DETAIL} Set some "
                                      "patients aside on step 3 (“Set aside for checking”) and "
                                      "run again, or check on another file.")
+            cv_points = model.chosen.get("cv_net_benefit")
+            if cv_points:
+                self.checks_area.addWidget(self._decision_curve(
+                    cv_points, "Decision curve from the cross-validated predictions on the "
+                    "derivation patients (no patients were set aside)."))
         else:
             self.unchecked.hide()
         for result in checks:
@@ -318,6 +325,9 @@ class CheckingPanel(StepPanel):
             if isinstance(result.measures, ClassificationMeasures) and any(
                     c.roc is not None for c in result.measures.per_class):
                 plots.addWidget(_figure_canvas(roc_figure(result.measures)))
+            if isinstance(result.measures, ClassificationMeasures) and result.measures.net_benefit:
+                plots.addWidget(self._decision_curve(result.measures.net_benefit,
+                                                     "Decision curve on these patients."))
             plots.addStretch(1)
             row = QHBoxLayout()
             row.addWidget(label, 1)
@@ -326,6 +336,17 @@ class CheckingPanel(StepPanel):
             holder.setFrameShape(QFrame.StyledPanel)
             holder.setLayout(row)
             self.checks_area.addWidget(holder)
+
+    def _decision_curve(self, points, heading: str) -> QFrame:
+        """The decision curve with the sentence on how to read it (words from core)."""
+        holder = QFrame()
+        box = QVBoxLayout(holder)
+        box.addWidget(_figure_canvas(decision_curve_figure(points)))
+        words = QLabel(f"{heading} {DECISION_CURVE_READING}")
+        words.setWordWrap(True)
+        words.setMaximumWidth(480)
+        box.addWidget(words)
+        return holder
 
     def _show_nested(self) -> None:
         result = self._shown["nested"] = self.session.nested
