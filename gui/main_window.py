@@ -8,7 +8,7 @@ from pathlib import Path
 from PySide6.QtCore import QSettings, QSize, Qt
 from PySide6.QtGui import QAction, QFont, QIcon, QKeySequence
 from PySide6.QtWidgets import (
-    QFileDialog, QFrame, QHBoxLayout, QLabel, QListWidget, QListWidgetItem, QMainWindow,
+    QDialog, QFileDialog, QFrame, QHBoxLayout, QLabel, QListWidget, QListWidgetItem, QMainWindow,
     QMessageBox, QPushButton, QStackedWidget, QVBoxLayout, QWidget,
 )
 
@@ -23,6 +23,7 @@ from core.project import PROJECT_SUFFIX, check_data_file, load_project, save_pro
 from gui.panels.step_panel import ask_open_path, ask_save_path, heading_font, remember_folder
 from gui.panels.wording import with_advice
 from gui.workers import JobRunner
+from gui.work_dialog import WorkPlaceDialog, save_work_place, saved_work_place
 from gui.panels.chart import ChartPanel
 from gui.panels.checking import CheckingPanel
 from gui.panels.data import DATA_FILTER, SPREADSHEET_PATTERNS, DataPanel
@@ -67,6 +68,7 @@ class MainWindow(QMainWindow):
         super().__init__()
         self.session = session or Session(self)
         self.settings = QSettings()
+        self.session.work_place = saved_work_place(self.settings)
         if ICON.is_file():
             self.setWindowIcon(QIcon(str(ICON)))
         self.setAcceptDrops(True)
@@ -209,6 +211,11 @@ class MainWindow(QMainWindow):
         export.addAction(self._action("Scored spreadsheet (CSV)…", chart.export_scored))
         self.export_menu = export
         menu.addAction(self.print_action)
+        menu.addSeparator()
+        self.work_place_action = self._action(
+            "&Where the work runs…", self.choose_work_place,
+            tip="This computer's cores (all by default) or a Dask cluster.")
+        menu.addAction(self.work_place_action)
         menu.addSeparator()
         menu.addAction(self.quit_action)
         help_menu = self.menuBar().addMenu("&Help")
@@ -475,6 +482,13 @@ class MainWindow(QMainWindow):
             return
         self.show_cautions()
         self.settings.setValue("cautions_seen", True)
+
+    def choose_work_place(self) -> None:
+        """File ▸ Where the work runs: kept in the app's settings for the next runs."""
+        dialog = WorkPlaceDialog(self.session.work_place, self)
+        if dialog.exec() == QDialog.DialogCode.Accepted:
+            self.session.work_place = dialog.place()
+            save_work_place(self.settings, self.session.work_place)
 
     def show_about(self) -> None:
         QMessageBox.about(

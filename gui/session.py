@@ -22,6 +22,7 @@ from core.design.guards import kept_on_purpose
 from core.dictionary import PREDICTOR_KINDS, DataDictionary
 from core.project import Project, chart_options, chart_settings
 from core.sizing import CVSettings, Derivation, DerivationRequest, TreeSettings
+from core.work_place import WorkPlace
 
 STEPS = ("data", "outcome", "size", "tree", "checking", "chart")
 STEP_TITLES = {
@@ -72,6 +73,9 @@ class Session(QObject):
         self.cv = CVSettings()
         self.holdout: float | None = None
         self.chart = ChartOptions()
+        # Where folds, nested CV and bootstrap resamples run (all cores unless the user said
+        # otherwise in "Where the work runs"); a setting of this computer, not of the project.
+        self.work_place = WorkPlace()
         self.project_path: str | None = None
         self.dirty = False
         self._forget_data()

@@ -236,7 +236,8 @@ def bootstrap_stability(data: AnalysisData, request: DerivationRequest, model: T
     if jobs == 1:
         results = (_skeleton(data, request, rows) for rows in samples)
     else:
-        results = Parallel(n_jobs=jobs, return_as="generator_unordered")(
+        # In resample order, so the run is the same for any worker count.
+        results = Parallel(n_jobs=jobs, return_as="generator")(
             delayed(_skeleton)(data, request, rows) for rows in samples)
     matcher = _Matcher(data, tolerance)
     names = [p.spec.name for p in data.predictors]

@@ -53,3 +53,22 @@ def dictionary_path(given: str | None, data: str) -> str | None:
 
     beside = dictionary_beside(data)
     return None if beside is None else str(beside)
+
+
+def add_work_options(parser) -> None:
+    """--jobs and --cluster: where the folds, nested CV and bootstrap resamples run."""
+    from ..option_limits import option_type
+
+    parser.add_argument("--jobs", type=option_type("jobs"), default=-1,
+                        help="worker processes for folds, nested CV and bootstrap resamples "
+                        "(default -1 = all cores; the results are the same for any number)")
+    parser.add_argument("--cluster", metavar="ADDRESS",
+                        help="run that work on the Dask cluster whose scheduler is at ADDRESS "
+                        "(e.g. tcp://10.0.0.5:8786; needs pip install -e \".[cluster]\")")
+
+
+def work_place(args):
+    """The core.work_place.WorkPlace the options describe (refused in one sentence if bad)."""
+    from ..work_place import WorkPlace
+
+    return WorkPlace(jobs=args.jobs, cluster=args.cluster)

@@ -16,7 +16,7 @@ from ..model.tree import TreeModel
 from ..option_limits import option_type
 from ..phrases import short_fingerprint
 from ..safe_files import refuse_overwrite, write_text_atomic
-from .arguments import dictionary_path
+from .arguments import add_work_options, dictionary_path, work_place
 
 
 def add_parsers(sub) -> None:
@@ -49,8 +49,7 @@ def add_parsers(sub) -> None:
                         help="outer folds of the nested cross-validation "
                         f"(default {DEFAULT_OUTER_FOLDS})")
     report.add_argument("--no-nested", action="store_true", help="skip nested cross-validation")
-    report.add_argument("--jobs", type=option_type("jobs"), default=1,
-                        help="parallel work (default 1; -1 = all cores)")
+    add_work_options(report)
     report.add_argument("--out", required=True, help="where to write the PDF")
     report.add_argument("--date", help="date printed on the report and its chart, YYYY-MM-DD "
                         "(default: today); the same date gives the same bytes")
@@ -85,6 +84,12 @@ def model_dictionary(table, model: TreeModel, dictionary_file: str | None) -> Da
 
 
 def run_report(args) -> int:
+    place = work_place(args)
+    with place.active():  # a cluster is reached (or refused) before any file is read
+        return _report(args, place)
+
+
+def _report(args, place) -> int:
     import datetime as dt
 
     from ..checking.new_patients import check_table
@@ -112,7 +117,7 @@ def run_report(args) -> int:
                          expected=short_fingerprint(expected)))
         print(f"prunella: warning: {notes[-1]}", file=sys.stderr)
     dictionary = model_dictionary(table, model, dictionary_path(args.dictionary, args.data))
-    derivation = derive(table, dictionary, request, jobs=args.jobs)
+    derivation = derive(table, dictionary, request, jobs=place.n_jobs)
     rule = model.chosen.get("rule")
     derivation = choose_model(derivation,
                               rule if rule in ("1se", "min", "goal") else model.chosen["leaves"])
@@ -132,7 +137,7 @@ def run_report(args) -> int:
         print("Running " + " and ".join(work) + "...", file=sys.stderr)
     contents = prepare_report(derivation, external=external, nested=not args.no_nested,
                               outer_folds=args.outer_folds, bootstrap=args.bootstrap,
-                              jobs=args.jobs, notes=tuple(notes),
+                              jobs=place.n_jobs, notes=tuple(notes),
                               printed=printed.isoformat())
     write_report(contents, args.out)
     print(f"Wrote the methods and validation report to {args.out}.")

@@ -20,7 +20,8 @@ from ..messages.message import distinct_messages, kind_of, say
 from ..model.tree import TreeModel
 from ..safe_files import refuse_overwrite, write_csv_safely, write_text_atomic
 from ..option_limits import check_setting, option_type
-from .arguments import DICTIONARY_HELP, csv_list, dictionary_path, size_option
+from .arguments import (DICTIONARY_HELP, add_work_options, csv_list, dictionary_path, size_option,
+                        work_place)
 from .chart import add_fit_chart_options, fit_chart
 
 if TYPE_CHECKING:  # scikit-learn loads only when a tree is grown, so bad input is refused fast
@@ -74,8 +75,7 @@ def add_parsers(sub) -> None:
                      help="tree size: 1se (default), min, or a number of leaves")
     fit.add_argument("--seed", type=option_type("seed"),
                      default=0, help="random seed (default 0)")
-    fit.add_argument("--jobs", type=option_type("jobs"),
-                     default=1, help="parallel folds (default 1; -1 = all cores)")
+    add_work_options(fit)
     fit.add_argument("--model", required=True, help="where to write the model JSON")
     fit.add_argument("--curve", help="write the pruning curve as CSV")
     fit.add_argument("--rules", help="write the tree as plain-text rules")
@@ -152,6 +152,12 @@ def curve_frame(derivation: Derivation) -> pd.DataFrame:
 
 def run_fit(args) -> int:
     priors_option(args.priors)  # told before any reading
+    place = work_place(args)
+    with place.active():  # a cluster is reached (or refused) before any file is read
+        return _fit(args, place)
+
+
+def _fit(args, place) -> int:
     refuse_overwrite(args.model, args.data)
     refuse_overwrite(args.curve, args.data)
     refuse_overwrite(args.rules, args.data)
@@ -163,7 +169,7 @@ def run_fit(args) -> int:
     request = _guarded(args, table, dictionary, request)
     from ..sizing.derivation import derive
 
-    derivation = derive(table, dictionary, request, jobs=args.jobs)
+    derivation = derive(table, dictionary, request, jobs=place.n_jobs)
     model = derivation.model
     model.save(args.model)
     if args.curve:

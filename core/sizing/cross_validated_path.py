@@ -200,8 +200,9 @@ def cross_validate_path(data: AnalysisData, settings: TreeSettings, cv: CVSettin
              for f in folds)
     done = 1
     # Always through joblib, so a joblib backend set by the caller (a cluster, say) spreads the
-    # folds without code changes; jobs=None defers to that backend's own default.
-    results = Parallel(n_jobs=jobs, return_as="generator_unordered")(tasks)
+    # folds without code changes; jobs=None defers to that backend's own default. Results come
+    # back in fold order, so repeated folds add up in the same order for any worker count.
+    results = Parallel(n_jobs=jobs, return_as="generator")(tasks)
     for result in results:
         stop_if_cancelled(cancel)
         tally.add(*result)

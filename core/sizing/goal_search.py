@@ -80,8 +80,9 @@ def search_goal(data: AnalysisData, settings: TreeSettings, cv: CVSettings, goal
     done = 0
     grown = [None] * len(grid)
     # Full-data trees first (their pruning sequences fix each path's sizes), then every fold
-    # of every cost in one pool, so the cores stay busy across costs.
-    parallel = Parallel(n_jobs=jobs, return_as="generator_unordered")
+    # of every cost in one pool, so the cores stay busy across costs. In task order, so the
+    # sums are made in the same order for any worker count (identical results).
+    parallel = Parallel(n_jobs=jobs, return_as="generator")
     for i, tree in parallel(delayed(_grown)(i, data, s) for i, s in enumerate(each)):
         stop_if_cancelled(cancel)
         grown[i] = tree

@@ -444,7 +444,7 @@ class CheckingPanel(StepPanel):
             self.status.setText("Nested cross-validation done.")
 
         self._start("Repeating the whole procedure inside each outer part…",
-                    nested_cross_validate, chosen.data, self.session.report_request(),
+                    self.session.work_place.run, nested_cross_validate, chosen.data, self.session.report_request(),
                     outer_folds=self.outer_folds.value(), done=done)
 
     def run_stability(self) -> None:
@@ -456,7 +456,8 @@ class CheckingPanel(StepPanel):
             self.session.set_stability(result)
             self.status.setText("Stability check done.")
 
-        self._start("Refitting on bootstrap resamples…", bootstrap_stability, chosen.data,
+        self._start("Refitting on bootstrap resamples…", self.session.work_place.run,
+                    bootstrap_stability, chosen.data,
                     self.session.report_request(), chosen.model,
                     resamples=self.resamples.value(), done=done)
 
@@ -480,8 +481,8 @@ class CheckingPanel(StepPanel):
                 session.set_stability(contents.stability)
             self.status.setText(f"Saved the report as {Path(path).name}.")
 
-        self._start("Writing the methods report (running what it still needs)…", make_report,
-                    derivation, external, self.outer_folds.value(), self.resamples.value(),
+        self._start("Writing the methods report (running what it still needs)…",
+                    session.work_place.run, make_report, derivation, external, self.outer_folds.value(), self.resamples.value(),
                     session.nested, session.stability, path, done=done)
 
 
@@ -497,11 +498,11 @@ def _clear(layout) -> None:
 
 
 def make_report(derivation, external, outer_folds: int, resamples: int, nested, stability,
-                path: str, progress=None, cancel=None):
+                path: str, jobs: int = 1, progress=None, cancel=None):
     """Run what the report still needs (core.report.prepare_report reuses what is done),
     then write it. In a worker."""
     contents = prepare_report(derivation, external, outer_folds=outer_folds, bootstrap=resamples,
-                              nested_done=nested, stability_done=stability, progress=progress,
-                              cancel=cancel)
+                              nested_done=nested, stability_done=stability, jobs=jobs,
+                              progress=progress, cancel=cancel)
     write_report(contents, path)
     return contents

@@ -65,9 +65,10 @@ def guard_summary(screen) -> str:
             + (". Read them" if n != 1 else ". Read it") + " before relying on the tree.")
 
 
-def run_derivation(table, dictionary, request, size, progress=None, cancel=None):
-    """Grow, prune and cross-validate (core.sizing.derive), then take the wanted size. In a worker."""
-    derivation = derive(table, dictionary, request, progress=progress, cancel=cancel)
+def run_derivation(table, dictionary, request, size, place, progress=None, cancel=None):
+    """Grow, prune and cross-validate (core.sizing.derive) where the work runs (``place``, a
+    core.work_place.WorkPlace), then take the wanted size. In a worker."""
+    derivation = place.run(derive, table, dictionary, request, progress=progress, cancel=cancel)
     if size == request.size:  # derive chose this size already (and checked it on held-out rows)
         return derivation, derivation
     try:
@@ -379,7 +380,7 @@ class SizePanel(StepPanel):
         session = self.session
         self.status.setText("Growing the full tree…")
         self.running_job.start(run_derivation, session.table, session.dictionary, request,
-                               session.size, done=self._done, failed=self._failed,
+                               session.size, session.work_place, done=self._done, failed=self._failed,
                                cancelled=self._cancelled)
 
     def _cancel_pressed(self) -> None:

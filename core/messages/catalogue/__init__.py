@@ -11,8 +11,8 @@ project, model, cli, limit, work, app (the desktop app's own).
 """
 
 from . import (app, chart, checking, command_line, design, dictionary, files, limits, reading,
-               sizing)
+               sizing, work)
 
 ENTRIES = (reading.ENTRIES + dictionary.ENTRIES + design.ENTRIES + sizing.ENTRIES
            + limits.ENTRIES + checking.ENTRIES + files.ENTRIES + chart.ENTRIES + command_line.ENTRIES
-           + app.ENTRIES)
+           + app.ENTRIES + work.ENTRIES)
