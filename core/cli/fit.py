@@ -166,10 +166,13 @@ def _fit(args, place) -> int:
     dictionary, notes = dictionary_for(table, dictionary_path(args.dictionary, args.data))
     shown = _print_notes(list(table.provenance.warnings) + notes)
     request = request_from_args(args, dictionary)
-    request = _guarded(args, table, dictionary, request)
+    request, findings = _guarded(args, table, dictionary, request)
+    from ..design.guards import findings_from_notes
     from ..sizing.derivation import derive
 
-    derivation = derive(table, dictionary, request, jobs=place.n_jobs)
+    findings = findings_from_notes(notes) + findings
+
+    derivation = derive(table, dictionary, request, jobs=place.n_jobs, findings=findings)
     model = derivation.model
     model.save(args.model)
     if args.curve:
@@ -196,18 +199,20 @@ def _print_notes(notes: list[str], already: list[str] | None = None) -> list[str
     return already + fresh
 
 
-def _guarded(args, table, dictionary: DataDictionary, request: DerivationRequest) -> DerivationRequest:
-    """Run the identity, leakage, repeat-visit and rare-class guards; print their findings.
+def _guarded(args, table, dictionary: DataDictionary, request: DerivationRequest,
+             ) -> tuple[DerivationRequest, tuple[dict, ...]]:
+    """Run the identity, leakage, repeat-visit and rare-class guards; print their findings,
+    and return them as the model file records them.
 
     Identity columns are left out unless named in --predictors."""
-    from ..design.guards import guard_design
+    from ..design.guards import findings_record, guard_design
 
     report = guard_design(table.frame, dictionary, request.design,
                           keep=csv_list(args.predictors), grouped=request.cv.grouped,
                           seed=args.seed, min_leaf=args.min_leaf)
     for finding in report.findings:
         print(f"{finding.severity}: {finding.message}", file=sys.stderr)
-    return replace(request, design=report.design)
+    return replace(request, design=report.design), findings_record(report.findings)
 
 
 def summary_text(derivation: Derivation) -> str:

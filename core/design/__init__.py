@@ -6,5 +6,6 @@ __getattr__, __dir__, __all__ = lazy_face(__name__, {
     "analysis": ("AnalysisData", "DesignSpec", "default_design", "prepare_analysis",
                  "suggest_task"),
     "matrix": ("fit_encoding",),
-    "guards": ("GuardFinding", "GuardReport", "guard_design", "identity_findings"),
+    "guards": ("GuardFinding", "GuardReport", "findings_from_notes", "findings_record",
+               "guard_design", "identity_findings"),
 })

@@ -36,6 +36,7 @@ def check_model_document(data: dict) -> None:
             raise _damaged("the file", f"'{key}' has the wrong type")
     if data["task"] not in TASKS:
         raise _damaged("the file", f"the task {str(data['task'])[:40]!r} is unknown")
+    _check_findings(data.get("findings", []))
     if not is_whole_number(data.get("n_rows")) or data["n_rows"] < 0:
         raise _damaged("the file", "'n_rows' must be a whole number")
     classes = data.get("classes", [])
@@ -123,3 +124,19 @@ def _check_leaf(node: dict, where: str, classification: bool, classes: list) -> 
             raise _damaged(where, "its prediction is not one of the classes")
     elif not is_finite_number(prediction):
         raise _damaged(where, "its prediction must be a number")
+
+
+def _check_findings(findings) -> None:
+    """The guards' findings: a list of {kind, column (or null), message}, of sane size."""
+    if not isinstance(findings, list) or len(findings) > 1000:
+        raise _damaged("the file", "'findings' must be a list of at most 1000 findings")
+    for position, finding in enumerate(findings):
+        where = f"findings[{position}]"
+        if not isinstance(finding, dict) or not isinstance(finding.get("kind"), str) or \
+                not isinstance(finding.get("message"), str) or \
+                not (finding.get("column") is None or isinstance(finding.get("column"), str)):
+            raise _damaged(where, "a finding needs a kind and a message as texts, and a column "
+                                  "named by a text (or null)")
+        if len(finding["message"]) > 5000 or len(finding["kind"]) > 100 or \
+                len(finding.get("column") or "") > 1000:
+            raise _damaged(where, "the finding is far longer than any Prunella writes")

@@ -284,8 +284,10 @@ class TreeModel:
 
     @property
     def fingerprint(self) -> str:
-        """SHA-256 of the model's canonical JSON (keys sorted, no whitespace)."""
-        canonical = json.dumps(self.to_dict(), sort_keys=True, separators=(",", ":"),
+        """SHA-256 of the model's canonical JSON (keys sorted, no whitespace), without the
+        guards' ``findings`` (notes about the data, not part of the tree)."""
+        tree = {k: v for k, v in self.to_dict().items() if k != "findings"}
+        canonical = json.dumps(tree, sort_keys=True, separators=(",", ":"),
                                ensure_ascii=False, allow_nan=False)
         return hashlib.sha256(canonical.encode("utf-8")).hexdigest()
 

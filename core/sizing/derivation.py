@@ -44,6 +44,9 @@ class Derivation:
     heldout_check: CheckResult | None = field(default=None, repr=False)
     # A goal's search over miss costs (``path`` is then the chosen cost's path).
     goal_search: GoalSearch | None = field(default=None, repr=False)
+    # What the guards found before growing (core.design.guards.findings_record), recorded in
+    # the model file as ``findings`` whatever size is chosen.
+    findings: tuple[dict, ...] = ()
 
     def check_on_heldout(self) -> CheckResult:
         """The chosen tree checked on the rows set aside before growing (refused when none
@@ -54,8 +57,9 @@ class Derivation:
 
 def derive(table: LoadedTable, dictionary: DataDictionary, request: DerivationRequest,
            jobs: int = 1, progress: Progress | None = None,
-           cancel: CancelFlag | None = None) -> Derivation:
-    """Grow, prune and cross-validate a tree and choose its size as the request says."""
+           cancel: CancelFlag | None = None, findings: tuple[dict, ...] = ()) -> Derivation:
+    """Grow, prune and cross-validate a tree and choose its size as the request says.
+    ``findings`` (the guards' findings as records) are kept in the model file."""
     check_request_limits(request)  # every number inside the table, before any work
     full = prepare_analysis(table.frame, dictionary, request.design)
     notes = list(full.notes)
@@ -78,13 +82,14 @@ def derive(table: LoadedTable, dictionary: DataDictionary, request: DerivationRe
         notes.append(say("goal.searched", goal=request.goal.describe(),
                          grid=search.describe_grid(), cost=cost_words(search.miss_cost)))
         return _checked(Derivation(request, table, dictionary, data, heldout, path, model,
-                                   tuple(notes), goal_search=search))
+                                   tuple(notes), goal_search=search,
+                                   findings=tuple(findings)))
     path = cross_validate_path(data, request.tree, request.cv, jobs=jobs, progress=progress,
                                cancel=cancel)
     index, rule = path.index_for(request.size)
     model = build_model(path, index, rule, table, dictionary, request)
     return _checked(Derivation(request, table, dictionary, data, heldout, path, model,
-                               tuple(notes)))
+                               tuple(notes), findings=tuple(findings)))
 
 
 def choose_model(derivation: Derivation, size: str | int) -> Derivation:
@@ -105,7 +110,10 @@ def choose_model(derivation: Derivation, size: str | int) -> Derivation:
 
 def _checked(derivation: Derivation) -> Derivation:
     """The run with the chosen tree checked on the rows set aside before growing (if any):
-    the check kept beside the model and recorded in it."""
+    the check kept beside the model and recorded in it; the guards' findings recorded too."""
+    if derivation.findings:
+        extra = dict(derivation.model.extra, findings=[dict(f) for f in derivation.findings])
+        derivation = replace(derivation, model=replace(derivation.model, extra=extra))
     if derivation.heldout is None:
         return derivation
     check = derivation.check_on_heldout()

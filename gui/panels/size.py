@@ -14,6 +14,7 @@ from PySide6.QtWidgets import (
 )
 
 from core.chart import sizes_that_fit
+from core.design import findings_from_notes, findings_record
 from core.errors import InputError
 from core.messages import say
 from core.option_limits import spin_range
@@ -65,10 +66,13 @@ def guard_summary(screen) -> str:
             + (". Read them" if n != 1 else ". Read it") + " before relying on the tree.")
 
 
-def run_derivation(table, dictionary, request, size, place, progress=None, cancel=None):
+def run_derivation(table, dictionary, request, size, place, progress=None, cancel=None,
+                   findings=()):
     """Grow, prune and cross-validate (core.sizing.derive) where the work runs (``place``, a
-    core.work_place.WorkPlace), then take the wanted size. In a worker."""
-    derivation = place.run(derive, table, dictionary, request, progress=progress, cancel=cancel)
+    core.work_place.WorkPlace), then take the wanted size; the guards' findings go into the
+    model. In a worker."""
+    derivation = place.run(derive, table, dictionary, request, progress=progress, cancel=cancel,
+                           findings=findings)
     if size == request.size:  # derive chose this size already (and checked it on held-out rows)
         return derivation, derivation
     try:
@@ -379,9 +383,12 @@ class SizePanel(StepPanel):
             return
         session = self.session
         self.status.setText("Growing the full tree…")
+        screen = session.screen
+        findings = findings_from_notes(session.notes) + (() if screen is None else findings_record(
+            screen.left_out + screen.kept + screen.other_findings))
         self.running_job.start(run_derivation, session.table, session.dictionary, request,
-                               session.size, session.work_place, done=self._done, failed=self._failed,
-                               cancelled=self._cancelled)
+                               session.size, session.work_place, done=self._done,
+                               failed=self._failed, cancelled=self._cancelled, findings=findings)
 
     def _cancel_pressed(self) -> None:
         if self.running_job.running:
