@@ -70,3 +70,16 @@ def test_names_are_never_offered_as_the_patient_number(window, qtbot, tmp_path):
     assert "Hosp No" in offered and "Patient name" not in offered
     assert window.session.design.patient_id == "Hosp No"
     assert "Patient name" not in window.session.design.predictors
+
+
+def test_the_apps_model_records_the_guards_findings(window, qtbot, tmp_path, run):
+    path = tmp_path / "icu.csv"
+    clinic_sheet(path)
+    _open(window, qtbot, path)
+    window.session.choose_outcome("ICU")
+    run(window)
+    findings = window.session.model.extra.get("findings", [])
+    kinds = {(f["kind"], f["column"]) for f in findings}
+    assert ("identity", "Patient name") in kinds
+    assert ("repeat_visits", "Hosp No") in kinds
+    assert all(isinstance(f["message"], str) and f["message"] for f in findings)
