@@ -439,8 +439,9 @@ def test_relative_bands_follow_the_cohort_rate(chosen) -> None:
 
 
 @pytest.mark.parametrize("paper,size", [("a4", DEMO_A4_LEAVES), ("letter", DEMO_A4_LEAVES),
-                                        ("a3", None), ("a4", 1)])
+                                        ("a3", None), ("a4", 2)])
 def test_nothing_leaves_the_printable_area_or_overlaps(paper: str, size) -> None:
+    # (A one-box tree is never printed: tests/test_no_better_than_no_tree.py.)
     model = demo.admitted().model if size is None else demo.admitted_size(size).model
     plan = plan_chart(model, options(paper=paper))
     printable = plan.printable

@@ -275,9 +275,12 @@ def _key(model: TreeModel, bands: Banding, options: ChartOptions) -> PanelSectio
 
 
 def _how_to_read(model: TreeModel, options: ChartOptions) -> str:
-    """How to read the chart; where a question has no branch for a missing value, that such a
-    value is measured first (said once, here)."""
+    """How to read the chart (or, for a tree no better than no tree, that it is not); where a
+    question has no branch for a missing value, that such a value is measured first (said
+    once, here)."""
     how = HOW_TO_READ_RULES if options.form == "rules" else HOW_TO_READ
+    # A tree no better than no tree says so in the place where the chart says how to use it.
+    how = model.no_better_statement or how
     return f"{how} {MEASURE_FIRST}" if model.asks_unroutable() else how
 
 

@@ -17,7 +17,7 @@ from typing import TYPE_CHECKING
 
 from ..errors import InputError
 from ..messages.message import Message, say
-from ..model.tree import TreeModel
+from ..model.tree import NO_BETTER, TreeModel, better_than_no_tree
 from .content import chart_text
 from .layout import BoxSpec, LayoutStyle, Measure, Para, TreeSpec, layout_tree, reportlab_measure
 from .options import LARGER_PAPER, PAPER_NAMES, ChartOptions, margin_for, page_size
@@ -62,8 +62,11 @@ class ChartTooLarge(InputError):
 
 def plan_chart(model: TreeModel, options: ChartOptions | None = None,
                measure: Measure = reportlab_measure) -> ChartPlan:
-    """Where everything of ``model``'s chart goes; raises ChartTooLarge if it cannot fit."""
+    """Where everything of ``model``'s chart goes; raises ChartTooLarge if it cannot fit, and
+    InputError for a one-box tree, which is never printed as if it were a decision chart."""
     options = (options or ChartOptions()).checked()
+    if len(model.leaves) <= 1:  # one box for everyone is no decision chart
+        raise InputError(say("chart.one_box", statement=NO_BETTER[model.task]))
     text = chart_text(model, options)
     if options.form == "rules":
         from .rules import plan_rules
@@ -119,7 +122,10 @@ def pruned_model(model: TreeModel, collapsed: frozenset[int]) -> TreeModel:
     if leaves in path.get("leaves", ()):
         k = path["leaves"].index(leaves)
         chosen = {"leaves": leaves, "rule": "user", "cv_risk": path["cv_risk"][k],
-                  "cv_se": path["cv_se"][k], "train_risk": path["train_risk"][k]}
+                  "cv_se": path["cv_se"][k], "train_risk": path["train_risk"][k],
+                  "one_box_cv_risk": path["cv_risk"][-1],
+                  "better_than_no_tree": better_than_no_tree(
+                      path["leaves"], (path["cv_risk"], path["cv_se"]), k)}
     return replace(model, nodes=tuple(nodes), chosen=chosen)
 
 

@@ -113,8 +113,12 @@ class Frame:
             self.banner_lines = tuple(inner)
             if not beside:
                 y = self.banner.bottom + 0.5 * b
-        lead, _, rest = text.how_to_read.partition(": ")  # "How to read:" in bold
-        y = self.runs(header, [(lead + ":", True), (rest, False)], m, y, title_w, b)
+        lead, colon, rest = text.how_to_read.partition(": ")  # "How to read:" in bold
+        if not colon:  # a statement in its place (a tree no better than no tree): its first
+            lead, _, rest = text.how_to_read.partition(". ")  # sentence in bold
+            lead, colon = lead.rstrip(".") + ".", ""
+        y = self.runs(header, [(lead + (":" if colon else ""), True), (rest, False)], m, y,
+                      title_w, b)
         if beside:
             y = max(y, self.banner.bottom)
         self.header = tuple(header)

@@ -8,7 +8,7 @@ from typing import TYPE_CHECKING
 from ..chart.options import FORMS, ORIENTATIONS, PAPER_SIZES, ChartOptions, default_min_text
 from ..errors import InputError
 from ..messages.message import say
-from ..model.tree import TreeModel
+from ..model.tree import NO_BETTER, TreeModel
 from ..safe_files import refuse_overwrite
 from .arguments import csv_list
 
@@ -105,6 +105,10 @@ def fit_chart(args, derivation: Derivation) -> None:
     from ..chart.fitting import too_large_message
 
     options = chart_options_from_args(args)
+    if len(derivation.model.leaves) <= 1:  # never printed as if it were a decision chart
+        raise InputError(say("cli.chart_not_printed", model=args.model,
+                             reason=say("chart.one_box",
+                                        statement=NO_BETTER[derivation.model.task])))
     try:
         plan = write_chart(derivation.model, args.chart, options)
     except ChartTooLarge as refused:

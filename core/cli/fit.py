@@ -181,7 +181,8 @@ def _fit(args, place) -> int:
         write_text_atomic(args.rules, model.rules())
     if args.chart:
         fit_chart(args, derivation)
-    _print_notes(list(derivation.notes), shown)
+    no_better = model.no_better_warning()
+    _print_notes(list(derivation.notes) + ([no_better] if no_better else []), shown)
     if not args.quiet:
         print(summary_text(derivation))
     return 0
@@ -242,6 +243,8 @@ def summary_text(derivation: Derivation) -> str:
               f"Model fingerprint: {model.short_fingerprint}"]
     if chosen["rule"] == "goal":
         lines[-1:-1] = [goal_text(chosen)]
+    if model.no_better_warning():
+        lines.append(f"Warning: {model.no_better_warning()}")
     check = model.extra.get("validation")
     if check:
         lines.append(f"Checked on {check['source']} ({check['n']} visits): {check['summary']}.")

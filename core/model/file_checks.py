@@ -34,6 +34,8 @@ def check_model_document(data: dict) -> None:
             raise _damaged("the file", f"'{key}' is missing")
         if not isinstance(data[key], kind):
             raise _damaged("the file", f"'{key}' has the wrong type")
+    if data["chosen"].get("better_than_no_tree") not in (None, True, False):
+        raise _damaged("the file", "'chosen.better_than_no_tree' must be true or false")
     if data["task"] not in TASKS:
         raise _damaged("the file", f"the task {str(data['task'])[:40]!r} is unknown")
     _check_findings(data.get("findings", []))

@@ -103,6 +103,21 @@ def question_text(question: Question, spec: ColumnSpec) -> str:
 ANSWERS = ("YES", "NO")  # the words on a question's branches, children in this order
 # Said once on a chart (and in the rules) whose questions have no branch for a missing value.
 MEASURE_FIRST = "If a value asked for is not recorded, measure it before using this chart."
+# Said where the chosen tree's cross-validated error is not lower than one box's by one SE.
+NO_BETTER = {"classification": "This tree predicts no better than giving everyone the most "
+                               "common outcome.",
+             "regression": "This tree predicts no better than giving everyone the average "
+                           "outcome."}
+
+
+def better_than_no_tree(leaves, cv_risk, index: int) -> bool:
+    """Whether the tree at ``index`` of a pruning path is better than no tree: more than one
+    box, and a cross-validated error lower than the one-box tree's by at least its own SE
+    (``cv_risk`` and ``cv_se`` as pairs of lists, the one-box tree the last of the path).
+
+    One SE, as the 1-SE rule of Breiman et al. (1984, §3.4.3) judges a difference in error."""
+    risk, se = cv_risk
+    return int(leaves[index]) > 1 and float(risk[-1]) - float(risk[index]) >= float(se[index])
 
 
 def shared_count(counts: tuple[int, ...], classes: tuple[str, ...], prediction) -> int:
@@ -253,6 +268,37 @@ class TreeModel:
     def expected_outcome(self, node: Node) -> str:
         """A box's expected outcome in words, without its counts (see :func:`expected_outcome`)."""
         return expected_outcome(self.outcome, self.task, node.prediction, node.mean)
+
+    @property
+    def better_than_no_tree(self) -> bool:
+        """False when this tree predicts no better than one box for everyone (see
+        :func:`better_than_no_tree`). A file written before it was recorded is judged from its
+        own pruning path."""
+        recorded = self.chosen.get("better_than_no_tree")
+        if recorded is not None:
+            return bool(recorded)
+        if len(self.leaves) <= 1:
+            return False
+        leaves, risk, se = (self.path.get(k) for k in ("leaves", "cv_risk", "cv_se"))
+        if not leaves or not risk or not se or self.chosen.get("leaves") not in leaves:
+            return True  # nothing to judge by: as the file says
+        return better_than_no_tree(leaves, (risk, se), leaves.index(self.chosen["leaves"]))
+
+    @property
+    def no_better_statement(self) -> str | None:
+        """The sentence saying this tree is no better than no tree, or None when it is."""
+        return None if self.better_than_no_tree else NO_BETTER[self.task]
+
+    def no_better_warning(self) -> str | None:
+        """The warning that this tree is no better than no tree, with its numbers (the app's
+        banner and the command line's output), or None when it is better."""
+        if self.better_than_no_tree:
+            return None
+        chosen, risk = self.chosen, self.path.get("cv_risk") or [float("nan")]
+        one_box = chosen.get("one_box_cv_risk", risk[-1])
+        return say("size.no_better_than_no_tree", statement=NO_BETTER[self.task],
+                   error=f"{chosen['cv_risk']:.4g}", one_box=f"{one_box:.4g}",
+                   se=f"{chosen['cv_se']:.2g}")
 
     def spec(self, column: str) -> ColumnSpec:
         for spec in self.predictors:
@@ -456,6 +502,8 @@ class TreeModel:
         lines = [f"Outcome: {self.outcome.display}", ""]
         if self.asks_unroutable():
             lines[1:1] = [MEASURE_FIRST]
+        if self.no_better_statement:
+            lines[1:1] = [self.no_better_statement]
         for leaf in self.leaves:
             condition = " AND ".join(s.phrase() for s in self.steps_to(leaf.id)) or "(every patient)"
             lines.append(f"Box {leaf.id}: IF {condition}")

@@ -303,6 +303,9 @@ def _chart(c: ReportContents, s: Styles) -> list:
     from ..chart.options import ChartOptions
     from ..errors import InputError
 
+    if len(c.model.leaves) <= 1:  # one box for everyone: no decision chart (never drawn as one)
+        return [para(f"{c.model.no_better_statement or ''} The chosen tree has one outcome box, "
+                     "so no decision chart is printed.", s.body)]
     for paper in ("a4", "a3"):
         try:
             plan = plan_chart(c.model, ChartOptions(paper=paper, printed=c.printed_on))
@@ -389,6 +392,8 @@ def _stability(c: ReportContents, s: Styles) -> list:
 def _limitations(c: ReportContents, s: Styles) -> list:
     model, der = c.model, c.derivation
     items = []
+    if model.no_better_warning():  # first: it outweighs every other limitation
+        items.append(model.no_better_warning())
     sites = _site_counts(c)
     where = f" ({', '.join(sites)})" if sites else ""
     items.append(f"The tree comes from one cohort{where}; it is valid only for patients like "

@@ -14,7 +14,9 @@ from ..design.analysis import AnalysisData
 from ..design.matrix import MatrixColumn
 from ..dictionary.columns import DataDictionary
 from ..model.thresholds import round_threshold
-from ..model.tree import Node, Question, TreeModel, expected_outcome, question_text, shared_count
+from ..model.tree import (
+    Node, Question, TreeModel, better_than_no_tree, expected_outcome, question_text, shared_count,
+)
 from .cross_validated_path import CrossValidatedPath
 from .prune import parents_of
 from .request import DerivationRequest
@@ -68,7 +70,10 @@ def build_model(path: CrossValidatedPath, index: int, rule: str, table: LoadedTa
     }
     chosen = {"leaves": int(sequence.leaves[index]), "rule": rule,
               "cv_risk": float(path.cv_risk[index]), "cv_se": float(path.cv_se[index]),
-              "train_risk": float(sequence.train_risk[index])}
+              "train_risk": float(sequence.train_risk[index]),
+              "one_box_cv_risk": float(path.cv_risk[-1]),
+              "better_than_no_tree": better_than_no_tree(sequence.leaves, (path.cv_risk,
+                                                                           path.cv_se), index)}
     if path.counts is not None:
         counts = path.counts
         by_size = [counts.measures_at(k) for k in range(len(sequence.leaves))]

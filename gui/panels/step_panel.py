@@ -114,6 +114,9 @@ def scrolling(widget: QWidget, across: bool = False) -> QScrollArea:
     return scroll
 
 
+NO_BETTER_STEPS = ("size", "tree", "chart")  # where a tree no better than no tree is said so
+
+
 class Banner(QFrame):
     """A notice across the top of a panel: text (with a symbol, never colour alone) and a button."""
 
@@ -167,6 +170,12 @@ class StepPanel(QWidget):
         self._layout.addWidget(self.title)
         self._layout.addWidget(self.intro_label)
         self._layout.addWidget(self.stale_banner)
+        # Steps 3, 4 and 6 say when the chosen tree predicts no better than no tree.
+        self.no_better_banner = Banner("⚠")
+        self._layout.addWidget(self.no_better_banner)
+        if self.step in NO_BETTER_STEPS:
+            for signal in (session.result_changed, session.chosen_changed, session.opened):
+                signal.connect(self.update_no_better)
         self.runners: list[JobRunner] = []  # the step's background work, one runner per kind
         session.state_changed.connect(self.update_stale)
         session.opened.connect(self.stop_work)  # work for the previous file is not wanted
@@ -188,6 +197,14 @@ class StepPanel(QWidget):
                 "What you see is the earlier tree; run again on step 3 to update it.")
         else:
             self.stale_banner.hide()
+
+    def update_no_better(self) -> None:
+        model = self.session.model
+        warning = None if model is None else model.no_better_warning()
+        if warning:
+            self.no_better_banner.show_text(warning)
+        else:
+            self.no_better_banner.hide()
 
     def _go_to_size(self) -> None:
         self.go_to.emit("size")

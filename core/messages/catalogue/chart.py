@@ -1,6 +1,10 @@
 """Messages of printing the chart."""
 
 ENTRIES = [
+    ("chart.one_box", "refused", "{statement} The chosen tree has one outcome box, so there "
+     "is no decision chart to print; choose a larger tree only if its cross-validated error "
+     "is clearly lower.", "A tree with one box gives everyone the same answer; it is not "
+     "printed as a chart."),
     ("chart.paper", "refused", "Paper {paper!r} is not one Prunella prints on; choose a4, "
      "letter, a3 or tabloid.", "Use one of the four papers."),
     ("chart.orientation", "refused", "Orientation {given!r} is not one of {choices}.",

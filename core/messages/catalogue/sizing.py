@@ -1,6 +1,10 @@
 """Messages of growing, cross-validating and sizing the tree, and of setting patients aside."""
 
 ENTRIES = [
+    ("size.no_better_than_no_tree", "warning", "{statement} Its cross-validated error "
+     "({error}) is not lower than one box's ({one_box}) by at least one SE ({se}).",
+     "Treat this tree as no better than no tree: collect more or other predictors before "
+     "relying on it."),
     ("grow.min_leaf", "refused", "The minimum number of patients per leaf must be at least 1.",
      "Give a whole number of at least 1."),
     ("grow.criterion_classification", "refused", "The split criterion for classification "
