@@ -24,23 +24,23 @@ def test_banner_on_size_tree_and_chart_steps(window, qtbot, run, dialogs, tmp_pa
     window.go_to("outcome")
     combo = window.panels["outcome"].outcome_combo
     combo.setCurrentIndex(combo.findData("outcome"))
-    run(window)
+    run(window, timeout=60000)
     model = window.session.model
     assert len(model.leaves) == 1 and model.chosen["better_than_no_tree"] is False
     statement = NO_BETTER["classification"]
     for step in ("size", "tree", "chart"):
         window.go_to(step)
         banner = window.panels[step].no_better_banner
-        assert banner.isVisible(), step
+        qtbot.waitUntil(banner.isVisible, timeout=5000)
         assert banner.text.text().startswith(statement)
     for step in ("data", "outcome", "checking"):
         assert window.panels[step].no_better_banner.isHidden()
     chart = window.panels["chart"]
     chart.render_preview()
-    qtbot.waitUntil(lambda: chart.preview_error is not None, timeout=20000)
+    qtbot.waitUntil(lambda: statement in chart.preview_note.text(), timeout=60000)
     assert statement in chart.preview_note.text()
     assert "no decision chart to print" in chart.preview_note.text()
     # A new file clears it.
     window.demo_action.trigger()
-    qtbot.waitUntil(lambda: window.session.model is None, timeout=15000)
+    qtbot.waitUntil(lambda: window.session.model is None, timeout=30000)
     assert window.panels["size"].no_better_banner.isHidden()
