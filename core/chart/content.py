@@ -249,6 +249,12 @@ def _validation(model: TreeModel) -> PanelSection | None:
     items = (PanelItem(f"On {check.get('n', '?'):,} {count_word(model)} from "
                        f"{check.get('source', 'separate data')}:"),
              PanelItem(summary, bold=True))
+    if check.get("separate") is False:  # some were derivation patients: not a separate check
+        shared = check.get("overlap_patients", 0)
+        items = items + (PanelItem(f"{shared:,} of these patients were among the derivation "
+                                   "patients: not a check on separate patients.", bold=True),)
+        return PanelSection("Checked on patients who include derivation patients", items,
+                            kind="checked")
     return PanelSection("Checked on separate patients", items, kind="checked")
 
 

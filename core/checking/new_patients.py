@@ -30,6 +30,7 @@ from ..dictionary.typed_columns import typed_column
 from ..errors import InputError
 from ..messages.message import say
 from ..model.scoring import needs_counts, needs_warning
+from .overlap import overlapping_rows
 from ..model.tree import TreeModel, column_values
 from .metrics import (
     ClassificationMeasures, DerivationBox, Measures, RegressionMeasures, classification_measures,
@@ -77,6 +78,16 @@ class CheckResult:
     data_sha256: str | None = None
     # (column, rows left out): a value not recorded where no derivation patient lacked it
     needs_value: tuple[tuple[str, int], ...] = ()
+    # Patients of an external file who were among the derivation patients (by the model's
+    # digests of the patient identifiers), their rows, and whether those rows were left out.
+    overlap_patients: int = 0
+    overlap_rows: int = 0
+    overlap_left_out: bool = False
+
+    @property
+    def separate(self) -> bool:
+        """Whether the patients checked are separate from the derivation patients."""
+        return self.overlap_patients == 0 or self.overlap_left_out
 
     @property
     def summary(self) -> str:
@@ -96,6 +107,8 @@ class CheckResult:
                   "calibration_outside": list(self.calibration_outside)}
         if self.data_sha256:
             record["data_sha256"] = self.data_sha256
+        record["overlap_patients"] = self.overlap_patients
+        record["separate"] = self.separate
         # Plain numbers under the keys the first held-out check used (accuracy, risk,
         # mean_squared_error); [value, low, high] triples for the measures with intervals.
         if isinstance(m, RegressionMeasures):
@@ -124,6 +137,7 @@ class CheckResult:
         data = asdict(self)
         data["summary"] = self.summary
         data["calibration_outside"] = list(self.calibration_outside)
+        data["separate"] = self.separate
         return _json_safe(data)
 
     def text(self) -> str:
@@ -348,11 +362,20 @@ def outcome_values(model: TreeModel, cells: pd.Series) -> tuple[np.ndarray, np.n
     return y[keep], keep, notes
 
 
-def check_table(model: TreeModel, table: LoadedTable, source: str | None = None) -> CheckResult:
-    """Check ``model`` on the rows of an external table (another campus or period)."""
+def check_table(model: TreeModel, table: LoadedTable, source: str | None = None,
+                leave_out_overlap: bool = False) -> CheckResult:
+    """Check ``model`` on the rows of an external table (another campus or period).
+
+    Patients the table shares with the derivation data (core/checking/overlap.py) are
+    counted, and the check is not called separate; ``leave_out_overlap`` leaves their rows
+    out instead."""
     frame = table.frame
     report, mapping = match_columns(model, frame.columns)
     frame = frame.rename(columns=mapping)[[c for c in mapping.values()]].reset_index(drop=True)
+    shared, overlap_patients = overlapping_rows(model.extra.get("derivation_ids"), frame)
+    overlap_rows = int(shared.sum())
+    if leave_out_overlap and overlap_rows:
+        frame = frame.loc[~shared].reset_index(drop=True)
     y, keep, notes = outcome_values(model, frame[model.outcome.name])
     n_rows = len(frame)
     if not keep.any():
@@ -374,6 +397,9 @@ def check_table(model: TreeModel, table: LoadedTable, source: str | None = None)
     leaves, unseen, needs = _route(model, values, len(rows), unknown)
     notes.extend(_unseen_warning(unseen, model))
     notes.extend(needs_warning("check.needs_value", needs, model))
+    if overlap_patients:  # said first: it decides what kind of check this is
+        notes.insert(0, say("check.overlap_left_out" if leave_out_overlap else "check.overlap",
+                            patients=overlap_patients, rows=overlap_rows))
     notes = list(table.provenance.warnings) + notes
     routed = leaves > 0
     y, leaves, rows = y[routed], leaves[routed], rows.loc[routed].reset_index(drop=True)
@@ -390,7 +416,9 @@ def check_table(model: TreeModel, table: LoadedTable, source: str | None = None)
         source=source, kind="external", n=len(rows), n_rows=n_rows, n_excluded=no_outcome,
         patients=patients, measures=measure_model(model, y, leaves), columns=report,
         unseen_levels=unseen, warnings=tuple(notes), model_fingerprint=_fingerprint_without_check(model),
-        data_sha256=table.provenance.sha256, needs_value=needs)
+        data_sha256=table.provenance.sha256, needs_value=needs,
+        overlap_patients=overlap_patients, overlap_rows=overlap_rows,
+        overlap_left_out=bool(leave_out_overlap and overlap_rows))
 
 
 def with_check(model: TreeModel, result: CheckResult) -> TreeModel:

@@ -27,6 +27,10 @@ def add_parsers(sub) -> None:
     check.add_argument("--sheet", help="XLSX sheet name (default: the first sheet)")
     check.add_argument("--source", help="where these patients come from, in words, as the chart "
                        "and report should name them (default: the file name)")
+    check.add_argument("--leave-out-overlap", action="store_true", help="leave out the rows "
+                       "of patients who were among the derivation patients (found by the "
+                       "model's digests of the patient identifiers), so the check is on "
+                       "separate patients")
     check.add_argument("--out", help="write every measure as JSON")
     check.add_argument("--checked-model", help="write the model with this check recorded, so the "
                        "chart shows it instead of the 'not yet checked' banner")
@@ -64,7 +68,8 @@ def run_check(args) -> int:
     refuse_overwrite(args.checked_model, args.data, args.model)
     model = TreeModel.load(args.model)
     table = read_table(args.data, sheet=args.sheet)
-    result = check_table(model, table, source=args.source)
+    result = check_table(model, table, source=args.source,
+                         leave_out_overlap=args.leave_out_overlap)
     print(result.text())
     if args.out:
         write_text_atomic(args.out, json.dumps(result.to_dict(), indent=1, ensure_ascii=False,

@@ -36,6 +36,12 @@ def check_model_document(data: dict) -> None:
             raise _damaged("the file", f"'{key}' has the wrong type")
     if data["chosen"].get("better_than_no_tree") not in (None, True, False):
         raise _damaged("the file", "'chosen.better_than_no_tree' must be true or false")
+    ids = data.get("derivation_ids")
+    if ids is not None and not (isinstance(ids, dict) and isinstance(ids.get("column"), str)
+                                and isinstance(ids.get("salt"), str)
+                                and isinstance(ids.get("digests"), list)
+                                and all(isinstance(d, str) for d in ids["digests"])):
+        raise _damaged("the file", "'derivation_ids' must name a column, a salt and digests")
     if data["task"] not in TASKS:
         raise _damaged("the file", f"the task {str(data['task'])[:40]!r} is unknown")
     _check_findings(data.get("findings", []))

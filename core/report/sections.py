@@ -83,7 +83,10 @@ def title_page(c: ReportContents, title: str, s: Styles) -> list:
     if c.nested is not None:
         lines.append(f"Honest error of the whole procedure: {c.nested.summary()}.")
     for check in c.checks:
-        lines.append(f"Checked on {check.source} ({check.n:,} visits): {check.summary}.")
+        shared = ("" if check.separate else f"; {check.overlap_patients:,} of these patients "
+                  "were among the derivation patients, so this is not a check on separate "
+                  "patients")
+        lines.append(f"Checked on {check.source} ({check.n:,} visits{shared}): {check.summary}.")
     if c.stability is not None:
         lines.append(f"Stability: {c.stability.summary()}.")
     story += [Paragraph(text(line), s.bullet, bulletText="•") for line in lines]
@@ -398,7 +401,12 @@ def _limitations(c: ReportContents, s: Styles) -> list:
     where = f" ({', '.join(sites)})" if sites else ""
     items.append(f"The tree comes from one cohort{where}; it is valid only for patients like "
                  "those it was derived from.")
-    if not any(ch.kind == "external" for ch in c.checks):
+    for check in c.checks:
+        if not check.separate:
+            items.append(f"The check on {check.source} is not a check on separate patients: "
+                         f"{check.overlap_patients:,} of its patients were among the derivation "
+                         "patients.")
+    if not any(ch.kind == "external" and ch.separate for ch in c.checks):
         items.append("It has not been checked on patients from another site or period in this "
                      "report; that check is needed before use elsewhere.")
     for check in c.checks:

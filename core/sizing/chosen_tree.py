@@ -13,6 +13,7 @@ from ..data.table import LoadedTable
 from ..design.analysis import AnalysisData
 from ..design.matrix import MatrixColumn
 from ..dictionary.columns import DataDictionary
+from ..checking.overlap import derivation_ids
 from ..model.thresholds import round_threshold
 from ..model.tree import (
     Node, Question, TreeModel, better_than_no_tree, expected_outcome, question_text, shared_count,
@@ -93,6 +94,13 @@ def build_model(path: CrossValidatedPath, index: int, rule: str, table: LoadedTa
         "cohort": _cohort(table.frame, dictionary, data, request),
         "columns_asked": used,
     }
+    design = request.design
+    if design.patient_id and design.patient_id in table.frame.columns:
+        # Salted digests of the derivation patients' identifiers, so that a later check can
+        # tell whether its patients are separate (core/checking/overlap.py).
+        cells = table.frame[design.patient_id].iloc[data.rows]
+        extra["derivation_ids"] = derivation_ids(cells, design.patient_id,
+                                                 table.provenance.sha256[:16] or "prunella")
     if grown.costs is not None:
         extra["costs"] = {"priors": grown.costs.priors.tolist(), "loss": grown.costs.loss.tolist()}
     model = TreeModel(task=data.task, outcome=data.outcome, classes=data.classes,

@@ -59,6 +59,9 @@ def check_html(result) -> str:
     patients = f" ({result.patients:,} patients)" if result.patients else ""
     parts = [f"<p><b>{escape(result.source[0].upper() + result.source[1:])}</b>: "
              f"{result.n:,} visits checked{patients}.</p>"]
+    if not result.separate:
+        parts.append(f"<p><b>Not a check on separate patients:</b> {result.overlap_patients:,} "
+                     "of these patients were among the derivation patients.</p>")
     if result.n_excluded:
         parts.append(f"<p>{result.n_excluded:,} of {result.n_rows:,} rows were left out (outcome "
                      "not recorded or not a class the tree knows).</p>")
@@ -94,9 +97,9 @@ def check_html(result) -> str:
     return "\n".join(parts)
 
 
-def read_and_check(model, path: str):
+def read_and_check(model, path: str, leave_out_overlap: bool = False):
     """Read an external file and check the tree on it (core.checking). Runs in a worker."""
-    return check_table(model, read_table(path))
+    return check_table(model, read_table(path), leave_out_overlap=leave_out_overlap)
 
 
 def _figure_canvas(figure) -> FigureCanvasQTAgg:
@@ -175,11 +178,17 @@ class CheckingPanel(StepPanel):
                                      "banner) instead.")
         self.bindings.bind(self.on_chart, lambda: self.session.print_external,
                            self.session.set_print_external)
+        self.leave_out_overlap = with_tooltip(
+            QCheckBox("Leave out patients the tree was grown on"),
+            "Rows of another file whose patient identifier was among the derivation patients "
+            "are left out, so the check is on separate patients.")
+        self.leave_out_overlap.toggled.connect(self._check_again)
         buttons = QHBoxLayout()
         buttons.addWidget(self.external_button)
+        buttons.addWidget(self.leave_out_overlap)
         buttons.addWidget(self.on_chart)
         buttons.addStretch(1)
-        box = QGroupBox("Checked on separate patients")
+        box = QGroupBox("Checks on other patients")  # separate only where no one overlaps
         layout = QVBoxLayout(box)
         layout.addLayout(buttons)
         layout.addWidget(self.unchecked)
@@ -430,7 +439,13 @@ class CheckingPanel(StepPanel):
             self.status.setText(f"Checked on {result.n:,} visits from {result.source}.")
 
         self._start(f"Checking the tree on {Path(path).name}…", read_and_check,
-                    self.session.model, path, takes_progress=False, done=checked)
+                    self.session.model, path, self.leave_out_overlap.isChecked(),
+                    takes_progress=False, done=checked)
+
+    def _check_again(self, *_args) -> None:
+        """The overlap choice changed: the file already checked is checked again."""
+        if self.session.external_path and self.session.model is not None:
+            self.check_file(self.session.external_path)
 
     # --- nested cross-validation and stability ------------------------------------------------
 

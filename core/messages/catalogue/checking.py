@@ -24,6 +24,13 @@ ENTRIES = [
      "derivation and were routed as not recorded ({parts}).",
      "Check the spelling of these levels in the new file; a category the tree never saw "
      "follows the branch for values not recorded."),
+    ("check.overlap", "warning", "{patients} patient(s) of this file ({rows} row(s)) were "
+     "among the derivation patients, so this is not a check on separate patients.",
+     "Leave the overlapping rows out (prunella check --leave-out-overlap, or the app's "
+     "choice) to check on separate patients."),
+    ("check.overlap_left_out", "note", "{patients} patient(s) of this file ({rows} row(s)) "
+     "were among the derivation patients; their rows were left out, so the check is on "
+     "separate patients.", "Nothing to do."),
     ("check.needs_value", "warning", "{n} row(s) were left out of the check because a value "
      "the tree asks for was not recorded where no derivation patient lacked it ({parts}).",
      "Measure these values; the tree has no evidence for where such a patient belongs."),
