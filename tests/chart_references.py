@@ -178,20 +178,22 @@ def random_model(seed: int, leaves: int) -> TreeModel:
             lo, hi = next((lo, hi) for label, _, lo, hi in _NUMERIC if label == spec.label)
             value = round(rng.uniform(lo, hi), 1 if hi - lo < 10 else 0)
             question = Question(spec.name, "above", threshold=float(value),
-                                missing_goes=rng.choice(("yes", "no")))
+                                missing_goes=rng.choice(("yes", "no")), missing_in_derivation=3)
         else:
             levels = list(spec.levels)
             rng.shuffle(levels)
             cut = rng.randint(1, len(levels) - 1)
             question = Question(spec.name, "in", yes_levels=tuple(levels[:cut]),
                                 no_levels=tuple(levels[cut:]),
-                                missing_goes=rng.choice(("yes", "no")))
+                                missing_goes=rng.choice(("yes", "no")), missing_in_derivation=3)
         nodes.append(Node(id=number[id(node)], depth=depth, n=sum(counts), question=question,
                           children=(number[id(node.yes)], number[id(node.no)]), counts=counts,
                           prediction=prediction, text=question_text(question, spec)))
     root = nodes[0]
+    # A layout reference: better than no tree, and every question with a branch for a missing
+    # value (its label the longest a question box carries).
     chosen = {"leaves": leaves, "rule": "user", "cv_risk": 0.2, "cv_se": 0.01,
-              "train_risk": 0.18}
+              "train_risk": 0.18, "better_than_no_tree": True}
     path = {"leaves": [leaves], "cv_risk": [0.2], "cv_se": [0.01], "train_risk": [0.18],
             "cv": "10-fold cross-validation", "risk_measure": "error rate"}
     extra = {"cohort": {"visits": root.n, "outcome_counts": {"no": root.counts[0],
