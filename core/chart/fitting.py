@@ -119,7 +119,10 @@ def pruned_model(model: TreeModel, collapsed: frozenset[int]) -> TreeModel:
                                  children=tuple(number[c] for c in node.children)))
     leaves = sum(1 for node in nodes if node.leaf)
     path, chosen = model.path, dict(model.chosen)
-    if leaves in path.get("leaves", ()):
+    # The chosen tree itself keeps its record whole; a smaller one gets what the path keeps
+    # per size. The cross-validated net benefit is kept for the chosen size only, so a
+    # smaller tree made from the file alone has none rather than a borrowed one.
+    if collapsed and leaves in path.get("leaves", ()):
         k = path["leaves"].index(leaves)
         chosen = {"leaves": leaves, "rule": "user", "cv_risk": path["cv_risk"][k],
                   "cv_se": path["cv_se"][k], "train_risk": path["train_risk"][k],
