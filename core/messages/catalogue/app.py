@@ -16,6 +16,9 @@ ENTRIES = [
     ("app.display_silent", "refused", "Prunella cannot open a window: the display {display} "
      "does not answer; start it from a desktop session, or set DISPLAY to a running one.",
      "Start Prunella from a desktop session, where the display is running."),
+    ("app.no_demo", "refused", "The demo cohort is not installed with this copy of Prunella "
+     "(it lives in sample_data/ of the source folder); open a spreadsheet instead.",
+     "Install Prunella from its source folder (pip install -e .) to have the demo cohort."),
     ("app.save_over_input", "refused", "That is one of your input files (the data or the "
      "project); choose another name so it stays unchanged.",
      "Prunella never writes over the files it reads; save under another name."),
