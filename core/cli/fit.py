@@ -18,6 +18,7 @@ from ..dictionary.for_table import dictionary_for
 from ..errors import InputError
 from ..messages.message import distinct_messages, kind_of, say
 from ..model.tree import TreeModel
+from ..phrases import plural
 from ..safe_files import refuse_overwrite, write_csv_safely, write_text_atomic
 from ..option_limits import check_setting, option_type
 from .arguments import (DICTIONARY_HELP, add_work_options, csv_list, dictionary_path, size_option,
@@ -216,14 +217,19 @@ def _guarded(args, table, dictionary: DataDictionary, request: DerivationRequest
     return replace(request, design=report.design), findings_record(report.findings)
 
 
+RULE_WORDS = {"1se": "1-SE rule", "min": "lowest cross-validated error", "user": "size chosen",
+              "goal": "built for a goal"}
+
+
 def summary_text(derivation: Derivation) -> str:
     """What a fit found: the pruning path with CV beside training risk, and the chosen tree."""
     path, model = derivation.path, derivation.model
     counts = path.counts
     lines = [f"Prunella {__version__}: {model.outcome.display} ({model.task}), {model.n_rows} rows, "
              f"{path.description}.",
-             f"Risk: {model.path['risk_measure']}.", "",
-             f"{'leaves':>7} {'training':>9} {'cross-validated':>16} {'± SE':>7}"
+             f"Error: {model.path['risk_measure']}; the cross-validated error is the honest "
+             "one, the training error is optimistic.", "",
+             f"{'boxes':>7} {'CV error':>9} {'± SE':>7} {'training':>9}"
              + (f" {'CV sens.':>9} {'CV spec.':>9}" if counts is not None else "")]
     chosen = model.chosen
     for k in range(len(path.leaves)):
@@ -236,10 +242,12 @@ def summary_text(derivation: Derivation) -> str:
             mark += "  goal choice"
         beside = (f" {counts.sensitivity[k]:>9.1%} {counts.specificity[k]:>9.1%}"
                   if counts is not None else "")
-        lines.append(f"{path.leaves[k]:>7} {path.train_risk[k]:>9.4f} {path.cv_risk[k]:>16.4f} "
-                     f"{path.cv_se[k]:>7.4f}{beside}{mark}")
-    lines += ["", f"Chosen: {chosen['leaves']} leaves ({chosen['rule']}), cross-validated risk "
-              f"{chosen['cv_risk']:.4f} ± {chosen['cv_se']:.4f} (training {chosen['train_risk']:.4f}).",
+        lines.append(f"{path.leaves[k]:>7} {path.cv_risk[k]:>9.4f} {path.cv_se[k]:>7.4f} "
+                     f"{path.train_risk[k]:>9.4f}{beside}{mark}")
+    boxes = plural(chosen["leaves"], "outcome box", "outcome boxes")
+    lines += ["", f"Chosen: {boxes} ({RULE_WORDS.get(chosen['rule'], chosen['rule'])}), "
+              f"cross-validated error {chosen['cv_risk']:.4f} ± {chosen['cv_se']:.4f} "
+              f"(training error {chosen['train_risk']:.4f}, optimistic).",
               f"Model fingerprint: {model.short_fingerprint}"]
     if chosen["rule"] == "goal":
         lines[-1:-1] = [goal_text(chosen)]
