@@ -82,3 +82,28 @@ def test_the_command_line_refuses_a_name_as_patient_number(tmp_path):
     assert run.returncode == 0, run.stderr
     assert '"patient_id": "Hosp No"' in (tmp_path / "m.json").read_text()
     assert (sha256_of(path), path.stat().st_mtime_ns) == before
+
+
+def test_names_that_repeat_often_are_still_names_said_once():
+    """A ward's residents recur across many visits, so a name column need not be mostly
+    distinct: 80 names over 1,400 visits are still names, and the identity warning is the only
+    note about the column (not also "too many different texts")."""
+    rng = np.random.default_rng(5)
+    people = [f"{f} {s}" for f in FIRST + ["Ingrid", "Kenji"] for s in LAST]
+    assert len(people) == 80
+    frame = pd.DataFrame({"Resident": rng.choice(people, 1400),
+                          "Age": rng.integers(65, 100, 1400),
+                          "Fell": rng.choice(["fell", "no fall"], 1400)})
+    dictionary, notes = infer_dictionary(frame)
+    spec = dictionary.get("Resident")
+    assert spec.role == "ignore" and spec.note == "identity: names"
+    about = [str(n) for n in notes if "Resident" in str(n)]
+    assert len(about) == 1 and "look like names" in about[0]
+
+
+def test_a_category_of_a_few_capitalised_places_is_not_names():
+    """A handful of campus names (capitalised two-word texts) is a category, not people."""
+    frame = pd.DataFrame({"Campus": ["North Campus", "River Side", "Hill Top", "West End",
+                                     "Old Town"] * 40, "Age": range(200)})
+    dictionary, _ = infer_dictionary(frame)
+    assert dictionary.get("Campus").role != "ignore"

@@ -112,7 +112,10 @@ def identity_by_contents(values: pd.Series) -> IdentityHint | None:
         return IdentityHint("phone numbers", "contents")
     if _share(texts, _STREET) >= 0.5 or _share([t.upper() for t in texts], _POSTCODE) >= 0.8:
         return IdentityHint("addresses", "contents")
-    if distinct >= 0.5 and len(texts) >= 10 and _person_names(texts) >= 0.8:
+    # Names repeat (a patient seen often, a common name), so many distinct texts shaped like
+    # names are enough; a clinical category seldom has thirty capitalised two-word levels.
+    if len(texts) >= 10 and (distinct >= 0.5 or len(texts) >= 30) and \
+            _person_names(texts) >= 0.8:
         return IdentityHint("names", "contents")
     return None
 

@@ -71,9 +71,9 @@ def infer_column(name: str, values: pd.Series,
         return replace(spec, kind="identifier", role="patient_id", levels=()), notes
     if hint is not None:
         # Names, addresses, phone numbers, e-mails: identifying, never the patient number.
-        if spec.kind == "identifier":  # the privacy reason says more than "unique per row"
-            notes = [n for n in notes if getattr(n, "code", "") not in ("infer.identifier",
-                                                                         "infer.patient_id")]
+        # The privacy reason says more than "unique per row" or "too many texts".
+        notes = [n for n in notes if getattr(n, "code", "") not in (
+            "infer.identifier", "infer.patient_id", "infer.too_many_levels")]
         notes.append(say("infer.identity", column=name, reason=hint.reason))
         spec = replace(spec, role="ignore", note=f"identity: {hint.what}")
     return spec, notes
