@@ -3,7 +3,8 @@
 Point values come from scikit-learn's metrics; only the intervals and standard errors are
 written here: Wilson score intervals for proportions (core/checking/intervals.py), the Hanley
 & McNeil (1982) and DeLong, DeLong & Clarke-Pearson (1988) standard errors of the ROC area,
-and Student-t intervals for box means. Everything is returned as plain frozen dataclasses so
+and Student-t intervals for box means; the Brier score, RMSE, MAE and R² get percentile bootstrap
+intervals over patients (core/checking/bootstrap_intervals.py). Everything is returned as plain frozen dataclasses so
 the app, the command line and the report show the same numbers. scikit-learn and SciPy are
 imported on first use, so a command that refuses bad input starts without them.
 """
@@ -15,6 +16,9 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .bootstrap_intervals import (
+    BootstrapPlan, Interval, brier_interval, interval_text, plan_for, regression_intervals,
+)
 from .intervals import LEVEL, Proportion, as_percent, mean_interval, normal_quantile, proportion
 from .net_benefit import NetBenefitPoint, net_benefit
 
@@ -166,6 +170,8 @@ class ClassificationMeasures:
     task: str = "classification"
     # Two classes: net benefit at thresholds 1%–50% (Vickers & Elkin 2006), from box shares.
     net_benefit: tuple[NetBenefitPoint, ...] = ()
+    brier_interval: Interval = None  # 95% percentile bootstrap over patients
+    intervals: BootstrapPlan | None = None  # how the bootstrap intervals were drawn
 
     @property
     def headline(self) -> ClassResult | None:
@@ -190,7 +196,7 @@ class ClassificationMeasures:
         """(measure, value with interval) lines for a table."""
         lines = [("Patients", str(self.n)), ("Accuracy", self.accuracy.text()),
                  ("Misclassification cost per patient", f"{self.cost:.3f} (SE {self.cost_se:.3f})"),
-                 ("Brier score", f"{self.brier:.3f}")]
+                 ("Brier score", f"{self.brier:.3f}{interval_text(self.brier_interval, '.3f')}")]
         for result in self.per_class:
             name = f" ({result.label})" if self.positive is None or len(self.per_class) > 1 else ""
             lines += [(f"Sensitivity{name}", result.sensitivity.text()),
@@ -206,6 +212,8 @@ class ClassificationMeasures:
                 lines.append((f"Net benefit at a {point.threshold:.0%} threshold",
                               f"{point.tree:.3f} (treating all {point.treat_all:.3f}, "
                               "treating none 0)"))
+        if self.intervals is not None:
+            lines.append(("Interval of the Brier score", self.intervals.text()))
         return lines
 
 
@@ -213,14 +221,16 @@ def classification_measures(y: np.ndarray, predicted: np.ndarray, probabilities:
                             classes: tuple[str, ...], loss: np.ndarray | None = None,
                             case_weight: np.ndarray | None = None,
                             leaves: np.ndarray | None = None,
-                            boxes: tuple[DerivationBox, ...] = ()) -> ClassificationMeasures:
+                            boxes: tuple[DerivationBox, ...] = (),
+                            groups: np.ndarray | None = None) -> ClassificationMeasures:
     """Measures for true classes ``y`` and predicted classes (both class indices).
 
     ``probabilities`` (patients × classes) are the derivation shares of each class in the box
     each patient reached; they make the ROC curves and the Brier score. ``loss`` and
     ``case_weight`` give the cost of each mistake as in core/sizing/cross_validated_path.py
     (loss × prior weight; 0-1 loss by default). With ``leaves`` and ``boxes``, each box is
-    checked for calibration.
+    checked for calibration. ``groups`` (patient codes, one per row) makes the Brier score's
+    bootstrap draw whole patients; without it each row is drawn alone.
     """
     from sklearn.metrics import brier_score_loss, confusion_matrix
 
@@ -256,11 +266,17 @@ def classification_measures(y: np.ndarray, predicted: np.ndarray, probabilities:
     if leaves is not None and boxes:
         calibration = _class_calibration(y, np.asarray(leaves), boxes, classes)
     benefit = net_benefit(y, probabilities[:, 1]) if two and n else ()
+    plan = plan_for(groups)
+    # The Brier score's own terms: squared error of the event's share (two classes) or
+    # summed over classes (several), as scikit-learn's brier_score_loss counts them.
+    squared = ((probabilities[:, 1] - (y == 1)) ** 2 if two
+               else ((probabilities - np.eye(k)[y]) ** 2).sum(axis=1)) if n else np.zeros(0)
     return ClassificationMeasures(
         n=n, classes=tuple(classes), positive=classes[1] if two else None,
         confusion=tuple(tuple(int(v) for v in row) for row in matrix), accuracy=accuracy,
         cost=cost, cost_se=cost_se, brier=brier, per_class=tuple(results), auc_macro=auc_macro,
-        calibration=calibration, net_benefit=benefit)
+        calibration=calibration, net_benefit=benefit,
+        brier_interval=brier_interval(squared, groups, plan), intervals=plan)
 
 
 def _one_class(label: str, truth: np.ndarray, said: np.ndarray, score: np.ndarray) -> ClassResult:
@@ -305,24 +321,38 @@ class RegressionMeasures:
     calibration: tuple[CalibrationRow, ...]
     unit: str = ""
     task: str = "regression"
+    # 95% percentile bootstrap intervals over patients, and how they were drawn
+    rmse_interval: Interval = None
+    mae_interval: Interval = None
+    r2_interval: Interval = None
+    intervals: BootstrapPlan | None = None
 
     def summary(self) -> str:
         unit = f" {self.unit}" if self.unit else ""
-        return (f"RMSE {self.rmse:.3g}{unit}, MAE {self.mae:.3g}{unit}, R² {self.r2:.2f} "
-                f"({self.n} patients)")
+        return (f"RMSE {self.rmse:.3g}{unit}{interval_text(self.rmse_interval, '.3g')}, "
+                f"MAE {self.mae:.3g}{unit}{interval_text(self.mae_interval, '.3g')}, "
+                f"R² {self.r2:.2f}{interval_text(self.r2_interval, '.2f')} ({self.n} patients)")
 
     def rows(self) -> list[tuple[str, str]]:
         unit = f" {self.unit}" if self.unit else ""
-        return [("Patients", str(self.n)), ("Root mean squared error", f"{self.rmse:.3g}{unit}"),
-                ("Mean absolute error", f"{self.mae:.3g}{unit}"), ("R²", f"{self.r2:.3f}"),
-                ("Mean of observed − predicted", f"{self.mean_error:.3g}{unit}")]
+        lines = [("Patients", str(self.n)),
+                 ("Root mean squared error",
+                  f"{self.rmse:.3g}{unit}{interval_text(self.rmse_interval, '.3g')}"),
+                 ("Mean absolute error",
+                  f"{self.mae:.3g}{unit}{interval_text(self.mae_interval, '.3g')}"),
+                 ("R²", f"{self.r2:.3f}{interval_text(self.r2_interval, '.3f')}"),
+                 ("Mean of observed − predicted", f"{self.mean_error:.3g}{unit}")]
+        if self.intervals is not None:
+            lines.append(("Intervals of RMSE, MAE and R²", self.intervals.text()))
+        return lines
 
 
 def regression_measures(y: np.ndarray, predicted: np.ndarray, leaves: np.ndarray | None = None,
                         boxes: tuple[DerivationBox, ...] = (), label: str = "",
-                        unit: str = "") -> RegressionMeasures:
-    """RMSE, MAE and R² (scikit-learn), and per box the derivation mean against the observed
-    mean with its Student-t 95% interval."""
+                        unit: str = "", groups: np.ndarray | None = None) -> RegressionMeasures:
+    """RMSE, MAE and R² (scikit-learn) with bootstrap intervals (whole patients when
+    ``groups`` gives their codes), and per box the derivation mean against the observed mean
+    with its Student-t 95% interval."""
     from sklearn.metrics import mean_absolute_error, mean_squared_error, r2_score
 
     y = np.asarray(y, dtype=float)
@@ -350,7 +380,11 @@ def regression_measures(y: np.ndarray, predicted: np.ndarray, leaves: np.ndarray
             agrees = bool(low <= box.mean <= high) if m > 1 else None
             rows.append(CalibrationRow(box.box, label, box.n, box.mean, m, mean,
                                        low if m > 1 else None, high if m > 1 else None, agrees))
-    return RegressionMeasures(n, rmse, mae, r2, bias, tuple(rows), unit)
+    plan = plan_for(groups)
+    spread = regression_intervals(y, predicted, groups, plan)
+    return RegressionMeasures(n, rmse, mae, r2, bias, tuple(rows), unit,
+                              rmse_interval=spread.rmse, mae_interval=spread.mae,
+                              r2_interval=spread.r2, intervals=plan)
 
 
 Measures = ClassificationMeasures | RegressionMeasures

@@ -139,11 +139,12 @@ def nested_cross_validate(data: AnalysisData, request: DerivationRequest,
             progress(number, total)
     if data.task == "classification":
         measures = classification_measures(data.y, predicted, probabilities, data.classes,
-                                           loss=costs.loss, case_weight=costs.case_weight)
+                                           loss=costs.loss, case_weight=costs.case_weight,
+                                           groups=data.groups)
         risk_measure = "expected misclassification cost per patient"
     else:
         measures = regression_measures(data.y, predicted, label=data.outcome.display,
-                                       unit=data.outcome.unit)
+                                       unit=data.outcome.unit, groups=data.groups)
         risk_measure = "mean squared error"
     grouped = outer.grouped and data.groups is not None
     description = f"{outer.describe(grouped)} outside; {request.cv.describe(grouped)} inside"

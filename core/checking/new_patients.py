@@ -113,11 +113,13 @@ class CheckResult:
         # mean_squared_error); [value, low, high] triples for the measures with intervals.
         if isinstance(m, RegressionMeasures):
             record.update(mean_squared_error=m.rmse ** 2, rmse=m.rmse, mae=m.mae, r2=m.r2,
-                          mean_error=m.mean_error)
+                          mean_error=m.mean_error, rmse_interval=_pair(m.rmse_interval),
+                          mae_interval=_pair(m.mae_interval), r2_interval=_pair(m.r2_interval))
         else:
             record.update(accuracy=m.accuracy.value, accuracy_interval=[m.accuracy.low,
                                                                         m.accuracy.high],
-                          risk=m.cost, risk_se=m.cost_se, brier=m.brier)
+                          risk=m.cost, risk_se=m.cost_se, brier=m.brier,
+                          brier_interval=_pair(m.brier_interval))
             if m.headline is not None:
                 head = m.headline
                 record.update(sensitivity=_triple(head.sensitivity),
@@ -128,6 +130,8 @@ class CheckResult:
                     record["auc_method"] = head.roc.method
             elif m.auc_macro is not None:
                 record["auc_macro"] = m.auc_macro
+        if m.intervals is not None:  # how the Brier score's or the errors' intervals were drawn
+            record["bootstrap"] = m.intervals.record()
         if self.warnings:
             record["warnings"] = list(self.warnings)
         return _json_safe(record)
@@ -175,6 +179,10 @@ class CheckResult:
         return "\n".join(lines)
 
 
+def _pair(interval) -> list | None:
+    return None if interval is None else [interval[0], interval[1]]
+
+
 def _triple(p) -> list:
     return [p.value, p.low, p.high]
 
@@ -213,13 +221,16 @@ def case_weights(model: TreeModel) -> tuple[np.ndarray | None, np.ndarray | None
     return np.asarray(costs["loss"], dtype=float), weight
 
 
-def measure_model(model: TreeModel, y: np.ndarray, leaves: np.ndarray) -> Measures:
-    """Measures of ``model`` for outcomes ``y`` (class index or value) and reached boxes."""
+def measure_model(model: TreeModel, y: np.ndarray, leaves: np.ndarray,
+                  groups: np.ndarray | None = None) -> Measures:
+    """Measures of ``model`` for outcomes ``y`` (class index or value) and reached boxes;
+    ``groups`` (patient codes) makes the bootstrap intervals draw whole patients."""
     leaves = np.asarray(leaves)
     boxes = boxes_of(model)
     if model.task == "regression":
         return regression_measures(y, model.predictions(leaves), leaves, boxes,
-                                   label=model.outcome.display, unit=model.outcome.unit)
+                                   label=model.outcome.display, unit=model.outcome.unit,
+                                   groups=groups)
     k = len(model.classes)
     share = np.zeros((len(model.nodes) + 1, k))
     label = np.zeros(len(model.nodes) + 1, dtype=np.int64)
@@ -228,7 +239,8 @@ def measure_model(model: TreeModel, y: np.ndarray, leaves: np.ndarray) -> Measur
         label[leaf.id] = model.classes.index(leaf.prediction)
     loss, weight = case_weights(model)
     return classification_measures(y, label[leaves], share[leaves], model.classes, loss=loss,
-                                   case_weight=weight, leaves=leaves, boxes=boxes)
+                                   case_weight=weight, leaves=leaves, boxes=boxes,
+                                   groups=groups)
 
 
 def _seen_levels(model: TreeModel) -> dict[str, set[str]]:
@@ -284,7 +296,9 @@ def check_heldout(model: TreeModel, heldout: AnalysisData | None, share: float,
     warnings = _unseen_warning(unseen, model) + needs_warning("check.needs_value", needs, model)
     return CheckResult(
         source=source, kind="held-out", n=int(routed.sum()), n_rows=heldout.n, n_excluded=0,
-        patients=patients, measures=measure_model(model, heldout.y[routed], leaves[routed]),
+        patients=patients,
+        measures=measure_model(model, heldout.y[routed], leaves[routed],
+                               None if heldout.groups is None else heldout.groups[routed]),
         columns=None, unseen_levels=unseen, warnings=tuple(warnings),
         model_fingerprint=_fingerprint_without_check(model), data_sha256=data_sha256,
         needs_value=needs)
@@ -405,16 +419,20 @@ def check_table(model: TreeModel, table: LoadedTable, source: str | None = None,
     y, leaves, rows = y[routed], leaves[routed], rows.loc[routed].reset_index(drop=True)
     design = model.extra.get("settings", {}).get("design", {})
     patient = design.get("patient_id")
-    patients = None
+    patients = groups = None
     if patient and patient in rows.columns:
-        patients = int(rows[patient].astype("string").str.strip().dropna().nunique())
+        ids = rows[patient].astype("string").str.strip()
+        patients = int(ids.dropna().nunique())
+        # A row without an identifier is its own patient in the bootstrap.
+        groups = ids.fillna(pd.Series([f"\0row{i}" for i in range(len(ids))],
+                                      index=ids.index, dtype="string")).to_numpy(dtype=str)
     if source is None:
         name = Path(table.provenance.path).name
         sheet = f", sheet {table.provenance.sheet}" if table.provenance.sheet else ""
         source = f"external file {name}{sheet}"
     return CheckResult(
         source=source, kind="external", n=len(rows), n_rows=n_rows, n_excluded=no_outcome,
-        patients=patients, measures=measure_model(model, y, leaves), columns=report,
+        patients=patients, measures=measure_model(model, y, leaves, groups), columns=report,
         unseen_levels=unseen, warnings=tuple(notes), model_fingerprint=_fingerprint_without_check(model),
         data_sha256=table.provenance.sha256, needs_value=needs,
         overlap_patients=overlap_patients, overlap_rows=overlap_rows,

@@ -7,6 +7,7 @@ from typing import TYPE_CHECKING
 from reportlab.platypus import KeepTogether, Paragraph
 
 from ..cautions import UNCHECKED_BANNER, UNCHECKED_DETAIL
+from ..checking.bootstrap_intervals import interval_text
 from ..checking.metrics import ClassificationMeasures, Measures
 from ..checking.nested import NestedResult
 from ..checking.new_patients import CheckResult, training_measures
@@ -77,8 +78,9 @@ def performance_section(c: ReportContents, s: Styles) -> list:
                               check.source, check.n, m, risk, s))
     story = [para("Performance of the chosen tree, from the most optimistic estimate (the "
                   "patients it was grown on) to the most honest (patients it never saw). "
-                  "Intervals are 95%: Wilson for proportions, DeLong for the ROC area; ± is one "
-                  "standard error. " + ("Cost is the expected misclassification cost per "
+                  "Intervals are 95%: Wilson for proportions, DeLong for the ROC area, a "
+                  "percentile bootstrap over patients for the Brier score and the errors (the "
+                  "resample count is given with each check); ± is one standard error. " + ("Cost is the expected misclassification cost per "
                   f"patient under the costs and priors of section {section('Model building')}, "
                   "comparable across rows."
                   if classification else "Errors are in the outcome's unit."), s.body),
@@ -122,9 +124,12 @@ def _measure_tables(m: Measures, s: Styles) -> list:
     overall = [["Measure", "Value (95% interval)"], ["Patients", f"{m.n:,}"],
                ["Accuracy", m.accuracy.text()],
                ["Misclassification cost per patient", f"{m.cost:.3f} (SE {m.cost_se:.3f})"],
-               ["Brier score (summed over classes)", f"{m.brier:.3f}"]]
+               ["Brier score (summed over classes)",
+                f"{m.brier:.3f}{interval_text(m.brier_interval, '.3f')}"]]
     if m.auc_macro is not None:
         overall.append(["Mean one-vs-rest ROC area", f"{m.auc_macro:.2f}"])
+    if m.intervals is not None:
+        overall.append(["Interval of the Brier score", m.intervals.text()])
     per_class = [["Class (against the rest)", "Patients", "Sensitivity", "Specificity", "PPV",
                   "NPV", "ROC area (DeLong)"]]
     for r in m.per_class:

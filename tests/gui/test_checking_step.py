@@ -45,6 +45,10 @@ def test_cv_beside_training_and_the_heldout_check(grown):
     shown = _labels(checking)
     assert f"{expected.n:,} visits checked" in shown
     assert expected.measures.headline.sensitivity.text() in shown
+    # The Brier score's bootstrap interval over whole patients, its resamples stated (10.10).
+    low, high = expected.measures.brier_interval
+    assert f"{expected.measures.brier:.3f} ({low:.3f}–{high:.3f})" in shown
+    assert "1000 resamples of whole patients" in shown
     assert "Calibration by outcome box" in shown
     assert len(checking.findChildren(FigureCanvasQTAgg)) >= 2  # calibration and ROC plots
 
