@@ -144,18 +144,27 @@ class OutcomePanel(StepPanel):
         bind(self.positive_combo, lambda: design().positive if design() else None,
              lambda level: self._change(positive=level), self._positive_choices)
         bind(self.cost_spin, lambda: s.tree.miss_cost or 1.0, self._cost_chosen)
-        bind(self.patient_combo, lambda: (design().patient_id if design() else None) or NONE,
+        bind(self.patient_combo, lambda: (design().patient_id if design()
+                                          else self._dictionary_role("patient_id")) or NONE,
              lambda name: self._role_chosen("patient_id", name),
              lambda: self._column_choices("(none: every row is a different patient)",
                                           may_group_patients))
-        bind(self.site_combo, lambda: (design().site if design() else None) or NONE,
+        bind(self.site_combo, lambda: (design().site if design()
+                                       else self._dictionary_role("site")) or NONE,
              lambda name: self._role_chosen("site", name),
              lambda: self._column_choices("(none: one site)", lambda spec: spec.kind in
                                           CATEGORY_KINDS or spec.kind == "identifier"))
-        bind(self.checklist, lambda: design().predictors if design() else (),
+        bind(self.checklist, lambda: design().predictors if design() else tuple(
+                 c.name for c in s.dictionary.by_role("predictor")) if s.dictionary else (),
              lambda ticked: s.choose_predictors(ticked, self.checklist.names(),
                                                 self.checklist.bulk),
              self._predictor_choices)
+
+    def _dictionary_role(self, role: str) -> str | None:
+        """Before an outcome is chosen, step 1's roles are shown, so the two steps agree."""
+        dictionary = self.session.dictionary
+        found = () if dictionary is None else dictionary.by_role(role)
+        return found[0].name if found else None
 
     def _column_choices(self, none_words: str, fits) -> tuple:
         dictionary = self.session.dictionary

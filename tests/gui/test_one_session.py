@@ -134,6 +134,20 @@ def test_use_column_agrees_with_step_2(demo):
     assert [c.name for c in session.dictionary.by_role("outcome")] == ["admitted"]
 
 
+def test_before_an_outcome_is_chosen_step_2_shows_step_1s_roles(demo, qtbot, ward_file):
+    """A file whose outcome is not guessed: step 2 still shows the patient number and the
+    predictors step 1 proposes, not "every row is a different patient"."""
+    window = demo
+    _open(window, qtbot, ward_file)
+    assert window.session.design is None
+    assert _use(window, "mrn") == "patient number"
+    window.go_to("outcome")
+    outcome = window.panels["outcome"]
+    assert outcome.patient_combo.currentData() == "mrn"
+    proposed = {c.name for c in window.session.dictionary.by_role("predictor")}
+    assert proposed and set(outcome.checklist.checked()) == proposed
+
+
 def test_a_project_opened_in_the_same_window_restores_its_own(demo, qtbot, run, dialogs,
                                                              ward_file, tmp_path):
     window, session = demo, demo.session
