@@ -49,11 +49,14 @@ class WorkPlace:
 
     def __post_init__(self) -> None:
         check_setting("jobs", self.jobs)  # the table of limits: 1 to 1024, or -1
+        if self.cluster is not None and not self.cluster.strip():
+            # An empty address is a mistake, never a quiet run on this computer.
+            raise InputError(say("work.cluster_address", address=self.cluster))
 
     @property
     def n_jobs(self) -> int:
         """The ``jobs`` argument for core's long work: every worker of a cluster, else ``jobs``."""
-        return ALL_CORES if self.cluster else self.jobs
+        return ALL_CORES if self.cluster is not None else self.jobs
 
     def describe(self) -> str:
         """Where the work runs, in words."""
@@ -69,7 +72,7 @@ class WorkPlace:
         """Within this block joblib runs on this place (for a cluster: connected within
         ``timeout`` seconds, else refused with one sentence; disconnected afterwards).
         joblib's setting is per thread, so enter it in the thread that runs the work."""
-        if not self.cluster:
+        if self.cluster is None:
             yield
             return
         client = connect(self.cluster, timeout)
@@ -89,16 +92,71 @@ class WorkPlace:
 
 def connect(address: str, timeout: float = CLUSTER_TIMEOUT):
     """A ``distributed.Client`` for the scheduler at ``address``, refused with one sentence
-    when Dask is not installed or the scheduler does not answer within ``timeout`` seconds."""
+    when Dask is not installed, the address is not a scheduler's (``tcp://host:port``), or no
+    Dask scheduler answers within ``timeout`` seconds."""
     try:
         from distributed import Client
     except ImportError:
         raise InputError(say("work.no_dask")) from None
     address = address.strip()
-    if not address:
-        raise InputError(say("work.cluster_unreachable", address=address, seconds=timeout))
+    host_port = scheduler_address(address)
+    refused = InputError(say("work.cluster_unreachable", address=address,
+                             seconds=f"{timeout:g}"))
     try:
+        _scheduler_answers(address, host_port, timeout)
         return Client(address, timeout=timeout, set_as_default=False)
-    except (OSError, TimeoutError, ValueError, TypeError) as error:
-        raise InputError(say("work.cluster_unreachable", address=address,
-                             seconds=f"{timeout:g}")) from error
+    except InputError:
+        raise
+    except Exception as error:  # refused, timed out, or something that is not a scheduler
+        raise refused from error
+
+
+def scheduler_address(address: str) -> tuple[str, int]:
+    """The host and port of a scheduler's address (``tcp://host:port``, ``tls://host:port``
+    or ``host:port``), refused with one sentence when it is not one."""
+    from distributed.comm.addressing import parse_address, parse_host_port
+
+    wrong = InputError(say("work.cluster_address", address=address))
+    try:
+        scheme, place = parse_address(address.strip())  # "host:port" alone means tcp
+        host, port = parse_host_port(place)  # raises without a port
+    except (ValueError, TypeError):
+        raise wrong from None
+    if scheme not in ("tcp", "tls") or not host or not 0 < int(port) < 65536 or " " in host:
+        raise wrong
+    return host, int(port)
+
+
+def _scheduler_answers(address: str, host_port: tuple[str, int], timeout: float) -> None:
+    """Raise unless a Dask scheduler completes its greeting at ``address`` within ``timeout``
+    seconds. Tried before a Client is made, because a Client that cannot connect keeps
+    retrying past its timeout and then complains while being thrown away."""
+    import asyncio
+    import threading
+
+    import socket
+
+    from distributed.comm import connect as dask_connect
+
+    outcome: list[BaseException | None] = []
+
+    async def greet() -> None:
+        comm = await asyncio.wait_for(dask_connect(address, timeout=timeout), timeout)
+        await comm.close()
+
+    def attempt() -> None:  # in its own thread, so a slow name lookup cannot outlast timeout
+        try:
+            # A closed port is told at once; Dask's own connect would retry until timeout.
+            socket.create_connection(host_port, timeout=timeout).close()
+            asyncio.run(greet())
+            outcome.append(None)
+        except BaseException as error:  # noqa: BLE001 - handed to the caller
+            outcome.append(error)
+
+    thread = threading.Thread(target=attempt, daemon=True, name="prunella-cluster-check")
+    thread.start()
+    thread.join(timeout + 1.0)
+    if not outcome:
+        raise TimeoutError(f"no answer from {address} within {timeout:g} s")
+    if outcome[0] is not None:
+        raise outcome[0]

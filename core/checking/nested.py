@@ -120,8 +120,9 @@ def nested_cross_validate(data: AnalysisData, request: DerivationRequest,
     if jobs == 1:
         results = (_outer_fold(data, request, costs, f.train, f.test, cancel) for f in folds)
     else:
+        sent = data.for_workers()  # the numbers only: what a cluster's workers receive
         results = Parallel(n_jobs=jobs, return_as="generator")(
-            delayed(_outer_fold)(data, request, costs, f.train, f.test, None) for f in folds)
+            delayed(_outer_fold)(sent, request, costs, f.train, f.test, None) for f in folds)
     predicted = np.zeros(data.n, dtype=float if data.task == "regression" else np.int64)
     probabilities = (np.zeros((data.n, len(data.classes)))
                      if data.task == "classification" else None)

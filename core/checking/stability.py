@@ -237,8 +237,9 @@ def bootstrap_stability(data: AnalysisData, request: DerivationRequest, model: T
         results = (_skeleton(data, request, rows) for rows in samples)
     else:
         # In resample order, so the run is the same for any worker count.
+        sent = data.for_workers()  # the numbers only: what a cluster's workers receive
         results = Parallel(n_jobs=jobs, return_as="generator")(
-            delayed(_skeleton)(data, request, rows) for rows in samples)
+            delayed(_skeleton)(sent, request, rows) for rows in samples)
     matcher = _Matcher(data, tolerance)
     names = [p.spec.name for p in data.predictors]
     first = dict.fromkeys(names, 0)

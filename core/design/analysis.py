@@ -58,6 +58,17 @@ class AnalysisData:
     def positive(self) -> str | None:
         return self.classes[1] if self.task == "classification" and len(self.classes) == 2 else None
 
+    def for_workers(self) -> "AnalysisData":
+        """What the side-by-side work (folds, outer folds, resamples) is sent: the predictors'
+        values and codes, the outcome codes, patient and site codes and row positions, without
+        the notes of reading (which quote cells). Never the file, its path or any identifier:
+        patients are integer codes (``groups``)."""
+        return AnalysisData(
+            task=self.task, outcome=self.outcome, y=self.y, classes=self.classes,
+            predictors=tuple(TypedColumn(p.spec, numbers=p.numbers, codes=p.codes)
+                             for p in self.predictors),
+            rows=self.rows, groups=self.groups, sites=self.sites, site_levels=self.site_levels)
+
     def subset(self, rows: np.ndarray) -> "AnalysisData":
         """The same analysis restricted to some of its rows (positions into ``y``)."""
         rows = np.asarray(rows)

@@ -196,7 +196,8 @@ def cross_validate_path(data: AnalysisData, settings: TreeSettings, cv: CVSettin
         progress(1, total)
     grid = grown.sequence.grid
     tally = PathTally(data.n, len(grid))
-    tasks = (delayed(fold_losses)(data, settings, grown.costs, f.train, f.test, grid)
+    sent = data.for_workers()  # the numbers only: what a cluster's workers receive
+    tasks = (delayed(fold_losses)(sent, settings, grown.costs, f.train, f.test, grid)
              for f in folds)
     done = 1
     # Always through joblib, so a joblib backend set by the caller (a cluster, say) spreads the

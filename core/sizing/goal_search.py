@@ -83,14 +83,15 @@ def search_goal(data: AnalysisData, settings: TreeSettings, cv: CVSettings, goal
     # of every cost in one pool, so the cores stay busy across costs. In task order, so the
     # sums are made in the same order for any worker count (identical results).
     parallel = Parallel(n_jobs=jobs, return_as="generator")
-    for i, tree in parallel(delayed(_grown)(i, data, s) for i, s in enumerate(each)):
+    sent = data.for_workers()  # the numbers only: what a cluster's workers receive
+    for i, tree in parallel(delayed(_grown)(i, sent, s) for i, s in enumerate(each)):
         stop_if_cancelled(cancel)
-        grown[i] = tree
+        grown[i] = replace(tree, data=data)  # the whole analysis again, notes included
         done += 1
         if progress:
             progress(done, total)
     tallies = [PathTally(data.n, len(g.sequence.grid)) for g in grown]
-    tasks = (delayed(_fold)(i, data, each[i], grown[i].costs, f.train, f.test,
+    tasks = (delayed(_fold)(i, sent, each[i], grown[i].costs, f.train, f.test,
                             grown[i].sequence.grid)
              for i in range(len(grid)) for f in folds)
     for i, result in parallel(tasks):
