@@ -350,10 +350,15 @@ class CheckingPanel(StepPanel):
         """The decision curve with the sentence on how to read it (words from core)."""
         holder = QFrame()
         box = QVBoxLayout(holder)
-        box.addWidget(_figure_canvas(decision_curve_figure(points)))
+        canvas = _figure_canvas(decision_curve_figure(points))
+        box.addWidget(canvas)
         words = QLabel(f"{heading} {DECISION_CURVE_READING}")
         words.setWordWrap(True)
-        words.setMaximumWidth(480)
+        # A wrapped label's height depends on its width, which a layout inside a scroll area
+        # does not ask for: fix both, so the sentence sits under the plot, not over it.
+        width = max(canvas.width(), 420)
+        words.setFixedWidth(width)
+        words.setMinimumHeight(words.heightForWidth(width))
         box.addWidget(words)
         return holder
 

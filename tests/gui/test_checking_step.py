@@ -116,3 +116,23 @@ def test_stability_can_be_cancelled(grown, qtbot):
     qtbot.waitUntil(lambda: not checking.running, timeout=30000)
     assert checking.stability is None and "Cancelled" in checking.status.text()
     assert checking.stability_button.isEnabled()
+
+
+def test_the_decision_curve_sentence_sits_below_its_plot(demo, run):
+    """With nothing set aside, step 5 shows the cross-validated decision curve; its sentence
+    on how to read it is laid out under the plot, never painted over the axis."""
+    from PySide6.QtWidgets import QLabel
+
+    window = demo
+    window.panels["size"].folds.setValue(5)
+    run(window)
+    window.go_to("checking")
+    checking = window.panels["checking"]
+    canvases = checking.findChildren(FigureCanvasQTAgg)
+    assert canvases
+    for canvas in canvases:
+        holder = canvas.parentWidget()
+        for words in holder.findChildren(QLabel):
+            if "Decision curve" in words.text():
+                assert words.geometry().top() >= canvas.geometry().bottom()
+                assert words.geometry().height() >= words.heightForWidth(words.width())
