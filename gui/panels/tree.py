@@ -12,6 +12,7 @@ from PySide6.QtWidgets import (
 )
 
 from core.messages import say
+from core.phrases import plural
 from core.model import box_details, format_number, route_patient
 from gui.panels.step_panel import StepPanel, scrolling, side_by_side, tool_buttons, with_tooltip
 from gui.panels.wording import warning_html
@@ -141,8 +142,8 @@ class TreePanel(StepPanel):
         self.view.show_model(model)
         leaves = len(model.leaves)
         questions = len(model.nodes) - leaves
-        self.size_label.setText(f"{len(model.nodes)} boxes: {questions} question{'s' * (questions != 1)}, "
-                                f"{leaves} outcome{'s' * (leaves != 1)}")
+        self.size_label.setText(f"{plural(questions, 'question', 'questions')}, "
+                                f"{plural(leaves, 'outcome box', 'outcome boxes')}")
         self._build_lookup(model)
         self.show_box(1)
         self.view.select_box(None)

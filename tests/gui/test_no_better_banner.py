@@ -33,6 +33,7 @@ def test_banner_on_size_tree_and_chart_steps(window, qtbot, run, dialogs, tmp_pa
         banner = window.panels[step].no_better_banner
         qtbot.waitUntil(banner.isVisible, timeout=5000)
         assert banner.text.text().startswith(statement)
+    assert window.panels["tree"].size_label.text() == "0 questions, 1 outcome box"
     for step in ("data", "outcome", "checking"):
         assert window.panels[step].no_better_banner.isHidden()
     chart = window.panels["chart"]
