@@ -43,7 +43,7 @@ def test_a_tree_too_large_is_refused_naming_the_largest_that_fits() -> None:
 def test_sizes_that_fit_agree_with_planning_each_size() -> None:
     derivation = demo.admitted()
     sizes = sizes_that_fit(derivation, ChartOptions(paper="a4", orientation="auto"))
-    assert DEMO_A4_LEAVES in sizes and 1 in sizes
+    assert DEMO_A4_LEAVES in sizes and 1 not in sizes  # one box is no chart
     leaves = [int(v) for v in derivation.path.leaves]
     assert sizes == [s for s in leaves if s in sizes]  # the path's order, largest first
     for n in sorted(set(leaves))[:8]:
@@ -85,3 +85,16 @@ def test_the_smaller_trees_of_a_saved_model_are_its_pruning_sequence(which: str)
             assert "cv_net_benefit" not in mine.chosen
             assert mine.chosen == {k: v for k, v in theirs.chosen.items()
                                    if k != "cv_net_benefit"}
+
+
+def test_one_box_for_everyone_never_counts_as_fitting() -> None:
+    """A one-box tree is never printed as a decision chart, so the app's "fits on the paper"
+    shading and the refusal's "largest that fits" never offer it."""
+    derivation = demo.admitted_size(7)
+    assert 1 in [int(v) for v in derivation.path.leaves]
+    for form in ("tree", "rules"):
+        sizes = sizes_that_fit(derivation, options(form=form))
+        assert sizes and 1 not in sizes
+    one_box = demo.choose(derivation, 1).model
+    assert len(one_box.leaves) == 1
+    assert not tree_fits(one_box, options()) and not tree_fits(one_box, options(form="rules"))

@@ -86,6 +86,8 @@ def tree_fits(model: TreeModel, options: ChartOptions, measure: Measure = report
               collapsed: frozenset[int] = frozenset()) -> bool:
     """Whether ``model`` (pruned at the ``collapsed`` boxes) fits at the minimum text size."""
     options = options.checked()
+    if _leaf_count(model, collapsed) <= 1:  # one box for everyone is never printed as a chart
+        return False
     if options.form == "rules":
         from .rules import plan_rules
 
@@ -246,7 +248,7 @@ def sizes_that_fit(derivation: "Derivation", options: ChartOptions | None = None
     depths = _subtree_depths(path)
     candidates = []
     for index, leaves in enumerate(int(v) for v in path.leaves):
-        if leaves not in candidates and leaves <= most and depths[index] <= deepest:
+        if leaves not in candidates and 1 < leaves <= most and depths[index] <= deepest:
             candidates.append(leaves)
 
     def fits(leaves: int) -> bool:

@@ -18,6 +18,7 @@ from core.design import findings_from_notes, findings_record
 from core.errors import InputError
 from core.messages import say
 from core.option_limits import spin_range
+from core.phrases import plural
 from core.sizing import choose_model, derive
 from gui.binding import Bindings
 from gui.panels.step_panel import Banner, StepPanel, scrolling, side_by_side, with_tooltip
@@ -501,7 +502,8 @@ class SizePanel(StepPanel):
         with QSignalBlocker(self.size_combo):
             self.size_combo.setCurrentIndex(self.size_combo.findData(int(chosen["leaves"])))
         self.choice.setText(
-            f"<b>Chosen: {chosen['leaves']} outcome boxes</b> ({SIZE_RULES[chosen['rule']]}). "
+            f"<b>Chosen: {plural(chosen['leaves'], 'outcome box', 'outcome boxes')}</b> "
+            f"({SIZE_RULES[chosen['rule']]}). "
             f"{errors_beside(chosen, sentence=True)}. Checked by {model.path['cv']}.")
 
     def choose_size(self, leaves: int) -> None:

@@ -10,7 +10,8 @@ from core.messages import app_advice, app_wording
 
 # How each size rule is said (the codes are core.sizing's).
 SIZE_RULES = {"1se": "the smallest tree within one standard error (SE) of the lowest error",
-              "min": "the lowest cross-validated error", "user": "your choice"}
+              "min": "the lowest cross-validated error", "user": "your choice",
+              "goal": "the smallest tree that meets the clinical goal"}
 
 
 def errors_beside(chosen: dict, sentence: bool = False) -> str:
