@@ -284,6 +284,8 @@ class ChartPanel(StepPanel):
                 self.fit_button.show()
             return
         self.fit_button.hide()
+        self.export_button.setEnabled(True)
+        self.print_button.setEnabled(True)
         self.document.close()
         self.document.load(result.path)
         self.pdf_path = result.path
@@ -318,6 +320,9 @@ class ChartPanel(StepPanel):
             self.choose_size.emit(self._fitting)
 
     def _preview_failed(self, message: str) -> None:
+        # Nothing to export or print: the reason is shown where the page would be.
+        self.export_button.setEnabled(False)
+        self.print_button.setEnabled(False)
         self.document.close()
         self.pdf_path = None
         self.preview_error = message

@@ -41,6 +41,8 @@ def test_banner_on_size_tree_and_chart_steps(window, qtbot, run, dialogs, tmp_pa
     qtbot.waitUntil(lambda: statement in chart.preview_note.text(), timeout=60000)
     assert statement in chart.preview_note.text()
     assert "no decision chart to print" in chart.preview_note.text()
+    assert not chart.export_button.isEnabled() and not chart.print_button.isEnabled()
+    assert chart.model_button.isEnabled()  # the model itself can still be saved
     # A new file clears it.
     window.demo_action.trigger()
     qtbot.waitUntil(lambda: window.session.model is None, timeout=30000)
