@@ -4,7 +4,8 @@ ENTRIES = [
     ("chart.one_box", "refused", "{statement} The chosen tree has one outcome box, so there "
      "is no decision chart to print; choose a larger tree only if its cross-validated error "
      "is clearly lower.", "A tree with one box gives everyone the same answer; it is not "
-     "printed as a chart."),
+     "printed as a chart. For a rare outcome, count a missed case as worse than a needless "
+     "alarm, or build the tree for a minimum sensitivity."),
     ("chart.paper", "refused", "Paper {paper!r} is not one Prunella prints on; choose a4, "
      "letter, a3 or tabloid.", "Use one of the four papers."),
     ("chart.orientation", "refused", "Orientation {given!r} is not one of {choices}.",
