@@ -244,3 +244,19 @@ def test_the_chart_figure_shrinks_into_the_rest_of_a_page_rather_than_leave_it_e
     room = frame - full  # what is left beside the chart at full size, with heading and caption
     assert page_of_the_chart(room - 40) == 1  # a little short: the chart is drawn smaller
     assert page_of_the_chart(room + (1 - LEAST_CHART + 0.1) * full) == 2  # far too short
+
+
+def test_the_cross_validated_row_is_never_emptier_than_the_training_row(contents, written):
+    """The honest estimate carries the measures the one-pass CV counted for the chosen size
+    (pooled sensitivity and specificity with their Wilson intervals), beside the optimistic
+    training row."""
+    from core.checking.intervals import as_percent
+
+    words = re.sub(r"\s+", " ", _text(written))
+    path, chosen = contents.model.path, contents.model.chosen
+    k = path["leaves"].index(chosen["leaves"])
+    row = words[words.index("Cross-validated 5-fold"):][:200]
+    for name in ("cv_sensitivity", "cv_specificity"):
+        low, high = path[name + "_interval"][k]
+        shown = f"{as_percent(path[name][k])} ({as_percent(low, sign=False)}–{as_percent(high)})"
+        assert shown in row, (name, row)

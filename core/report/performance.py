@@ -2,12 +2,14 @@
 
 from __future__ import annotations
 
+import math
 from typing import TYPE_CHECKING
 
 from reportlab.platypus import KeepTogether, Paragraph
 
 from ..cautions import UNCHECKED_BANNER, UNCHECKED_DETAIL
 from ..checking.bootstrap_intervals import interval_text
+from ..checking.intervals import as_percent
 from ..checking.metrics import ClassificationMeasures, Measures
 from ..checking.nested import NestedResult
 from ..checking.new_patients import CheckResult, training_measures
@@ -42,6 +44,28 @@ def _perf_row(name: str, basis: str, n: int, m: Measures | None, risk: str, s: S
     return [first, f"{n:,}", risk, f"{m.rmse:.3g}", f"{m.mae:.3g}", f"{m.r2:.2f}"]
 
 
+def _cv_row(model, risk: str, s: Styles) -> list:
+    """The cross-validated row, with every measure the one-pass CV counted for this size
+    (pooled sensitivity and specificity with Wilson intervals; the root of the error in the
+    outcome's unit), so the honest row is never emptier than the optimistic one."""
+    first = Paragraph(f"<b>Cross-validated</b><br/>{text(model.path.get('cv', 'cross-validation'))}",
+                      s.cell)
+    row = [first, f"{model.n_rows:,}", risk, "–", "–", "–", "–"]
+    path, leaves = model.path, model.chosen.get("leaves")
+    k = path["leaves"].index(leaves) if leaves in path.get("leaves", ()) else None
+    if model.task == "regression":
+        row[3] = f"{math.sqrt(max(model.chosen['cv_risk'], 0.0)):.3g}"
+        return row
+    if k is None or "cv_sensitivity" not in path:
+        return row
+    for column, name in ((4, "cv_sensitivity"), (5, "cv_specificity")):
+        value, (low, high) = path[name][k], path[name + "_interval"][k]
+        if value is not None and low is not None:
+            row[column] = (f"{as_percent(value)} ({as_percent(low, sign=False)}–"
+                           f"{as_percent(high)})")
+    return row
+
+
 def performance_section(c: ReportContents, s: Styles) -> list:
     model, der = c.model, c.derivation
     number = section("Performance")
@@ -63,8 +87,8 @@ def performance_section(c: ReportContents, s: Styles) -> list:
     rows = [head,
             _perf_row("Training (optimistic)", "the derivation patients themselves", model.n_rows,
                       training_measures(model, der.data), risk_text(ch["train_risk"], task), s),
-            _perf_row("Cross-validated", model.path.get("cv", "cross-validation"), model.n_rows,
-                      None, f"{risk_text(ch['cv_risk'], task)} ± {risk_text(ch['cv_se'], task)}", s)[:width]]
+            _cv_row(model, f"{risk_text(ch['cv_risk'], task)} ± {risk_text(ch['cv_se'], task)}",
+                    s)[:width]]
     if c.nested is not None:
         rows.append(_perf_row("Nested cross-validation (honest)",
                               "outer folds never used for growing or sizing", c.nested.n,
