@@ -216,3 +216,28 @@ def test_goal_needs_two_classes(tmp_path):
                    tmp_path / "m.json", "--min-sensitivity", "0.9", "--dictionary", "none",
                    "--min-leaf", "2")
     assert ran.returncode == 2 and "two classes" in ran.stderr
+
+
+def test_the_chart_and_the_report_say_which_goal_the_tree_was_built_for(tmp_path):
+    """The chart's side panel and the report's methods table name the goal and the
+    cross-validated value reached, never "chosen by the user"."""
+    from pypdf import PdfReader
+
+    csv = _breast_cancer_csv(tmp_path)
+    model_path, chart = tmp_path / "goal.json", tmp_path / "goal.pdf"
+    ran = prunella("fit", csv, "--outcome", "diagnosis", "--positive", "malignant",
+                   "--min-sensitivity", "0.95", "--model", model_path, "--dictionary", "none",
+                   "--chart", chart, "--paper", "a3")
+    assert ran.returncode == 0, ran.stderr
+    chosen = json.loads(model_path.read_text())["chosen"]
+    words = " ".join(PdfReader(chart).pages[0].extract_text().split())
+    assert "built to reach a sensitivity of at least 95%" in words
+    assert f"cross-validated {round(100 * chosen['cv_sensitivity'])}%" in words
+    assert "chosen by the user" not in words
+    report = tmp_path / "report.pdf"
+    ran = prunella("report", model_path, csv, "--dictionary", "none", "--no-nested",
+                   "--bootstrap", "5", "--out", report)
+    assert ran.returncode == 0, ran.stderr
+    text = " ".join(" ".join(p.extract_text().split()) for p in PdfReader(report).pages)
+    assert "clinical goal: the smallest tree whose cross-validated sensitivity is at least 95%" \
+        in text

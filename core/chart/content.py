@@ -10,6 +10,7 @@ from dataclasses import dataclass
 
 from .. import __version__
 from ..cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER, UNCHECKED_DETAIL
+from ..checking.intervals import as_percent
 from ..model.tree import ANSWERS, MEASURE_FIRST, Node, TreeModel
 from ..phrases import plural, short_fingerprint
 from .bands import Band, Banding, banding, number, percent, rate_phrase
@@ -187,6 +188,17 @@ def _rule(model: TreeModel) -> str:
         return f"Size: {boxes} (1-SE rule: the smallest tree within one SE of the lowest error)."
     if rule == "min":
         return f"Size: {boxes} (the lowest cross-validated error)."
+    if rule == "goal" and isinstance(chosen.get("goal"), dict):
+        # Which goal the tree was built for, and what cross-validation says it reached.
+        goal, measure = chosen["goal"], chosen["goal"].get("measure")
+        reached = chosen.get(f"cv_{measure}")
+        low_high = chosen.get(f"cv_{measure}_interval") or (None, None)
+        words = (f"Size: {boxes}, the smallest tree built to reach a {measure} of at least "
+                 f"{as_percent(float(goal['at_least']))}")
+        if isinstance(reached, (int, float)) and None not in low_high:
+            words += (f" (cross-validated {as_percent(reached)}, 95% CI "
+                      f"{as_percent(low_high[0], sign=False)}–{as_percent(low_high[1])})")
+        return words + "."
     return f"Size: {boxes}, chosen by the user."
 
 

@@ -242,10 +242,7 @@ def _settings(c: ReportContents, s: Styles) -> list:
     rows += [["Pruning", "weakest-link cost-complexity pruning (Breiman et al. 1984)"],
              ["Cross-validation", model.path.get("cv", cv.describe(cv.grouped))],
              ["CV grid", "geometric midpoints of the pruning sequence's α values"],
-             ["Size rule", {"1se": "1-SE rule: the smallest tree within one standard error of "
-                                   "the minimum cross-validated risk",
-                            "min": "minimum cross-validated risk"}.get(
-                 model.chosen["rule"], f"chosen by the user ({plural(int(model.chosen['leaves']), 'box', 'boxes')})")],
+             ["Size rule", _size_rule_words(model.chosen)],
              ["Held-out share set aside before growing",
               f"{req.holdout:.0%}" if req.holdout else "none"],
              ["Random seed", str(t.seed)]]
@@ -462,3 +459,19 @@ SECTION_WRITERS = {
     "The chosen tree": _tree, "Performance": performance_section, "Stability": _stability,
     "Limitations and cautions": _limitations, "TRIPOD checklist": _tripod,
 }
+
+
+def _size_rule_words(chosen: dict) -> str:
+    """How the size was chosen, in the methods table's words."""
+    rule = chosen.get("rule")
+    if rule == "1se":
+        return ("1-SE rule: the smallest tree within one standard error of the minimum "
+                "cross-validated error")
+    if rule == "min":
+        return "minimum cross-validated error"
+    goal = chosen.get("goal")
+    if rule == "goal" and isinstance(goal, dict):
+        return (f"clinical goal: the smallest tree whose cross-validated {goal.get('measure')} "
+                f"is at least {float(goal.get('at_least', 0)):.0%} (a search over miss costs, "
+                f"{chosen.get('grid_description', 'stated in the model file')})")
+    return f"chosen by the user ({plural(int(chosen['leaves']), 'outcome box', 'outcome boxes')})"
