@@ -98,6 +98,7 @@ OPTION_LIMITS: dict[str, OptionLimit] = {limit.name: limit for limit in (
     OptionLimit("outer_folds", "--outer-folds", _whole(2, 100)),
     OptionLimit("prior", "--priors", Interval(Real, 0, 1e6)),
     OptionLimit("cost", "--costs", Interval(Real, 0, 1e6)),
+    OptionLimit("coarsen", "--coarsen", _whole(2, 65_536), optional=True),
 )}
 
 
@@ -164,7 +165,7 @@ def check_request_limits(request) -> None:
                         ("miss_cost", tree.miss_cost), ("seed", tree.seed),
                         ("folds", cv.folds), ("repeats", cv.repeats),
                         ("validation_share", cv.validation_share), ("seed", cv.seed),
-                        ("holdout", request.holdout)):
+                        ("holdout", request.holdout), ("coarsen", tree.coarsen)):
         check_setting(name, value, where=name.replace("_", " "))
     if isinstance(request.size, int) and not isinstance(request.size, bool):
         check_setting("size", request.size, where="size")

@@ -41,3 +41,14 @@ def rows_phrase(rows: Sequence[int] | np.ndarray | None, limit: int = 5) -> str:
         return f" (rows {', '.join(map(str, shown[:-1]))} and {shown[-1]})"
     return f" (rows {', '.join(map(str, shown))} and {total - limit} more)"
 
+
+
+def names_phrase(names: Sequence[str], limit: int = 5) -> str:
+    """Names as a sentence lists them: 'A', 'A and B', 'A, B and C', the rest counted."""
+    names = list(names)
+    if len(names) > limit:
+        rest = len(names) - limit + 1
+        names = names[:limit - 1] + [f"{rest} more"]
+    if len(names) <= 1:
+        return "".join(names)
+    return ", ".join(names[:-1]) + " and " + names[-1]

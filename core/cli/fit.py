@@ -57,6 +57,9 @@ def add_parsers(sub) -> None:
                      default=5, help="minimum patients per leaf (default 5)")
     fit.add_argument("--max-depth", type=option_type("max_depth"),
                      help="maximum depth of the grown tree")
+    fit.add_argument("--coarsen", type=option_type("coarsen"), metavar="N",
+                     help="grow on N quantile levels of each measurement with more than N "
+                     "different values (faster on large files; default off; e.g. 256)")
     fit.add_argument("--criterion", help="split criterion: gini or entropy (classification), "
                      "squared_error or friedman_mse (regression)")
     fit.add_argument("--priors", default="observed", help="class priors: observed, equal, or "
@@ -103,7 +106,8 @@ def request_from_args(args, dictionary: DataDictionary) -> DerivationRequest:
                             site=args.site, task=args.task, positive=args.positive)
     priors = priors_option(args.priors)
     tree = TreeSettings(min_leaf=args.min_leaf, max_depth=args.max_depth, criterion=args.criterion,
-                        priors=priors, miss_cost=args.miss_cost, risk=args.risk, seed=args.seed)
+                        priors=priors, miss_cost=args.miss_cost, risk=args.risk, seed=args.seed,
+                        coarsen=args.coarsen)
     plan = "loo" if args.loo else ("site" if args.site else "kfold")
     cv = CVSettings(plan=plan, folds=args.folds, repeats=args.repeats, seed=args.seed)
     return DerivationRequest(design=design, tree=tree, cv=cv, holdout=args.holdout, size=args.size,

@@ -4,6 +4,12 @@ Every matrix column remembers what it is (a number, an ordered level, a ranked n
 or one level of a nominal with several classes), so a split on it can be said as a question
 about levels and units rather than as ``x_3 <= 0.5``.
 
+A numeric column may be coarsened (``coarsen=N``): with more than N distinct values among the
+training rows it is grown on as N quantile levels (level k holds the values above edge k-1 up
+to edge k, the edges being observed values), which makes each split search cheaper on large
+cohorts. A column with at most N distinct values is left as it is, so nothing is lost there.
+Thresholds are still said from the observed values either side of the split (chosen_tree.py).
+
 Nominal predictors are ordered by the outcome (Breiman's ordering for two classes and for
 regression) using the training rows only: ``fit_encoding`` is called once per fold, so the
 held-out rows never inform the order and cross-validation cannot leak through it.
@@ -29,6 +35,8 @@ class MatrixColumn:
     order: tuple[str, ...] = ()  # levels in the order of their encoded value
     level: str | None = None  # for kind "level"
     value_of_code: np.ndarray | None = field(default=None, repr=False)
+    # Coarsened numeric column: the upper edge of each quantile level (observed values).
+    edges: np.ndarray | None = field(default=None, repr=False)
 
     def yes_levels(self, threshold: float) -> tuple[str, ...]:
         """Levels that go to the YES side (encoded value above the threshold)."""
@@ -58,7 +66,7 @@ class Encoding:
             source = data.predictors[col.predictor]
             if col.kind == "numeric":
                 values = source.numbers if rows is None else source.numbers[rows]
-                out[:, j] = values
+                out[:, j] = values if col.edges is None else quantile_levels(values, col.edges)
             else:
                 codes = source.codes if rows is None else source.codes[rows]
                 lookup = np.append(col.value_of_code, np.nan)  # code -1 -> NaN
@@ -66,14 +74,44 @@ class Encoding:
         return out
 
 
-def fit_encoding(data: AnalysisData, train_rows: np.ndarray | None = None) -> Encoding:
-    """Matrix columns for every predictor, nominal orderings learnt from ``train_rows`` only."""
+def quantile_edges(values: np.ndarray, levels: int) -> np.ndarray | None:
+    """The upper edges of ``levels`` quantile levels of the recorded ``values`` (observed
+    values, the inverted-CDF quantiles), or None when they have at most ``levels`` distinct
+    values (then the column is kept as it is: coarsening it could only lose)."""
+    recorded = np.sort(values[~np.isnan(values)])
+    if recorded.size == 0:
+        return None
+    distinct = 1 + int(np.count_nonzero(recorded[1:] != recorded[:-1]))
+    if distinct <= levels:
+        return None
+    # Level k ends at the value below which a share (k+1)/levels of the rows lie; ties may
+    # merge levels, so a column can end with fewer than ``levels``.
+    share = np.arange(1, levels) / levels
+    at = np.ceil(share * recorded.size).astype(np.int64) - 1
+    return np.unique(recorded[np.clip(at, 0, recorded.size - 1)])
+
+
+def quantile_levels(values: np.ndarray, edges: np.ndarray) -> np.ndarray:
+    """Each value's quantile level (0 up to len(edges)); NaN stays NaN (not recorded)."""
+    levels = np.searchsorted(edges, values, side="left").astype(np.float32)
+    levels[np.isnan(values)] = np.nan
+    return levels
+
+
+def fit_encoding(data: AnalysisData, train_rows: np.ndarray | None = None,
+                 coarsen: int | None = None) -> Encoding:
+    """Matrix columns for every predictor, nominal orderings (and, with ``coarsen``, the
+    numeric columns' quantile levels) learnt from ``train_rows`` only."""
     y = data.y if train_rows is None else data.y[train_rows]
     columns: list[MatrixColumn] = []
     for index, column in enumerate(data.predictors):
         spec = column.spec
         if spec.kind == "numeric":
-            columns.append(MatrixColumn(index, spec, "numeric"))
+            edges = None
+            if coarsen is not None:
+                numbers = column.numbers if train_rows is None else column.numbers[train_rows]
+                edges = quantile_edges(numbers, int(coarsen))
+            columns.append(MatrixColumn(index, spec, "numeric", edges=edges))
             continue
         levels = spec.levels
         if spec.kind in ("ordinal", "binary"):

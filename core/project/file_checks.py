@@ -133,6 +133,7 @@ def _check_request(request: _Checker) -> None:
         tree.text("risk", choices=RISKS)
         tree.limited("miss_cost")
         tree.limited("seed")
+        tree.limited("coarsen")
         priors = tree.data.get("priors")
         if priors is not None and priors not in ("observed", "equal") and not (
                 isinstance(priors, list) and priors and

@@ -120,7 +120,7 @@ def grow_full(data: AnalysisData, settings: TreeSettings) -> DerivationTree:
     if data.n < 2 * settings.min_leaf:
         raise InputError(say("size.too_few_rows", n=data.n, min_leaf=settings.min_leaf))
     costs = class_costs(settings, data.y, len(data.classes)) if data.task == "classification" else None
-    encoding = fit_encoding(data)
+    encoding = fit_encoding(data, coarsen=settings.coarsen)
     X = encoding.matrix(data)
     tree = grow_tree(X, data.y, data.task, settings, costs)
     sequence = pruning_sequence(tree.children_left, tree.children_right, tree.prune_risk,
@@ -157,7 +157,7 @@ def fold_losses(data: AnalysisData, settings: TreeSettings, costs: ClassCosts | 
                 train: np.ndarray, test: np.ndarray, grid: np.ndarray):
     """One fold: grow on ``train``, route ``test`` once; each held-out case's loss at every
     grid α′, and (two classes) the fold's counts."""
-    encoding = fit_encoding(data, train)
+    encoding = fit_encoding(data, train, coarsen=settings.coarsen)
     tree = grow_tree(encoding.matrix(data, train), data.y[train], data.task, settings, costs)
     collapse = collapse_alphas(tree.children_left, tree.children_right, tree.prune_risk)
     X_test = encoding.matrix(data, test)

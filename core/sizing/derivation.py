@@ -19,6 +19,7 @@ from ..errors import InputError
 from ..messages.message import say
 from ..model.tree import TreeModel
 from ..option_limits import check_request_limits
+from ..phrases import names_phrase
 from ..progress import CancelFlag, Progress
 from .chosen_tree import build_model
 from .cross_validated_path import CrossValidatedPath, cross_validate_path
@@ -26,6 +27,9 @@ from .folds import holdout_split
 from .goal import cost_words
 from .goal_search import GoalSearch, search_goal
 from .request import DerivationRequest
+
+# Above this many derivation rows, the fit suggests coarsening (growing is then slow).
+COARSEN_SUGGESTED_ABOVE = 200_000
 
 
 @dataclass(frozen=True)
@@ -73,10 +77,13 @@ def derive(table: LoadedTable, dictionary: DataDictionary, request: DerivationRe
         notes.append(say("holdout.set_aside", n=len(out), total=full.n))
     if data.task == "classification" and np.unique(data.y).size < len(data.classes):
         raise InputError(say("holdout.class_left_out"))
+    if request.tree.coarsen is None and data.n > COARSEN_SUGGESTED_ABOVE:
+        notes.append(say("coarsen.suggested", count=f"{data.n:,}"))
     if request.goal is not None:
         search = search_goal(data, request.tree, request.cv, request.goal, jobs=jobs,
                              progress=progress, cancel=cancel)
         path = search.path
+        notes.extend(coarsening_notes(path))
         model = build_model(path, search.size_index, "goal", table, dictionary, request,
                             chosen_extra=search.chosen_record())
         notes.append(say("goal.searched", goal=request.goal.describe(),
@@ -86,10 +93,28 @@ def derive(table: LoadedTable, dictionary: DataDictionary, request: DerivationRe
                                    findings=tuple(findings)))
     path = cross_validate_path(data, request.tree, request.cv, jobs=jobs, progress=progress,
                                cancel=cancel)
+    notes.extend(coarsening_notes(path))
     index, rule = path.index_for(request.size)
     model = build_model(path, index, rule, table, dictionary, request)
     return _checked(Derivation(request, table, dictionary, data, heldout, path, model,
                                tuple(notes), findings=tuple(findings)))
+
+
+def coarsening_notes(path: CrossValidatedPath) -> list[str]:
+    """What coarsening did to the grown tree's measurements, in a note (none when it was off)."""
+    levels = path.grown.settings.coarsen
+    if levels is None:
+        return []
+    names = coarsened_columns(path)
+    if not names:
+        return [say("coarsen.none_needed", levels=levels)]
+    return [say("coarsen.used", columns=names_phrase(names), levels=levels,
+                were="was" if len(names) == 1 else "were")]
+
+
+def coarsened_columns(path: CrossValidatedPath) -> tuple[str, ...]:
+    """The displayed names of the measurements the full tree was grown on as quantile levels."""
+    return tuple(c.spec.display for c in path.grown.encoding.columns if c.edges is not None)
 
 
 def choose_model(derivation: Derivation, size: str | int) -> Derivation:

@@ -33,14 +33,20 @@ class TreeSettings:
     miss_cost: float | None = None  # two classes: missing a positive vs a needless alarm
     risk: str = "cost"  # classification pruning risk: "cost" (Breiman et al.) or "impurity"
     seed: int = 0
+    # Numeric predictors with more than this many distinct values are grown on as this many
+    # quantile levels (core/design/matrix.py); None: never (the default).
+    coarsen: int | None = None
 
     def to_dict(self) -> dict:
-        return {
+        out = {
             "min_leaf": self.min_leaf, "max_depth": self.max_depth, "criterion": self.criterion,
             "priors": self.priors if isinstance(self.priors, str) else list(self.priors),
             "loss": None if self.loss is None else [list(r) for r in self.loss],
             "miss_cost": self.miss_cost, "risk": self.risk, "seed": self.seed,
         }
+        if self.coarsen is not None:  # recorded only when used, so older files read the same
+            out["coarsen"] = self.coarsen
+        return out
 
     @classmethod
     def from_dict(cls, data: dict) -> "TreeSettings":
@@ -51,7 +57,7 @@ class TreeSettings:
                    priors=priors if isinstance(priors, str) else tuple(float(p) for p in priors),
                    loss=None if loss is None else tuple(tuple(float(v) for v in r) for r in loss),
                    miss_cost=data.get("miss_cost"), risk=data.get("risk", "cost"),
-                   seed=int(data.get("seed", 0)))
+                   seed=int(data.get("seed", 0)), coarsen=data.get("coarsen"))
 
 
 @dataclass(frozen=True)
