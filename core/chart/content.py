@@ -11,7 +11,7 @@ from dataclasses import dataclass
 from .. import __version__
 from ..cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER, UNCHECKED_DETAIL
 from ..checking.intervals import as_percent
-from ..model.tree import ANSWERS, MEASURE_FIRST, Node, TreeModel
+from ..model.tree import ANSWERS, MEASURE_FIRST, Node, TreeModel, answer_verb
 from ..phrases import plural, short_fingerprint
 from .bands import Band, Banding, banding, number, percent, rate_phrase
 from .layout import BoxSpec, Para, TreeSpec
@@ -76,7 +76,8 @@ def span(low: str, high: str) -> str:
         else f"{low}–{high}"
 
 
-def outcome_paras(model: TreeModel, node: Node, options: ChartOptions) -> tuple[Para, ...]:
+def outcome_paras(model: TreeModel, node: Node, options: ChartOptions,
+                  side: int = 0) -> tuple[Para, ...]:
     """What an outcome box says, in a few short lines: the expected outcome (or mean), the
     rate and how many it rests on ("74% of 241"), the 95% interval ("CI 68–79%"). The
     outcome itself is named once, in the title and the key, and the key says what the
@@ -91,7 +92,13 @@ def outcome_paras(model: TreeModel, node: Node, options: ChartOptions) -> tuple[
     else:
         share = model.box_share(node)
         rate = percent(share.value or 0.0)
-        paras = [Para(f"Expect {node.prediction}", bold=True),
+        verb = answer_verb(node.counts, model.classes, node.prediction)
+        answer = Para(f"{verb.capitalize()} {node.prediction}", bold=True)
+        if _contradicts(model, node, side) and verb == "expect":
+            # A box of the higher band that expects the negative answer (or the other way
+            # round) reads as an error: its rate is said first, without an expectation.
+            answer = Para(f"{rate} {model.positive}", bold=True)
+        paras = [answer,
                  Para(f"Rate {rate}" if options.hide_counts else f"{rate} of {node.n:,}",
                       keep=True),
                  Para(f"CI {span(percent(share.low or 0.0)[:-1], percent(share.high or 1.0))}",
@@ -99,6 +106,15 @@ def outcome_paras(model: TreeModel, node: Node, options: ChartOptions) -> tuple[
     if node.n < options.small_cell:
         paras.append(Para("Small group", keep=True))
     return tuple(paras)
+
+
+def _contradicts(model: TreeModel, node: Node, side: int) -> bool:
+    """Whether a yes/no box's answer points the other way from its band (side +1: the
+    highest band, -1: the lowest)."""
+    if model.positive is None or len(model.classes) != 2 or side == 0:
+        return False
+    says_positive = str(node.prediction) == str(model.positive)
+    return (side > 0 and not says_positive) or (side < 0 and says_positive)
 
 
 def tree_spec(model: TreeModel, options: ChartOptions,
@@ -114,7 +130,10 @@ def tree_spec(model: TreeModel, options: ChartOptions,
         if node.leaf:
             band = bands.band_of(model, node)
             band_of[node.id] = band
-            boxes[node.id] = BoxSpec("outcome", str(node.id), outcome_paras(model, node, options),
+            side = 0 if bands.kind == "class" or len(bands.bands) < 2 else (
+                1 if band is bands.bands[-1] else -1 if band is bands.bands[0] else 0)
+            boxes[node.id] = BoxSpec("outcome", str(node.id),
+                                     outcome_paras(model, node, options, side),
                                      heading=Para(band.word, bold=True))
             continue
         question = node.question
@@ -284,6 +303,10 @@ def _key(model: TreeModel, bands: Banding, options: ChartOptions) -> PanelSectio
         share = (f"Rate: share {who} among the box's {rows}" if options.hide_counts
                  else f"“P% of N”: share {who} among the N {rows} in the box")
         what = f"{share}; CI: its 95% confidence interval (Wilson)."
+        if any(answer_verb(n.counts, model.classes, n.prediction) == "treat as"
+               for n in model.leaves):
+            what += (" “Treat as”: the tree's answer under the costs or goal it was built "
+                     f"for, although fewer than half of the box's {rows} had it.")
     if any(n.question is not None and n.question.kind != "missing" and n.question.routes_missing
            for n in model.nodes):
         missing = "(or not recorded)" if options.form == "rules" else NOT_RECORDED

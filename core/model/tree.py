@@ -128,13 +128,24 @@ def shared_count(counts: tuple[int, ...], classes: tuple[str, ...], prediction) 
     return int(counts[classes.index(str(prediction))])
 
 
-def expected_outcome(outcome: ColumnSpec, task: str, prediction, mean: float | None) -> str:
+def answer_verb(counts: tuple[int, ...], classes: tuple[str, ...], prediction) -> str:
+    """How a box's answer is said: "expect" when it is the box's most common outcome, "treat
+    as" when the costs or the goal the tree was built with make it the answer although fewer
+    of the box's patients have it (a rule-out box of 6% falls is not where falls are expected,
+    but where they are not ruled out)."""
+    if not counts or len(counts) != len(classes) or str(prediction) not in classes:
+        return "expect"
+    return "expect" if counts[classes.index(str(prediction))] >= max(counts) else "treat as"
+
+
+def expected_outcome(outcome: ColumnSpec, task: str, prediction, mean: float | None,
+                     counts: tuple[int, ...] = (), classes: tuple[str, ...] = ()) -> str:
     """A box's expected outcome in words, without its counts: 'Admitted: expect yes',
-    'Length of stay: mean 31.2 h'."""
+    'Fell: treat as fell' (see :func:`answer_verb`), 'Length of stay: mean 31.2 h'."""
     if task == "regression":
         unit = f" {outcome.unit}" if outcome.unit else ""
         return f"{outcome.display}: mean {mean:.3g}{unit}"
-    return f"{outcome.display}: expect {prediction}"
+    return f"{outcome.display}: {answer_verb(counts, classes, prediction)} {prediction}"
 
 
 @dataclass(frozen=True)
@@ -267,7 +278,8 @@ class TreeModel:
 
     def expected_outcome(self, node: Node) -> str:
         """A box's expected outcome in words, without its counts (see :func:`expected_outcome`)."""
-        return expected_outcome(self.outcome, self.task, node.prediction, node.mean)
+        return expected_outcome(self.outcome, self.task, node.prediction, node.mean,
+                                node.counts, self.classes)
 
     @property
     def better_than_no_tree(self) -> bool:

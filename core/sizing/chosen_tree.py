@@ -15,6 +15,7 @@ from ..design.matrix import MatrixColumn
 from ..dictionary.columns import DataDictionary
 from ..checking.overlap import derivation_ids
 from ..model.thresholds import round_threshold
+from ..phrases import plural
 from ..model.tree import (
     Node, Question, TreeModel, better_than_no_tree, expected_outcome, question_text, shared_count,
 )
@@ -36,6 +37,9 @@ def build_model(path: CrossValidatedPath, index: int, rule: str, table: LoadedTa
     order = _breadth_first(tree, internal)  # (sklearn node id, depth) in box order
     box_of = {node: i + 1 for i, (node, _) in enumerate(order)}
     nodes = []
+    # Rows are visits; where patients came more than once, the counts are of visits.
+    rows_are = "visits" if data.groups is not None and \
+        np.unique(data.groups).size != data.n else "patients"
     for node, depth in order:
         stats = _node_stats(tree, node, data)
         if internal[node]:
@@ -48,7 +52,7 @@ def build_model(path: CrossValidatedPath, index: int, rule: str, table: LoadedTa
                               children=(box_of[yes], box_of[no]),
                               text=question_text(question, spec), **stats))
         else:
-            nodes.append(Node(id=box_of[node], depth=depth, text=_outcome_text(stats, data),
+            nodes.append(Node(id=box_of[node], depth=depth, text=_outcome_text(stats, data, rows_are),
                               **stats))
     sequence = grown.sequence
     path_dict = {
@@ -131,14 +135,18 @@ def _node_stats(tree, node: int, data: AnalysisData) -> dict:
             "prediction": data.classes[int(tree.label[node])]}
 
 
-def _outcome_text(stats: dict, data: AnalysisData) -> str:
+def _outcome_text(stats: dict, data: AnalysisData, rows_are: str = "patients") -> str:
+    """'Admitted: expect yes (74% of 241 visits: yes)': the answer, then the share of the
+    box's rows with the positive class (or the class expected) and how many rows."""
     n = stats["n"]
-    expected = expected_outcome(data.outcome, data.task, stats["prediction"], stats.get("mean"))
+    expected = expected_outcome(data.outcome, data.task, stats["prediction"], stats.get("mean"),
+                                stats.get("counts", ()), tuple(data.classes or ()))
+    rows = plural(n, rows_are[:-1], rows_are)
     if data.task == "regression":
-        return f"{expected} ({n} patients)"
+        return f"{expected} ({rows})"
     share = shared_count(stats["counts"], data.classes, stats["prediction"]) / max(n, 1)
-    had = f" had {data.classes[1]}" if len(data.classes) == 2 else ""
-    return f"{expected} ({share:.0%} of {n} patients{had})"
+    which = data.classes[1] if len(data.classes) == 2 else stats["prediction"]
+    return f"{expected} ({share:.0%} of {rows}: {which})"
 
 
 def _question(column: MatrixColumn, tree, node: int, X_rows: np.ndarray, data: AnalysisData,
