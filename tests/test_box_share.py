@@ -102,5 +102,5 @@ def test_the_reporttitle_page_prints_risks_and_fingerprints_as_elsewhere() -> No
         assert f"model fingerprint {model.short_fingerprint} ·" in words
         assert model.fingerprint[:13] not in words
         chosen = model.chosen
-        assert (f"Its cross-validated risk is {risk_text(chosen['cv_risk'], model.task)} ± "
+        assert (f"Its cross-validated error is {risk_text(chosen['cv_risk'], model.task)} ± "
                 f"{risk_text(chosen['cv_se'], model.task)}") in words

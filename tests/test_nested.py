@@ -70,7 +70,7 @@ def test_outer_folds_keep_patients_together_and_cover_everyone(demo_data, monkey
                                                    weights=[f.n_test for f in result.folds]))
     assert "patients kept together" in result.description
     assert result.measures.calibration == ()  # boxes differ between folds
-    assert "Nested risk" in result.summary()
+    assert "Nested cross-validated error" in result.summary()
 
 
 def test_cancel_stops_nested_cross_validation(demo_data):

@@ -166,8 +166,8 @@ def test_figures_are_plain_matplotlib_figures(contents):
     again = pruning_curve_figure(contents.model.path)
     assert figure_png(again, dpi=50) == figure_png(pruning_curve_figure(contents.model.path), dpi=50)
     legend = [t.get_text() for t in figures[0].legends[0].get_texts()]
-    assert any("1-SE choice" in t for t in legend) and any("minimum risk" in t for t in legend)
-    assert any("training risk" in t for t in legend)
+    assert any("1-SE choice" in t for t in legend) and any("lowest error" in t for t in legend)
+    assert any("training error" in t for t in legend)
 
 
 def test_stability_key_stands_clear_of_the_bars(contents):
@@ -207,7 +207,7 @@ def test_report_details_read_as_one_document(contents, written):
     assert created.date() == dt.date(2026, 1, 31) == contents.printed_on
     curve = pruning_curve_figure(contents.model.path).axes[0]
     colours = {line.get_label(): line.get_color() for line in curve.get_lines()}
-    assert colours["training risk (same patients; optimistic)"] == CURVE["training"]
+    assert colours["training error (same patients; optimistic)"] == CURVE["training"]
     assert colours["minimum + 1 SE"] == CURVE["limit"]
     assert CURVE["cross-validated"] in {line.get_color() for line in curve.get_lines()}
 
@@ -216,7 +216,7 @@ def test_a_size_given_as_a_number_reads_after_choosing_the_size():
     from core.checking.nested import _size_rule
 
     assert _size_rule(4) == "as the largest tree of at most 4 outcome boxes"
-    assert _size_rule("min") == "at the minimum cross-validated risk"
+    assert _size_rule("min") == "at the lowest cross-validated error"
 
 
 def test_the_chart_figure_shrinks_into_the_rest_of_a_page_rather_than_leave_it_empty(contents):

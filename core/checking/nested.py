@@ -59,8 +59,9 @@ class NestedResult:
         """One printable line."""
         sizes = sorted(f.leaves for f in self.folds)
         size_text = (f"{sizes[0]}" if sizes[0] == sizes[-1] else f"{sizes[0]}–{sizes[-1]}")
-        return (f"Nested risk {self.risk:.3f} ± {self.risk_se:.3f} ({self.risk_measure}; "
-                f"{self.description}; {size_text} leaves chosen inside the folds)")
+        return (f"Nested cross-validated error {self.risk:.3f} ± {self.risk_se:.3f} "
+                f"({self.risk_measure}; {self.description}; {size_text} outcome boxes chosen "
+                "inside the folds)")
 
 
 def _size_rule(size) -> str:
@@ -68,7 +69,7 @@ def _size_rule(size) -> str:
     if size in ("1se", "1-se"):
         return "by the 1-SE rule"
     if size == "min":
-        return "at the minimum cross-validated risk"
+        return "at the lowest cross-validated error"
     return f"as the largest tree of at most {plural(int(size), 'outcome box', 'outcome boxes')}"
 
 

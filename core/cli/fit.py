@@ -74,7 +74,7 @@ def add_parsers(sub) -> None:
                      help="two classes: the smallest tree whose cross-validated specificity is "
                      "at least S (e.g. 0.95, to rule in); the miss cost is searched")
     fit.add_argument("--risk", choices=("cost", "impurity"), default="cost",
-                     help="node risk for pruning a classification tree (default cost)")
+                     help="what pruning a classification tree weighs: cost (expected misclassification cost, the usual) or impurity (how mixed the boxes are); default cost")
     fit.add_argument("--size", default="1se", type=size_option,
                      help="tree size: 1se (default), min, or a number of leaves")
     fit.add_argument("--seed", type=option_type("seed"),

@@ -53,16 +53,16 @@ def pruning_curve_figure(path: dict) -> Figure:
     _style(ax)
     cross, training = CURVE["cross-validated"], CURVE["training"]
     ax.errorbar(leaves, cv, yerr=se, color=cross, marker="o", markersize=3.5, linewidth=1.2,
-                elinewidth=0.8, capsize=2, label="cross-validated risk ± 1 SE")
+                elinewidth=0.8, capsize=2, label="cross-validated error ± 1 SE")
     ax.plot(leaves, train, color=training, linestyle="--", marker="s", markersize=2.5,
-            linewidth=1.0, label="training risk (same patients; optimistic)")
+            linewidth=1.0, label="training error (same patients; optimistic)")
     k_min = int(np.flatnonzero(leaves == path["min_leaves"])[0])
     k_one = int(np.flatnonzero(leaves == path["one_se_leaves"])[0])
     ax.axhline(cv[k_min] + se[k_min], color=CURVE["limit"], linestyle=":", linewidth=0.8,
                label="minimum + 1 SE")
     ax.plot([leaves[k_min]], [cv[k_min]], linestyle="none", marker="v", markersize=9,
             markerfacecolor="white", markeredgecolor=cross, markeredgewidth=1.5,
-            label=f"minimum risk: {int(leaves[k_min])} boxes")
+            label=f"lowest error: {int(leaves[k_min])} boxes")
     ax.plot([leaves[k_one]], [cv[k_one]], linestyle="none", marker="D", markersize=8,
             markerfacecolor="white", markeredgecolor=cross, markeredgewidth=1.5,
             label=f"1-SE choice: {int(leaves[k_one])} boxes")

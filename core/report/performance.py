@@ -129,7 +129,7 @@ def performance_section(c: ReportContents, s: Styles) -> list:
 def _nested_detail(nested: NestedResult, number: str, s: Styles) -> list:
     task = "regression" if nested.risk_measure == "mean squared error" else "classification"
     rows = [["Outer fold", "Growing patients", "Test visits", "Boxes chosen inside",
-             "Inner CV risk", "Outer test risk"]]
+             "Inner cross-validated error", "Error on the outer part"]]
     for f in nested.folds:
         rows.append([str(f.fold), f"{f.n_train:,}", f"{f.n_test:,}", str(f.leaves),
                      risk_text(f.inner_cv_risk, task), risk_text(f.test_risk, task)])

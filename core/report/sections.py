@@ -75,9 +75,9 @@ def title_page(c: ReportContents, title: str, s: Styles) -> list:
                f"({text(data.get('file', 'the data file'))}), pruned by weakest-link "
                f"cost-complexity pruning, and sized by {text(model.path.get('cv', 'cross-validation'))}. "
                f"The chosen tree has {boxes} and asks about {text(asked)}. "
-               f"Its cross-validated risk is {risk(model.chosen['cv_risk'])} ± "
+               f"Its cross-validated error is {risk(model.chosen['cv_risk'])} ± "
                f"{risk(model.chosen['cv_se'])} ({text(model.path.get('risk_measure', 'risk'))}; "
-               f"training risk {risk(model.chosen['train_risk'])}).")
+               f"training error {risk(model.chosen['train_risk'])}).")
     story.append(para(summary, s.body, markup=True))
     lines = []
     if c.nested is not None:
@@ -263,11 +263,11 @@ def _settings(c: ReportContents, s: Styles) -> list:
 def _pruning(c: ReportContents, s: Styles) -> list:
     path = c.model.path
     story = [figure(pruning_curve_figure(path),
-                    f"Figure {s.next_figure()}. Cross-validated risk (±1 SE) and training risk for each size on "
-                    f"the pruning path. Triangle: minimum cross-validated risk "
+                    f"Figure {s.next_figure()}. Cross-validated error (±1 SE) and training error for each size on "
+                    f"the pruning path. Triangle: lowest cross-validated error "
                     f"({plural(int(path['min_leaves']), 'box', 'boxes')}); diamond: the 1-SE choice "
-                    f"({plural(int(path['one_se_leaves']), 'box', 'boxes')}). Training risk always falls as the tree "
-                    "grows; only the cross-validated risk says how it does on new patients.", s)]
+                    f"({plural(int(path['one_se_leaves']), 'box', 'boxes')}). Training error always falls as the tree "
+                    "grows; only the cross-validated error says how it does on new patients.", s)]
     leaves = path["leaves"]
     order = sorted(range(len(leaves)), key=lambda k: leaves[k])
     keep = set(order[:14]) | {leaves.index(path["min_leaves"]), leaves.index(path["one_se_leaves"]),
@@ -432,7 +432,7 @@ def _limitations(c: ReportContents, s: Styles) -> list:
                          + " recur in fewer than half of the bootstrap resamples: they may "
                          "not be found again in new data.")
     if c.nested is None:
-        items.append("Nested cross-validation was not run; the cross-validated risk of the "
+        items.append("Nested cross-validation was not run; the cross-validated error of the "
                      "chosen size is slightly optimistic because the same folds chose the size.")
     items.append("Thresholds are printed as round numbers inside the gap between neighbouring "
                  "derivation values, so the chart routes every derivation patient as the "

@@ -374,7 +374,7 @@ class CheckingPanel(StepPanel):
             f"<p><b>{escape(result.summary())}</b></p><p>Beside it: "
             f"{escape(errors_beside(self.session.model.chosen))}, for the chosen size.</p>"
             "<table cellpadding='3' border='1' cellspacing='0'><tr><th>Outer part</th>"
-            "<th>Patients tested</th><th>Size chosen inside</th><th>Error promised inside</th>"
+            "<th>Visits tested</th><th>Size chosen inside</th><th>Its cross-validated error inside the part</th>"
             f"<th>Error on the outer part</th></tr>{rows}</table>"
             f"<p>{escape(result.measures.summary())}</p>")
 

@@ -30,8 +30,8 @@ CRITERIA = {
     "classification": (("Gini impurity (usual)", None), ("Entropy (information gain)", "entropy")),
     "regression": (("Squared error (usual)", None), ("Friedman's improvement", "friedman_mse")),
 }
-RISKS = (("Misclassification cost (usual)", "cost"), ("Impurity, as scikit-learn prunes", "impurity"))
-PRIORS = (("As observed in the data", "observed"), ("Equal for every outcome group", "equal"))
+RISKS = (("Misclassification cost (usual)", "cost"), ("How mixed the boxes are (impurity)", "impurity"))
+PRIORS = (("As common as in the data", "observed"), ("Equal for every outcome (rare ones count more)", "equal"))
 PLANS = (
     ("Parts in turn (k-fold cross-validation)", "kfold"),
     ("One patient at a time (leave-one-out)", "loo"),
@@ -154,7 +154,7 @@ class SizePanel(StepPanel):
         form.addRow("Split criterion:", self.criterion)
         self.risk_label = QLabel("Pruning weighs:")
         form.addRow(self.risk_label, self.risk)
-        self.priors_label = QLabel("Outcome groups count:")
+        self.priors_label = QLabel("Weight of each outcome:")
         form.addRow(self.priors_label, self.priors)
         return self._group("How the tree grows", form)
 
@@ -250,7 +250,7 @@ class SizePanel(StepPanel):
         self.curve = CurveCanvas()
         self.curve.setAccessibleName("Pruning curve")
         self.size_combo = with_tooltip(QComboBox(), "Choose the size of the tree: the number of "
-                                       "outcome boxes (leaves) on the chart, with each size's "
+                                       "outcome boxes on the chart, with each size's "
                                        "cross-validated error ± SE and its training error.")
         self.size_combo.setMinimumContentsLength(28)
         self.one_se_button = with_tooltip(QPushButton("Smallest within 1 SE"),

@@ -16,6 +16,7 @@ from PySide6.QtCore import Signal
 from PySide6.QtWidgets import QSizePolicy
 
 from core.chart.style import CURVE
+from core.phrases import plural
 from core.sizing import one_se_limit
 
 
@@ -112,15 +113,15 @@ class CurveCanvas(FigureCanvasQTAgg):
                 label="Training error (patients it was grown on)")
         lowest = data.leaves == data.min_leaves
         ax.plot(x[lowest], data.cv_risk[lowest], "v", color=CV_COLOUR, ms=11, mfc="white",
-                mew=1.6, label=f"Lowest error ({data.min_leaves} leaves)")
+                mew=1.6, label=f"Lowest error ({plural(data.min_leaves, 'outcome box', 'outcome boxes')})")
         one_se = data.leaves == data.one_se_leaves
         ax.plot(x[one_se], data.cv_risk[one_se], "D", color=CV_COLOUR, ms=10, mfc="white",
-                mew=1.6, label=f"Smallest within 1 SE ({data.one_se_leaves} leaves)")
+                mew=1.6, label=f"Smallest within 1 SE ({plural(data.one_se_leaves, 'box', 'boxes')})")
         if self._chosen is not None and (data.leaves == self._chosen).any():
             at = data.leaves == self._chosen
             ax.axvline(self._chosen, color=CHOSEN_COLOUR, lw=1.0, alpha=0.6)
             ax.plot(x[at], data.cv_risk[at], "o", ms=16, mfc="none", mec=CHOSEN_COLOUR, mew=2,
-                    label=f"Chosen ({self._chosen} leaves)")
+                    label=f"Chosen ({plural(self._chosen, 'box', 'boxes')})")
         ax.set_xscale("log")
         ax.xaxis.set_major_locator(LogLocator(base=10, subs=(1.0, 2.0, 5.0)))
         ax.xaxis.set_major_formatter(FuncFormatter(lambda v, _pos: f"{v:g}"))

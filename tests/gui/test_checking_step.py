@@ -89,7 +89,7 @@ def test_nested_cv_stability_and_report(grown, qtbot, dialogs, tmp_path):
     qtbot.mouseClick(checking.nested_button, Qt.LeftButton)
     qtbot.waitUntil(lambda: not checking.running, timeout=60000)
     assert checking.nested is not None and len(checking.nested.folds) == 3
-    assert "Nested risk" in checking.nested_label.text()
+    assert "Nested cross-validated error" in checking.nested_label.text()
     assert "Beside it: cross-validated error" in checking.nested_label.text()
     checking.resamples.setValue(10)
     qtbot.mouseClick(checking.stability_button, Qt.LeftButton)

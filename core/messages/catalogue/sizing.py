@@ -11,7 +11,7 @@ ENTRIES = [
      "must be one of {choices}, not {given!r}.", "Use gini or entropy."),
     ("grow.criterion_regression", "refused", "The split criterion for regression must be one "
      "of {choices}, not {given!r}.", "Use squared_error or friedman_mse."),
-    ("grow.risk", "refused", "The pruning risk must be 'cost' or 'impurity', not {given!r}.",
+    ("grow.risk", "refused", "What pruning weighs must be 'cost' or 'impurity', not {given!r}.",
      "Use cost or impurity."),
     ("grow.priors_count", "refused", "Give {n} non-negative class priors (one per class).",
      "One prior per class, in class order."),
