@@ -170,3 +170,37 @@ def test_coarsened_cv_is_the_same_for_any_worker_count():
     one = cross_validate_path(data, settings, cv, jobs=1)
     two = cross_validate_path(data, settings, cv, jobs=2)
     assert np.array_equal(one.cv_risk, two.cv_risk) and np.array_equal(one.cv_se, two.cv_se)
+
+
+def test_the_model_file_the_chart_and_the_report_say_coarsening_was_used(tmp_path):
+    import io
+
+    from pypdf import PdfReader
+
+    from core.chart import ChartOptions
+    from core.chart.content import chart_text
+    from core.model import TreeModel
+    from core.report import prepare_report, write_report
+
+    table, dictionary, _ = demo_inputs()
+    request = DerivationRequest(DesignSpec("admitted", PREDICTORS, patient_id="patient_id"),
+                                tree=TreeSettings(coarsen=12), cv=CVSettings(folds=4))
+    derivation = derive(table, dictionary, request, jobs=1)
+    model = derivation.model
+    assert model.extra["coarsened"]["levels"] == 12
+    assert "age" in model.extra["coarsened"]["columns"]
+    assert "triage_level" not in model.extra["coarsened"]["columns"]  # five levels: as it is
+    model.save(tmp_path / "m.json")
+    again = TreeModel.load(tmp_path / "m.json")
+    said = again.coarsening()
+    assert said is not None and said.startswith("Coarsened: Age") and "12 quantile levels" in said
+    panel = [item.text for section in chart_text(again, ChartOptions().checked()).sections
+             for item in section.items]
+    assert said in panel
+    contents = prepare_report(derivation, outer_folds=2, bootstrap=0, printed="2026-12-03")
+    write_report(contents, tmp_path / "r.pdf")
+    text = " ".join(" ".join(page.extract_text() for page in
+                             PdfReader(io.BytesIO((tmp_path / "r.pdf").read_bytes())).pages).split())
+    assert "Measurements coarsened" in text and "12 quantile levels" in text
+    plain = derive(table, dictionary, DerivationRequest(request.design, cv=request.cv), jobs=1)
+    assert plain.model.coarsening() is None and "coarsened" not in plain.model.extra

@@ -242,6 +242,8 @@ def _performance(model: TreeModel) -> PanelSection:
         PanelItem(f"{path.get('cv', 'Cross-validation').capitalize()}{about}."),
         PanelItem(_rule(model)),
     )
+    if model.coarsening():
+        items += (PanelItem(model.coarsening()),)
     return PanelSection("How well it predicts", items)
 
 

@@ -21,7 +21,7 @@ from ..dictionary.columns import ColumnSpec
 from ..dictionary.typed_columns import TypedColumn, typed_column
 from ..errors import InputError
 from ..messages.message import say
-from ..phrases import short_fingerprint
+from ..phrases import names_phrase, short_fingerprint
 from ..safe_files import check_format, read_json_document, write_text_atomic
 from .file_checks import check_model_document
 from .thresholds import format_number
@@ -300,6 +300,22 @@ class TreeModel:
     def no_better_statement(self) -> str | None:
         """The sentence saying this tree is no better than no tree, or None when it is."""
         return None if self.better_than_no_tree else NO_BETTER[self.task]
+
+    def coarsening(self) -> str | None:
+        """Whether the tree was grown on coarsened measurements, in one sentence (the chart's
+        side panel, the report and the app), or None when it was not."""
+        record = self.extra.get("coarsened")
+        if not isinstance(record, dict) or not record.get("levels"):
+            return None
+        levels, names = int(record["levels"]), list(record.get("columns") or [])
+        if not names:
+            return (f"Coarsening to {levels} levels was asked for; no measurement had more "
+                    "values, so none was coarsened.")
+        known = {spec.name: spec.display for spec in self.predictors}
+        shown = [known.get(n, n) for n in names]
+        return (f"Coarsened: {names_phrase(shown)} {'was' if len(names) == 1 else 'were'} grown "
+                f"on {levels} quantile levels (faster on large files); each threshold is still "
+                "set between observed values.")
 
     def no_better_warning(self) -> str | None:
         """The warning that this tree is no better than no tree, with its numbers (the app's

@@ -223,7 +223,9 @@ def _settings(c: ReportContents, s: Styles) -> list:
             ["Grower", f"scikit-learn {sklearn.__version__} decision tree, split criterion "
                        f"{criterion}, best splitter"],
             ["Minimum patients per outcome box", f"{t.min_leaf:,}"],
-            ["Maximum depth", str(t.max_depth) if t.max_depth else "none (grown to the minimum box size)"]]
+            ["Maximum depth", str(t.max_depth) if t.max_depth else "none (grown to the minimum box size)"],
+            ["Measurements coarsened", model.coarsening() or "no (every observed value was "
+             "a possible threshold)"]]
     costs = model.extra.get("costs")
     if model.task == "classification":
         priors = t.priors if isinstance(t.priors, str) else ", ".join(f"{p:g}" for p in t.priors)

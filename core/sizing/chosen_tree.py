@@ -105,6 +105,10 @@ def build_model(path: CrossValidatedPath, index: int, rule: str, table: LoadedTa
         cells = table.frame[design.patient_id].iloc[data.rows]
         extra["derivation_ids"] = derivation_ids(cells, design.patient_id,
                                                  table.provenance.sha256[:16] or "prunella")
+    if grown.settings.coarsen is not None:  # what the chart, the report and the app say
+        extra["coarsened"] = {"levels": int(grown.settings.coarsen),
+                              "columns": [c.spec.name for c in encoding.columns
+                                          if c.edges is not None]}
     if grown.costs is not None:
         extra["costs"] = {"priors": grown.costs.priors.tolist(), "loss": grown.costs.loss.tolist()}
     model = TreeModel(task=data.task, outcome=data.outcome, classes=data.classes,

@@ -148,6 +148,13 @@ class SizePanel(StepPanel):
         self.priors = with_tooltip(QComboBox(), "Class priors: how much each outcome group "
                                    "counts; 'equal' gives a rare outcome as much weight as a "
                                    "common one.")
+        self.coarsen = with_tooltip(QSpinBox(), "Coarsen measurements: each measurement with "
+                                    "more than this many different values is grown on this "
+                                    "many quantile levels, which is much faster on large files "
+                                    "(e.g. 256 above 200,000 rows); thresholds are still set "
+                                    "between observed values. 'off' searches every value.")
+        self.coarsen.setRange(1, int(_spin("coarsen")[1]))  # 1: off (one level asks nothing)
+        self.coarsen.setSpecialValueText("off")
         form = QFormLayout()
         form.addRow("Fewest patients in an outcome box:", self.min_leaf)
         form.addRow("Most questions in a row:", self.max_depth)
@@ -156,6 +163,7 @@ class SizePanel(StepPanel):
         form.addRow(self.risk_label, self.risk)
         self.priors_label = QLabel("Weight of each outcome:")
         form.addRow(self.priors_label, self.priors)
+        form.addRow("Coarsen measurements:", self.coarsen)
         return self._group("How the tree grows", form)
 
     def _checking_box(self) -> QGroupBox:
@@ -291,6 +299,8 @@ class SizePanel(StepPanel):
              lambda v: s.set_settings(tree=replace(s.tree, min_leaf=v)))
         bind(self.max_depth, lambda: s.tree.max_depth or 0,
              lambda v: s.set_settings(tree=replace(s.tree, max_depth=v or None)))
+        bind(self.coarsen, lambda: s.tree.coarsen or 1,
+             lambda v: s.set_settings(tree=replace(s.tree, coarsen=v if v > 1 else None)))
         bind(self.criterion, lambda: s.tree.criterion,
              lambda v: s.set_settings(tree=replace(s.tree, criterion=v)),
              lambda: CRITERIA[self._task()])
