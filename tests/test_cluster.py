@@ -91,14 +91,24 @@ def test_nested_cv_and_bootstrap_resamples_run_on_the_cluster_with_the_same_resu
     assert repr(stability) == repr(local_stability)
 
 
-def test_prunella_fit_on_the_cluster_writes_the_same_model_as_one_worker(cluster, tmp_path):
-    address, _ = cluster
+def test_prunella_fit_and_report_on_the_cluster_write_the_same_files_as_one_worker(cluster,
+                                                                                   tmp_path):
+    address, client = cluster
     common = ("fit", DEMO_CSV, "--outcome", "admitted", "--predictors", ",".join(PREDICTORS),
               "--folds", "4", "--quiet")
     here = prunella(*common, "--jobs", "1", "--model", tmp_path / "here.json")
     there = prunella(*common, "--cluster", address, "--model", tmp_path / "there.json")
     assert here.returncode == 0 and there.returncode == 0, there.stderr
     assert (tmp_path / "here.json").read_text() == (tmp_path / "there.json").read_text()
+    # The report's nested CV and bootstrap resamples on the cluster: the same report.
+    report = ("report", tmp_path / "here.json", DEMO_CSV, "--bootstrap", "3", "--outer-folds",
+              "2", "--date", "2026-12-03")
+    here = prunella(*report, "--jobs", "1", "--out", tmp_path / "here.pdf")
+    with get_task_stream(client) as stream:
+        there = prunella(*report, "--cluster", address, "--out", tmp_path / "there.pdf")
+    assert here.returncode == 0 and there.returncode == 0, there.stderr
+    assert len(stream.data) >= 10 + 2 + 3  # folds, outer folds and resamples went there
+    assert (tmp_path / "here.pdf").read_bytes() == (tmp_path / "there.pdf").read_bytes()
 
 
 @pytest.mark.parametrize("address, said", [
