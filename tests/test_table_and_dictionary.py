@@ -166,3 +166,27 @@ def test_bad_dictionary_entries_are_refused_with_the_fix():
         DataDictionary((ColumnSpec("a"), ColumnSpec("a")))
     with pytest.raises(InputError, match="not a Prunella data dictionary"):
         DataDictionary.from_dict({"columns": []})
+
+
+def test_a_unit_written_after_a_measurements_name_becomes_its_unit():
+    """ "Haemoglobin g/L" is Haemoglobin in g/L (issue 10.8), so the question reads
+    "Haemoglobin above 110 g/L?"; a count over a period keeps its whole name, and a category
+    is never cut."""
+    import numpy as np
+    import pandas as pd
+
+    from core.dictionary import infer_dictionary
+
+    rng = np.random.default_rng(0)
+    frame = pd.DataFrame({name: rng.integers(60, 200, 120) for name in
+                          ("Haemoglobin g/L", "lactate_mmol", "Resp rate /min", "Temp °C",
+                           "Visits in 30 days")})
+    frame["Fall in 30 days"] = rng.choice(["fell", "no fall"], 120)
+    dictionary, _ = infer_dictionary(frame)
+    found = {c.name: (c.label, c.unit) for c in dictionary.columns}
+    assert found["Haemoglobin g/L"] == ("Haemoglobin", "g/L")
+    assert found["lactate_mmol"] == ("Lactate", "mmol")
+    assert found["Resp rate /min"] == ("Resp rate", "/min")
+    assert found["Temp °C"] == ("Temp", "°C")
+    assert found["Visits in 30 days"] == ("Visits in 30 days", "")
+    assert found["Fall in 30 days"] == ("Fall in 30 days", "")

@@ -34,6 +34,26 @@ _SENTINELS = (-9, -99, -999, -9999)
 _FEW_WORDS = 5  # a numeric column may hold up to this many different words (read as missing)
 
 
+# A unit written after a measurement's name without brackets ("Haemoglobin g/L", "lactate_mmol",
+# "weight kg"): a rate like g/L or /min, or one of the usual clinical units.
+_TRAILING_UNIT = re.compile(
+    r"^(?P<label>.*?[A-Za-z\)])[\s_]+(?P<unit>(?:[a-zA-Zµμ%°]+)?/[a-zA-Z0-9µμ.]+|mmHg|mmol|"
+    r"umol|µmol|μmol|mg|mcg|ug|µg|g|kg|cm|mm|ml|mL|L|bpm|%|°C|degC|C|h|hrs|hours|min|mins|"
+    r"days|yrs|years|IU|U)$")
+
+
+def _unit_after_name(base: dict) -> dict:
+    """A numeric column's unit from a header that writes it after the name without brackets;
+    the label keeps the name alone, so a question reads "Haemoglobin above 110 g/L?"."""
+    if base.get("unit"):
+        return base
+    match = _TRAILING_UNIT.match(str(base["name"]).strip())
+    if not match:
+        return base
+    label, unit = _label_and_unit(match.group("label"))
+    return {**base, "label": label, "unit": match.group("unit")}
+
+
 def _label_and_unit(name: str) -> tuple[str, str]:
     match = _UNIT_IN_HEADER.match(name)
     if match and match.group("label"):
@@ -226,6 +246,7 @@ def _mostly_dates(text: pd.Series) -> bool:
 
 
 def _numeric(name: str, base: dict, numbers, n_present: int, notes: list[str], rows):
+    base = _unit_after_name(base)
     finite = numbers.values[np.isfinite(numbers.values)]
     distinct = np.sort(pd.unique(finite))  # hashing: cheaper than sorting a million values
     if len(distinct) <= 1:
