@@ -83,3 +83,18 @@ def test_scored_table_columns(demo):
     leaf = model.leaves[0]
     share = scored.loc[scored["prunella_box"] == leaf.id, "prunella_share_yes"].iloc[0]
     assert share == round(leaf.counts[1] / leaf.n, 4)
+
+
+def test_a_regression_box_gives_the_middle_half_of_its_patients():
+    """Issue 10.9: the app's box details give the 25th to 75th percentile of the box's
+    derivation patients beside the interval of the mean, which is narrower."""
+    table, dictionary, predictors = demo_inputs()
+    request = DerivationRequest(DesignSpec("los_hours", predictors, patient_id="patient_id",
+                                           task="regression"), size=4)
+    model = derive(table, dictionary, request).model
+    for leaf in model.leaves:
+        details = box_details(model, leaf.id)
+        low, high = details.quartiles
+        assert low < high and details.quartiles == leaf.quartiles
+        # The interval of the mean lies well inside the spread of patients.
+        assert (details.mean_high - details.mean_low) < (high - low)

@@ -401,8 +401,33 @@ def test_a_regression_chart_shows_means_with_intervals() -> None:
         low, high = model.mean_interval(leaf)
         assert f"Mean {leaf.mean:.3g}" in text
     assert "Cross-validated mean squared error" in text and "Training mean squared error" in text
-    assert "CI " in text and "95% confidence interval (t interval" in text and "hours" in text
+    assert "CI " in text and "95% confidence interval (t)" in text and "hours" in text
     assert any(word in text for word in ("LOWER", "HIGHER"))
+
+
+def test_a_regression_box_shows_the_spread_of_its_patients() -> None:
+    """Issue 10.9: beside the interval of the mean, each box gives the middle half of its
+    derivation patients (25th to 75th percentile, computed when the tree is built and kept in
+    the model file) and their number; the key says which is which."""
+    import numpy as np
+
+    from core.chart.bands import number
+
+    derivation = demo.length_of_stay_size(5)
+    model = derivation.model
+    text = page_text(render_chart(model, options()))
+    data = derivation.path.grown.data
+    routes = model.route(model.asked_values(data.predictors), data.n)
+    for leaf in model.leaves:
+        mine = np.asarray(data.y, float)[routes == leaf.id]
+        assert leaf.quartiles == pytest.approx(tuple(np.percentile(mine, [25, 75])))
+        low, high = leaf.quartiles
+        assert f"IQR {number(low)}–{number(high)}" in text
+        assert f"{leaf.n:,} visits" in text
+    assert "not the range for one patient" in text
+    assert "IQR: where the middle half of the box's visits lay (25th to 75th percentile)" in text
+    again = type(model).from_dict(model.to_dict())
+    assert [n.quartiles for n in again.leaves] == [n.quartiles for n in model.leaves]
 
 
 def test_a_three_class_chart_bands_by_the_expected_class() -> None:

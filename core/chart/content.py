@@ -87,6 +87,11 @@ def outcome_paras(model: TreeModel, node: Node, options: ChartOptions,
         low, high = model.mean_interval(node)
         paras = [Para(f"Mean {number(float(node.mean), model.outcome.unit)}", bold=True),
                  Para(f"CI {span(number(low), number(high))}", keep=True)]
+        if node.quartiles is not None:
+            # The interval of the mean is not the range for one patient: the middle half of
+            # the box's patients, with their count in the same short line.
+            middle = span(number(node.quartiles[0]), number(node.quartiles[1]))
+            paras.append(Para(f"IQR {middle}", keep=True))
         if not options.hide_counts:
             paras.append(Para(_count(node.n, model), keep=True))
     else:
@@ -298,7 +303,12 @@ def _key(model: TreeModel, bands: Banding, options: ChartOptions) -> PanelSectio
                                "uncertain", dashed=True))
     if model.task == "regression":
         what = (f"Mean: average {model.outcome.display.lower()} in the box; CI: its 95% "
-                "confidence interval (t interval, kept within the observed range).")
+                "confidence interval (t), not the range for one patient")
+        if any(n.quartiles is not None for n in model.leaves):
+            what += (f"; IQR: where the middle half of the box's {count_word(model)} lay "
+                     "(25th to 75th percentile).")
+        else:
+            what += "."
     else:
         who = rate_phrase(model) if model.positive is not None else "with the expected outcome"
         rows = count_word(model)

@@ -41,6 +41,7 @@ class BoxDetails:
     sd: float | None = None
     mean_low: float | None = None
     mean_high: float | None = None
+    quartiles: tuple[float, float] | None = None  # regression: the middle half of the patients
 
 
 def box_details(model: TreeModel, box: int) -> BoxDetails:
@@ -51,7 +52,7 @@ def box_details(model: TreeModel, box: int) -> BoxDetails:
     if model.task == "regression":
         low, high = model.mean_interval(node)
         return BoxDetails(mean=float(node.mean), sd=float(node.sd or 0.0), mean_low=low,
-                          mean_high=high, **common)
+                          mean_high=high, quartiles=node.quartiles, **common)
     shares = []
     for label, count in zip(model.classes, node.counts):
         low, high = wilson_interval(int(count), node.n)

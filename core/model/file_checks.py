@@ -95,6 +95,14 @@ def check_model_document(data: dict) -> None:
         for key in ("mean", "sd"):
             if node.get(key) is not None and not is_finite_number(node[key]):
                 raise _damaged(where, f"'{key}' must be a number")
+        if node.get("sd") is not None and node["sd"] < 0:
+            raise _damaged(where, "'sd' cannot be negative")
+        if "quartiles" in node:
+            quartiles = node["quartiles"]
+            if not (isinstance(quartiles, list) and len(quartiles) == 2
+                    and all(is_finite_number(q) for q in quartiles)
+                    and quartiles[0] <= quartiles[1]):
+                raise _damaged(where, "'quartiles' must be two numbers, the lower first")
         for key in ("question", "outcome"):
             if key in node and not isinstance(node[key], str):
                 raise _damaged(where, f"'{key}' must be a text")

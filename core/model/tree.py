@@ -179,6 +179,9 @@ class Node:
     counts: tuple[int, ...] = ()  # classification: patients per class
     mean: float | None = None  # regression: mean outcome
     sd: float | None = None
+    # Regression: the middle half of the box's derivation patients (25th and 75th
+    # percentiles), the spread one patient may expect, beside the interval of the mean.
+    quartiles: tuple[float, float] | None = None
     prediction: str | float | None = None
     text: str = ""  # the question or the outcome, in words
 
@@ -199,6 +202,8 @@ class Node:
         if self.mean is not None:
             data["mean"] = self.mean
             data["sd"] = self.sd
+        if self.quartiles is not None:
+            data["quartiles"] = list(self.quartiles)
         data["prediction"] = self.prediction
         return data
 
@@ -209,7 +214,10 @@ class Node:
                    question=Question.from_dict(split) if split else None,
                    children=tuple(int(c) for c in data.get("children", ())),
                    counts=tuple(int(c) for c in data.get("counts", ())),
-                   mean=data.get("mean"), sd=data.get("sd"), prediction=data.get("prediction"),
+                   mean=data.get("mean"), sd=data.get("sd"),
+                   quartiles=tuple(float(q) for q in data["quartiles"])
+                   if isinstance(data.get("quartiles"), list) else None,
+                   prediction=data.get("prediction"),
                    text=data.get("question") or data.get("outcome") or "")
 
 

@@ -329,7 +329,7 @@ def _tree(c: ReportContents, s: Styles) -> list:
         head = f"Share with {model.positive} (95% CI)" if model.positive else "Share of the expected class (95% CI)"
     else:
         unit = f" ({model.outcome.unit})" if model.outcome.unit else ""
-        head = f"Mean{unit} (95% CI)"
+        head = f"Mean{unit} (95% CI); middle half"
     rows = [["Box", "Route to the box", "Expected outcome", "Patients", head]]
     small = []
     for leaf_id, steps in _leaf_paths(model).items():
@@ -340,6 +340,8 @@ def _tree(c: ReportContents, s: Styles) -> list:
         else:
             lo, hi = model.mean_interval(leaf)
             rate = f"{leaf.mean:.3g} ({lo:.3g}–{hi:.3g})"
+            if leaf.quartiles is not None:  # the spread of patients, not of the mean
+                rate += f"; {leaf.quartiles[0]:.3g}–{leaf.quartiles[1]:.3g}"
             expected = f"mean {leaf.mean:.3g}"
         mark = " †" if leaf.n < SMALL_GROUP else ""
         if mark:
@@ -347,6 +349,10 @@ def _tree(c: ReportContents, s: Styles) -> list:
         route = " → ".join(steps) if steps else "every patient"
         rows.append([f"{leaf_id}{mark}", route, expected, f"{leaf.n:,}", rate])
     story.append(table(rows, [0.07, 0.48, 0.13, 0.1, 0.22], s, align_right=(3,)))
+    if model.task == "regression" and any(leaf.quartiles is not None for leaf in model.leaves):
+        story.append(para("The 95% CI is that of the box's mean; the middle half (25th to "
+                          "75th percentile of the box's derivation patients) is the spread one "
+                          "patient may expect.", s.caption))
     if small:
         story.append(para(f"† rests on fewer than {SMALL_GROUP} derivation patients: the rate is "
                           "uncertain and may identify individuals; consider suppressing it before "

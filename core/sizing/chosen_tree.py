@@ -41,7 +41,8 @@ def build_model(path: CrossValidatedPath, index: int, rule: str, table: LoadedTa
     rows_are = "visits" if data.groups is not None and \
         np.unique(data.groups).size != data.n else "patients"
     for node, depth in order:
-        stats = _node_stats(tree, node, data)
+        # Every box keeps its spread, so a smaller tree made from the file has it too.
+        stats = _node_stats(tree, node, data, membership)
         if internal[node]:
             rows = membership.indices[membership.indptr[node]:membership.indptr[node + 1]]
             column = encoding.columns[tree.feature[node]]
@@ -129,12 +130,18 @@ def _breadth_first(tree, internal: np.ndarray) -> list[tuple[int, int]]:
     return order
 
 
-def _node_stats(tree, node: int, data: AnalysisData) -> dict:
+def _node_stats(tree, node: int, data: AnalysisData, membership=None) -> dict:
     n = int(tree.n[node])
     if data.task == "regression":
-        return {"n": n, "mean": float(tree.mean[node]),
-                "sd": float(np.sqrt(max(tree.prune_risk[node] * data.n / max(n - 1, 1), 0.0))),
-                "prediction": float(tree.label[node])}
+        stats = {"n": n, "mean": float(tree.mean[node]),
+                 "sd": float(np.sqrt(max(tree.prune_risk[node] * data.n / max(n - 1, 1), 0.0))),
+                 "prediction": float(tree.label[node])}
+        if membership is not None:
+            rows = membership.indices[membership.indptr[node]:membership.indptr[node + 1]]
+            if len(rows):
+                low, high = np.percentile(np.asarray(data.y, float)[rows], [25, 75])
+                stats["quartiles"] = (float(low), float(high))
+        return stats
     return {"n": n, "counts": tuple(int(c) for c in tree.class_counts[node]),
             "prediction": data.classes[int(tree.label[node])]}
 

@@ -41,9 +41,14 @@ def details_html(model, box: int) -> str:
     elif d.mean is not None:
         unit = f" {model.outcome.unit}" if model.outcome.unit else ""
         rows.append(f"<p>Mean {format_number(round(d.mean, 3))}{unit} (SD "
-                    f"{format_number(round(d.sd, 3))}); 95% interval "
+                    f"{format_number(round(d.sd, 3))}); 95% interval of the mean "
                     f"{format_number(round(d.mean_low, 3))} to {format_number(round(d.mean_high, 3))}"
                     f"{unit}.</p>")
+        if d.quartiles is not None:
+            rows.append(f"<p>The middle half of these patients (25th to 75th percentile): "
+                        f"{format_number(round(d.quartiles[0], 3))} to "
+                        f"{format_number(round(d.quartiles[1], 3))}{unit}. The interval of "
+                        "the mean is not the range for one patient.</p>")
     question = model.node(box).question
     if question is not None and question.kind != "missing":
         if not question.routes_missing:
