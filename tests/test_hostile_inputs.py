@@ -78,7 +78,7 @@ def fit_args(cohort, *more):
     ("--seed", "-1", ["--seed", "from 0"]),
     ("--jobs", "0", ["--jobs", "-1 (every core)"]),
     ("--size", "0", ["--size", "from 1"]),
-    ("--size", "six", ["--size", "1se, min or a number of leaves"]),
+    ("--size", "six", ["--size", "1se, min or a number of outcome boxes"]),
     ("--min-leaf", "many", ["--min-leaf", "not 'many'"]),
 ])
 def test_an_option_outside_its_limits_is_refused_before_any_work(cohort, option, value, words):

@@ -74,3 +74,59 @@ def test_the_fit_summary_puts_the_cross_validated_error_first(tmp_path):
     header = next(line for line in result.stdout.splitlines() if "CV error" in line)
     assert header.index("CV error") < header.index("training")
     assert "leaves" not in result.stdout and " risk" not in result.stdout
+
+
+# --- issue 10, item 8: the error is an error, the boxes are outcome boxes --------------------
+
+# "risk" reads as the probability of the outcome; "leaf" is the grower's word. Option names
+# (--risk, --min-leaf) and JSON keys may keep them; the words a clinician reads may not.
+CLINICIAN_MISREADS = re.compile(r"\b(risk|risks|leaf|leaves)\b", re.IGNORECASE)
+OPTION_NAMES = re.compile(r"\{[a-z_!r]+\}|--[a-z-]+|\{cost,impurity\}|[A-Z_]{3,}")
+
+
+def _words_only(text: str) -> str:
+    """The text without option names and metavars (--min-leaf, MIN_LEAF), which stay."""
+    return OPTION_NAMES.sub(" ", text)
+
+
+def test_no_message_calls_the_error_a_risk_or_a_box_a_leaf():
+    from core.messages.catalogue import ENTRIES
+
+    wrong = [(code, found.group(0)) for code, _, template, advice in ENTRIES
+             for found in [CLINICIAN_MISREADS.search(_words_only(template + " " + advice))]
+             if found]
+    assert wrong == []
+
+
+@pytest.mark.parametrize("command", [["fit"], ["score"], ["check"], ["report"], ["chart"]])
+def test_help_says_outcome_boxes_and_errors_and_explains_the_grower_criteria(command):
+    result = prunella(*command, "--help")
+    assert result.returncode == 0
+    words = _words_only(re.sub(r"\s+", " ", result.stdout))
+    assert not CLINICIAN_MISREADS.search(words), CLINICIAN_MISREADS.search(words).group(0)
+    if command == ["fit"]:
+        # Each of the grower's own criterion names comes with a plain explanation.
+        for name, plain in (("gini", "how mixed the classes are"),
+                            ("squared_error", "the spread about each side's mean"),
+                            ("friedman_mse", "favouring even splits")):
+            assert re.search(rf"{name} \([^)]*{re.escape(plain)}", words), name
+
+
+def test_the_size_step_tooltips_use_plain_words():
+    pytest.importorskip("PySide6")
+    import os
+
+    os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
+    from PySide6.QtWidgets import QApplication, QWidget
+
+    from gui.session import Session
+    from gui.panels.size import SizePanel
+
+    app = QApplication.instance() or QApplication([])
+    panel = SizePanel(Session())
+    tips = " ".join(w.toolTip() for w in panel.findChildren(QWidget) if w.toolTip())
+    assert tips and not CLINICIAN_MISREADS.search(tips), CLINICIAN_MISREADS.search(tips)
+    for banned in ("Impurity, as scikit-learn prunes", "Outcome groups count",
+                   "Error promised inside", "Nested risk"):
+        assert banned not in tips
+    del app

@@ -17,7 +17,7 @@ class Parser(argparse.ArgumentParser):
 
 
 def size_option(text: str) -> str | int:
-    """--size: '1se', 'min' or a number of leaves inside the table of limits."""
+    """--size: '1se', 'min' or a number of outcome boxes inside the table of limits."""
     import argparse
 
     from ..option_limits import problem_with

@@ -49,7 +49,7 @@ def add_parsers(sub) -> None:
                        f"(default {_DEFAULTS.small_cell}; 0 = never)")
     chart.add_argument("--hide-counts", action="store_true",
                        help="print rates and intervals without patient counts")
-    chart.add_argument("--bands", help="absolute risk-band cut-points, e.g. 10,30 (percent for "
+    chart.add_argument("--bands", help="fixed band cut-points, e.g. 10,30 (percent for "
                        "rates, outcome units for means); default: relative to the cohort")
     chart.add_argument("--date", help="date printed on the chart, YYYY-MM-DD (default: today)")
 

@@ -54,14 +54,16 @@ def add_parsers(sub) -> None:
                      help="share of patients set aside before growing, "
                      "to check the tree on (e.g. 0.25)")
     fit.add_argument("--min-leaf", type=option_type("min_leaf"),
-                     default=5, help="minimum patients per leaf (default 5)")
+                     default=5, help="fewest patients an outcome box may hold (default 5)")
     fit.add_argument("--max-depth", type=option_type("max_depth"),
                      help="maximum depth of the grown tree")
     fit.add_argument("--coarsen", type=option_type("coarsen"), metavar="N",
                      help="grow on N quantile levels of each measurement with more than N "
                      "different values (faster on large files; default off; e.g. 256)")
-    fit.add_argument("--criterion", help="split criterion: gini or entropy (classification), "
-                     "squared_error or friedman_mse (regression)")
+    fit.add_argument("--criterion", help="how the grower judges a question: for a class outcome gini (default: how "
+                     "mixed the classes are) or entropy (the same idea as information); for a "
+                     "measured outcome squared_error (default: the spread about each side's "
+                     "mean) or friedman_mse (the same, favouring even splits)")
     fit.add_argument("--priors", default="observed", help="class priors: observed, equal, or "
                      "comma-separated numbers in class order")
     fit.add_argument("--miss-cost", type=option_type("miss_cost"),
@@ -76,7 +78,7 @@ def add_parsers(sub) -> None:
     fit.add_argument("--risk", choices=("cost", "impurity"), default="cost",
                      help="what pruning a classification tree weighs: cost (expected misclassification cost, the usual) or impurity (how mixed the boxes are); default cost")
     fit.add_argument("--size", default="1se", type=size_option,
-                     help="tree size: 1se (default), min, or a number of leaves")
+                     help="tree size: 1se (default: the smallest tree within one SE of the lowest cross-validated error), min (the lowest error), or a number of outcome boxes")
     fit.add_argument("--seed", type=option_type("seed"),
                      default=0, help="random seed (default 0)")
     add_work_options(fit)

@@ -134,16 +134,15 @@ class SizePanel(StepPanel):
     def _growth_box(self) -> QGroupBox:
         """How the tree grows."""
         self.min_leaf = with_tooltip(QSpinBox(), "The grower never makes an outcome box with "
-                                     "fewer patients than this (the minimum leaf size).")
+                                     "fewer patients than this.")
         self.min_leaf.setRange(*_spin("min_leaf"))
         self.max_depth = with_tooltip(QSpinBox(), "The most questions in a row from box 1 to an "
                                       "outcome box; 'no limit' lets pruning decide.")
         self.max_depth.setRange(0, _spin("max_depth")[1])  # 0: no limit
         self.max_depth.setSpecialValueText("no limit")
-        self.criterion = with_tooltip(QComboBox(), "The split criterion: how the grower scores "
-                                      "a candidate question; the usual one rarely needs "
-                                      "changing.")
-        self.risk = with_tooltip(QComboBox(), "The pruning risk: what pruning weighs against "
+        self.criterion = with_tooltip(QComboBox(), "How the grower judges a candidate question; "
+                                      "the usual one rarely needs changing.")
+        self.risk = with_tooltip(QComboBox(), "What pruning weighs against the tree's "
                                  "size; misclassification cost follows the costs set on step 2.")
         self.priors = with_tooltip(QComboBox(), "Class priors: how much each outcome group "
                                    "counts; 'equal' gives a rare outcome as much weight as a "

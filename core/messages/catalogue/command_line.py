@@ -5,7 +5,7 @@ ENTRIES = [
      "the output so the input stays unchanged.", "Write results to a new file."),
     ("cli.priors", "refused", "--priors must be observed, equal, or numbers separated by "
      "commas (one per class).", "For example --priors 0.7,0.3."),
-    ("cli.size_words", "part", "must be 1se, min or a number of leaves, not {given!r}", ""),
+    ("cli.size_words", "part", "must be 1se, min or a number of outcome boxes, not {given!r}", ""),
     ("cli.report_needs_pdf", "refused", "--out must name a PDF file (ending in .pdf).",
      "Give an output name ending in .pdf."),
     ("cli.report_data_differs", "warning", "The data file's SHA-256 ({found}...) differs "

@@ -5,12 +5,15 @@ ENTRIES = [
      "({error}) is not lower than one box's ({one_box}) by at least one SE ({se}).",
      "Treat this tree as no better than no tree: collect more or other predictors before "
      "relying on it."),
-    ("grow.min_leaf", "refused", "The minimum number of patients per leaf must be at least 1.",
+    ("grow.min_leaf", "refused", "The fewest patients an outcome box may hold must be at least 1.",
      "Give a whole number of at least 1."),
-    ("grow.criterion_classification", "refused", "The split criterion for classification "
-     "must be one of {choices}, not {given!r}.", "Use gini or entropy."),
-    ("grow.criterion_regression", "refused", "The split criterion for regression must be one "
-     "of {choices}, not {given!r}.", "Use squared_error or friedman_mse."),
+    ("grow.criterion_classification", "refused", "How the grower judges a question for a "
+     "class outcome must be one of {choices}, not {given!r}.", "Use gini (the usual "
+     "choice: how mixed the classes are) or entropy (the same idea measured as information)."),
+    ("grow.criterion_regression", "refused", "How the grower judges a question for a "
+     "measured outcome must be one of {choices}, not {given!r}.", "Use squared_error (the "
+     "usual choice: the spread about each side's mean) or friedman_mse (the same, favouring "
+     "even splits)."),
     ("grow.risk", "refused", "What pruning weighs must be 'cost' or 'impurity', not {given!r}.",
      "Use cost or impurity."),
     ("grow.priors_count", "refused", "Give {n} non-negative class priors (one per class).",
@@ -38,12 +41,12 @@ ENTRIES = [
      "which column names the site.", "Name the site column (--site COL)."),
     ("folds.site_needs_two", "refused", "Leave-one-site-out needs at least two sites; the "
      "site column has one.", "Use k-fold cross-validation instead."),
-    ("size.too_few_rows", "refused", "There are {n} rows with an outcome, too few for leaves "
-     "of at least {min_leaf} patients; lower the minimum leaf size or add rows.",
-     "Lower --min-leaf, or use more patients."),
-    ("size.size_at_least_one", "refused", "A tree needs at least one leaf; sizes on the "
+    ("size.too_few_rows", "refused", "There are {n} rows with an outcome, too few for "
+     "outcome boxes of at least {min_leaf} patients; lower the fewest patients per box or add "
+     "rows.", "Lower --min-leaf, or use more patients."),
+    ("size.size_at_least_one", "refused", "A tree needs at least one outcome box; sizes on the "
      "pruning path are {sizes}.", "Pick one of the listed sizes."),
-    ("size.size_word", "refused", "The tree size must be '1se', 'min' or a number of leaves, "
+    ("size.size_word", "refused", "The tree size must be '1se', 'min' or a number of outcome boxes, "
      "not {size!r}.", "Use 1se, min or a number."),
     ("goal.measure", "refused", "A goal is a least sensitivity or a least specificity, not "
      "{given!r}.", "Use --min-sensitivity or --min-specificity."),
@@ -58,7 +61,7 @@ ENTRIES = [
     ("goal.not_reached", "refused", "No tree reaches {goal}. The best reached is {measure} "
      "{best} ({leaves} outcome boxes, {other} {other_value}, {cost}).", "Lower the goal, or add predictors or patients."),
     ("goal.no_tree", "refused", "No tree that asks a question and calls some patients each "
-     "way was found while searching for {goal}.", "Lower the minimum leaf size, or add "
+     "way was found while searching for {goal}.", "Lower the fewest patients per outcome box, or add "
      "predictors or patients."),
     ("goal.searched", "note", "Built for {goal}: searched {grid}; the chosen tree was "
      "grown with {cost}.", "Nothing to do."),
