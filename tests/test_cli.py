@@ -92,7 +92,7 @@ def _bad(tmp_path, name, rows):
     ("unknown column", "no column called 'outcome_x'"),
     ("one class", "only one class"),
     ("all missing", "not recorded for any row"),
-    ("too few rows", "too few for leaves"),
+    ("too few rows", "too few for outcome boxes"),
     ("bad size", "--size: must be"),
     ("bad option", "unrecognized arguments"),
 ])
