@@ -41,8 +41,20 @@ def is_finite_number(value) -> bool:
 
 
 def write_bytes_atomic(path: str | Path, data: bytes) -> None:
-    """Replace ``path`` with ``data`` atomically (temporary file, fsync, rename)."""
+    """Replace ``path`` with ``data`` atomically (temporary file, fsync, rename). A write the
+    system refuses (no room on the disk, no permission, a folder in the way) is said in one
+    sentence; the temporary file is removed and the previous file stays as it was."""
     path = Path(path)
+    try:
+        _write_atomic(path, data)
+    except OSError as error:
+        raise InputError(say("file.not_written", target=str(path),
+                             reason=error.strerror or type(error).__name__)) from None
+
+
+def _write_atomic(path: Path, data: bytes) -> None:
+    if path.is_dir():
+        raise IsADirectoryError(21, "it is a folder", str(path))
     path.parent.mkdir(parents=True, exist_ok=True)
     handle, temp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
     try:
@@ -163,6 +175,8 @@ def read_json_document(path: str | Path, kind: str, versions: tuple[int, ...] = 
         raise InputError(say("file.missing", path=str(path), what=what))
     if path.is_dir():
         raise InputError(say("file.folder", path=str(path), what=what))
+    if not path.is_file():  # a pipe or device never ends: refused before it is opened
+        raise InputError(say("read.not_regular", file=path.name))
     size = path.stat().st_size
     if size > MAX_JSON_BYTES:
         raise InputError(say("file.too_big", file=path.name, what=what, mb=size // 2**20))
@@ -187,13 +201,57 @@ def read_json_document(path: str | Path, kind: str, versions: tuple[int, ...] = 
 # --- never writing over an input ----------------------------------------------------------
 
 
+def _same_file(a: Path, b: Path) -> bool:
+    """The same file by resolved path, or by identity (a hard link, a link to it)."""
+    if a.resolve() == b.resolve():
+        return True
+    try:
+        return a.exists() and b.exists() and os.path.samefile(a, b)
+    except OSError:
+        return False
+
+
 def names_an_input(target: str | Path, *sources: str | Path | None) -> bool:
-    """True if ``target`` is one of the existing input files (the same file by any path)."""
-    return any(source and Path(source).exists()
-               and Path(target).resolve() == Path(source).resolve() for source in sources)
+    """True if ``target`` is one of the existing input files (the same file by any path,
+    a hard link or a symbolic link to it)."""
+    return any(source and Path(source).exists() and _same_file(Path(target), Path(source))
+               for source in sources)
 
 
 def refuse_overwrite(target: str | None, *sources: str) -> None:
     """Refuse an output path that names one of the inputs."""
     if target is not None and names_an_input(target, *sources):
         raise InputError(say("cli.output_is_input", target=target))
+
+
+def check_outputs(outputs: dict[str, str | None], inputs: list[str | None]) -> None:
+    """Before any work: every output path (option name → path; None = not asked for) is a
+    writable file name that is none of the inputs (data, dictionary, model, project, by any
+    path) and none of the other outputs, so no input is ever written over and no output
+    silently replaces another."""
+    seen: dict[str, Path] = {}
+    for option, target in outputs.items():
+        if target is None:
+            continue
+        text = str(target)
+        if not text.strip():
+            raise InputError(say("file.output_empty", option=option))
+        path = Path(text)
+        if text.endswith(("/", os.sep)) or path.is_dir():
+            raise InputError(say("file.output_is_folder", option=option, target=text))
+        if path.is_symlink():
+            raise InputError(say("file.output_is_link", option=option, target=text))
+        if path.exists() and not path.is_file():
+            raise InputError(say("file.output_not_regular", option=option, target=text))
+        folder = path.parent if str(path.parent) else Path(".")
+        if folder.exists() and not (folder.is_dir() and os.access(folder, os.W_OK | os.X_OK)):
+            raise InputError(say("file.output_folder_closed", option=option, target=text,
+                                 folder=str(folder)))
+        if path.exists() and not os.access(path, os.W_OK):
+            raise InputError(say("file.output_read_only", option=option, target=text))
+        refuse_overwrite(text, *inputs)
+        for other, earlier in seen.items():
+            if _same_file(path, earlier):
+                raise InputError(say("file.outputs_collide", first=other, second=option,
+                                     target=text))
+        seen[option] = path

@@ -381,6 +381,9 @@ class MainWindow(QMainWindow):
             QMessageBox.warning(self, "The project could not be saved", with_advice(
                 say("app.not_saved", file=Path(path).name, reason=exc.strerror)))
             return False
+        except InputError as exc:  # the write was refused (no room, no permission)
+            QMessageBox.warning(self, "The project could not be saved", with_advice(str(exc)))
+            return False
         self.session.mark_saved(path)
         self._remember(path)
         self.session.set_status(f"Saved {Path(path).name}.", 5000)

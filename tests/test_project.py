@@ -144,7 +144,7 @@ def test_a_failed_save_leaves_the_previous_file(tmp_path, dictionary, monkeypatc
         raise OSError("disk full")
 
     monkeypatch.setattr(os, "replace", broken_replace)
-    with pytest.raises(OSError):
+    with pytest.raises(InputError, match="could not be written"):  # said in one sentence
         save_project(_project(DEMO_CSV, dictionary, size=7), target)
     assert target.read_bytes() == before
     assert [p.name for p in tmp_path.iterdir()] == ["p.prunella"]  # no temporary file left

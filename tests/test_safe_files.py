@@ -115,7 +115,7 @@ def test_a_failed_save_removes_its_temporary_file(tmp_path, monkeypatch):
     def broken(fd):
         raise OSError(28, "No space left on device")
     monkeypatch.setattr(os, "fsync", broken)
-    with pytest.raises(OSError):
+    with pytest.raises(InputError, match="could not be written .No space left on device"):
         write_text_atomic(target, "new")
     assert target.read_text() == "old" and os.listdir(tmp_path) == ["m.json"]
 

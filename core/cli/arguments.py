@@ -1,5 +1,5 @@
 """What every subcommand shares: one-sentence errors with exit status 2, list options, and the
-dictionary file to use (never writing over an input is core.safe_files.refuse_overwrite)."""
+dictionary file to use (never writing over an input is core.safe_files.check_outputs)."""
 
 from __future__ import annotations
 

@@ -9,7 +9,7 @@ from ..chart.options import FORMS, ORIENTATIONS, PAPER_SIZES, ChartOptions, defa
 from ..errors import InputError
 from ..messages.message import say
 from ..model.tree import NO_BETTER, TreeModel
-from ..safe_files import refuse_overwrite
+from ..safe_files import check_outputs
 from .arguments import csv_list
 
 if TYPE_CHECKING:
@@ -92,7 +92,7 @@ def _chart_note(plan, path: str) -> str:
 def run_chart(args) -> int:
     from ..chart import write_chart
 
-    refuse_overwrite(args.out, args.model)
+    check_outputs({"--out": args.out}, [args.model])
     options = chart_options_from_args(args)  # bad options are told before any reading
     model = TreeModel.load(args.model)
     plan = write_chart(model, args.out, options)

@@ -15,7 +15,7 @@ from ..messages.message import say
 from ..model.tree import TreeModel
 from ..option_limits import option_type
 from ..phrases import short_fingerprint
-from ..safe_files import refuse_overwrite, write_text_atomic
+from ..safe_files import check_outputs, write_text_atomic
 from .arguments import add_work_options, dictionary_path, work_place
 
 
@@ -64,8 +64,8 @@ def run_check(args) -> int:
 
     from ..checking.new_patients import check_table, with_check
 
-    refuse_overwrite(args.out, args.data, args.model)
-    refuse_overwrite(args.checked_model, args.data, args.model)
+    check_outputs({"--out": args.out, "--checked-model": args.checked_model},
+                  [args.data, args.model])
     model = TreeModel.load(args.model)
     table = read_table(args.data, sheet=args.sheet)
     result = check_table(model, table, source=args.source,
@@ -104,8 +104,9 @@ def _report(args, place) -> int:
     from ..sizing.derivation import choose_model, derive
     from ..sizing.request import DerivationRequest
 
-    inputs = [args.data, args.model] + ([args.external] if args.external else [])
-    refuse_overwrite(args.out, *inputs)
+    inputs = [args.data, args.model, dictionary_path(args.dictionary, args.data)] + (
+        [args.external] if args.external else [])
+    check_outputs({"--out": args.out}, inputs)
     if not str(args.out).lower().endswith(".pdf"):
         raise InputError(say("cli.report_needs_pdf"))
     printed = printed_date(args.date) or dt.date.today()  # told before any reading

@@ -19,7 +19,7 @@ from ..errors import InputError
 from ..messages.message import distinct_messages, kind_of, say
 from ..model.tree import TreeModel
 from ..phrases import plural
-from ..safe_files import refuse_overwrite, write_csv_safely, write_text_atomic
+from ..safe_files import check_outputs, write_csv_safely, write_text_atomic
 from ..option_limits import check_setting, option_type
 from .arguments import (DICTIONARY_HELP, add_work_options, csv_list, dictionary_path, size_option,
                         work_place)
@@ -165,10 +165,9 @@ def run_fit(args) -> int:
 
 
 def _fit(args, place) -> int:
-    refuse_overwrite(args.model, args.data)
-    refuse_overwrite(args.curve, args.data)
-    refuse_overwrite(args.rules, args.data)
-    refuse_overwrite(args.chart, args.data)
+    check_outputs({"--model": args.model, "--curve": args.curve, "--rules": args.rules,
+                   "--chart": args.chart},
+                  [args.data, dictionary_path(args.dictionary, args.data)])
     table = read_table(args.data, sheet=args.sheet)
     dictionary, notes = dictionary_for(table, dictionary_path(args.dictionary, args.data))
     shown = _print_notes(list(table.provenance.warnings) + notes)
@@ -280,7 +279,7 @@ def goal_text(chosen: dict) -> str:
 
 
 def run_score(args) -> int:
-    refuse_overwrite(args.out, args.data, args.model)
+    check_outputs({"--out": args.out}, [args.data, args.model])
     model = TreeModel.load(args.model)
     table = read_table(args.data, sheet=args.sheet)
     from ..model.scoring import scored_table

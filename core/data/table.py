@@ -146,6 +146,8 @@ def _check_readable(path: Path) -> None:
         raise InputError(say("read.no_file", path=str(path)))
     if path.is_dir():
         raise InputError(say("read.folder", path=str(path)))
+    if not path.is_file():  # a pipe or device never ends: refused before it is opened
+        raise InputError(say("read.not_regular", file=path.name))
     try:
         with open(path, "rb"):
             pass

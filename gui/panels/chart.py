@@ -383,6 +383,9 @@ class ChartPanel(StepPanel):
         except OSError as exc:
             self.warn(say("app.not_saved", file=Path(target).name, reason=exc.strerror))
             return
+        except InputError as exc:  # the write was refused (no room, no permission)
+            self.warn(str(exc))
+            return
         self.message.setText(f"Saved {Path(target).name}.")
 
     def print_chart(self) -> None:

@@ -342,6 +342,8 @@ class DataPanel(StepPanel):
             self.session.dictionary.save(path)
         except OSError as exc:
             self.warn(say("app.not_saved", file=Path(path).name, reason=exc.strerror))
+        except InputError as exc:  # the write was refused (no room, no permission)
+            self.warn(str(exc))
 
     def _act_on_note(self, action: str, column: str) -> None:
         """The button beside a proposed missing-value code: read those cells as not recorded

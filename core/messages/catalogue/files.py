@@ -1,6 +1,25 @@
 """Messages of opening Prunella's own files: models, dictionaries and projects."""
 
 ENTRIES = [
+    ("file.output_empty", "refused", "{option} is given an empty file name; give the name of "
+     "the file to write.", "Name the file to write, e.g. model.json."),
+    ("file.output_is_folder", "refused", "{option} {target} is a folder; give a file name "
+     "inside it.", "Add a file name, e.g. {target}/model.json."),
+    ("file.output_is_link", "refused", "{option} {target} is a symbolic link; give the file "
+     "it points to, or another name.", "Prunella does not write through links, so it cannot "
+     "write over a file it was not told about."),
+    ("file.output_not_regular", "refused", "{option} {target} is not an ordinary file (a "
+     "pipe or device); give another name.", "Write results to an ordinary file."),
+    ("file.output_folder_closed", "refused", "{option} {target} cannot be written: the "
+     "folder {folder} does not allow it; choose a folder you may write to.",
+     "Choose a folder you may write to."),
+    ("file.output_read_only", "refused", "{option} {target} is read-only; choose another name "
+     "or make it writable.", "Prunella does not replace read-only files."),
+    ("file.outputs_collide", "refused", "{first} and {second} both name {target}; give each "
+     "output its own file.", "Give every output its own file name."),
+    ("file.not_written", "refused", "{target} could not be written ({reason}); nothing was "
+     "changed: choose another folder or free some space.",
+     "Choose a folder you may write to, with room on its disk."),
     ("file.missing", "refused", "No {what} file at {path}; check the path.",
      "Check the spelling of the path."),
     ("file.too_big", "refused", "{file} is {mb} MB, far larger than any Prunella {what} "

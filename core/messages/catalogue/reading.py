@@ -2,6 +2,8 @@
 sheets and cells, and the cells turned into values."""
 
 ENTRIES = [
+    ("read.not_regular", "refused", "{file} is not an ordinary file (a pipe, socket or "
+     "device); save the data as a file and open that.", "Open a saved CSV, TSV or XLSX file."),
     ("read.no_file", "refused", "No file at {path}; check the path and the file name.",
      "Check the spelling of the path; on the command line put paths with spaces in quotes."),
     ("read.folder", "refused", "{path} is a folder; choose a spreadsheet file inside it.",
