@@ -130,3 +130,32 @@ def test_the_size_step_tooltips_use_plain_words():
                    "Error promised inside", "Nested risk"):
         assert banned not in tips
     del app
+
+
+def test_a_regression_fit_gives_its_error_in_the_outcomes_unit(tmp_path):
+    """The cross-validated mean squared error is in days squared; its root, in days, is what
+    compares with a held-out RMSE (common practice)."""
+    import math
+
+    import numpy as np
+    import pandas as pd
+
+    rng = np.random.default_rng(4)
+    n = 300
+    frame = pd.DataFrame({"MRN": [f"M{1000 + i}" for i in range(n)],
+                          "Age (years)": rng.integers(20, 95, n),
+                          "Haemoglobin g/L": rng.normal(125, 20, n).round(0)})
+    frame["Length of stay (days)"] = (2 + (frame["Age (years)"] > 70) * 4
+                                      + (frame["Haemoglobin g/L"] < 110) * 3
+                                      + rng.gamma(1.5, 1, n)).round(0)
+    frame.to_csv(tmp_path / "stay.csv", index=False)
+    done = prunella("fit", tmp_path / "stay.csv", "--outcome", "Length of stay (days)",
+                    "--folds", "5", "--model", tmp_path / "m.json", cwd=tmp_path)
+    assert done.returncode == 0, done.stderr
+    import json
+
+    chosen = json.loads((tmp_path / "m.json").read_text(encoding="utf-8"))["chosen"]
+    out = " ".join(done.stdout.split())
+    assert "mean squared error (in days squared)" in out
+    assert f"Root of the cross-validated error: {math.sqrt(chosen['cv_risk']):.3g} days" in out
+    assert "Length of stay (Length of stay" not in out

@@ -3,6 +3,8 @@ spreadsheet; route the rows of a spreadsheet through a saved tree."""
 
 from __future__ import annotations
 
+import math
+
 import sys
 from dataclasses import replace
 from typing import TYPE_CHECKING
@@ -232,7 +234,10 @@ def summary_text(derivation: Derivation) -> str:
     counts = path.counts
     lines = [f"Prunella {__version__}: {model.outcome.display} ({model.task}), {model.n_rows} rows, "
              f"{path.description}.",
-             f"Error: {model.path['risk_measure']}; the cross-validated error is the honest "
+             f"Error: {model.path['risk_measure']}"
+             + (f" (in {model.outcome.unit} squared)" if model.task == "regression"
+                and model.outcome.unit else "")
+             + "; the cross-validated error is the honest "
              "one, the training error is optimistic.", "",
              f"{'boxes':>7} {'CV error':>9} {'± SE':>7} {'training':>9}"
              + (f" {'CV sens.':>9} {'CV spec.':>9}" if counts is not None else "")]
@@ -250,9 +255,17 @@ def summary_text(derivation: Derivation) -> str:
         lines.append(f"{path.leaves[k]:>7} {path.cv_risk[k]:>9.4f} {path.cv_se[k]:>7.4f} "
                      f"{path.train_risk[k]:>9.4f}{beside}{mark}")
     boxes = plural(chosen["leaves"], "outcome box", "outcome boxes")
+    in_unit = ""
+    if model.task == "regression":
+        # A mean squared error is in the unit squared: its root reads in the outcome's unit,
+        # as a held-out RMSE does.
+        unit = f" {model.outcome.unit}" if model.outcome.unit else ""
+        in_unit = (f" Root of the cross-validated error: {math.sqrt(max(chosen['cv_risk'], 0)):.3g}"
+                   f"{unit} (training {math.sqrt(max(chosen['train_risk'], 0)):.3g}{unit}),"
+                   " comparable with a held-out RMSE.")
     lines += ["", f"Chosen: {boxes} ({RULE_WORDS.get(chosen['rule'], chosen['rule'])}), "
               f"cross-validated error {chosen['cv_risk']:.4f} ± {chosen['cv_se']:.4f} "
-              f"(training error {chosen['train_risk']:.4f}, optimistic).",
+              f"(training error {chosen['train_risk']:.4f}, optimistic).{in_unit}",
               f"Model fingerprint: {model.short_fingerprint}"]
     if chosen["rule"] == "goal":
         lines[-1:-1] = [goal_text(chosen)]
