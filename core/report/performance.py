@@ -206,14 +206,14 @@ def _check_detail(check: CheckResult, number: str, s: Styles) -> list:
         figures.append(calibration_figure(m))
     if isinstance(m, ClassificationMeasures) and m.net_benefit:
         fig = s.next_figure()
-        source = check.source[:1].upper() + check.source[1:]
+        source = text(check.source[:1].upper() + check.source[1:])  # data, not markup
         story.append(figure(decision_curve_figure(m.net_benefit),
                             f"Figure {fig}. {source}: decision curve. {DECISION_CURVE_READING}",
                             s, width=0.6))
     if figures:
         fig = s.next_figure()
         names = " (left) and calibration by box (right)" if len(figures) == 2 else ""
-        source = check.source[:1].upper() + check.source[1:]  # a caption opens a sentence
+        source = text(check.source[:1].upper() + check.source[1:])  # opens a sentence; not markup
         caption = (f"Figure {fig}. {source}: ROC curve of the box rates{names}. "
                    if len(figures) == 2 else f"Figure {fig}. {source}. ")
         caption += ("Open markers: boxes whose derivation value lies outside the observed "
