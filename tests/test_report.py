@@ -260,3 +260,11 @@ def test_the_cross_validated_row_is_never_emptier_than_the_training_row(contents
         low, high = path[name + "_interval"][k]
         shown = f"{as_percent(path[name][k])} ({as_percent(low, sign=False)}–{as_percent(high)})"
         assert shown in row, (name, row)
+
+
+def test_the_report_calls_the_error_an_error(written):
+    """'Risk' reads as the chance of the outcome; the report's tables say 'error' (issue 10.8)."""
+    words = " ".join(_text(written).split())
+    assert "Cross-validated error" in words and "Training error" in words
+    for wrong in ("Training risk", "Cross-validated risk", "Node risk"):
+        assert wrong not in words

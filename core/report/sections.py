@@ -238,7 +238,7 @@ def _settings(c: ReportContents, s: Styles) -> list:
             mistakes = [f"true {model.classes[i]} called {model.classes[j]}: {loss[i][j]:g}"
                         for i in range(len(loss)) for j in range(len(loss)) if i != j]
             rows.append(["Misclassification costs", "; ".join(mistakes)])
-        rows.append(["Node risk used for pruning",
+        rows.append(["What pruning weighs",
                      "expected misclassification cost (Breiman et al. 1984)" if t.risk == "cost"
                      else "impurity of the split criterion"])
     rows += [["Pruning", "weakest-link cost-complexity pruning (Breiman et al. 1984)"],
@@ -274,7 +274,7 @@ def _pruning(c: ReportContents, s: Styles) -> list:
     order = sorted(range(len(leaves)), key=lambda k: leaves[k])
     keep = set(order[:14]) | {leaves.index(path["min_leaves"]), leaves.index(path["one_se_leaves"]),
                               leaves.index(c.model.chosen["leaves"])}
-    rows = [["Boxes", "Mark", "Training risk", "Cross-validated risk", "SE"]]
+    rows = [["Boxes", "Mark", "Training error", "Cross-validated error", "SE"]]
     for k in sorted(keep, key=lambda k: leaves[k]):
         marks = []
         if leaves[k] == path["min_leaves"]:
