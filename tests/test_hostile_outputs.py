@@ -154,3 +154,23 @@ def test_check_out_and_checked_model_must_differ(saved_model, tmp_path):
     out = tmp_path / "z.json"
     refused(["check", model, data, "--out", out, "--checked-model", out],
             ["--out", "--checked-model", "both name"], [data, model])
+
+
+# --- 7. archives that explode ----------------------------------------------------------------
+
+
+def test_a_workbook_that_would_unpack_to_gigabytes_is_refused_unread(tmp_path):
+    """A zip bomb named .xlsx: its declared sizes are judged before anything is unpacked."""
+    import zipfile
+
+    bomb = tmp_path / "bomb.xlsx"
+    with zipfile.ZipFile(bomb, "w", compression=zipfile.ZIP_DEFLATED) as archive:
+        archive.writestr("[Content_Types].xml", "<Types/>")
+        archive.writestr("xl/workbook.xml", "<workbook/>")
+        with archive.open("xl/worksheets/sheet1.xml", "w", force_zip64=True) as sheet:
+            chunk = b"0" * 2**20
+            for _ in range(300):  # 300 MB of zeros, a few hundred kB packed
+                sheet.write(chunk)
+    assert bomb.stat().st_size < 2 * 2**20
+    refused(["fit", bomb, "--outcome", "admitted", "--model", tmp_path / "m.json"],
+            ["bomb.xlsx", "would unpack to", "CSV"], [bomb])

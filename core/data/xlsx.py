@@ -51,6 +51,10 @@ class _SheetXml:
     uncached: list = field(default_factory=list)  # formula cells without a saved result
 
 
+MAX_UNPACKED_BYTES = 4 * 2**30  # far above a million rows of fifty columns
+MAX_RATIO = 200  # worksheets pack about 5-20 times; a bomb, thousands of times
+
+
 def _open_workbook(path: Path):
     from openpyxl import load_workbook
 
@@ -58,9 +62,17 @@ def _open_workbook(path: Path):
         raise InputError(say("xlsx.damaged", file=path.name))
     try:
         with zipfile.ZipFile(path) as archive:
-            names = set(archive.namelist())
+            members = archive.infolist()
     except (zipfile.BadZipFile, OSError, ValueError):
         raise InputError(say("xlsx.damaged", file=path.name)) from None
+    names = {m.filename for m in members}
+    # An archive that unpacks to far more than any clinical workbook (a "zip bomb") is refused
+    # from its own declared sizes, before anything is unpacked.
+    unpacked = sum(m.file_size for m in members)
+    packed = max(sum(m.compress_size for m in members), 1)
+    if unpacked > MAX_UNPACKED_BYTES or (unpacked > 50 * 2**20 and unpacked / packed > MAX_RATIO):
+        raise InputError(say("xlsx.too_large_unpacked", file=path.name,
+                             mb=f"{unpacked / 2**20:,.0f}", ratio=f"{unpacked / packed:,.0f}"))
     if "xl/workbook.xml" not in names:
         raise InputError(say("xlsx.not_workbook", file=path.name))
     try:

@@ -2,6 +2,10 @@
 sheets and cells, and the cells turned into values."""
 
 ENTRIES = [
+    ("xlsx.too_large_unpacked", "refused", "{file} would unpack to {mb} MB ({ratio} times "
+     "its packed size), far more than a workbook of patients; it may be damaged or made to "
+     "exhaust memory. Save the sheet as CSV and open that.",
+     "Export the sheet as CSV from the spreadsheet program."),
     ("read.not_regular", "refused", "{file} is not an ordinary file (a pipe, socket or "
      "device); save the data as a file and open that.", "Open a saved CSV, TSV or XLSX file."),
     ("read.no_file", "refused", "No file at {path}; check the path and the file name.",
