@@ -96,6 +96,8 @@ OPTION_LIMITS: dict[str, OptionLimit] = {limit.name: limit for limit in (
     OptionLimit("size", "--size", _whole(1, 100_000)),
     OptionLimit("bootstrap", "--bootstrap", _whole(0, 10_000)),
     OptionLimit("outer_folds", "--outer-folds", _whole(2, 100)),
+    OptionLimit("goal", "--min-sensitivity", Interval(Real, 0, 1, "neither"), optional=True),
+    OptionLimit("small_cell", "--small-cell", _whole(0, 1_000_000)),
     OptionLimit("prior", "--priors", Interval(Real, 0, 1e6)),
     OptionLimit("cost", "--costs", Interval(Real, 0, 1e6)),
     OptionLimit("coarsen", "--coarsen", _whole(2, 65_536), optional=True),

@@ -199,7 +199,7 @@ def test_breast_cancer_goal_tree_meets_its_goal_and_holds_on_the_patients_set_as
 @pytest.mark.parametrize("options, words", [
     (("--min-sensitivity", "0.9", "--min-specificity", "0.9"), "Give one goal"),
     (("--min-sensitivity", "0.9", "--miss-cost", "3"), "either a goal or costs"),
-    (("--min-sensitivity", "95"), "share between 0 and 1"),
+    (("--min-sensitivity", "95"), "between 0 and 1"),
 ])
 def test_goal_options_refused_in_one_sentence(tmp_path, options, words):
     csv = _breast_cancer_csv(tmp_path)

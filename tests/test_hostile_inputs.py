@@ -155,3 +155,18 @@ def test_a_project_file_uses_the_same_table(tmp_path):
                             "cv": {"repeats": 10_000_000}}}
     with pytest.raises(InputError, match="repeats"):
         check_project_document(document)
+
+
+@pytest.mark.parametrize("args, words", [
+    (["--min-sensitivity", "2"], ["--min-sensitivity", "between 0 and 1", "not 2.0"]),
+    (["--min-specificity", "nan"], ["--min-specificity", "between 0 and 1"]),
+])
+def test_a_goal_outside_its_limits_is_refused_before_any_reading(cohort, args, words):
+    refused(fit_args(cohort, *args), words + ["see 'prunella fit --help'"], inputs=[cohort])
+
+
+def test_the_chart_s_small_cell_uses_the_same_table(model_file, cohort):
+    for value in ("-5", "99999999999999"):
+        refused(["chart", model_file, "--out", cohort.parent / "c.pdf", "--small-cell", value],
+                ["--small-cell", "from 0 to 1000000", "see 'prunella chart --help'"],
+                inputs=[model_file])

@@ -9,6 +9,7 @@ from ..chart.options import FORMS, ORIENTATIONS, PAPER_SIZES, ChartOptions, defa
 from ..errors import InputError
 from ..messages.message import say
 from ..model.tree import NO_BETTER, TreeModel
+from ..option_limits import option_type
 from ..safe_files import check_outputs
 from .arguments import csv_list
 
@@ -44,7 +45,8 @@ def add_parsers(sub) -> None:
     chart.add_argument("--min-text", type=float, help="smallest text size in points "
                        f"(default {default_min_text('a4'):g} on A4/Letter, "
                        f"{default_min_text('a3'):g} on A3/Tabloid)")
-    chart.add_argument("--small-cell", type=int, default=_DEFAULTS.small_cell,
+    chart.add_argument("--small-cell", type=option_type("small_cell"),
+                       default=_DEFAULTS.small_cell,
                        help="flag outcome boxes resting on fewer patients than N "
                        f"(default {_DEFAULTS.small_cell}; 0 = never)")
     chart.add_argument("--hide-counts", action="store_true",

@@ -71,10 +71,10 @@ def add_parsers(sub) -> None:
     fit.add_argument("--miss-cost", type=option_type("miss_cost"),
                      help="two classes: missing a positive is X times "
                      "as bad as a needless alarm")
-    fit.add_argument("--min-sensitivity", type=float, metavar="S",
+    fit.add_argument("--min-sensitivity", type=option_type("goal"), metavar="S",
                      help="two classes: the smallest tree whose cross-validated sensitivity is "
                      "at least S (e.g. 0.95, to rule out); the miss cost is searched")
-    fit.add_argument("--min-specificity", type=float, metavar="S",
+    fit.add_argument("--min-specificity", type=option_type("goal"), metavar="S",
                      help="two classes: the smallest tree whose cross-validated specificity is "
                      "at least S (e.g. 0.95, to rule in); the miss cost is searched")
     fit.add_argument("--risk", choices=("cost", "impurity"), default="cost",
