@@ -190,3 +190,25 @@ def test_a_unit_written_after_a_measurements_name_becomes_its_unit():
     assert found["Temp °C"] == ("Temp", "°C")
     assert found["Visits in 30 days"] == ("Visits in 30 days", "")
     assert found["Fall in 30 days"] == ("Fall in 30 days", "")
+
+
+def test_a_saved_dictionary_says_which_columns_were_guessed(tmp_path):
+    """Issue 15.13: "columns it does not describe were guessed" only when some were, named."""
+    import pandas as pd
+
+    from core.data.table import read_table
+    from core.dictionary import infer_dictionary
+    from core.dictionary.for_table import dictionary_for
+
+    frame = pd.DataFrame({"age": range(30), "ward": ["A", "B", "C"] * 10,
+                          "fell": ["yes", "no"] * 15})
+    data = tmp_path / "ward.csv"
+    frame.to_csv(data, index=False)
+    whole, _ = infer_dictionary(frame)
+    whole.save(tmp_path / "whole.dictionary.json")
+    _, notes = dictionary_for(read_table(data), tmp_path / "whole.dictionary.json")
+    assert "describes every column" in str(notes[0]) and "guessed" not in str(notes[0])
+    frame["pulse"] = range(30)
+    frame.to_csv(data, index=False)
+    _, notes = dictionary_for(read_table(data), tmp_path / "whole.dictionary.json")
+    assert str(notes[0]).endswith("guessed from the data: pulse.")

@@ -95,7 +95,12 @@ def dictionary_for(table, dictionary_path: str | Path | DataDictionary | None = 
         merged, more = merge_dictionary(inferred, dictionary_path)
         return merged, open_proposals(notes, merged) + more
     if dictionary_path:
-        merged, more = merge_dictionary(inferred, DataDictionary.load(dictionary_path))
-        return merged, [say("dictionary.used", file=Path(dictionary_path).name)] + \
-            open_proposals(notes, merged) + more
+        saved = DataDictionary.load(dictionary_path)
+        merged, more = merge_dictionary(inferred, saved)
+        guessed = [str(c) for c in table.frame.columns if str(c) not in saved]
+        # Say "guessed" only when some column was guessed, and name them.
+        used = (say("dictionary.used", file=Path(dictionary_path).name,
+                    guessed=", ".join(guessed[:8]) + (" …" if len(guessed) > 8 else ""))
+                if guessed else say("dictionary.used_whole", file=Path(dictionary_path).name))
+        return merged, [used] + open_proposals(notes, merged) + more
     return inferred, notes

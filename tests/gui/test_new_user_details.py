@@ -48,7 +48,7 @@ def test_open_starts_in_the_last_folder_with_spreadsheets_and_projects(
 
 def _inferred(notes):
     """The notes about the data themselves (not which dictionary file was used)."""
-    return [n for n in notes if getattr(catalogue_entry(n), "code", "") != "dictionary.used"]
+    return [n for n in notes if getattr(catalogue_entry(n), "code", "") not in ("dictionary.used", "dictionary.used_whole")]
 
 
 def test_a_reopened_project_lists_what_the_first_opening_did(demo, qtbot, run, dialogs,

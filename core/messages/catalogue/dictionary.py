@@ -68,8 +68,11 @@ ENTRIES = [
     ("dictionary.absent_columns", "warning", "The data dictionary describes column(s) that "
      "are not in the data: {columns}; they were skipped.",
      "Check the column names: the dictionary must use the spreadsheet's headers exactly."),
-    ("dictionary.used", "note", "The data dictionary {file} was used; columns it does not "
-     "describe were guessed from the data.",
+    ("dictionary.used_whole", "note", "The data dictionary {file} was used; it describes "
+     "every column.", "To guess every column from the data instead, press 'Guess again from "
+     "the data' (on the command line: --dictionary none)."),
+    ("dictionary.used", "note", "The data dictionary {file} was used; the columns it does "
+     "not describe were guessed from the data: {guessed}.",
      "To guess every column from the data instead, press 'Guess again from the data' (on the "
      "command line: --dictionary none)."),
     ("variables.positive_not_level", "refused", "The positive class {positive!r} is not a "
