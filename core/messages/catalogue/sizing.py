@@ -63,6 +63,9 @@ ENTRIES = [
     ("goal.no_tree", "refused", "No tree that asks a question and calls some patients each "
      "way was found while searching for {goal}.", "Lower the fewest patients per outcome box, or add "
      "predictors or patients."),
+    ("goal.in_words", "note", "Under cross-validation the tree catches about {caught} of "
+     "every 100 {positive} patients and sends about {alarmed} of every 100 {negative} for "
+     "the test.", "Nothing to do; choose a stricter goal to catch more."),
     ("goal.searched", "note", "Built for {goal}: searched {grid}; the chosen tree was "
      "grown with {cost}.", "Nothing to do."),
     ("coarsen.suggested", "note", "{count} rows: growing may take long; --coarsen 256 (in "
