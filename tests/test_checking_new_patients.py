@@ -130,7 +130,8 @@ def test_unseen_levels_are_routed_as_missing_and_counted(demo):
     frame.loc[frame.index[:7], "arrival_mode"] = "helicopter"
     result = check_table(model, LoadedTable(frame, table.provenance))
     assert dict(result.unseen_levels) == {"arrival_mode": 7}
-    assert any("never saw" in w and "7 cell" in w for w in result.warnings)
+    assert any("helicopter (7 rows) were not seen among the derivation patients" in w
+               and "routed as not recorded" in w for w in result.warnings)
     # Routed exactly like a blank cell.
     blank = frame.copy()
     blank.loc[blank.index[:7], "arrival_mode"] = None
@@ -177,3 +178,19 @@ def test_regression_check_reports_errors_and_box_means(demo):
     assert result.summary.startswith("RMSE")
     record = result.to_model_record()
     assert set(("rmse", "mae", "r2")) <= set(record)
+
+
+def test_the_unseen_note_names_each_level_with_its_rows_never_the_column_and_a_count(demo):
+    # Levels written as numbers (an institution's code) read as levels, not as a count.
+    table, _, _ = demo
+    model = _model_asking(demo, "arrival_mode")
+    frame = table.frame.head(400).copy()
+    frame["arrival_mode"] = frame["arrival_mode"].astype(object)
+    frame.loc[frame.index[:7], "arrival_mode"] = "12"
+    frame.loc[frame.index[7:18], "arrival_mode"] = "13"
+    frame.loc[frame.index[18:19], "arrival_mode"] = "canoe"
+    result = check_table(model, LoadedTable(frame, table.provenance))
+    note = next(w for w in result.warnings if "not seen among the derivation" in w)
+    label = model.spec("arrival_mode").display
+    assert f"{label}: 13 (11 rows), 12 (7 rows), canoe (1 row) were not seen" in note
+    assert "(19 cell(s))" in note and f"({label} 19)" not in note

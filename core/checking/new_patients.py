@@ -22,13 +22,14 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from ..data.cells import is_missing_text
+from ..data.cells import is_missing_text, level_text
 from ..data.table import LoadedTable
 from ..design.analysis import AnalysisData
 from ..dictionary.columns import ColumnSpec
 from ..dictionary.typed_columns import typed_column
 from ..errors import InputError
 from ..messages.message import say
+from ..phrases import plural
 from ..model.scoring import needs_counts, needs_warning
 from .overlap import overlapping_rows
 from ..model.tree import TreeModel, column_values
@@ -253,28 +254,48 @@ def _seen_levels(model: TreeModel) -> dict[str, set[str]]:
 
 
 def _route(model: TreeModel, values: dict[str, np.ndarray], n: int,
-           unknown: dict[str, int]) -> tuple[np.ndarray, tuple[tuple[str, int], ...],
-                                             tuple[tuple[str, int], ...]]:
+           unknown: dict[str, dict[str, int]]) -> tuple[np.ndarray, tuple[tuple[str, int], ...],
+                                                        tuple[tuple[str, int], ...], dict]:
     """Boxes reached (0 = none: a value must be measured), per column how many cells hold a
-    level the tree never saw, and per column how many rows wait for its value."""
-    counts = dict(unknown)
+    level the tree never saw, per column how many rows wait for its value, and per column the
+    unseen levels themselves with their counts (``unknown``: those already found, by text)."""
+    found = {column: dict(levels) for column, levels in unknown.items()}
     for column, levels in _seen_levels(model).items():
         cells = values[column]
         present = ~pd.isna(cells)
         never = present & ~np.isin(cells.astype(object), list(levels))
-        counts[column] = counts.get(column, 0) + int(never.sum())
+        if never.any():
+            texts, counts = np.unique(cells[never].astype(str), return_counts=True)
+            into = found.setdefault(column, {})
+            for text, count in zip(texts, counts):
+                into[text] = into.get(text, 0) + int(count)
+    totals = tuple((c, sum(levels.values())) for c, levels in sorted(found.items())
+                   if sum(levels.values()))
     leaves, waiting = model.route_waiting(values, n)
-    return (leaves, tuple((c, k) for c, k in sorted(counts.items()) if k),
-            needs_counts(model, waiting))
+    return leaves, totals, needs_counts(model, waiting), found
 
 
+_LEVELS_NAMED = 8  # unseen levels named per column; the rest are counted together
 
-def _unseen_warning(unseen: tuple[tuple[str, int], ...], model: TreeModel) -> list[str]:
-    if not unseen:
+
+def _unseen_warning(found: dict[str, dict[str, int]], model: TreeModel) -> list[str]:
+    """The unseen levels by name, with how many rows hold each, per column:
+    "Institution: 12 (7 rows), 13 (11 rows)"."""
+    parts = []
+    for column, levels in sorted(found.items()):
+        if not levels:
+            continue
+        ordered = sorted(levels.items(), key=lambda tk: (-tk[1], tk[0]))
+        named = [f"{text} ({plural(k, 'row', 'rows')})" for text, k in ordered[:_LEVELS_NAMED]]
+        rest = ordered[_LEVELS_NAMED:]
+        if rest:
+            more = plural(sum(k for _, k in rest), "row", "rows")
+            named.append(f"{len(rest)} more levels ({more})")
+        parts.append(f"{model.spec(column).display}: {', '.join(named)}")
+    if not parts:
         return []
-    parts = ", ".join(f"{model.spec(c).display} {k}" for c, k in unseen)
-    total = sum(k for _, k in unseen)
-    return [say("check.unseen_levels", total=total, parts=parts)]
+    total = sum(sum(levels.values()) for levels in found.values())
+    return [say("check.unseen_levels", total=total, parts="; ".join(parts))]
 
 
 # --- the held-out part ------------------------------------------------------------------------
@@ -287,13 +308,13 @@ def check_heldout(model: TreeModel, heldout: AnalysisData | None, share: float,
     if heldout is None:
         raise InputError(say("check.no_heldout"))
     values = model.asked_values(heldout.predictors)
-    leaves, unseen, needs = _route(model, values, heldout.n, {})
+    leaves, unseen, needs, unseen_found = _route(model, values, heldout.n, {})
     routed = leaves > 0
     source = (f"held-out part of {model.extra.get('data', {}).get('file', 'the derivation file')} "
               f"({share:.0%} of patients set aside before growing)")
     patients = (int(np.unique(heldout.groups[routed]).size) if heldout.groups is not None
                 else None)
-    warnings = _unseen_warning(unseen, model) + needs_warning("check.needs_value", needs, model)
+    warnings = _unseen_warning(unseen_found, model) + needs_warning("check.needs_value", needs, model)
     return CheckResult(
         source=source, kind="held-out", n=int(routed.sum()), n_rows=heldout.n, n_excluded=0,
         patients=patients,
@@ -405,11 +426,15 @@ def check_table(model: TreeModel, table: LoadedTable, source: str | None = None,
         values[column] = column_values(typed.numbers, typed.codes, spec)
         if typed.codes is not None:
             present = ~is_missing_text(rows[column], spec.missing_codes)
-            unknown[column] = int((present & (typed.codes < 0)).sum())
+            never = present & (typed.codes < 0)
+            if never.any():
+                texts, counts = np.unique(level_text(rows[column][never]).astype(str),
+                                          return_counts=True)
+                unknown[column] = {t: int(k) for t, k in zip(texts, counts)}
         else:
             notes.extend(typed.notes)
-    leaves, unseen, needs = _route(model, values, len(rows), unknown)
-    notes.extend(_unseen_warning(unseen, model))
+    leaves, unseen, needs, unseen_found = _route(model, values, len(rows), unknown)
+    notes.extend(_unseen_warning(unseen_found, model))
     notes.extend(needs_warning("check.needs_value", needs, model))
     if overlap_patients:  # said first: it decides what kind of check this is
         notes.insert(0, say("check.overlap_left_out" if leave_out_overlap else "check.overlap",

@@ -20,8 +20,8 @@ ENTRIES = [
      "Check the outcome's spellings in the new file."),
     ("check.rows_without_outcome", "note", "{n} of {total} row(s) without a usable outcome "
      "were left out.", "Nothing to do, unless the outcome should be known for them."),
-    ("check.unseen_levels", "warning", "{total} cell(s) hold a level the tree never saw at "
-     "derivation and were routed as not recorded ({parts}).",
+    ("check.unseen_levels", "warning", "{parts} were not seen among the derivation "
+     "patients and were routed as not recorded ({total} cell(s)).",
      "Check the spelling of these levels in the new file; a category the tree never saw "
      "follows the branch for values not recorded."),
     ("check.overlap", "warning", "{patients} patient(s) of this file ({rows} row(s)) were "
