@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import os
 from contextlib import contextmanager
+from contextvars import ContextVar
 from dataclasses import dataclass
 from typing import Callable, Iterator, TypeVar
 
@@ -25,6 +26,10 @@ ALL_CORES = -1  # joblib's word for every core of this computer
 CLUSTER_TIMEOUT = 5.0  # seconds to reach a scheduler before saying it cannot be reached
 
 T = TypeVar("T")
+
+# The cluster's client while WorkPlace.active() runs, so the work inside can send its data
+# to the workers once (sent_once); per thread, like joblib's own setting.
+_CLIENT: ContextVar = ContextVar("prunella_cluster_client", default=None)
 
 
 def cores() -> int:
@@ -79,8 +84,12 @@ class WorkPlace:
         try:
             import joblib
 
-            with joblib.parallel_config(backend="dask", client=client):
-                yield
+            token = _CLIENT.set(client)
+            try:
+                with joblib.parallel_config(backend="dask", client=client):
+                    yield
+            finally:
+                _CLIENT.reset(token)
         finally:
             client.close()
 
@@ -88,6 +97,25 @@ class WorkPlace:
         """``work(*args, jobs=..., **kwargs)`` run on this place."""
         with self.active():
             return work(*args, jobs=self.n_jobs, **kwargs)
+
+
+@contextmanager
+def sent_once(*shared: object) -> Iterator[None]:
+    """Within this block, on a cluster, ``shared`` (the analysis every task of a Parallel call
+    reads) travels to each worker once, beforehand, and the tasks carry only a reference to
+    it; without this every batch of tasks would carry its own copy of the rows. Off a cluster
+    nothing changes: joblib's own processes already share large arrays through memory-mapped
+    files. Run the Parallel call, and read its results, inside the block."""
+    client = _CLIENT.get()
+    if client is None:
+        yield
+        return
+    import joblib
+
+    # joblib's Dask backend scatters these to every worker (broadcast) and swaps each task's
+    # argument that *is* one of them (same object) for its future.
+    with joblib.parallel_config(backend="dask", client=client, scatter=list(shared)):
+        yield
 
 
 def connect(address: str, timeout: float = CLUSTER_TIMEOUT):

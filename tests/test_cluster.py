@@ -111,6 +111,48 @@ def test_prunella_fit_and_report_on_the_cluster_write_the_same_files_as_one_work
     assert (tmp_path / "here.pdf").read_bytes() == (tmp_path / "there.pdf").read_bytes()
 
 
+def test_the_rows_travel_to_each_worker_once_not_inside_every_task(cluster, monkeypatch):
+    """On a cluster the analysis is scattered to every worker before the folds, outer folds
+    and resamples start; each task sent carries only a reference (a future) to it, so a
+    large cohort crosses the network once per worker, not once per batch of tasks."""
+    from distributed import Future
+
+    from core.design.analysis import AnalysisData
+
+    address, client = cluster
+    table, dictionary, _ = demo_inputs()
+    derivation = derive(table, dictionary, _request(), jobs=1)
+    data, request, model = derivation.data, derivation.request, derivation.model
+    submitted, scattered = [], []
+    real_submit, real_scatter = Client.submit, Client.scatter
+
+    def submit(self, func, *args, **kwargs):
+        submitted.append(kwargs.get("tasks", args))
+        return real_submit(self, func, *args, **kwargs)
+
+    def scatter(self, data, *args, **kwargs):
+        scattered.append((data, kwargs.get("broadcast")))
+        return real_scatter(self, data, *args, **kwargs)
+
+    monkeypatch.setattr(Client, "submit", submit)
+    monkeypatch.setattr(Client, "scatter", scatter)
+    place = WorkPlace(cluster=address)
+    on_cluster = place.run(derive, table, dictionary, request)
+    place.run(nested_cross_validate, data, request, outer_folds=2)
+    place.run(bootstrap_stability, data, request, model, resamples=2)
+    # One broadcast of the analysis per Parallel call: derive's folds, the outer folds, the
+    # resamples.
+    rows_sent = [d for d, broadcast in scattered
+                 if broadcast and any(isinstance(x, AnalysisData) for x in d)]
+    assert len(rows_sent) == 3
+    arguments = [a for tasks in submitted for _, args, kwargs in tasks
+                 for a in list(args) + list(kwargs.values())]
+    assert len(submitted) >= 3 and arguments
+    assert not any(isinstance(a, AnalysisData) for a in arguments)  # never the rows themselves
+    assert sum(isinstance(a, Future) for a in arguments) >= 10 + 2 + 2
+    assert np.array_equal(on_cluster.path.cv_risk, derivation.path.cv_risk)
+
+
 @pytest.mark.parametrize("address, said", [
     ("tcp://127.0.0.1:1", "No Dask scheduler answered at 'tcp://127.0.0.1:1' within 5 seconds."),
     ("127.0.0.1:1", "No Dask scheduler answered at '127.0.0.1:1' within 5 seconds."),

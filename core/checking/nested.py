@@ -25,6 +25,7 @@ from ..sizing.cross_validated_path import case_losses, cross_validate_path, path
 from ..sizing.folds import CVSettings, fold_plan
 from ..sizing.grow import class_costs
 from ..sizing.request import DerivationRequest
+from ..work_place import sent_once
 from .metrics import Measures, classification_measures, regression_measures
 
 DEFAULT_OUTER_FOLDS = 5
@@ -118,27 +119,29 @@ def nested_cross_validate(data: AnalysisData, request: DerivationRequest,
              if data.task == "classification" else None)
     stop_if_cancelled(cancel)
     total = len(folds)
-    if jobs == 1:
-        results = (_outer_fold(data, request, costs, f.train, f.test, cancel) for f in folds)
-    else:
-        sent = data.for_workers()  # the numbers only: what a cluster's workers receive
-        results = Parallel(n_jobs=jobs, return_as="generator")(
-            delayed(_outer_fold)(sent, request, costs, f.train, f.test, None) for f in folds)
     predicted = np.zeros(data.n, dtype=float if data.task == "regression" else np.int64)
     probabilities = (np.zeros((data.n, len(data.classes)))
                      if data.task == "classification" else None)
     losses = np.zeros(data.n)
     fold_results = []
-    for number, (test, label, probs, loss, leaves, inner_risk, n_train) in enumerate(results, 1):
-        stop_if_cancelled(cancel)
-        predicted[test] = label
-        if probabilities is not None:
-            probabilities[test] = probs
-        losses[test] = loss
-        fold_results.append(NestedFold(number, n_train, len(test), leaves, inner_risk,
-                                       float(loss.mean())))
-        if progress:
-            progress(number, total)
+    sent = data if jobs == 1 else data.for_workers()  # the numbers only: what workers receive
+    with sent_once(sent):  # on a cluster, the rows travel to each worker once
+        if jobs == 1:
+            results = (_outer_fold(data, request, costs, f.train, f.test, cancel) for f in folds)
+        else:
+            results = Parallel(n_jobs=jobs, return_as="generator")(
+                delayed(_outer_fold)(sent, request, costs, f.train, f.test, None) for f in folds)
+        for number, (test, label, probs, loss, leaves, inner_risk, n_train) in enumerate(
+                results, 1):
+            stop_if_cancelled(cancel)
+            predicted[test] = label
+            if probabilities is not None:
+                probabilities[test] = probs
+            losses[test] = loss
+            fold_results.append(NestedFold(number, n_train, len(test), leaves, inner_risk,
+                                           float(loss.mean())))
+            if progress:
+                progress(number, total)
     if data.task == "classification":
         measures = classification_measures(data.y, predicted, probabilities, data.classes,
                                            loss=costs.loss, case_weight=costs.case_weight,

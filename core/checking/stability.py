@@ -33,6 +33,7 @@ from ..option_limits import check_request_limits, check_setting
 from ..progress import CancelFlag, Progress, stop_if_cancelled
 from ..sizing.cross_validated_path import cross_validate_path
 from ..sizing.request import DerivationRequest
+from ..work_place import sent_once
 
 DEFAULT_RESAMPLES = 200
 THRESHOLD_TOLERANCE = 0.05  # percentile-scale distance within which two thresholds agree
@@ -233,13 +234,6 @@ def bootstrap_stability(data: AnalysisData, request: DerivationRequest, model: T
         data = replace(data, groups=np.arange(data.n, dtype=np.int64))
     stop_if_cancelled(cancel)
     samples = resample_rows(data, resamples, seed)
-    if jobs == 1:
-        results = (_skeleton(data, request, rows) for rows in samples)
-    else:
-        # In resample order, so the run is the same for any worker count.
-        sent = data.for_workers()  # the numbers only: what a cluster's workers receive
-        results = Parallel(n_jobs=jobs, return_as="generator")(
-            delayed(_skeleton)(sent, request, rows) for rows in samples)
     matcher = _Matcher(data, tolerance)
     names = [p.spec.name for p in data.predictors]
     first = dict.fromkeys(names, 0)
@@ -247,19 +241,27 @@ def bootstrap_stability(data: AnalysisData, request: DerivationRequest, model: T
     anywhere = {n.id: 0 for n in model.nodes if not n.leaf}
     in_place = dict(anywhere)
     sizes, no_question = [], 0
-    for done, (leaves, skeleton) in enumerate(results, 1):
-        stop_if_cancelled(cancel)
-        sizes.append(leaves)
-        root = skeleton.get(0)
-        if root is None:
-            no_question += 1
+    sent = data if jobs == 1 else data.for_workers()  # the numbers only: what workers receive
+    with sent_once(sent):  # on a cluster, the rows travel to each worker once
+        if jobs == 1:
+            results = (_skeleton(data, request, rows) for rows in samples)
         else:
-            first[root[0]] += 1
-        for column in {s[0] for s in skeleton.values() if s is not None}:
-            asked[column] += 1
-        _count(model, skeleton, matcher, anywhere, in_place)
-        if progress:
-            progress(done, resamples)
+            # In resample order, so the run is the same for any worker count.
+            results = Parallel(n_jobs=jobs, return_as="generator")(
+                delayed(_skeleton)(sent, request, rows) for rows in samples)
+        for done, (leaves, skeleton) in enumerate(results, 1):
+            stop_if_cancelled(cancel)
+            sizes.append(leaves)
+            root = skeleton.get(0)
+            if root is None:
+                no_question += 1
+            else:
+                first[root[0]] += 1
+            for column in {s[0] for s in skeleton.values() if s is not None}:
+                asked[column] += 1
+            _count(model, skeleton, matcher, anywhere, in_place)
+            if progress:
+                progress(done, resamples)
     labels = {p.spec.name: p.spec.display for p in data.predictors}
     uses = sorted((PredictorUse(c, labels[c], first[c], asked[c]) for c in names),
                   key=lambda u: (-u.first, -u.anywhere, names.index(u.column)))

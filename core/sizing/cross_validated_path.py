@@ -21,6 +21,7 @@ from ..design.matrix import Encoding, fit_encoding
 from ..errors import InputError
 from ..messages.message import say
 from ..progress import CancelFlag, Progress, stop_if_cancelled
+from ..work_place import sent_once
 from .cv_counts import PathCounts, empty_counts, fold_counts
 from .folds import CVSettings, fold_plan
 from .grow import ClassCosts, FullTree, TreeSettings, class_costs, grow_tree
@@ -203,13 +204,13 @@ def cross_validate_path(data: AnalysisData, settings: TreeSettings, cv: CVSettin
     # Always through joblib, so a joblib backend set by the caller (a cluster, say) spreads the
     # folds without code changes; jobs=None defers to that backend's own default. Results come
     # back in fold order, so repeated folds add up in the same order for any worker count.
-    results = Parallel(n_jobs=jobs, return_as="generator")(tasks)
-    for result in results:
-        stop_if_cancelled(cancel)
-        tally.add(*result)
-        done += 1
-        if progress:
-            progress(done, total)
+    with sent_once(sent):  # on a cluster, the rows travel to each worker once
+        for result in Parallel(n_jobs=jobs, return_as="generator")(tasks):
+            stop_if_cancelled(cancel)
+            tally.add(*result)
+            done += 1
+            if progress:
+                progress(done, total)
     return tally.path(grown, cv, data, len(folds))
 
 

@@ -21,6 +21,7 @@ from ..design.analysis import AnalysisData
 from ..errors import InputError
 from ..messages.message import say
 from ..progress import CancelFlag, Progress, stop_if_cancelled
+from ..work_place import sent_once
 from .cross_validated_path import CrossValidatedPath, PathTally, fold_losses, grow_full
 from .folds import CVSettings, fold_plan
 from .goal import Goal, cost_words, miss_cost_grid
@@ -82,24 +83,25 @@ def search_goal(data: AnalysisData, settings: TreeSettings, cv: CVSettings, goal
     # Full-data trees first (their pruning sequences fix each path's sizes), then every fold
     # of every cost in one pool, so the cores stay busy across costs. In task order, so the
     # sums are made in the same order for any worker count (identical results).
-    parallel = Parallel(n_jobs=jobs, return_as="generator")
     sent = data.for_workers()  # the numbers only: what a cluster's workers receive
-    for i, tree in parallel(delayed(_grown)(i, sent, s) for i, s in enumerate(each)):
-        stop_if_cancelled(cancel)
-        grown[i] = replace(tree, data=data)  # the whole analysis again, notes included
-        done += 1
-        if progress:
-            progress(done, total)
-    tallies = [PathTally(data.n, len(g.sequence.grid)) for g in grown]
-    tasks = (delayed(_fold)(i, sent, each[i], grown[i].costs, f.train, f.test,
-                            grown[i].sequence.grid)
-             for i in range(len(grid)) for f in folds)
-    for i, result in parallel(tasks):
-        stop_if_cancelled(cancel)
-        tallies[i].add(*result)
-        done += 1
-        if progress:
-            progress(done, total)
+    with sent_once(sent):  # on a cluster, the rows travel to each worker once
+        parallel = Parallel(n_jobs=jobs, return_as="generator")
+        for i, tree in parallel(delayed(_grown)(i, sent, s) for i, s in enumerate(each)):
+            stop_if_cancelled(cancel)
+            grown[i] = replace(tree, data=data)  # the whole analysis again, notes included
+            done += 1
+            if progress:
+                progress(done, total)
+        tallies = [PathTally(data.n, len(g.sequence.grid)) for g in grown]
+        tasks = (delayed(_fold)(i, sent, each[i], grown[i].costs, f.train, f.test,
+                                grown[i].sequence.grid)
+                 for i in range(len(grid)) for f in folds)
+        for i, result in parallel(tasks):
+            stop_if_cancelled(cancel)
+            tallies[i].add(*result)
+            done += 1
+            if progress:
+                progress(done, total)
     paths = tuple(t.path(g, cv, data, len(folds)) for t, g in zip(tallies, grown))
     cost_index, size_index = choose_for_goal(paths, grid, goal)
     return GoalSearch(goal, grid, paths, cost_index, size_index)
