@@ -17,6 +17,7 @@ from ..errors import InputError
 from ..messages.message import say
 from ..phrases import rows_phrase
 
+SAMPLE_BYTES = 256 * 1024  # what the kind of file and a text table's layout are judged on
 _NUMBERISH = re.compile(r"^[+-]?(\d+[.,]?\d*|[.,]\d+)([eE][+-]?\d+)?$")
 
 

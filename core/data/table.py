@@ -22,13 +22,12 @@ import pandas as pd
 from ..errors import InputError
 from ..messages.message import say
 from ..phrases import short_fingerprint
-from .reading_rules import binary_share, tidy
-from .text_table import read_text
+from .reading_rules import SAMPLE_BYTES, binary_share, tidy
+from .text_table import read_text, read_text_bytes
 from .xlsx import read_sheet, sheet_names
 
 TEXT_SUFFIXES = {".csv", ".tsv", ".txt", ".tab"}
 EXCEL_SUFFIXES = {".xlsx", ".xlsm"}
-_SNIFF_BYTES = 256 * 1024
 _OLE = b"\xd0\xcf\x11\xe0\xa1\xb1\x1a\xe1"
 _OTHER_FILES = ((b"%PDF", "a PDF document"), (b"\x89PNG", "a PNG image"),
                 (b"\xff\xd8\xff", "a JPEG image"), (b"GIF8", "a GIF image"),
@@ -116,9 +115,12 @@ def read_table(path: str | Path, sheet: str | None = None) -> LoadedTable:
     _check_readable(path)
     head = _read_head(path)
     kind = _file_kind(path, head)
-    sha = file_sha256(path)
+    # The file is read once: the fingerprint is of exactly the bytes parsed, even if the file
+    # is written to while it is read.
+    data = _read_workbook_bytes(path) if kind == "xlsx" else read_text_bytes(path)
+    sha = hashlib.sha256(data).hexdigest()
     if kind == "xlsx":
-        raw = read_sheet(path, sheet)
+        raw = read_sheet(path, sheet, data)
         frame, rows, warnings = tidy(raw.frame, raw.header, raw.row_numbers,
                                       f"{path.name}, sheet {raw.sheet!r}", letters=True)
         provenance = Provenance(
@@ -129,7 +131,7 @@ def read_table(path: str | Path, sheet: str | None = None) -> LoadedTable:
         return LoadedTable(frame, provenance)
     if sheet is not None:
         raise InputError(say("read.text_has_no_sheets", file=path.name))
-    frame, rows, layout, warnings = read_text(path, head)
+    frame, rows, layout, warnings = read_text(path, data)
     provenance = Provenance(
         path=str(path), sheet=None, sha256=sha, n_rows=len(frame), n_columns=frame.shape[1],
         encoding=layout["encoding"], delimiter=layout["delimiter"], decimal=layout["decimal"],
@@ -158,9 +160,16 @@ def _check_readable(path: Path) -> None:
         raise InputError(say("read.zero_bytes", file=path.name))
 
 
+def _read_workbook_bytes(path: Path) -> bytes:
+    try:
+        return path.read_bytes()
+    except MemoryError:
+        raise InputError(say("read.too_big", file=path.name)) from None
+
+
 def _read_head(path: Path) -> bytes:
     with open(path, "rb") as handle:
-        return handle.read(_SNIFF_BYTES)
+        return handle.read(SAMPLE_BYTES)
 
 
 def _file_kind(path: Path, head: bytes) -> str:

@@ -1,10 +1,12 @@
 """Reading a text table (CSV, TSV, semicolon- or bar-separated) with pandas' C parser.
 
-The layout — encoding, delimiter, decimal mark, where the header is — is worked out from the
-first 256 KB with the standard ``csv`` module, then pandas reads the whole file in one pass
-with numeric inference (no per-cell Python). The whole file is checked to be UTF-8 before it
-is read as such; otherwise Windows-1252 or Latin-1 is used, and the warning says on which line
-the first other character is.
+The file's bytes are read once (stopping at a line longer than any table has), and everything
+below works on those bytes, so what is fingerprinted is what is parsed. The layout — encoding,
+delimiter, decimal mark, where the header is — is worked out from the first 256 KB with the
+standard ``csv`` module, then pandas reads the whole file in one pass with numeric inference
+(no per-cell Python). The whole file is checked to be UTF-8 before it is read as such;
+otherwise Windows-1252 or Latin-1 is used, and the warning says on which line the first other
+character is.
 """
 
 from __future__ import annotations
@@ -21,59 +23,103 @@ import pandas as pd
 
 from ..errors import InputError
 from ..messages.message import say
-from .reading_rules import binary_share, first_line, header_index, span, tidy
+from .reading_rules import SAMPLE_BYTES, binary_share, first_line, header_index, span, tidy
 
 _DELIMITERS = (",", ";", "\t", "|")
+# The longest line read: far above any row of a clinical table (a few MB of notes in one cell
+# still fits), far below a file that lost its line breaks, which is refused at this point
+# instead of being read for minutes.
+LONGEST_LINE_BYTES = 16 * 2**20
+_BLOCK = 1 << 20  # read in blocks of 1 MB (smaller than the longest line)
 _DELIMITER_NAMES = {",": "commas", ";": "semicolons", "\t": "tabs", "|": "bars (|)"}
 
 
-def _detect_encoding(head: bytes, path: Path) -> tuple[str, list[str]]:
-    if head.startswith(b"\xef\xbb\xbf"):
+def read_text_bytes(path: Path) -> bytes:
+    """A text file's bytes, read once in blocks; a line longer than ``LONGEST_LINE_BYTES``
+    stops the reading there (so memory stays bounded) with a message naming its row."""
+    blocks = []
+    lines = 0  # line breaks read so far
+    run = 0  # bytes since the last line break
+    try:
+        with open(path, "rb") as handle:
+            for block in iter(lambda: handle.read(_BLOCK), b""):
+                first = block.find(b"\n")
+                if first < 0:
+                    run += len(block)
+                else:
+                    if run + first > LONGEST_LINE_BYTES:
+                        break
+                    lines += block.count(b"\n")
+                    run = len(block) - block.rfind(b"\n") - 1
+                if run > LONGEST_LINE_BYTES:
+                    break
+                blocks.append(block)
+            else:
+                return b"".join(blocks)
+    except MemoryError:
+        raise InputError(say("read.too_big", file=path.name)) from None
+    raise InputError(say("read.line_too_long", file=path.name, row=lines + 1,
+                         mb=LONGEST_LINE_BYTES // 2**20))
+
+
+def _detect_encoding(data: bytes, path: Path) -> tuple[str, list[str]]:
+    if data.startswith(b"\xef\xbb\xbf"):
         return "utf-8-sig", []
-    if head.startswith((b"\xff\xfe", b"\xfe\xff")):
+    if data.startswith((b"\xff\xfe", b"\xfe\xff")):
         return "utf-16", [say("read.utf16", file=path.name)]
-    bad = _first_bad_byte(path, "utf-8")
+    bad = _first_bad_byte(data, "utf-8")
     if bad is None:
         return "utf-8", []
-    line = _line_of_offset(path, bad)
-    if _first_bad_byte(path, "cp1252") is None:
+    line = data.count(b"\n", 0, bad) + 1
+    if _first_bad_byte(data, "cp1252") is None:
         return "cp1252", [say("read.cp1252", file=path.name, line=line)]
     return "latin-1", [say("read.latin1", file=path.name, line=line)]
 
 
-def _first_bad_byte(path: Path, encoding: str) -> int | None:
-    """Offset of the first byte that does not decode, or None if the whole file decodes."""
+def _first_bad_byte(data: bytes, encoding: str) -> int | None:
+    """Offset of the first byte that does not decode, or None if all of ``data`` decodes."""
     decoder = codecs.getincrementaldecoder(encoding)()
-    offset = 0
-    with open(path, "rb") as handle:
-        for block in iter(lambda: handle.read(1 << 22), b""):
-            try:
-                decoder.decode(block)
-            except UnicodeDecodeError as exc:
-                return offset + max(exc.start, 0)
-            offset += len(block)
+    view = memoryview(data)
+    step = 1 << 22
+    for offset in range(0, len(data), step):
+        try:
+            decoder.decode(view[offset:offset + step])
+        except UnicodeDecodeError as exc:
+            return offset + max(exc.start, 0)
     try:
         decoder.decode(b"", final=True)
     except UnicodeDecodeError:
-        return offset
+        return len(data)
     return None
 
 
-def _line_of_offset(path: Path, offset: int) -> int:
-    with open(path, "rb") as handle:
-        return handle.read(offset).count(b"\n") + 1
+def _records(sample: str, delimiter: str) -> list[list[str]]:
+    """The sample's records, up to the first one the csv module cannot take (a cell larger
+    than its field limit, or one that runs past the sample's end): the layout is judged on
+    whole records, and pandas reads the rest."""
+    records = []
+    reader = csv.reader(io.StringIO(sample, newline=""), delimiter=delimiter)
+    while True:
+        try:
+            records.append(next(reader))
+        except StopIteration:
+            return records
+        except csv.Error:
+            records.append(None)  # marks where the sample stopped being readable
+            return records
 
 
 def _layout(sample: str, truncated: bool, path: Path) -> dict:
     """Delimiter, header position and decimal mark of a text table, from its first records."""
     best = None
     for delimiter in _DELIMITERS:
-        try:
-            records = list(csv.reader(io.StringIO(sample, newline=""), delimiter=delimiter))
-        except csv.Error:
-            continue
-        if truncated and len(records) > 1:
+        records = _records(sample, delimiter)
+        if records and records[-1] is None:
+            records = records[:-1]  # stopped at a record the csv module could not take
+        elif truncated and len(records) > 1:
             records = records[:-1]  # the sample may end inside the last record
+        if not records:
+            continue
         filled = [r for r in records if any(c.strip() for c in r)]
         if not filled:
             raise InputError(say("read.zero_bytes", file=path.name))
@@ -102,8 +148,10 @@ def _layout(sample: str, truncated: bool, path: Path) -> dict:
             "titles": [r for r in records[:at] if any(c.strip() for c in r)]}
 
 
-def read_text(path: Path, head: bytes):
-    """A text table's frame, spreadsheet row numbers, layout and warnings."""
+def read_text(path: Path, data: bytes):
+    """A text table's frame, spreadsheet row numbers, layout and warnings, from the file's
+    bytes ``data`` (read once by :func:`read_text_bytes`)."""
+    head = data[:SAMPLE_BYTES]
     if head.strip(b" \t\r\n\x00\xef\xbb\xbf") == b"":
         raise InputError(say("read.blank", file=path.name))
     if not head.startswith((b"\xff\xfe", b"\xfe\xff")) and (b"\x00" in head[:8192]):
@@ -113,10 +161,10 @@ def read_text(path: Path, head: bytes):
     lowered = head[:512].lstrip().lower()
     if lowered.startswith((b"<!doctype html", b"<html", b"<table", b"<?xml")):
         raise InputError(say("read.html", file=path.name))
-    encoding, warnings = _detect_encoding(head, path)
+    encoding, warnings = _detect_encoding(data, path)
     sample = head.decode("utf-16" if encoding == "utf-16" else encoding, errors="ignore")
     sample = sample.lstrip("\ufeff")
-    truncated = path.stat().st_size > len(head)
+    truncated = len(data) > len(head)
     layout = _layout(sample, truncated, path)
     layout["encoding"] = encoding
     if path.suffix.lower() == ".xls":
@@ -137,10 +185,10 @@ def read_text(path: Path, head: bytes):
     try:
         with warnings_module.catch_warnings(record=True) as caught:
             warnings_module.simplefilter("always", pd.errors.ParserWarning)
-            frame = pd.read_csv(path, header=layout["header_index"], **options)
+            frame = pd.read_csv(io.BytesIO(data), header=layout["header_index"], **options)
         if any(issubclass(w.category, pd.errors.ParserWarning) for w in caught):
             # Data rows wider than the header: pandas would drop the extra cells silently.
-            frame = _wider_than_header(path, layout, options, delimiter)
+            frame = _wider_than_header(path, data, layout, options, delimiter)
     except pd.errors.EmptyDataError:
         raise InputError(say("read.blank", file=path.name)) from None
     except pd.errors.ParserError as exc:
@@ -157,11 +205,12 @@ def read_text(path: Path, head: bytes):
     return frame, rows, layout, warnings + notes
 
 
-def _wider_than_header(path: Path, layout: dict, options: dict, delimiter: str) -> pd.DataFrame:
+def _wider_than_header(path: Path, data: bytes, layout: dict, options: dict,
+                       delimiter: str) -> pd.DataFrame:
     """Read again with room for every cell; extra cells must be empty (trailing delimiters)."""
     width = len(layout["header"])
     widest = max([len(r) for r in layout["records"]] + [width])
-    frame = pd.read_csv(path, header=None, skiprows=layout["header_index"] + 1,
+    frame = pd.read_csv(io.BytesIO(data), header=None, skiprows=layout["header_index"] + 1,
                         names=list(range(widest)), **options)
     extra = frame.iloc[:, width:].notna().any(axis=1).to_numpy()
     if extra.any():

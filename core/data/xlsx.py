@@ -10,6 +10,7 @@ every one of these is reported with the cells or rows it concerns.
 
 from __future__ import annotations
 
+import io
 import re
 import zipfile
 from dataclasses import dataclass, field
@@ -55,13 +56,14 @@ MAX_UNPACKED_BYTES = 4 * 2**30  # far above a million rows of fifty columns
 MAX_RATIO = 200  # worksheets pack about 5-20 times; a bomb, thousands of times
 
 
-def _open_workbook(path: Path):
+def _open_workbook(path: Path, data: bytes | None = None):
     from openpyxl import load_workbook
 
-    if not zipfile.is_zipfile(path):
+    source = path if data is None else io.BytesIO(data)
+    if not zipfile.is_zipfile(source):
         raise InputError(say("xlsx.damaged", file=path.name))
     try:
-        with zipfile.ZipFile(path) as archive:
+        with zipfile.ZipFile(source) as archive:
             members = archive.infolist()
     except (zipfile.BadZipFile, OSError, ValueError):
         raise InputError(say("xlsx.damaged", file=path.name)) from None
@@ -76,7 +78,9 @@ def _open_workbook(path: Path):
     if "xl/workbook.xml" not in names:
         raise InputError(say("xlsx.not_workbook", file=path.name))
     try:
-        return load_workbook(path, read_only=True, data_only=True)
+        if data is not None:
+            source.seek(0)
+        return load_workbook(source, read_only=True, data_only=True)
     except Exception:  # openpyxl raises many kinds for broken files
         raise InputError(say("xlsx.damaged", file=path.name)) from None
 
@@ -90,11 +94,12 @@ def sheet_names(path: str | Path) -> list[str]:
         book.close()
 
 
-def read_sheet(path: Path, sheet: str | None) -> SheetRead:
-    """The cells of one sheet (default: the first visible one), with what was interpreted."""
-    book = _open_workbook(path)
+def read_sheet(path: Path, sheet: str | None, data: bytes | None = None) -> SheetRead:
+    """The cells of one sheet (default: the first visible one), with what was interpreted;
+    ``data`` (optional) is the file's bytes, already read once by the caller."""
+    book = _open_workbook(path, data)
     try:
-        return _read(book, path, sheet)
+        return _read(book, path, sheet, data)
     except InputError:
         raise
     except Exception:  # a damaged part only shows while its cells are read
@@ -103,7 +108,7 @@ def read_sheet(path: Path, sheet: str | None) -> SheetRead:
         book.close()
 
 
-def _read(book, path: Path, sheet: str | None) -> SheetRead:
+def _read(book, path: Path, sheet: str | None, data: bytes | None) -> SheetRead:
     names = list(book.sheetnames)
     if not names:
         raise InputError(say("xlsx.no_sheets", file=path.name))
@@ -123,7 +128,8 @@ def _read(book, path: Path, sheet: str | None) -> SheetRead:
     ws = book[used]
     ws.reset_dimensions()
     rows = [tuple(r) for r in ws.iter_rows(min_row=1, min_col=1, values_only=True)]
-    xml = _scan_xml(path, getattr(ws, "_worksheet_path", None))
+    xml = _scan_xml(path if data is None else io.BytesIO(data),
+                    getattr(ws, "_worksheet_path", None))
     while rows and not any(_filled(v) for v in rows[-1]):
         rows.pop()
     if not rows:
@@ -270,7 +276,7 @@ def _structure_notes(xml: _SheetXml, numbers: np.ndarray, body: list, header: li
     return notes
 
 
-def _scan_xml(path: Path, member: str | None) -> _SheetXml:
+def _scan_xml(path, member: str | None) -> _SheetXml:
     """Hidden rows/columns, merged ranges and uncalculated formulas, from the sheet's XML."""
     from openpyxl.utils.cell import range_boundaries
 

@@ -72,6 +72,10 @@ ENTRIES = [
     ("read.unparseable", "refused", "{file} could not be read as a table ({detail}); save "
      "the sheet again as CSV (UTF-8) or XLSX and open that.",
      "Re-export the table from the program that made it."),
+    ("read.line_too_long", "refused", "{file}: row {row} runs on for more than {mb} MB "
+     "without a line break, so reading stopped there; the file has lost its line breaks or is "
+     "not a table: save the sheet again as CSV or XLSX and open that.",
+     "Open the file in a text editor to see what it holds, or export the table again."),
     ("read.too_big", "refused", "{file} is too large for this computer's memory; split it "
      "into smaller files or leave out columns you do not need.",
      "Close other programs, or keep only the columns you need."),

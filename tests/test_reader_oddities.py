@@ -1,0 +1,105 @@
+"""Files that fool the reader quietly or never end (issue 15, items 8 and 9): each loads
+correctly with a note naming what was done and where, or is refused in one sentence (exit
+status 2, no traceback), and every input stays byte-identical (SHA-256 and modification time).
+
+Every file here is invented and written by the test itself.
+"""
+
+from __future__ import annotations
+
+import hashlib
+from pathlib import Path
+
+from core.data import read_table
+from core.data.text_table import LONGEST_LINE_BYTES
+from tests.helpers import prunella
+from tests.test_bad_inputs import HEADER, base_rows, csv_text
+from tests.test_hostile_inputs import refused, state
+
+
+def fit(data: Path, *more):
+    return prunella("fit", data, "--outcome", "admitted", "--folds", "3", "--quiet",
+                    "--model", data.parent / "m.json", *more)
+
+
+def loads(data: Path, *more) -> str:
+    """Run ``prunella fit`` on ``data``; assert it worked, left the input alone; its stderr."""
+    before = state([data])
+    ran = fit(data, *more)
+    assert ran.returncode == 0, ran.stderr
+    assert "Traceback" not in ran.stderr
+    assert state([data]) == before
+    return ran.stderr
+
+
+# --- item 8: a file that never ends its line ---------------------------------------------------
+
+
+def test_a_file_without_line_breaks_is_stopped_at_the_longest_line_naming_its_row(tmp_path):
+    # A header, two rows, then a few tens of MB with no line break (as a file that lost its
+    # line ends): reading stops at the limit instead of running on.
+    data = tmp_path / "no_breaks.csv"
+    with open(data, "wb") as handle:
+        handle.write(b"age,spo2,resp_rate,sex,admitted\n40,95,20,male,no\n50,90,22,female,yes\n")
+        chunk = b"41,96,18,male,no;" * 65536
+        while handle.tell() < LONGEST_LINE_BYTES + 8 * 2**20:
+            handle.write(chunk)
+    assert data.stat().st_size > 20 * 2**20
+    last = refused(["fit", data, "--outcome", "admitted", "--model", tmp_path / "m.json"],
+                   ["no_breaks.csv", "row 4", "without a line break", "save the sheet again"],
+                   inputs=[data])
+    assert f"{LONGEST_LINE_BYTES // 2**20} MB" in last
+
+
+def test_a_valid_csv_with_one_very_large_cell_loads(tmp_path):
+    # A free-text cell of a few MB (pasted notes) in a well-formed CSV: the layout is judged on
+    # the whole records before it, and the table loads.
+    rows = base_rows(60)
+    header = HEADER + ["notes"]
+    rows = [r + ["seen"] for r in rows]
+    rows[3][-1] = "word " * 700_000  # about 3.5 MB on one line
+    data = tmp_path / "big_cell.csv"
+    data.write_text(csv_text(header, rows), encoding="utf-8")
+    assert data.stat().st_size > 3 * 2**20
+    table = read_table(data)
+    assert table.frame.shape == (60, 6)
+    assert len(table.frame["notes"][3].strip()) > 3_000_000
+    quoted = tmp_path / "big_quoted.csv"
+    rows[3][-1] = "line one, with a comma\n" * 150_000  # quoted, spanning many lines
+    quoted.write_text(csv_text(header, rows), encoding="utf-8")
+    assert read_table(quoted).frame.shape == (60, 6)
+    loads(quoted)
+
+
+def test_the_fingerprint_is_of_exactly_the_bytes_that_were_parsed(tmp_path, monkeypatch):
+    # Rows appended by another program between reading and parsing must not make the
+    # fingerprint describe a different state of the file than the rows grown on.
+    import core.data.table as table_module
+
+    data = tmp_path / "growing.csv"
+    original = csv_text(HEADER, base_rows(40)).encode("utf-8")
+    data.write_bytes(original)
+    real = table_module.read_text_bytes
+
+    def read_then_append(path):
+        got = real(path)
+        with open(path, "ab") as other_program:
+            other_program.write(csv_text(HEADER, base_rows(25, seed=3))[len(",".join(HEADER)) + 1:]
+                                .encode("utf-8"))
+        return got
+
+    monkeypatch.setattr(table_module, "read_text_bytes", read_then_append)
+    table = read_table(data)
+    assert len(table.frame) == 40
+    assert table.provenance.sha256 == hashlib.sha256(original).hexdigest()
+    assert data.stat().st_size > len(original)  # the file did grow meanwhile
+
+
+def test_a_workbook_is_fingerprinted_from_the_bytes_it_is_read_from(tmp_path):
+    from tests.test_bad_inputs import workbook
+
+    book = tmp_path / "visits.xlsx"
+    workbook(book, {"Visits": [HEADER] + base_rows(30)})
+    table = read_table(book)
+    assert table.provenance.sha256 == hashlib.sha256(book.read_bytes()).hexdigest()
+    assert len(table.frame) == 30
