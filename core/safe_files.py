@@ -3,7 +3,11 @@ without trusting them, and keeping exports inert.
 
 Every file Prunella writes goes through here: the bytes go to a temporary file in the same
 folder, are flushed to disk, and only then replace the target in one rename, so a kill at any
-moment leaves either the old file or the new one. Prunella's own files (models, dictionaries,
+moment leaves either the old file or the new one. The temporary file is private (readable by
+its owner only) while it holds patient rows; the finished file gets the user's normal mode (the
+umask's, or the mode of the file it replaces). A kill before the rename leaves the temporary
+file (named ``.<name>.prunella-part-<process>-<random>.tmp``); the next save to that folder
+removes such leftovers once no running save holds them, and says so. Prunella's own files (models, dictionaries,
 projects) are JSON with a ``"format": "prunella-<kind>/<version>"`` key; they are parsed as
 data only (no pickle, nothing is evaluated) and refused with a clear message when they are
 damaged, of another kind, or from a newer version.
@@ -16,7 +20,16 @@ import math
 import os
 import re
 import tempfile
+import threading
+import time
+from collections.abc import Callable, Iterator
+from contextlib import contextmanager
 from pathlib import Path
+
+try:  # POSIX: a save holds a lock on its temporary file, so a leftover is told from one in use
+    import fcntl
+except ImportError:  # pragma: no cover - Windows
+    fcntl = None
 
 import pandas as pd
 
@@ -43,7 +56,9 @@ def is_finite_number(value) -> bool:
 def write_bytes_atomic(path: str | Path, data: bytes) -> None:
     """Replace ``path`` with ``data`` atomically (temporary file, fsync, rename). A write the
     system refuses (no room on the disk, no permission, a folder in the way) is said in one
-    sentence; the temporary file is removed and the previous file stays as it was."""
+    sentence; the temporary file is removed and the previous file stays as it was. Our own
+    temporary files left in the folder by a save that was killed are removed first, and a note
+    says so (see :func:`save_notes`)."""
     path = Path(path)
     try:
         _write_atomic(path, data)
@@ -52,16 +67,54 @@ def write_bytes_atomic(path: str | Path, data: bytes) -> None:
                              reason=error.strerror or type(error).__name__)) from None
 
 
+TEMP_MARK = ".prunella-part-"  # only our atomic saves name files so
+_TEMP_NAME = re.compile(r"^\..+" + re.escape(TEMP_MARK) + r"(\d+)-[^./]+\.tmp$")
+STALE_AFTER_SECONDS = 60.0  # a temporary file no save holds and this old is a leftover
+_listeners: list[Callable[[str], None]] = []
+_listeners_lock = threading.Lock()
+
+
+@contextmanager
+def save_notes(listener: Callable[[str], None]) -> Iterator[None]:
+    """While inside, ``listener`` hears every note a save makes (leftover temporary files
+    removed); the command line prints them, the app shows them."""
+    with _listeners_lock:
+        _listeners.append(listener)
+    try:
+        yield
+    finally:
+        with _listeners_lock:
+            _listeners.remove(listener)
+
+
+def _tell(note: str) -> None:
+    with _listeners_lock:
+        listeners = list(_listeners)
+    for listener in listeners:
+        listener(note)
+
+
 def _write_atomic(path: Path, data: bytes) -> None:
     if path.is_dir():
         raise IsADirectoryError(21, "it is a folder", str(path))
     path.parent.mkdir(parents=True, exist_ok=True)
-    handle, temp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
+    removed = remove_stale_temporaries(path.parent)
+    if removed:
+        _tell(say("file.leftovers_removed", count=len(removed),
+                  files="file" if len(removed) == 1 else "files", folder=str(path.parent),
+                  names=", ".join(removed)))
+    # mkstemp makes the file readable by its owner only (0600): it holds patient rows.
+    handle, temp = tempfile.mkstemp(prefix=f".{path.name}{TEMP_MARK}{os.getpid()}-",
+                                    suffix=".tmp", dir=path.parent)
     try:
         with os.fdopen(handle, "wb") as out:
+            if fcntl is not None:
+                fcntl.flock(out.fileno(), fcntl.LOCK_EX)  # in use: no other save removes it
             out.write(data)
             out.flush()
             os.fsync(out.fileno())
+            if hasattr(os, "fchmod"):
+                os.fchmod(out.fileno(), _final_mode(path))
         os.replace(temp, path)
     except BaseException:
         try:
@@ -70,6 +123,90 @@ def _write_atomic(path: Path, data: bytes) -> None:
             pass
         raise
     _sync_folder(path.parent)
+
+
+def _final_mode(path: Path) -> int:
+    """The finished file's permissions: those of the file it replaces, else the user's normal
+    mode for a new file (0666 less the umask, e.g. 0644 under umask 022)."""
+    try:
+        return path.stat().st_mode & 0o7777
+    except OSError:
+        return 0o666 & ~current_umask()
+
+
+_umask_lock = threading.Lock()
+
+
+def current_umask() -> int:
+    """The process's umask (read without changing it where the system tells it)."""
+    try:
+        with open("/proc/self/status", encoding="ascii") as status:
+            for line in status:
+                if line.startswith("Umask:"):
+                    return int(line.split()[1], 8)
+    except (OSError, ValueError):
+        pass
+    with _umask_lock:  # elsewhere the only way to read it is to set it and put it back
+        mask = os.umask(0o077)
+        os.umask(mask)
+    return mask
+
+
+def remove_stale_temporaries(folder: str | Path) -> list[str]:
+    """Remove the temporary files an earlier save of ours left in ``folder`` when it was
+    killed before its rename; returns their names. Only our own naming pattern, only ordinary
+    files of this user, and only when no running save holds one (its lock is free and its
+    writer has ended, or it is older than a minute)."""
+    removed = []
+    try:
+        entries = list(os.scandir(folder))
+    except OSError:
+        return removed
+    for entry in entries:
+        match = _TEMP_NAME.match(entry.name)
+        if match and _is_stale(entry, int(match.group(1))):
+            try:
+                os.unlink(entry.path)
+            except OSError:
+                continue
+            removed.append(entry.name)
+    return sorted(removed)
+
+
+def _is_stale(entry: os.DirEntry, writer: int) -> bool:
+    try:
+        info = entry.stat(follow_symlinks=False)
+    except OSError:
+        return False
+    if not entry.is_file(follow_symlinks=False) or \
+            (hasattr(os, "getuid") and info.st_uid != os.getuid()):
+        return False
+    old = time.time() - info.st_mtime > STALE_AFTER_SECONDS
+    if fcntl is None:  # no locks to ask: only leftovers well past any save's length
+        return time.time() - info.st_mtime > 24 * 3600
+    try:
+        descriptor = os.open(entry.path, os.O_RDONLY | getattr(os, "O_NOFOLLOW", 0))
+    except OSError:
+        return False
+    try:
+        fcntl.flock(descriptor, fcntl.LOCK_EX | fcntl.LOCK_NB)
+    except OSError:
+        return False  # a save is writing it right now
+    finally:
+        os.close(descriptor)  # (closing lets go of the lock just taken)
+    return old or not _process_running(writer)
+
+
+def _process_running(pid: int) -> bool:
+    if pid == os.getpid():
+        return False  # this process holds a lock on every temporary file it is writing
+    try:
+        os.kill(pid, 0)
+    except ProcessLookupError:
+        return False
+    except OSError:
+        return True  # running, as another user
+    return True
 
 
 def _sync_folder(folder: Path) -> None:

@@ -20,6 +20,7 @@ from ..design.analysis import AnalysisData
 from ..design.matrix import Encoding, fit_encoding
 from ..errors import InputError
 from ..messages.message import say
+from ..phrases import plural
 from ..progress import CancelFlag, Progress, stop_if_cancelled
 from ..work_place import sent_once
 from .cv_counts import PathCounts, empty_counts, fold_counts
@@ -114,6 +115,17 @@ class CrossValidatedPath:
             raise InputError(say("size.size_at_least_one",
                                  sizes=", ".join(map(str, self.leaves[::-1]))))
         return int(fits.min()), "user"
+
+    def size_note(self, size: str | int, index: int) -> str | None:
+        """Why the tree at ``index`` has another number of outcome boxes than the ``size``
+        asked for (no tree of that size on the path), or None when it has that size."""
+        if size in ("1se", "1-se", "min", "goal"):
+            return None
+        wanted, used = int(size), int(self.leaves[index])
+        if used == wanted:
+            return None
+        key = "size.not_on_path_largest" if index == 0 else "size.not_on_path_smaller"
+        return say(key, wanted=wanted, used=plural(used, "outcome box", "outcome boxes"))
 
 
 def grow_full(data: AnalysisData, settings: TreeSettings) -> DerivationTree:

@@ -95,6 +95,7 @@ def derive(table: LoadedTable, dictionary: DataDictionary, request: DerivationRe
                                cancel=cancel)
     notes.extend(coarsening_notes(path))
     index, rule = path.index_for(request.size)
+    notes.extend(note for note in [path.size_note(request.size, index)] if note)
     model = build_model(path, index, rule, table, dictionary, request)
     return _checked(Derivation(request, table, dictionary, data, heldout, path, model,
                                tuple(notes), findings=tuple(findings)))
@@ -125,12 +126,19 @@ def choose_model(derivation: Derivation, size: str | int) -> Derivation:
         model = build_model(search.path, search.size_index, "goal", derivation.table,
                             derivation.dictionary, derivation.request,
                             chosen_extra=search.chosen_record())
-        return _checked(replace(derivation, model=model, heldout_check=None))
+        notes = tuple(n for n in derivation.notes if getattr(n, "code", "") not in _SIZE_NOTES)
+        return _checked(replace(derivation, model=model, heldout_check=None, notes=notes))
     index, rule = derivation.path.index_for(size)
     extra = None if search is None else {"miss_cost": search.miss_cost}
     model = build_model(derivation.path, index, rule, derivation.table, derivation.dictionary,
                         derivation.request, chosen_extra=extra)
-    return _checked(replace(derivation, model=model, heldout_check=None))
+    note = derivation.path.size_note(size, index)
+    notes = tuple(n for n in derivation.notes if getattr(n, "code", "") not in _SIZE_NOTES)
+    return _checked(replace(derivation, model=model, heldout_check=None,
+                            notes=notes + ((note,) if note else ())))
+
+
+_SIZE_NOTES = ("size.not_on_path_smaller", "size.not_on_path_largest")  # one per chosen size
 
 
 def _checked(derivation: Derivation) -> Derivation:

@@ -46,6 +46,14 @@ ENTRIES = [
      "rows.", "Lower --min-leaf, or use more patients."),
     ("size.size_at_least_one", "refused", "A tree needs at least one outcome box; sizes on the "
      "pruning path are {sizes}.", "Pick one of the listed sizes."),
+    ("size.not_on_path_smaller", "warning", "No tree on the pruning path has {wanted} "
+     "outcome boxes; using the next smaller, {used}.",
+     "Pruning removes whole branches, so not every size exists; choose one of the sizes on "
+     "the pruning curve (prunella fit --curve lists them)."),
+    ("size.not_on_path_largest", "warning", "No tree on the pruning path has {wanted} "
+     "outcome boxes; using the largest, the full tree with {used}.",
+     "The full tree is the largest size there is; choose one of the sizes on the pruning "
+     "curve (prunella fit --curve lists them)."),
     ("size.size_word", "refused", "The tree size must be '1se', 'min' or a number of outcome boxes, "
      "not {size!r}.", "Use 1se, min or a number."),
     ("goal.measure", "refused", "A goal is a least sensitivity or a least specificity, not "
