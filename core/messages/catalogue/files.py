@@ -20,6 +20,9 @@ ENTRIES = [
     ("file.not_written", "refused", "{target} could not be written ({reason}); nothing was "
      "changed: choose another folder or free some space.",
      "Choose a folder you may write to, with room on its disk."),
+    ("file.leftovers_removed", "note", "Removed {count} temporary {files} left in {folder} "
+     "by an earlier save that was stopped before it finished ({names}); they held a copy of "
+     "what was being saved.", "Nothing to do: the files saved before are as they were."),
     ("file.missing", "refused", "No {what} file at {path}; check the path.",
      "Check the spelling of the path."),
     ("file.too_big", "refused", "{file} is {mb} MB, far larger than any Prunella {what} "
