@@ -268,6 +268,8 @@ def summary_text(derivation: Derivation) -> str:
               f"(training error {chosen['train_risk']:.4f}, optimistic).{in_unit}",
               f"Model fingerprint: {model.short_fingerprint}"]
     if chosen["rule"] == "goal":
+        from ..sizing.goal_words import goal_text
+
         lines[-1:-1] = [goal_text(chosen)]
     if model.no_better_warning():
         lines.append(f"Warning: {model.no_better_warning()}")
@@ -276,19 +278,6 @@ def summary_text(derivation: Derivation) -> str:
         lines.append(f"Checked on {check['source']} ({check['n']} visits): {check['summary']}.")
     lines += ["", model.rules(), f"{CAUTION_TITLE}. {caution_text()}"]
     return "\n".join(lines)
-
-
-def goal_text(chosen: dict) -> str:
-    """One line on the goal a tree was built for and what it reached under cross-validation."""
-    from ..sizing.goal import cost_words
-
-    goal = chosen["goal"]
-    sens, spec = chosen["cv_sensitivity_interval"], chosen["cv_specificity_interval"]
-    return (f"Built for cross-validated {goal['measure']} of at least {goal['at_least']:.0%}: "
-            f"sensitivity {chosen['cv_sensitivity']:.1%} ({sens[0]:.1%} to {sens[1]:.1%}), "
-            f"specificity {chosen['cv_specificity']:.1%} ({spec[0]:.1%} to {spec[1]:.1%}), "
-            f"95% Wilson intervals; {cost_words(chosen['miss_cost'])} "
-            f"({chosen['grid_description']}).")
 
 
 def run_score(args) -> int:

@@ -72,8 +72,20 @@ ENTRIES = [
      "way was found while searching for {goal}.", "Lower the fewest patients per outcome box, or add "
      "predictors or patients."),
     ("goal.in_words", "note", "Under cross-validation the tree catches about {caught} of "
-     "every 100 {positive} patients and sends about {alarmed} of every 100 {negative} for "
-     "the test.", "Nothing to do; choose a stricter goal to catch more."),
+     "every 100 {positive} and sends about {alarmed} of every 100 {negative} for the test.",
+     "Nothing to do; choose a stricter goal to catch more."),
+    ("goal.in_words_rule_in", "note", "Under cross-validation the tree keeps about {spared} "
+     "of every 100 {negative} from the test (it sends about {alarmed} needlessly) and sends "
+     "about {caught} of every 100 {positive} for it.", "Nothing to do; choose a stricter goal "
+     "for fewer needless tests."),
+    ("goal.in_words_cost", "note", "With {cost}, under cross-validation the tree catches "
+     "about {caught} of every 100 {positive} (it misses about {missed}) and raises a needless "
+     "alarm for about {alarmed} of every 100 {negative}.", "Nothing to do; raise the miss "
+     "cost, or choose a goal, to catch more."),
+    ("goal.costs_alike", "part", "missing a positive counted as bad as a needless alarm", ""),
+    ("goal.reached", "note", "Built for cross-validated {measure} of at least {at_least}: "
+     "sensitivity {sensitivity} ({sens_low} to {sens_high}), specificity {specificity} "
+     "({spec_low} to {spec_high}), 95% Wilson intervals; {cost} ({grid}).", "Nothing to do."),
     ("goal.searched", "note", "Built for {goal}: searched {grid}; the chosen tree was "
      "grown with {cost}.", "Nothing to do."),
     ("coarsen.suggested", "note", "{count} rows: growing may take long; --coarsen 256 (in "
