@@ -26,8 +26,10 @@ def short_fingerprint(digest: str) -> str:
     return str(digest)[:12]
 
 
-def rows_phrase(rows: Sequence[int] | np.ndarray | None, limit: int = 5) -> str:
-    """' (row 4)', ' (rows 4, 9 and 22)' or ' (rows 4, 9, 22, 31, 40 and 12 more)'; '' if none."""
+def rows_phrase(rows: Sequence[int] | np.ndarray | None, limit: int = 5,
+                word: str = "row") -> str:
+    """' (row 4)', ' (rows 4, 9 and 22)' or ' (rows 4, 9, 22, 31, 40 and 12 more)'; '' if none.
+    ``word`` names what the numbers count ('file line' where they are file lines)."""
     if rows is None:
         return ""
     rows = [int(r) for r in np.asarray(rows).ravel()[: limit + 1000]]
@@ -35,11 +37,11 @@ def rows_phrase(rows: Sequence[int] | np.ndarray | None, limit: int = 5) -> str:
     if total == 0:
         return ""
     if total == 1:
-        return f" (row {rows[0]})"
-    shown = rows[:limit]
+        return f" ({word} {rows[0]})"
+    shown, words = rows[:limit], word + "s"
     if total <= limit:
-        return f" (rows {', '.join(map(str, shown[:-1]))} and {shown[-1]})"
-    return f" (rows {', '.join(map(str, shown))} and {total - limit} more)"
+        return f" ({words} {', '.join(map(str, shown[:-1]))} and {shown[-1]})"
+    return f" ({words} {', '.join(map(str, shown))} and {total - limit} more)"
 
 
 

@@ -103,3 +103,36 @@ def test_a_workbook_is_fingerprinted_from_the_bytes_it_is_read_from(tmp_path):
     table = read_table(book)
     assert table.provenance.sha256 == hashlib.sha256(book.read_bytes()).hexdigest()
     assert len(table.frame) == 30
+
+
+# --- item 9: invisible marks inside the file ---------------------------------------------------
+
+
+def test_a_second_byte_order_mark_is_taken_out_with_a_note_and_makes_no_third_answer(tmp_path):
+    # Two UTF-8 exports pasted together: the second starts with its own byte-order mark, which
+    # would make its first 'no' a different answer from every other 'no'.
+    first = csv_text(HEADER, base_rows(40)).encode("utf-8")
+    second = csv_text(HEADER, base_rows(30, seed=5)).encode("utf-8")
+    second = second[second.index(b"\n") + 1:]  # its rows only
+    data = tmp_path / "pasted.csv"
+    data.write_bytes(b"\xef\xbb\xbf" + first + b"\xef\xbb\xbf" + second)
+    table = read_table(data)
+    assert len(table.frame) == 70
+    assert sorted(table.frame["admitted"].unique()) == ["no", "yes"]
+    note = " ".join(table.provenance.warnings)
+    assert "byte-order mark" in note and "file line 42" in note
+    assert "byte-order mark" in loads(data)
+
+
+def test_a_few_nul_bytes_are_taken_out_naming_their_lines_and_many_mean_not_a_table(tmp_path):
+    rows = base_rows(40)
+    rows[4][-1] = rows[4][-1] + "\x00"  # 'yes\0' or 'no\0': would be a third answer
+    data = tmp_path / "damaged.csv"
+    data.write_text(csv_text(HEADER, rows), encoding="utf-8")
+    table = read_table(data)
+    assert sorted(table.frame["admitted"].unique()) == ["no", "yes"]
+    assert any("NUL bytes (file line 6)" in w for w in table.provenance.warnings)
+    binary = tmp_path / "binary.csv"
+    binary.write_bytes(csv_text(HEADER, base_rows(40)).encode("utf-8").replace(b",", b",\x00"))
+    refused(["fit", binary, "--outcome", "admitted", "--model", tmp_path / "m.json"],
+            ["binary.csv"], inputs=[binary])

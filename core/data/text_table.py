@@ -23,6 +23,7 @@ import pandas as pd
 
 from ..errors import InputError
 from ..messages.message import say
+from ..phrases import rows_phrase
 from .reading_rules import SAMPLE_BYTES, binary_share, first_line, header_index, span, tidy
 
 _DELIMITERS = (",", ";", "\t", "|")
@@ -148,20 +149,69 @@ def _layout(sample: str, truncated: bool, path: Path) -> dict:
             "titles": [r for r in records[:at] if any(c.strip() for c in r)]}
 
 
+_BOM = b"\xef\xbb\xbf"
+# NUL bytes a text table may hold by accident (a damaged export) and still be read: a few, or
+# one in a thousand bytes; a binary file, or UTF-16 without its mark, holds far more.
+_FEW_NULS = 10
+_NUL_SHARE = 0.001
+
+
+def _line_numbers(data: bytes, marker: bytes, skip: int = 0, limit: int = 2000) -> list[int]:
+    """The distinct line numbers (1-based) of the first ``limit`` places ``marker`` occurs
+    (after the first ``skip`` bytes), counting line breaks once from the start."""
+    lines, last, at, found = 1, 0, skip, []
+    while len(found) < limit:
+        at = data.find(marker, at)
+        if at < 0:
+            break
+        lines += data.count(b"\n", last, at)
+        last = at
+        if not found or found[-1] != lines:
+            found.append(lines)
+        at += len(marker)
+    return found
+
+
+def _stray_marks(data: bytes, path: Path) -> tuple[bytes, list[str]]:
+    """A byte-order mark inside the file (two exports pasted together) and a few NUL bytes
+    (a damaged export) are taken out, with a note naming the rows: left in, they would make
+    'yes' and a 'yes' with an invisible mark two answers."""
+    if data.startswith((b"\xff\xfe", b"\xfe\xff")):
+        return data, []
+    notes = []
+    start = len(_BOM) if data.startswith(_BOM) else 0
+    if data.find(_BOM, start) >= 0:
+        rows = _line_numbers(data, _BOM, start)
+        data = data[:start] + data[start:].replace(_BOM, b"")
+        notes.append(say("read.stray_bom", file=path.name,
+                         rows=rows_phrase(rows, word="file line")))
+    nuls = data.count(b"\x00")
+    if nuls:
+        if nuls > max(_FEW_NULS, _NUL_SHARE * len(data)):
+            raise InputError(say("read.binary", file=path.name))
+        rows = _line_numbers(data, b"\x00")
+        data = data.replace(b"\x00", b"")
+        notes.append(say("read.nul_bytes", file=path.name,
+                         rows=rows_phrase(rows, word="file line")))
+    return data, notes
+
+
 def read_text(path: Path, data: bytes):
     """A text table's frame, spreadsheet row numbers, layout and warnings, from the file's
-    bytes ``data`` (read once by :func:`read_text_bytes`)."""
+    bytes ``data`` (read once by :func:`read_text_bytes`; the fingerprint is of those bytes,
+    and stray marks are taken out of what is parsed, with a note)."""
     head = data[:SAMPLE_BYTES]
     if head.strip(b" \t\r\n\x00\xef\xbb\xbf") == b"":
         raise InputError(say("read.blank", file=path.name))
-    if not head.startswith((b"\xff\xfe", b"\xfe\xff")) and (b"\x00" in head[:8192]):
-        raise InputError(say("read.binary", file=path.name))
+    data, marks = _stray_marks(data, path)
+    head = data[:SAMPLE_BYTES]
     if binary_share(head) > 0.01:
         raise InputError(say("read.binary", file=path.name))
     lowered = head[:512].lstrip().lower()
     if lowered.startswith((b"<!doctype html", b"<html", b"<table", b"<?xml")):
         raise InputError(say("read.html", file=path.name))
     encoding, warnings = _detect_encoding(data, path)
+    warnings.extend(marks)
     sample = head.decode("utf-16" if encoding == "utf-16" else encoding, errors="ignore")
     sample = sample.lstrip("\ufeff")
     truncated = len(data) > len(head)

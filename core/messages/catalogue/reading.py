@@ -72,6 +72,15 @@ ENTRIES = [
     ("read.unparseable", "refused", "{file} could not be read as a table ({detail}); save "
      "the sheet again as CSV (UTF-8) or XLSX and open that.",
      "Re-export the table from the program that made it."),
+    ("read.stray_bom", "warning", "{file}: an invisible byte-order mark inside the "
+     "file{rows} was taken out (two exports pasted together?); check those rows "
+     "belong to this table.",
+     "A byte-order mark belongs only at the very start of a file; inside it, it would make "
+     "'yes' and 'yes' with an invisible mark two different answers."),
+    ("read.nul_bytes", "warning", "{file}: NUL bytes{rows} were taken out (the export "
+     "may be damaged); check those rows against the original.",
+     "A NUL byte is never part of a spreadsheet cell; export the table again if rows look "
+     "wrong."),
     ("read.line_too_long", "refused", "{file}: row {row} runs on for more than {mb} MB "
      "without a line break, so reading stopped there; the file has lost its line breaks or is "
      "not a table: save the sheet again as CSV or XLSX and open that.",
