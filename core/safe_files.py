@@ -268,6 +268,14 @@ def _refuse_constant(name: str):
     raise ValueError(f"{name} is not allowed")
 
 
+def _finite_float(text: str) -> float:
+    # A number too large for a float (1e999) would be read as infinity: refused as NaN is.
+    value = float(text)
+    if not math.isfinite(value):
+        raise ValueError(f"the number {text[:20]} is too large (infinity is not allowed)")
+    return value
+
+
 def parse_format(value) -> tuple[str, int] | None:
     """('model', 1) from 'prunella-model/1'; None if the value is not a Prunella format."""
     if not isinstance(value, str):
@@ -324,7 +332,7 @@ def read_json_document(path: str | Path, kind: str, versions: tuple[int, ...] = 
         raise InputError(say("file.not_json", file=path.name, what=what,
                              detail="it is not UTF-8 text")) from None
     try:
-        data = json.loads(text, parse_constant=_refuse_constant)
+        data = json.loads(text, parse_constant=_refuse_constant, parse_float=_finite_float)
     except json.JSONDecodeError as exc:
         detail = f"line {exc.lineno}, column {exc.colno}: {exc.msg}"
         raise InputError(say("file.not_json", file=path.name, what=what, detail=detail)) from None

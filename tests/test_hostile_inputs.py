@@ -170,3 +170,20 @@ def test_the_chart_s_small_cell_uses_the_same_table(model_file, cohort):
         refused(["chart", model_file, "--out", cohort.parent / "c.pdf", "--small-cell", value],
                 ["--small-cell", "from 0 to 1000000", "see 'prunella chart --help'"],
                 inputs=[model_file])
+
+
+# --- 4. tampered model files: an infinity written as 1e999 ---------------------------------
+
+
+@pytest.mark.parametrize("command", ["chart", "score", "check", "report"])
+def test_a_model_holding_1e999_is_refused_by_every_command(cohort, model_file, command):
+    tampered = cohort.parent / "infinite.json"
+    text = model_file.read_text(encoding="utf-8")
+    tampered.write_text(text.replace('"n_rows": ', '"n_rows": 1e999, "was": ', 1),
+                        encoding="utf-8")
+    out = cohort.parent / "out.pdf"
+    args = {"chart": ["chart", tampered, "--out", out],
+            "score": ["score", tampered, cohort, "--out", cohort.parent / "scored.csv"],
+            "check": ["check", tampered, cohort],
+            "report": ["report", tampered, cohort, "--out", out]}[command]
+    refused(args, ["infinity is not allowed", "infinite.json"], inputs=[tampered, cohort])
