@@ -112,7 +112,8 @@ def _report(args, place) -> int:
     printed = printed_date(args.date) or dt.date.today()  # told before any reading
     model = TreeModel.load(args.model)
     settings = model.extra.get("settings")
-    if not settings:
+    # Without its design (outcome and predictors) the derivation cannot be rerun either.
+    if not isinstance(settings, dict) or not isinstance(settings.get("design"), dict):
         raise InputError(say("cli.report_no_settings"))
     request = DerivationRequest.from_dict(settings)
     table = read_table(args.data, sheet=args.sheet)
