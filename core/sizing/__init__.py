@@ -8,4 +8,5 @@ __getattr__, __dir__, __all__ = lazy_face(__name__, {
     "cross_validated_path": ("cross_validate_path", "one_se_limit"),
     "request": ("DerivationRequest",),
     "derivation": ("Derivation", "choose_model", "derive"),
+    "goal_words": ("chosen_in_words",),
 })

@@ -15,6 +15,8 @@ from core.design import default_design
 from core.dictionary import CATEGORY_KINDS, PREDICTOR_KINDS, may_group_patients
 from core.messages import app_advice, app_wording, say
 from core.option_limits import spin_range
+from core.phrases import plural
+from core.sizing import chosen_in_words
 from gui.binding import Bindings
 from gui.guard_watch import GuardWatch, offered_columns
 from gui.panels.step_panel import StepPanel, side_by_side, with_tooltip
@@ -60,6 +62,8 @@ class OutcomePanel(StepPanel):
         self.watch = GuardWatch(session, parent=self)
         self.runners.append(self.watch.runner)
         session.state_changed.connect(self.refresh)  # once per change, whatever changed
+        for signal in (session.result_changed, session.chosen_changed, session.opened):
+            signal.connect(self._update_cost_words)
         session.guards_changed.connect(self.show_guards)
         self.refresh()
         self.show_guards()
@@ -106,6 +110,11 @@ class OutcomePanel(StepPanel):
         cost_row.addWidget(self.cost_spin)
         cost_row.addWidget(self.cost_after, 1)
         form.addRow(self.cost_before, cost_row)
+        # What the cost (or goal) did to the chosen tree, in clinical words (core's counts).
+        self.cost_words = QLabel()
+        self.cost_words.setWordWrap(True)
+        self.cost_words.setObjectName("cost_words")
+        form.addRow(self.cost_words)
         form.addRow("Patient number:", self.patient_combo)
         form.addRow("Site:", self.site_combo)
         box = QGroupBox("The outcome")
@@ -245,6 +254,20 @@ class OutcomePanel(StepPanel):
             widget.setVisible(two)
         self._update_marks()
         self._update_summary()
+        self._update_cost_words()
+
+    def _update_cost_words(self) -> None:
+        """The chosen tree's cross-validated catches and needless alarms, named by the
+        outcome's own levels; said to belong to the earlier tree once the choices change."""
+        chosen, text = self.session.chosen, None
+        words = chosen_in_words(chosen) if chosen is not None and self._two_classes() else None
+        if words:
+            boxes = plural(len(chosen.model.leaves), "outcome box", "outcome boxes")
+            old = "size" in self.session.stale_steps()
+            text = say("app.cost_in_words_old" if old else "app.cost_in_words", boxes=boxes,
+                       words=words)
+        self.cost_words.setText(text or "")
+        self.cost_words.setVisible(bool(text))
 
     def keep_column(self, name: str) -> None:
         """Tick a column the guards left out, on purpose (the button beside its warning)."""

@@ -19,6 +19,12 @@ ENTRIES = [
     ("app.no_demo", "refused", "The demo cohort is not installed with this copy of Prunella "
      "(it lives in sample_data/ of the source folder); open a spreadsheet instead.",
      "Install Prunella from its source folder (pip install -e .) to have the demo cohort."),
+    ("app.cost_in_words", "note", "What this means for the tree chosen in step 3 ({boxes}): "
+     "{words}", "The counts are pooled over the cross-validation folds, so they describe "
+     "patients the tree did not learn from; they change when the cost or the size changes."),
+    ("app.cost_in_words_old", "note", "For the earlier tree ({boxes}), grown before the "
+     "choices above changed: {words} Run step 3 again to see what the new choices mean.",
+     "Step 3 grows the tree for the present choices."),
     ("app.save_over_input", "refused", "That is one of your input files (the data or the "
      "project); choose another name so it stays unchanged.",
      "Prunella never writes over the files it reads; save under another name."),
