@@ -19,9 +19,10 @@ from core.chart import ChartOptions
 from core.data import LoadedTable
 from core.design import DesignSpec, default_design
 from core.design.guards import kept_on_purpose
-from core.dictionary import PREDICTOR_KINDS, DataDictionary
+from core.dictionary import CATEGORY_KINDS, PREDICTOR_KINDS, DataDictionary
 from core.project import Project, chart_options, chart_settings
 from core.sizing import CVSettings, Derivation, DerivationRequest, TreeSettings
+from core.sizing.goal import Goal
 from core.work_place import WorkPlace
 
 STEPS = ("data", "outcome", "size", "tree", "checking", "chart")
@@ -87,6 +88,7 @@ class Session(QObject):
         self.notes: tuple[str, ...] = ()  # what reading and inference had to decide
         self.serial = 0  # which file is open (a new number for each one opened)
         self.design: DesignSpec | None = None
+        self.goal: Goal | None = None  # a clinical goal sizes the tree instead of a miss cost
         # The guards of step 2 (gui/guard_watch.py): identity columns the user chose to keep
         # although they look like they identify patients, the latest result for the current
         # choices, and whether a check is under way.
@@ -248,6 +250,22 @@ class Session(QObject):
         self.dirty = True
         self._announce(self.design_changed)
 
+    def set_goal(self, goal: Goal | None) -> None:
+        """Size the tree by a clinical goal (or, with None, by the miss cost again)."""
+        if goal != self.goal:
+            self.goal, self.dirty = goal, True
+            self._announce(self.design_changed)
+
+    def two_classes(self) -> bool:
+        """Whether the outcome is a two-class one, for which a goal or a miss cost means
+        something."""
+        design, dictionary = self.design, self.dictionary
+        if design is None or dictionary is None or design.outcome not in dictionary:
+            return False
+        spec = dictionary.get(design.outcome)
+        return (design.task == "classification" and spec.kind in CATEGORY_KINDS
+                and len(spec.levels) == 2)
+
     def set_seed(self, seed: int) -> None:
         """One seed for growing and for the fold plan."""
         self.set_settings(tree=replace(self.tree, seed=seed), cv=replace(self.cv, seed=seed))
@@ -311,7 +329,8 @@ class Session(QObject):
     @staticmethod
     def _size_of(derivation: Derivation) -> str | int:
         chosen = derivation.model.chosen
-        return chosen["rule"] if chosen["rule"] in ("1se", "min") else int(chosen["leaves"])
+        return chosen["rule"] if chosen["rule"] in ("1se", "min", "goal") \
+            else int(chosen["leaves"])
 
     @property
     def model(self):
@@ -374,8 +393,9 @@ class Session(QObject):
         """The request a Run would send now, or None while the outcome step is incomplete."""
         if self.design is None or not self.design.outcome or not self.design.predictors:
             return None
+        goal = self.goal if self.two_classes() else None
         return DerivationRequest(design=self.design, tree=self.tree, cv=self.cv,
-                                 holdout=self.holdout or None, size="1se")
+                                 holdout=self.holdout or None, size="1se", goal=goal)
 
     def is_stale(self) -> bool:
         """True when the shown result came from other data or other choices than the current."""
@@ -425,7 +445,7 @@ class Session(QObject):
         request = project.request
         if request is not None:
             self.design, self.tree, self.cv = request.design, request.tree, request.cv
-            self.holdout = request.holdout
+            self.holdout, self.goal = request.holdout, request.goal
         else:
             self.tree, self.cv, self.holdout = TreeSettings(), CVSettings(), None
         # The saved predictors were the user's choices: any identity-like column among them was

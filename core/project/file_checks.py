@@ -15,6 +15,7 @@ from ..messages.message import say
 from ..option_limits import allowed, problem_with
 from ..safe_files import is_finite_number, is_whole_number
 from ..sizing.folds import PLANS
+from ..sizing.goal import MEASURES as GOAL_MEASURES
 from ..sizing.grow import CLASSIFICATION_CRITERIA, REGRESSION_CRITERIA, RISKS
 
 
@@ -101,7 +102,7 @@ def check_project_document(data: dict, file: str = "The project") -> None:
     if request is not None:
         _check_request(request)
     size = data.get("size", "1se")
-    if not (size in ("1se", "min") or allowed("size", size)):
+    if not (size in ("1se", "min", "goal") or allowed("size", size)):
         top.fail("size", "it must be '1se', 'min' or a whole number of outcome boxes")
     top.limited("seed")
     chart = top.object("chart")
@@ -156,5 +157,10 @@ def _check_request(request: _Checker) -> None:
         cv.limited("seed")
     request.limited("holdout")
     size = request.data.get("size", "1se")
-    if not (size in ("1se", "min") or allowed("size", size)):
-        request.fail("size", "it must be '1se', 'min' or a whole number of outcome boxes")
+    if not (size in ("1se", "min", "goal") or allowed("size", size)):
+        request.fail("size", "it must be '1se', 'min', 'goal' or a whole number of outcome "
+                     "boxes")
+    goal = request.object("goal")
+    if goal is not None:
+        goal.text("measure", optional=False, choices=GOAL_MEASURES)
+        goal.limited("at_least", "goal")

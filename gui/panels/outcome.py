@@ -7,7 +7,7 @@ from dataclasses import replace
 
 from PySide6.QtCore import Qt
 from PySide6.QtWidgets import (
-    QComboBox, QDoubleSpinBox, QFormLayout, QGroupBox, QHBoxLayout, QLabel,
+    QComboBox, QDoubleSpinBox, QFormLayout, QGroupBox, QHBoxLayout, QLabel, QSpinBox,
     QVBoxLayout, QWidget,
 )
 
@@ -17,6 +17,7 @@ from core.messages import app_advice, app_wording, say
 from core.option_limits import spin_range
 from core.phrases import plural
 from core.sizing import chosen_in_words
+from core.sizing.goal import Goal
 from gui.binding import Bindings
 from gui.guard_watch import GuardWatch, offered_columns
 from gui.panels.step_panel import StepPanel, side_by_side, with_tooltip
@@ -90,6 +91,21 @@ class OutcomePanel(StepPanel):
         self.cost_spin.setSuffix(" times")
         self.cost_before = QLabel()
         self.cost_before.setWordWrap(True)
+        # A clinical goal instead of a guessed cost: core searches the costs for the smallest
+        # tree whose cross-validated sensitivity (or specificity) reaches it.
+        self.sizing_label = QLabel("Size the tree by:")
+        self.goal_combo = with_tooltip(QComboBox(), "A miss cost you set, or a clinical goal: "
+                                       "Prunella then tries a range of miss costs and keeps the "
+                                       "smallest tree whose cross-validated catch rate "
+                                       "(sensitivity) or spare rate (specificity) reaches it.")
+        self.goal_spin = with_tooltip(QSpinBox(), "The least share the tree must reach under "
+                                      "cross-validation.")
+        low, high = spin_range("goal")
+        self.goal_spin.setRange(max(1, int(round(low * 100)) + 1),
+                                min(99, int(round(high * 100)) - 1))
+        self.goal_spin.setValue(95)
+        self.goal_spin.setSuffix(" %")
+        self.goal_spin.setPrefix("at least ")
         self.cost_after = QLabel("as bad as a needless alarm")
         self.patient_combo = with_tooltip(QComboBox(), "The column that identifies the patient, "
                                           "so that a patient's repeat visits are kept together "
@@ -109,6 +125,10 @@ class OutcomePanel(StepPanel):
         cost_row = QHBoxLayout()
         cost_row.addWidget(self.cost_spin)
         cost_row.addWidget(self.cost_after, 1)
+        goal_row = QHBoxLayout()
+        goal_row.addWidget(self.goal_combo, 1)
+        goal_row.addWidget(self.goal_spin)
+        form.addRow(self.sizing_label, goal_row)
         form.addRow(self.cost_before, cost_row)
         # What the cost (or goal) did to the chosen tree, in clinical words (core's counts).
         self.cost_words = QLabel()
@@ -153,6 +173,10 @@ class OutcomePanel(StepPanel):
         bind(self.positive_combo, lambda: design().positive if design() else None,
              lambda level: self._change(positive=level), self._positive_choices)
         bind(self.cost_spin, lambda: s.tree.miss_cost or 1.0, self._cost_chosen)
+        bind(self.goal_combo, lambda: s.goal.measure if s.goal else "cost", self._goal_chosen,
+             self._goal_choices)
+        bind(self.goal_spin, lambda: round((s.goal.at_least if s.goal else 0.95) * 100),
+             self._goal_share_chosen)
         bind(self.patient_combo, lambda: (design().patient_id if design()
                                           else self._dictionary_role("patient_id")) or NONE,
              lambda name: self._role_chosen("patient_id", name),
@@ -242,6 +266,22 @@ class OutcomePanel(StepPanel):
         cost = None if abs(value - 1.0) < 1e-9 else float(value)
         self.session.set_settings(tree=replace(self.session.tree, miss_cost=cost))
 
+    def _goal_choices(self) -> tuple:
+        positive = (self.session.design.positive if self.session.design else None) or "yes"
+        return (("the miss cost below", "cost"),
+                (f"a goal: catch patients with “{positive}” (rule out)", "sensitivity"),
+                (f"a goal: spare patients without “{positive}” the test (rule in)",
+                 "specificity"))
+
+    def _goal_chosen(self, measure: str) -> None:
+        share = self.goal_spin.value() / 100
+        self.session.set_goal(None if measure == "cost" else Goal(measure, share))
+
+    def _goal_share_chosen(self, percent: int) -> None:
+        goal = self.session.goal
+        if goal is not None:
+            self.session.set_goal(Goal(goal.measure, percent / 100))
+
     def refresh(self) -> None:
         """Show the session's choices (the widgets are filled by their bindings)."""
         self.bindings.show()
@@ -250,8 +290,13 @@ class OutcomePanel(StepPanel):
             self.cost_before.setText(f"Missing a patient with “{self.session.design.positive}” "
                                      "is:")
         for widget in (self.positive_label, self.positive_combo, self.cost_before,
-                       self.cost_spin, self.cost_after):
+                       self.cost_spin, self.cost_after, self.sizing_label, self.goal_combo,
+                       self.goal_spin):
             widget.setVisible(two)
+        by_goal = self.session.goal is not None
+        self.goal_spin.setEnabled(by_goal)
+        for widget in (self.cost_before, self.cost_spin, self.cost_after):
+            widget.setEnabled(not by_goal)  # the goal search tries the costs itself
         self._update_marks()
         self._update_summary()
         self._update_cost_words()

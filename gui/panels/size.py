@@ -20,6 +20,7 @@ from core.messages import say
 from core.option_limits import spin_range
 from core.phrases import plural
 from core.sizing import choose_model, derive
+from core.sizing.goal_words import goal_text
 from gui.binding import Bindings
 from gui.panels.step_panel import Banner, StepPanel, scrolling, side_by_side, with_tooltip
 from gui.panels.wording import SIZE_RULES, errors_beside, size_choice, with_advice
@@ -513,7 +514,8 @@ class SizePanel(StepPanel):
         self.choice.setText(
             f"<b>Chosen: {plural(chosen['leaves'], 'outcome box', 'outcome boxes')}</b> "
             f"({SIZE_RULES[chosen['rule']]}). "
-            f"{errors_beside(chosen, sentence=True)}. Checked by {model.path['cv']}.")
+            f"{errors_beside(chosen, sentence=True)}. Checked by {model.path['cv']}."
+            + (f" {escape(goal_text(chosen))}" if chosen.get("goal") else ""))
 
     def choose_size(self, leaves: int) -> None:
         """Take another size from the same run (no refit): the tree view updates at once."""
