@@ -136,3 +136,56 @@ def test_a_few_nul_bytes_are_taken_out_naming_their_lines_and_many_mean_not_a_ta
     binary.write_bytes(csv_text(HEADER, base_rows(40)).encode("utf-8").replace(b",", b",\x00"))
     refused(["fit", binary, "--outcome", "admitted", "--model", tmp_path / "m.json"],
             ["binary.csv"], inputs=[binary])
+
+
+# --- item 9: data that fool the reader quietly -------------------------------------------------
+
+
+def _pasted_exports(path: Path, bom_on_second: bool = False) -> None:
+    """Two exports pasted one below the other: the second brings its header row along."""
+    first = csv_text(HEADER, base_rows(70))
+    second = csv_text(HEADER, base_rows(50, seed=4))
+    if bom_on_second:
+        second = "\ufeff" + second
+    path.write_text(first + second, encoding="utf-8")
+
+
+def test_a_header_row_repeated_inside_the_file_is_left_out_with_a_note(tmp_path):
+    data = tmp_path / "two_exports.csv"
+    _pasted_exports(data)
+    table = read_table(data)
+    assert len(table.frame) == 120
+    note = next(w for w in table.provenance.warnings if "repeating the column names" in w)
+    assert "1 row(s)" in note and "(row 72)" in note
+    # The columns are numbers again, as they are without the pasted header.
+    assert str(table.frame["age"].dtype).startswith(("int", "float"))
+    assert set(table.frame["admitted"]) == {"yes", "no"}
+    stderr = loads(data)
+    assert "repeating the column names (row 72)" in stderr
+
+
+def test_a_repeated_header_with_its_own_byte_order_mark_is_left_out_too(tmp_path):
+    data = tmp_path / "two_exports_bom.csv"
+    _pasted_exports(data, bom_on_second=True)
+    table = read_table(data)
+    assert len(table.frame) == 120 and set(table.frame["admitted"]) == {"yes", "no"}
+    warnings = " ".join(table.provenance.warnings)
+    assert "byte-order mark" in warnings
+    assert "repeating the column names (row 72)" in warnings
+
+
+def test_a_repeated_header_row_in_a_workbook_is_left_out(tmp_path):
+    from tests.test_bad_inputs import workbook
+
+    book = tmp_path / "visits.xlsx"
+    workbook(book, {"Visits": [HEADER] + base_rows(30) + [HEADER] + base_rows(20, seed=2)})
+    table = read_table(book)
+    assert len(table.frame) == 50
+    assert any("repeating the column names (row 32)" in w for w in table.provenance.warnings)
+
+
+def test_a_file_full_of_nul_bytes_is_still_refused_as_binary(tmp_path):
+    data = tmp_path / "utf16_without_mark.csv"
+    data.write_bytes(csv_text(HEADER, base_rows(40)).encode("utf-16-le"))
+    refused(["fit", data, "--outcome", "admitted", "--model", tmp_path / "m.json"],
+            ["binary data"], inputs=[data])

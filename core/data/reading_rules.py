@@ -111,6 +111,12 @@ def tidy(frame: pd.DataFrame, header: list, rows: np.ndarray, where: str,
     dropped = set(drop)
     kept = [j for j in range(len(names)) if j not in dropped]
     names = [names[j] for j in kept]
+    repeated = _repeated_header_rows(frame, names)
+    if repeated.any():
+        frame = _numbers_again(frame.loc[~repeated])
+        warnings.append(say("read.repeated_header", n=int(repeated.sum()), where=where,
+                            rows=rows_phrase(rows[repeated])))
+        rows = rows[~repeated]
     blank_rows = frame.isna().all(axis=1).to_numpy()
     if blank_rows.any():
         frame = frame.loc[~blank_rows]
@@ -143,6 +149,56 @@ def tidy(frame: pd.DataFrame, header: list, rows: np.ndarray, where: str,
     if len(frame) == 0:
         raise InputError(say("read.header_only", where=where))
     return frame, np.asarray(rows, dtype=np.int64), warnings
+
+
+def _header_text(value) -> str:
+    return clean_header(str(value).replace("\ufeff", "")) if isinstance(value, str) else \
+        clean_header(value)
+
+
+def _is_text(column: pd.Series) -> bool:
+    return column.dtype == object or pd.api.types.is_string_dtype(column.dtype)
+
+
+def _repeated_header_rows(frame: pd.DataFrame, names: list[str]) -> np.ndarray:
+    """Rows that repeat the column names (two exports pasted one below the other): every
+    filled cell is its column's name, and at least half the named columns are filled."""
+    named = [j for j, n in enumerate(names) if n and not _NUMBERISH.match(n)]
+    text_columns = [j for j in named if _is_text(frame[j])]
+    hit = np.zeros(len(frame), dtype=bool)
+    if not text_columns or len(frame) == 0:
+        return hit
+    # Only rows whose first text column holds its name are looked at further (cheap: one
+    # comparison per distinct cell of one column).
+    first = text_columns[0]
+    codes, uniques = pd.factorize(frame[first])
+    same = np.array([_header_text(u) == names[first] for u in uniques] + [False])
+    candidates = np.flatnonzero(same[codes])
+    if len(candidates) == 0:
+        return hit
+    part = frame.iloc[candidates]
+    matches = np.zeros(len(part), dtype=int)
+    for j in named:
+        matches += np.array([_header_text(v) == names[j] for v in part[j]], dtype=int)
+    filled = part.notna().sum(axis=1).to_numpy()
+    hit[candidates] = (matches == filled) & (matches >= max(1, int(np.ceil(0.5 * len(named)))))
+    return hit
+
+
+def _numbers_again(frame: pd.DataFrame) -> pd.DataFrame:
+    """Columns that held text only because a repeated header row was among them become
+    numbers again, as they would have been read without it."""
+    frame = frame.copy()
+    for j in frame.columns:
+        column = frame[j]
+        if not _is_text(column):
+            continue
+        numbers = pd.to_numeric(column, errors="coerce")
+        if int(numbers.notna().sum()) == int(column.notna().sum()) and column.notna().any():
+            frame[j] = numbers
+        else:
+            frame[j] = column.infer_objects()
+    return frame
 
 
 def first_line(exc: Exception) -> str:

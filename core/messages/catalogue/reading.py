@@ -72,6 +72,11 @@ ENTRIES = [
     ("read.unparseable", "refused", "{file} could not be read as a table ({detail}); save "
      "the sheet again as CSV (UTF-8) or XLSX and open that.",
      "Re-export the table from the program that made it."),
+    ("read.repeated_header", "warning", "{where}: {n} row(s) repeating the column names{rows} "
+     "were left out (two exports pasted together?); check that the rows below them belong to "
+     "this table.",
+     "A copy of the header row inside the table would be read as a patient; if the rows "
+     "below it come from another export, check they use the same columns."),
     ("read.stray_bom", "warning", "{file}: an invisible byte-order mark inside the "
      "file{rows} was taken out (two exports pasted together?); check those rows "
      "belong to this table.",
