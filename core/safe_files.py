@@ -199,7 +199,7 @@ def _is_stale(entry: os.DirEntry, writer: int) -> bool:
 
 def _process_running(pid: int) -> bool:
     if pid == os.getpid():
-        return False  # this process holds a lock on every temporary file it is writing
+        return True  # one of our own saves may be between creating its file and locking it
     try:
         os.kill(pid, 0)
     except ProcessLookupError:

@@ -13,6 +13,7 @@ from .. import __version__
 from ..errors import Cancelled, InputError
 from ..messages.message import say
 from ..phrases import METHOD_NAME
+from ..safe_files import save_notes
 from . import chart, checking, fit
 from .arguments import EXIT_BAD_INPUT, Parser
 
@@ -49,7 +50,8 @@ def main(argv: list[str] | None = None) -> int:
         parser.subcommands[args.command].error(
             say("cli.unknown_arguments", arguments=" ".join(unknown)))
     try:
-        return _RUN[args.command](args)
+        with save_notes(lambda note: print(f"note: {note}", file=sys.stderr)):
+            return _RUN[args.command](args)
     except InputError as exc:
         print(f"prunella: {exc}", file=sys.stderr)
         return EXIT_BAD_INPUT
