@@ -155,5 +155,7 @@ def test_the_report_prints_the_intervals_and_the_resample_count(ward):
     words = " ".join(" ".join(p.extract_text() for p in
                               PdfReader(io.BytesIO(render_report(contents))).pages).split())
     m = external.measures
-    assert f"{m.rmse_interval[0]:.3g}–{m.rmse_interval[1]:.3g}" in words
+    # Stays are recorded in whole days: the interval has one decimal more, not three figures.
+    assert m.decimals == 0
+    assert f"{m.rmse_interval[0]:.1f}–{m.rmse_interval[1]:.1f}" in words
     assert f"bootstrap, {INTERVAL_RESAMPLES} resamples of whole patients" in words

@@ -11,6 +11,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
+from ..precision import summary_number
 from ..model.tree import Node, TreeModel
 from .style import BandStyle, band_style, class_style
 
@@ -60,15 +61,10 @@ def percent(value: float) -> str:
     return f"{pct:.0f}%"
 
 
-def number(value: float, unit: str = "") -> str:
-    """A mean as printed: three significant digits, thousands separated, with its unit."""
-    if not math.isfinite(value):
-        return "–"
-    digits = max(0, 2 - int(math.floor(math.log10(abs(value))))) if value else 0
-    text = f"{value:,.{min(digits, 3)}f}".replace("-", "−")  # a true minus sign
-    if unit:
-        text += unit if unit in ("%", "°C", "°F", "°") else f" {unit}"
-    return text
+def number(value: float, unit: str = "", data_decimals: int | None = None) -> str:
+    """A mean, quartile or limit as printed: to the data's precision (``data_decimals``, the
+    decimals the outcome was recorded with; see :mod:`core.precision`), with its unit."""
+    return summary_number(value, data_decimals, unit)
 
 
 def rate_phrase(model: TreeModel) -> str:
@@ -97,7 +93,7 @@ def banding(model: TreeModel, cuts: tuple[float, ...] | None = None,
     unit = model.outcome.unit if regression else ""
 
     def show(v: float) -> str:
-        return number(v, unit) if regression else percent(v)
+        return number(v, unit, model.outcome_decimals) if regression else percent(v)
 
     what = "mean" if regression else "rate"
     if cuts:

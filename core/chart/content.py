@@ -11,6 +11,7 @@ from dataclasses import dataclass
 from .. import __version__
 from ..cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER, UNCHECKED_DETAIL
 from ..checking.intervals import as_percent
+from ..precision import summary_number
 from ..model.tree import ANSWERS, MEASURE_FIRST, Node, TreeModel, answer_verb
 from ..phrases import plural, short_fingerprint
 from .bands import Band, Banding, banding, number, percent, rate_phrase
@@ -85,12 +86,15 @@ def outcome_paras(model: TreeModel, node: Node, options: ChartOptions,
     changes in one place."""
     if model.task == "regression":
         low, high = model.mean_interval(node)
-        paras = [Para(f"Mean {number(float(node.mean), model.outcome.unit)}", bold=True),
-                 Para(f"CI {span(number(low), number(high))}", keep=True)]
+        places = model.outcome_decimals  # no more precise than the outcome was recorded
+        paras = [Para(f"Mean {number(float(node.mean), model.outcome.unit, places)}", bold=True),
+                 Para(f"CI {span(number(low, '', places), number(high, '', places))}",
+                      keep=True)]
         if node.quartiles is not None:
             # The interval of the mean is not the range for one patient: the middle half of
             # the box's patients, with their count in the same short line.
-            middle = span(number(node.quartiles[0]), number(node.quartiles[1]))
+            middle = span(number(node.quartiles[0], "", places),
+                          number(node.quartiles[1], "", places))
             paras.append(Para(f"IQR {middle}", keep=True))
         if not options.hide_counts:
             paras.append(Para(_count(node.n, model), keep=True))
@@ -199,8 +203,8 @@ def _is_error_rate(model: TreeModel) -> bool:
 
 
 def _risk(model: TreeModel, value: float) -> str:
-    if model.task == "regression":
-        return f"{value:,.4g}"
+    if model.task == "regression":  # in the unit squared, to the squares' precision
+        return summary_number(value, model.outcome_decimals, power=2)
     return f"{100 * value:.1f}%" if _is_error_rate(model) else f"{value:.3f}"
 
 
@@ -232,7 +236,8 @@ def _performance(model: TreeModel) -> PanelSection:
     if model.task == "regression":
         name = "mean squared error"
         unit = f" {model.outcome.unit}" if model.outcome.unit else ""
-        extra = f" (root {number(math.sqrt(max(chosen['cv_risk'], 0)))}{unit})"
+        root = math.sqrt(max(chosen['cv_risk'], 0))
+        extra = f" (root {number(root, '', model.outcome_decimals)}{unit})"
         about = ""
     elif _is_error_rate(model):
         name, extra, about = "error rate", "", ""
@@ -269,7 +274,7 @@ def _cohort(model: TreeModel) -> PanelSection:
             f"{c} {percent(k / total)}" for c, k in counts.items()) + "."))
     elif cohort.get("outcome_mean") is not None:
         items.append(PanelItem(f"Mean {model.outcome.display.lower()}: "
-                               f"{number(cohort['outcome_mean'], model.outcome.unit)}."))
+                               f"{number(cohort['outcome_mean'], model.outcome.unit, model.outcome_decimals)}."))
     data = model.extra.get("data", {})
     if data.get("file"):
         items.append(PanelItem(f"Data file: {data['file']}."))

@@ -20,6 +20,7 @@ from .bootstrap_intervals import (
     BootstrapPlan, Interval, brier_interval, interval_text, plan_for, regression_intervals,
 )
 from .intervals import LEVEL, Proportion, as_percent, mean_interval, normal_quantile, proportion
+from ..precision import summary_number
 from .net_benefit import NetBenefitPoint, net_benefit
 
 NET_BENEFIT_ROWS = (0.05, 0.1, 0.2)  # the thresholds listed among the measures' rows
@@ -125,14 +126,23 @@ class CalibrationRow:
     high: float | None
     agrees: bool | None  # derivation value inside the observed interval
 
-    def observed_text(self, percent: bool = True) -> str:
+    def observed_text(self, percent: bool = True, decimals: int | None = None) -> str:
+        """The new patients' rate (or mean, to the precision of an outcome recorded with
+        ``decimals`` decimals) with its 95% interval."""
         if self.observed is None:
             return "no patients"
         if percent:
             return f"{as_percent(self.observed)} ({as_percent(self.low, False)}–{as_percent(self.high)})"
         if self.low is None:
-            return f"{self.observed:.3g} (one patient)"
-        return f"{self.observed:.3g} ({self.low:.3g} to {self.high:.3g})"
+            return f"{summary_number(self.observed, decimals)} (one patient)"
+        return (f"{summary_number(self.observed, decimals)} ({summary_number(self.low, decimals)}"
+                f" to {summary_number(self.high, decimals)})")
+
+    def derivation_text(self, percent: bool = True, decimals: int | None = None) -> str:
+        """The derivation rate (whole percent) or mean (to the outcome's precision)."""
+        if percent:
+            return f"{self.derivation_value:.0%}"
+        return summary_number(self.derivation_value, decimals)
 
 
 # --- classification ---------------------------------------------------------------------------
@@ -326,22 +336,31 @@ class RegressionMeasures:
     mae_interval: Interval = None
     r2_interval: Interval = None
     intervals: BootstrapPlan | None = None
+    decimals: int | None = None  # the outcome's recorded decimals, which the errors follow
+
+    def number(self, value: float, with_unit: bool = False) -> str:
+        """An error in the outcome's unit, to the outcome's precision (core/precision.py)."""
+        return summary_number(value, self.decimals, self.unit if with_unit else "")
+
+    def _error(self, value: float, interval: Interval) -> str:
+        text = self.number(value, with_unit=True)
+        if interval is None:
+            return text
+        low, high = interval
+        dash = " to " if low < 0 or high < 0 else "–"  # a dash beside a minus sign misreads
+        return f"{text} ({self.number(low)}{dash}{self.number(high)})"
 
     def summary(self) -> str:
-        unit = f" {self.unit}" if self.unit else ""
-        return (f"RMSE {self.rmse:.3g}{unit}{interval_text(self.rmse_interval, '.3g')}, "
-                f"MAE {self.mae:.3g}{unit}{interval_text(self.mae_interval, '.3g')}, "
+        return (f"RMSE {self._error(self.rmse, self.rmse_interval)}, "
+                f"MAE {self._error(self.mae, self.mae_interval)}, "
                 f"R² {self.r2:.2f}{interval_text(self.r2_interval, '.2f')} ({self.n} patients)")
 
     def rows(self) -> list[tuple[str, str]]:
-        unit = f" {self.unit}" if self.unit else ""
         lines = [("Patients", str(self.n)),
-                 ("Root mean squared error",
-                  f"{self.rmse:.3g}{unit}{interval_text(self.rmse_interval, '.3g')}"),
-                 ("Mean absolute error",
-                  f"{self.mae:.3g}{unit}{interval_text(self.mae_interval, '.3g')}"),
+                 ("Root mean squared error", self._error(self.rmse, self.rmse_interval)),
+                 ("Mean absolute error", self._error(self.mae, self.mae_interval)),
                  ("R²", f"{self.r2:.3f}{interval_text(self.r2_interval, '.3f')}"),
-                 ("Mean of observed − predicted", f"{self.mean_error:.3g}{unit}")]
+                 ("Mean of observed − predicted", self.number(self.mean_error, with_unit=True))]
         if self.intervals is not None:
             lines.append(("Intervals of RMSE, MAE and R²", self.intervals.text()))
         return lines
@@ -349,10 +368,12 @@ class RegressionMeasures:
 
 def regression_measures(y: np.ndarray, predicted: np.ndarray, leaves: np.ndarray | None = None,
                         boxes: tuple[DerivationBox, ...] = (), label: str = "",
-                        unit: str = "", groups: np.ndarray | None = None) -> RegressionMeasures:
+                        unit: str = "", groups: np.ndarray | None = None,
+                        decimals: int | None = None) -> RegressionMeasures:
     """RMSE, MAE and R² (scikit-learn) with bootstrap intervals (whole patients when
     ``groups`` gives their codes), and per box the derivation mean against the observed mean
-    with its Student-t 95% interval."""
+    with its Student-t 95% interval; the errors print to ``decimals``, the outcome's recorded
+    decimals (core/precision.py)."""
     from sklearn.metrics import mean_absolute_error, mean_squared_error, r2_score
 
     y = np.asarray(y, dtype=float)
@@ -384,7 +405,7 @@ def regression_measures(y: np.ndarray, predicted: np.ndarray, leaves: np.ndarray
     spread = regression_intervals(y, predicted, groups, plan)
     return RegressionMeasures(n, rmse, mae, r2, bias, tuple(rows), unit,
                               rmse_interval=spread.rmse, mae_interval=spread.mae,
-                              r2_interval=spread.r2, intervals=plan)
+                              r2_interval=spread.r2, intervals=plan, decimals=decimals)
 
 
 Measures = ClassificationMeasures | RegressionMeasures

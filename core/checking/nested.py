@@ -17,6 +17,7 @@ from joblib import Parallel, delayed
 
 from ..design.analysis import AnalysisData
 from ..errors import InputError
+from ..precision import decimals_observed
 from ..messages.message import say
 from ..option_limits import check_request_limits, check_setting
 from ..phrases import plural
@@ -149,7 +150,8 @@ def nested_cross_validate(data: AnalysisData, request: DerivationRequest,
         risk_measure = "expected misclassification cost per patient"
     else:
         measures = regression_measures(data.y, predicted, label=data.outcome.display,
-                                       unit=data.outcome.unit, groups=data.groups)
+                                       unit=data.outcome.unit, groups=data.groups,
+                                       decimals=decimals_observed(data.y))
         risk_measure = "mean squared error"
     grouped = outer.grouped and data.groups is not None
     description = f"{outer.describe(grouped)} outside; {request.cv.describe(grouped)} inside"

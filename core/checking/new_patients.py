@@ -173,10 +173,11 @@ class CheckResult:
             lines += ["", f"Calibration by outcome box (derivation {what} against the observed "
                       f"{what} with its 95% interval)"]
             for r in m.calibration:
-                derived = f"{r.derivation_value:.0%}" if percent else f"{r.derivation_value:.3g}"
+                places = getattr(m, "decimals", None)
+                derived = r.derivation_text(percent, places)
                 flag = {True: "", False: "  <- outside", None: ""}[r.agrees]
                 lines.append(f"  box {r.box:>3} {r.label:<14} derivation {derived:>6} of "
-                             f"{r.derivation_n:<5} new {r.observed_text(percent)} of {r.n}{flag}")
+                             f"{r.derivation_n:<5} new {r.observed_text(percent, places)} of {r.n}{flag}")
         return "\n".join(lines)
 
 
@@ -231,7 +232,7 @@ def measure_model(model: TreeModel, y: np.ndarray, leaves: np.ndarray,
     if model.task == "regression":
         return regression_measures(y, model.predictions(leaves), leaves, boxes,
                                    label=model.outcome.display, unit=model.outcome.unit,
-                                   groups=groups)
+                                   groups=groups, decimals=model.outcome_decimals)
     k = len(model.classes)
     share = np.zeros((len(model.nodes) + 1, k))
     label = np.zeros(len(model.nodes) + 1, dtype=np.int64)

@@ -21,6 +21,7 @@ from ..errors import InputError
 from ..messages.message import distinct_messages, kind_of, say
 from ..model.tree import TreeModel
 from ..phrases import plural
+from ..precision import summary_number
 from ..safe_files import check_outputs, write_csv_safely, write_text_atomic
 from ..option_limits import check_setting, option_type
 from .arguments import (DICTIONARY_HELP, add_work_options, csv_list, dictionary_path, size_option,
@@ -259,10 +260,12 @@ def summary_text(derivation: Derivation) -> str:
     if model.task == "regression":
         # A mean squared error is in the unit squared: its root reads in the outcome's unit,
         # as a held-out RMSE does.
-        unit = f" {model.outcome.unit}" if model.outcome.unit else ""
-        in_unit = (f" Root of the cross-validated error: {math.sqrt(max(chosen['cv_risk'], 0)):.3g}"
-                   f"{unit} (training {math.sqrt(max(chosen['train_risk'], 0)):.3g}{unit}),"
-                   " comparable with a held-out RMSE.")
+        def root(error: float) -> str:  # in the unit, to the outcome's precision
+            return summary_number(math.sqrt(max(error, 0)), model.outcome_decimals,
+                                  model.outcome.unit)
+
+        in_unit = (f" Root of the cross-validated error: {root(chosen['cv_risk'])} (training "
+                   f"{root(chosen['train_risk'])}), comparable with a held-out RMSE.")
     lines += ["", f"Chosen: {boxes} ({RULE_WORDS.get(chosen['rule'], chosen['rule'])}), "
               f"cross-validated error {chosen['cv_risk']:.4f} ± {chosen['cv_se']:.4f} "
               f"(training error {chosen['train_risk']:.4f}, optimistic).{in_unit}",

@@ -12,6 +12,7 @@ import numpy as np
 import pandas as pd
 
 from ..checking.intervals import wilson_interval
+from ..precision import summary_number
 from .tree import Step, TreeModel
 
 
@@ -42,6 +43,13 @@ class BoxDetails:
     mean_low: float | None = None
     mean_high: float | None = None
     quartiles: tuple[float, float] | None = None  # regression: the middle half of the patients
+    decimals: int | None = None  # regression: the decimals the outcome was recorded with
+    unit: str = ""
+
+    def number(self, value: float, with_unit: bool = False) -> str:
+        """A mean, SD, interval end or quartile as the app prints it: to the outcome's
+        precision (core/precision.py), with the unit when asked."""
+        return summary_number(value, self.decimals, self.unit if with_unit else "")
 
 
 def box_details(model: TreeModel, box: int) -> BoxDetails:
@@ -52,7 +60,8 @@ def box_details(model: TreeModel, box: int) -> BoxDetails:
     if model.task == "regression":
         low, high = model.mean_interval(node)
         return BoxDetails(mean=float(node.mean), sd=float(node.sd or 0.0), mean_low=low,
-                          mean_high=high, quartiles=node.quartiles, **common)
+                          mean_high=high, quartiles=node.quartiles,
+                          decimals=model.outcome_decimals, unit=model.outcome.unit, **common)
     shares = []
     for label, count in zip(model.classes, node.counts):
         low, high = wilson_interval(int(count), node.n)

@@ -24,6 +24,7 @@ from ..messages.message import say
 from ..phrases import names_phrase, short_fingerprint
 from ..safe_files import check_format, read_json_document, write_text_atomic
 from .file_checks import check_model_document
+from ..precision import MAX_DECIMALS, summary_number
 from .thresholds import format_number
 
 MODEL_FORMAT = "prunella-model/1"
@@ -139,12 +140,13 @@ def answer_verb(counts: tuple[int, ...], classes: tuple[str, ...], prediction) -
 
 
 def expected_outcome(outcome: ColumnSpec, task: str, prediction, mean: float | None,
-                     counts: tuple[int, ...] = (), classes: tuple[str, ...] = ()) -> str:
+                     counts: tuple[int, ...] = (), classes: tuple[str, ...] = (),
+                     decimals: int | None = None) -> str:
     """A box's expected outcome in words, without its counts: 'Admitted: expect yes',
-    'Fell: treat as fell' (see :func:`answer_verb`), 'Length of stay: mean 31.2 h'."""
+    'Fell: treat as fell' (see :func:`answer_verb`), 'Length of stay: mean 31.2 h' (to the
+    precision of an outcome recorded with ``decimals`` decimals)."""
     if task == "regression":
-        unit = f" {outcome.unit}" if outcome.unit else ""
-        return f"{outcome.display}: mean {mean:.3g}{unit}"
+        return f"{outcome.display}: mean {summary_number(float(mean), decimals, outcome.unit)}"
     return f"{outcome.display}: {answer_verb(counts, classes, prediction)} {prediction}"
 
 
@@ -287,7 +289,18 @@ class TreeModel:
     def expected_outcome(self, node: Node) -> str:
         """A box's expected outcome in words, without its counts (see :func:`expected_outcome`)."""
         return expected_outcome(self.outcome, self.task, node.prediction, node.mean,
-                                node.counts, self.classes)
+                                node.counts, self.classes, self.outcome_decimals)
+
+    @property
+    def outcome_decimals(self) -> int | None:
+        """The decimals the outcome was recorded with (regression; ``cohort.outcome_decimals``),
+        which every printed mean, quartile, interval and error follows (core/precision.py).
+        None for a file written before it was recorded: three significant figures, as then."""
+        cohort = self.extra.get("cohort")
+        value = cohort.get("outcome_decimals") if isinstance(cohort, dict) else None
+        if isinstance(value, int) and not isinstance(value, bool) and 0 <= value <= MAX_DECIMALS:
+            return value
+        return None
 
     @property
     def better_than_no_tree(self) -> bool:

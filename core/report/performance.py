@@ -13,6 +13,7 @@ from ..checking.intervals import as_percent
 from ..checking.metrics import ClassificationMeasures, Measures
 from ..checking.nested import NestedResult
 from ..checking.new_patients import CheckResult, training_measures
+from ..precision import summary_number
 from .figures import (DECISION_CURVE_READING, calibration_figure, decision_curve_figure,
                       roc_figure)
 from .section_numbers import section
@@ -41,7 +42,7 @@ def _perf_row(name: str, basis: str, n: int, m: Measures | None, risk: str, s: S
                     head.specificity.text(), auc]
         return [first, f"{n:,}", risk, m.accuracy.text(),
                 f"{m.auc_macro:.2f}" if m.auc_macro is not None else "–"]
-    return [first, f"{n:,}", risk, f"{m.rmse:.3g}", f"{m.mae:.3g}", f"{m.r2:.2f}"]
+    return [first, f"{n:,}", risk, m.number(m.rmse), m.number(m.mae), f"{m.r2:.2f}"]
 
 
 def _cv_row(model, risk: str, s: Styles) -> list:
@@ -54,7 +55,8 @@ def _cv_row(model, risk: str, s: Styles) -> list:
     path, leaves = model.path, model.chosen.get("leaves")
     k = path["leaves"].index(leaves) if leaves in path.get("leaves", ()) else None
     if model.task == "regression":
-        row[3] = f"{math.sqrt(max(model.chosen['cv_risk'], 0.0)):.3g}"
+        row[3] = summary_number(math.sqrt(max(model.chosen['cv_risk'], 0.0)),
+                                model.outcome_decimals)
         return row
     if k is None or "cv_sensitivity" not in path:
         return row
@@ -189,9 +191,9 @@ def _check_detail(check: CheckResult, number: str, s: Styles) -> list:
         rows = [["Box", "Rate of" if percent else "Outcome", f"Derivation {what}",
                  "Derivation patients", f"Observed {what} (95% CI)", "New patients", "Agrees"]]
         for r in m.calibration:
-            derived = f"{r.derivation_value:.0%}" if percent else f"{r.derivation_value:.3g}"
-            rows.append([str(r.box), r.label, derived, f"{r.derivation_n:,}",
-                         r.observed_text(percent), f"{r.n:,}",
+            places = getattr(m, "decimals", None)
+            rows.append([str(r.box), r.label, r.derivation_text(percent, places),
+                         f"{r.derivation_n:,}", r.observed_text(percent, places), f"{r.n:,}",
                          {True: "yes", False: "NO: outside", None: "–"}[r.agrees]])
         intro = para(f"Calibration by outcome box: the derivation {what} against the {what} "
                      f"observed in the new patients. 'Agrees' means the derivation {what} lies "

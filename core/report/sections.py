@@ -16,6 +16,7 @@ from .. import __version__
 from ..cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER, UNCHECKED_DETAIL
 from ..chart.options import SMALL_GROUP  # the chart dashes the boxes the report flags
 from ..phrases import METHOD_NAME, plural, short_fingerprint
+from ..precision import summary_number
 from .figures import pruning_curve_figure, stability_figure
 from .performance import performance_section, risk_text
 from .section_numbers import section
@@ -141,8 +142,9 @@ def _participants(c: ReportContents, s: Styles) -> list:
         for label, n in cohort["outcome_counts"].items():
             rows.append([f"{model.outcome.display}: {label}", _count_pct(n, model.n_rows)])
     elif "outcome_mean" in cohort:
-        unit = f" {model.outcome.unit}" if model.outcome.unit else ""
-        rows.append([f"Mean {model.outcome.display}", f"{cohort['outcome_mean']:.3g}{unit}"])
+        rows.append([f"Mean {model.outcome.display}",
+                     summary_number(cohort['outcome_mean'], model.outcome_decimals,
+                                    model.outcome.unit)])
     if der.heldout is not None:
         held = der.heldout
         patients = f" ({np.unique(held.groups).size} patients)" if held.groups is not None else ""
@@ -339,10 +341,13 @@ def _tree(c: ReportContents, s: Styles) -> list:
             expected = str(leaf.prediction)
         else:
             lo, hi = model.mean_interval(leaf)
-            rate = f"{leaf.mean:.3g} ({lo:.3g}–{hi:.3g})"
+            places = model.outcome_decimals  # no more precise than the outcome was recorded
+            mean = summary_number(leaf.mean, places)
+            rate = f"{mean} ({summary_number(lo, places)}–{summary_number(hi, places)})"
             if leaf.quartiles is not None:  # the spread of patients, not of the mean
-                rate += f"; {leaf.quartiles[0]:.3g}–{leaf.quartiles[1]:.3g}"
-            expected = f"mean {leaf.mean:.3g}"
+                rate += (f"; {summary_number(leaf.quartiles[0], places)}–"
+                         f"{summary_number(leaf.quartiles[1], places)}")
+            expected = f"mean {mean}"
         mark = " †" if leaf.n < SMALL_GROUP else ""
         if mark:
             small.append(leaf_id)

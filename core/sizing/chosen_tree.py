@@ -16,6 +16,7 @@ from ..dictionary.columns import DataDictionary
 from ..checking.overlap import derivation_ids
 from ..model.thresholds import round_threshold
 from ..phrases import plural
+from ..precision import decimals_observed
 from ..model.tree import (
     Node, Question, TreeModel, better_than_no_tree, expected_outcome, question_text, shared_count,
 )
@@ -40,6 +41,7 @@ def build_model(path: CrossValidatedPath, index: int, rule: str, table: LoadedTa
     # Rows are visits; where patients came more than once, the counts are of visits.
     rows_are = "visits" if data.groups is not None and \
         np.unique(data.groups).size != data.n else "patients"
+    decimals = decimals_observed(data.y) if data.task == "regression" else None
     for node, depth in order:
         # Every box keeps its spread, so a smaller tree made from the file has it too.
         stats = _node_stats(tree, node, data, membership)
@@ -53,8 +55,8 @@ def build_model(path: CrossValidatedPath, index: int, rule: str, table: LoadedTa
                               children=(box_of[yes], box_of[no]),
                               text=question_text(question, spec), **stats))
         else:
-            nodes.append(Node(id=box_of[node], depth=depth, text=_outcome_text(stats, data, rows_are),
-                              **stats))
+            nodes.append(Node(id=box_of[node], depth=depth,
+                              text=_outcome_text(stats, data, rows_are, decimals), **stats))
     sequence = grown.sequence
     path_dict = {
         "leaves": sequence.leaves.tolist(),
@@ -146,12 +148,13 @@ def _node_stats(tree, node: int, data: AnalysisData, membership=None) -> dict:
             "prediction": data.classes[int(tree.label[node])]}
 
 
-def _outcome_text(stats: dict, data: AnalysisData, rows_are: str = "patients") -> str:
+def _outcome_text(stats: dict, data: AnalysisData, rows_are: str = "patients",
+                  decimals: int | None = None) -> str:
     """'Admitted: expect yes (74% of 241 visits: yes)': the answer, then the share of the
     box's rows with the positive class (or the class expected) and how many rows."""
     n = stats["n"]
     expected = expected_outcome(data.outcome, data.task, stats["prediction"], stats.get("mean"),
-                                stats.get("counts", ()), tuple(data.classes or ()))
+                                stats.get("counts", ()), tuple(data.classes or ()), decimals)
     rows = plural(n, rows_are[:-1], rows_are)
     if data.task == "regression":
         return f"{expected} ({rows})"
@@ -232,5 +235,7 @@ def _cohort(frame: pd.DataFrame, dictionary: DataDictionary, data: AnalysisData,
         cohort["outcome_counts"] = {c: int(k) for c, k in zip(data.classes, counts)}
     else:
         cohort["outcome_mean"] = float(np.mean(data.y))
+        # The precision the outcome was recorded with: every mean printed follows it.
+        cohort["outcome_decimals"] = decimals_observed(data.y)
         cohort["outcome_range"] = [float(np.min(data.y)), float(np.max(data.y))]
     return cohort

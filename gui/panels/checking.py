@@ -83,11 +83,12 @@ def check_html(result) -> str:
         what = "rate" if percent else "mean"
         rows = []
         for r in m.calibration:
-            derived = f"{r.derivation_value:.0%}" if percent else f"{r.derivation_value:.3g}"
+            places = getattr(m, "decimals", None)
+            derived = r.derivation_text(percent, places)
             flag = {True: "inside", False: "OUTSIDE", None: "—"}[r.agrees]
             rows.append(f"<tr><td align='right'>{r.box}</td><td>{escape(r.label)}</td>"
                         f"<td align='right'>{derived} of {r.derivation_n:,}</td>"
-                        f"<td>{escape(r.observed_text(percent))} of {r.n:,}</td>"
+                        f"<td>{escape(r.observed_text(percent, places))} of {r.n:,}</td>"
                         f"<td>{flag}</td></tr>")
         parts.append(f"<p><b>Calibration by outcome box</b>: the derivation {what} against the "
                      f"new patients' {what} with its 95% interval.</p><table cellpadding='3' "

@@ -13,7 +13,7 @@ from PySide6.QtWidgets import (
 
 from core.messages import say
 from core.phrases import plural
-from core.model import box_details, format_number, route_patient
+from core.model import box_details, route_patient
 from gui.panels.step_panel import StepPanel, scrolling, side_by_side, tool_buttons, with_tooltip
 from gui.panels.wording import warning_html
 from gui.widgets.tree_view import TreeView
@@ -39,15 +39,13 @@ def details_html(model, box: int) -> str:
         rows.append("</table><p style='color:#444'>The interval is the Wilson 95% interval: "
                     "where the true rate plausibly lies, given this many patients.</p>")
     elif d.mean is not None:
-        unit = f" {model.outcome.unit}" if model.outcome.unit else ""
-        rows.append(f"<p>Mean {format_number(round(d.mean, 3))}{unit} (SD "
-                    f"{format_number(round(d.sd, 3))}); 95% interval of the mean "
-                    f"{format_number(round(d.mean_low, 3))} to {format_number(round(d.mean_high, 3))}"
-                    f"{unit}.</p>")
+        rows.append(f"<p>Mean {escape(d.number(d.mean, True))} (SD {escape(d.number(d.sd))}); "
+                    f"95% interval of the mean {escape(d.number(d.mean_low))} to "
+                    f"{escape(d.number(d.mean_high, True))}.</p>")
         if d.quartiles is not None:
             rows.append(f"<p>The middle half of these patients (25th to 75th percentile): "
-                        f"{format_number(round(d.quartiles[0], 3))} to "
-                        f"{format_number(round(d.quartiles[1], 3))}{unit}. The interval of "
+                        f"{escape(d.number(d.quartiles[0]))} to "
+                        f"{escape(d.number(d.quartiles[1], True))}. The interval of "
                         "the mean is not the range for one patient.</p>")
     question = model.node(box).question
     if question is not None and question.kind != "missing":
