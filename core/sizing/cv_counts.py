@@ -73,6 +73,16 @@ class PathCounts:
         return out
 
 
+    def measures_by_size(self) -> dict[str, np.ndarray]:
+        """:meth:`measures_at` for every size of the path, as arrays (for the curve): the
+        cross-validated sensitivity and specificity and their 95% Wilson intervals."""
+        rows = [self.measures_at(k) for k in range(self.confusion.shape[0])]
+        out = {}
+        for name in ("cv_sensitivity", "cv_specificity"):
+            out[name] = np.array([r[name] for r in rows])
+            out[name + "_interval"] = np.array([r[name + "_interval"] for r in rows])
+        return out
+
     def net_benefit_at(self, index: int) -> tuple[NetBenefitPoint, ...]:
         """Net benefit of size ``index`` from the held-out predictions (Vickers & Elkin 2006)."""
         return net_benefit_from_counts(self.treated[index, :, 1], self.treated[index, :, 0],

@@ -257,6 +257,14 @@ class SizePanel(StepPanel):
         """The pruning curve and the choice of size."""
         self.curve = CurveCanvas()
         self.curve.setAccessibleName("Pruning curve")
+        self.view_combo = with_tooltip(QComboBox(), "What the curve shows for each size: the "
+                                       "cross-validated error, or (two outcome groups) the "
+                                       "cross-validated sensitivity and specificity with "
+                                       "their 95% intervals and the goal, if one was set.")
+        self.view_combo.addItem("Error by size", "error")
+        self.view_combo.addItem("Sensitivity and specificity by size", "measures")
+        self.view_combo.currentIndexChanged.connect(
+            lambda _i: self.curve.set_view(self.view_combo.currentData()))
         self.size_combo = with_tooltip(QComboBox(), "Choose the size of the tree: the number of "
                                        "outcome boxes on the chart, with each size's "
                                        "cross-validated error ± SE and its training error.")
@@ -281,6 +289,11 @@ class SizePanel(StepPanel):
         right = QWidget()
         layout = QVBoxLayout(right)
         layout.setContentsMargins(6, 0, 0, 0)
+        view_row = QHBoxLayout()
+        view_row.addWidget(QLabel("The curve shows:"))
+        view_row.addWidget(self.view_combo)
+        view_row.addStretch(1)
+        layout.addLayout(view_row)
         layout.addWidget(self.curve, 1)
         layout.addLayout(size_row)
         layout.addWidget(self.choice)
@@ -494,8 +507,15 @@ class SizePanel(StepPanel):
                 + ("" if shading.sizes else " None does: choose larger paper or smaller text "
                    "on step 6."))
             fits = shading.sizes
-        self.curve.show_curve(CurveData.from_path(model.path), int(model.chosen["leaves"]),
-                              fits, label)
+        derivation = self.session.derivation
+        counts = None if derivation is None else derivation.path.counts
+        measures = None if counts is None or derivation.data.task != "classification" \
+            or len(derivation.data.classes) != 2 else counts.measures_by_size()
+        self.view_combo.setEnabled(measures is not None)
+        if measures is None and self.view_combo.currentData() != "error":
+            self.view_combo.setCurrentIndex(0)
+        self.curve.show_curve(CurveData.from_path(model.path, measures, model.chosen.get("goal")),
+                              int(model.chosen["leaves"]), fits, label)
 
     @property
     def fit_sizes(self) -> tuple[int, ...] | None:

@@ -36,13 +36,18 @@ class CurveData:
     min_leaves: int
     one_se_leaves: int
     risk_measure: str
+    # Two classes: core's pooled CV sensitivity and specificity per size, with their Wilson
+    # intervals (measures_by_size), and the goal the tree was built for, if any.
+    measures: dict | None = None
+    goal: dict | None = None
 
     @classmethod
-    def from_path(cls, path: dict) -> "CurveData":
+    def from_path(cls, path: dict, measures: dict | None = None,
+                  goal: dict | None = None) -> "CurveData":
         return cls(np.asarray(path["leaves"]), np.asarray(path["cv_risk"]),
                    np.asarray(path["cv_se"]), np.asarray(path["train_risk"]),
                    int(path["min_leaves"]), int(path["one_se_leaves"]),
-                   str(path.get("risk_measure", "risk")))
+                   str(path.get("risk_measure", "risk")), measures, goal)
 
 
 class CurveCanvas(FigureCanvasQTAgg):
@@ -59,6 +64,7 @@ class CurveCanvas(FigureCanvasQTAgg):
         self._chosen: int | None = None
         self._fits: tuple[int, ...] | None = None
         self._fit_label = ""
+        self.view = "error"  # or "measures": CV sensitivity and specificity by size
         self.axes = self.figure.add_subplot(111)
         self.mpl_connect("button_press_event", self._clicked)
         self._draw_empty()
@@ -66,6 +72,12 @@ class CurveCanvas(FigureCanvasQTAgg):
     def show_curve(self, data: CurveData | None, chosen: int | None,
                    fits: tuple[int, ...] | None = None, fit_label: str = "") -> None:
         self._data, self._chosen, self._fits, self._fit_label = data, chosen, fits, fit_label
+        self._redraw()
+
+    def set_view(self, view: str) -> None:
+        """Show the error by size ("error") or the CV sensitivity and specificity ("measures",
+        two-class outcomes only)."""
+        self.view = view
         self._redraw()
 
     def set_chosen(self, chosen: int | None) -> None:
@@ -94,6 +106,9 @@ class CurveCanvas(FigureCanvasQTAgg):
         ax.clear()
         ax.set_axis_on()
         x = data.leaves
+        if self.view == "measures" and data.measures is not None:
+            self._draw_measures(data)
+            return
         if self._fits:
             # Shade runs of neighbouring sizes that fit the paper legibly.
             fits = set(self._fits)
@@ -131,6 +146,41 @@ class CurveCanvas(FigureCanvasQTAgg):
         ax.set_ylabel(f"Error ({data.risk_measure})", wrap=True)
         ax.grid(True, which="major", color="#dddddd", lw=0.6)
         # Below the axes, outside them, so it never hides a point of the curve.
+        for old in self.figure.legends:
+            old.remove()
+        handles, labels = ax.get_legend_handles_labels()
+        self.figure.legend(handles, labels, loc="outside lower center", ncols=2,
+                           fontsize="small", frameon=False, markerscale=0.7)
+        self.draw_idle()
+
+    def _draw_measures(self, data: CurveData) -> None:
+        """CV sensitivity and specificity by size with 95% Wilson intervals, the goal as a
+        line and the chosen size marked."""
+        ax, x, m = self.axes, data.leaves, data.measures
+        series = (("cv_sensitivity", "Sensitivity: share with the outcome caught", "o-",
+                   CV_COLOUR), ("cv_specificity", "Specificity: share without it spared",
+                                "s--", TRAIN_COLOUR))
+        for name, label, style, colour in series:
+            value, interval = m[name] * 100, m[name + "_interval"] * 100
+            ax.errorbar(x, value, yerr=[value - interval[:, 0], interval[:, 1] - value],
+                        fmt=style, color=colour, ms=4, lw=1.1, capsize=2, elinewidth=0.8,
+                        label=f"{label} (95% CI)")
+        if data.goal:
+            ax.axhline(data.goal["at_least"] * 100, color=LIMIT_COLOUR, lw=1.2, ls="-.",
+                       label=f"Goal: {data.goal['measure']} at least "
+                             f"{data.goal['at_least']:.0%}")
+        if self._chosen is not None and (x == self._chosen).any():
+            ax.axvline(self._chosen, color=CHOSEN_COLOUR, lw=1.6, alpha=0.8,
+                       label=f"Chosen ({plural(self._chosen, 'box', 'boxes')})")
+        ax.set_xscale("log")
+        ax.xaxis.set_major_locator(LogLocator(base=10, subs=(1.0, 2.0, 5.0)))
+        ax.xaxis.set_major_formatter(FuncFormatter(lambda v, _pos: f"{v:g}"))
+        ax.xaxis.set_minor_formatter(NullFormatter())
+        ax.set_xlim(0.8, max(2.0, float(x.max()) * 1.25))
+        ax.set_ylim(-2, 102)
+        ax.set_xlabel("Size of the tree (number of outcome boxes)")
+        ax.set_ylabel("Cross-validated share (%)")
+        ax.grid(True, which="major", color="#dddddd", lw=0.6)
         for old in self.figure.legends:
             old.remove()
         handles, labels = ax.get_legend_handles_labels()

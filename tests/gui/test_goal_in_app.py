@@ -51,6 +51,22 @@ def test_a_goal_chosen_in_step_2_sizes_the_tree_as_core_does(window, qtbot, run,
     assert core_model.chosen["leaves"] == chosen["leaves"]
     assert core_model.chosen["miss_cost"] == chosen["miss_cost"]
     assert core_model.fingerprint == window.session.model.fingerprint
+    # The curve can show CV sensitivity and specificity by size, the goal as a line and the
+    # chosen size marked; its numbers are core's (the chosen size's equal the model's).
+    size = window.panels["size"]
+    window.go_to("size")
+    assert size.view_combo.isEnabled()
+    size.view_combo.setCurrentIndex(size.view_combo.findData("measures"))
+    legend = size.curve.legend_texts()
+    assert "Goal: sensitivity at least 80%" in legend
+    assert any(t.startswith("Chosen (") for t in legend)
+    assert any(t.startswith("Sensitivity") for t in legend)
+    data = size.curve._data
+    at = list(data.leaves).index(chosen["leaves"])
+    assert abs(data.measures["cv_sensitivity"][at] - chosen["cv_sensitivity"]) < 1e-12
+    low, high = data.measures["cv_sensitivity_interval"][at]
+    assert low <= chosen["cv_sensitivity"] <= high
+    assert size.curve.axes.get_ylabel() == "Cross-validated share (%)"
     size_text = window.panels["size"].choice.text()
     assert "goal" in size_text and "sensitivity" in size_text
     # Step 2's words name the catch rate the goal reached.
