@@ -309,6 +309,7 @@ class OutcomePanel(StepPanel):
         if words:
             boxes = plural(len(chosen.model.leaves), "outcome box", "outcome boxes")
             old = "size" in self.session.stale_steps()
+            words = words[0].lower() + words[1:]  # it follows a colon
             text = say("app.cost_in_words_old" if old else "app.cost_in_words", boxes=boxes,
                        words=words)
         self.cost_words.setText(text or "")

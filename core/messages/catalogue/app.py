@@ -23,7 +23,7 @@ ENTRIES = [
      "{words}", "The counts are pooled over the cross-validation folds, so they describe "
      "patients the tree did not learn from; they change when the cost or the size changes."),
     ("app.cost_in_words_old", "note", "For the earlier tree ({boxes}), grown before the "
-     "choices above changed: {words} Run step 3 again to see what the new choices mean.",
+     "choices above changed, {words} Run step 3 again to see what the new choices mean.",
      "Step 3 grows the tree for the present choices."),
     ("app.save_over_input", "refused", "That is one of your input files (the data or the "
      "project); choose another name so it stays unchanged.",
