@@ -257,7 +257,7 @@ def _performance(model: TreeModel) -> PanelSection:
     return PanelSection("How well it predicts", items)
 
 
-def _cohort(model: TreeModel) -> PanelSection:
+def _cohort(model: TreeModel, options: ChartOptions) -> PanelSection:
     cohort = model.extra.get("cohort", {})
     size = _cohort_size(model)
     if cohort.get("first_date"):
@@ -276,7 +276,7 @@ def _cohort(model: TreeModel) -> PanelSection:
         items.append(PanelItem(f"Mean {model.outcome.display.lower()}: "
                                f"{number(cohort['outcome_mean'], model.outcome.unit, model.outcome_decimals)}."))
     data = model.extra.get("data", {})
-    if data.get("file"):
+    if data.get("file") and options.show_file_name:
         items.append(PanelItem(f"Data file: {data['file']}."))
     return PanelSection("Derived from", tuple(items))
 
@@ -348,7 +348,7 @@ def chart_text(model: TreeModel, options: ChartOptions) -> ChartText:
     spec, band_of = tree_spec(model, options, bands)
     small = frozenset(i for i in band_of if model.node(i).n < options.small_cell)
     banner = None if model.extra.get("validation") else (UNCHECKED_BANNER, UNCHECKED_DETAIL)
-    sections = [_cohort(model), _performance(model)]
+    sections = [_cohort(model, options), _performance(model)]
     checked = _validation(model)
     if checked:
         sections.append(checked)

@@ -75,6 +75,9 @@ class ChartOptions:
     band_ratio: float = 1.25  # relative bands: HIGHER at ≥ ratio × the cohort's rate
     printed: dt.date | None = None  # the date printed on the chart (default: today)
     form: str = "tree"  # tree | rules: each outcome box as a row with its route in words
+    # A file's name may hold a patient's name, a date of birth or a record number: the chart
+    # on the wall prints the data's fingerprint, and the name only when asked.
+    show_file_name: bool = False
 
     def checked(self) -> "ChartOptions":
         """The options with defaults filled in, or one clear InputError."""

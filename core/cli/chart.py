@@ -49,6 +49,10 @@ def add_parsers(sub) -> None:
                        default=_DEFAULTS.small_cell,
                        help="flag outcome boxes resting on fewer patients than N "
                        f"(default {_DEFAULTS.small_cell}; 0 = never)")
+    chart.add_argument("--show-file-name", action="store_true",
+                       help="print the data file's name on the chart (off by default: a file "
+                            "name may identify a patient; the data's fingerprint is always "
+                            "printed)")
     chart.add_argument("--hide-counts", action="store_true",
                        help="print rates and intervals without patient counts")
     chart.add_argument("--bands", help="fixed band cut-points, e.g. 10,30 (percent for "
@@ -82,7 +86,8 @@ def chart_options_from_args(args):
                         min_text=getattr(args, "min_text", None),
                         small_cell=getattr(args, "small_cell", _DEFAULTS.small_cell),
                         hide_counts=getattr(args, "hide_counts", False), band_cuts=cuts,
-                        printed=printed, form=getattr(args, "form", _DEFAULTS.form)).checked()
+                        printed=printed, form=getattr(args, "form", _DEFAULTS.form),
+                        show_file_name=getattr(args, "show_file_name", False)).checked()
 
 
 def _chart_note(plan, path: str) -> str:

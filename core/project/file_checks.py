@@ -115,6 +115,7 @@ def check_project_document(data: dict, file: str = "The project") -> None:
         chart.text("orientation")
         chart.number("min_text", 0)
         chart.text("form", choices=("tree", "rules"))
+        chart.truth("show_file_name")
     top.text("model_fingerprint")
     top.text("saved_by")
 

@@ -116,7 +116,8 @@ class Project:
         return replace(self, request=request)
 
 
-CHART_FIELDS = ("title", "subtitle", "paper", "orientation", "min_text", "form")  # kept in a project
+CHART_FIELDS = ("title", "subtitle", "paper", "orientation", "min_text", "form",
+                "show_file_name")  # kept in a project
 
 
 def chart_options(chart: dict) -> ChartOptions:

@@ -12,8 +12,8 @@ from PySide6.QtCore import Qt, QTemporaryDir, QTimer, Signal
 from PySide6.QtPdf import QPdfDocument
 from PySide6.QtPrintSupport import QPrintDialog, QPrinter
 from PySide6.QtWidgets import (
-    QComboBox, QDialog, QDoubleSpinBox, QFormLayout, QGroupBox, QHBoxLayout, QLabel, QLineEdit,
-    QPushButton, QStackedWidget, QVBoxLayout, QWidget,
+    QCheckBox, QComboBox, QDialog, QDoubleSpinBox, QFormLayout, QGroupBox, QHBoxLayout, QLabel,
+    QLineEdit, QPushButton, QStackedWidget, QVBoxLayout, QWidget,
 )
 
 from core.cautions import CAUTION_TITLE, CAUTIONS
@@ -133,6 +133,11 @@ class ChartPanel(StepPanel):
         form.addRow("Orientation:", self.orientation_combo)
         form.addRow("Smallest text:", self.min_text)
         form.addRow("Form:", self.form_combo)
+        self.file_name_box = with_tooltip(
+            QCheckBox("Print the data file's name"), "Off by default: a file's name may hold a "
+            "patient's name, a date of birth or a record number. The data's fingerprint is "
+            "always printed, so the chart can be matched to its file.")
+        form.addRow("", self.file_name_box)
         options = QGroupBox("The chart")
         options.setLayout(form)
         self.export_button = with_tooltip(QPushButton("Export PDF…"), "Save the chart as a PDF "
@@ -232,6 +237,8 @@ class ChartPanel(StepPanel):
              lambda code: s.set_chart(orientation=code), lambda: ORIENTATIONS)
         bind(self.form_combo, lambda: s.chart.form, lambda code: s.set_chart(form=code),
              lambda: FORMS)
+        bind(self.file_name_box, lambda: s.chart.show_file_name,
+             lambda shown: s.set_chart(show_file_name=bool(shown)))
         bind(self.min_text, lambda: s.chart.min_text,
              lambda size: s.set_chart(min_text=None if size == self.min_text.minimum()
                                       else float(size)))
