@@ -189,3 +189,23 @@ def test_a_file_full_of_nul_bytes_is_still_refused_as_binary(tmp_path):
     data.write_bytes(csv_text(HEADER, base_rows(40)).encode("utf-16-le"))
     refused(["fit", data, "--outcome", "admitted", "--model", tmp_path / "m.json"],
             ["binary data"], inputs=[data])
+
+
+def test_a_repeated_header_is_found_after_an_empty_unnamed_column_was_dropped(tmp_path):
+    # The empty column without a name goes first; the repeated header is still matched by
+    # the columns' places, not by labels that counted the dropped column.
+    rows = base_rows(40)
+    lines = [",".join([""] + HEADER)] + [",".join([""] + [str(v) for v in r]) for r in rows[:20]]
+    lines += [",".join([""] + HEADER)] + [",".join([""] + [str(v) for v in r]) for r in rows[20:]]
+    data = tmp_path / "pasted_with_gap.csv"
+    data.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    table = read_table(data)
+    assert len(table.frame) == 40 and list(table.frame.columns) == HEADER
+    assert any("repeating the column names" in w for w in table.provenance.warnings)
+    read_table_bytes = tmp_path / "tab_bang.csv"
+    read_table_bytes.write_bytes(b"\t!")  # found by the fuzz test: a KeyError before
+    try:
+        read_table(read_table_bytes)
+    except Exception as exc:  # noqa: BLE001 - only a clear refusal is allowed
+        from core.errors import InputError
+        assert isinstance(exc, InputError), exc

@@ -164,14 +164,15 @@ def _repeated_header_rows(frame: pd.DataFrame, names: list[str]) -> np.ndarray:
     """Rows that repeat the column names (two exports pasted one below the other): every
     filled cell is its column's name, and at least half the named columns are filled."""
     named = [j for j, n in enumerate(names) if n and not _NUMBERISH.match(n)]
-    text_columns = [j for j in named if _is_text(frame[j])]
+    # Positions, not labels: the frame's labels still count the columns dropped as empty.
+    text_columns = [j for j in named if _is_text(frame.iloc[:, j])]
     hit = np.zeros(len(frame), dtype=bool)
     if not text_columns or len(frame) == 0:
         return hit
     # Only rows whose first text column holds its name are looked at further (cheap: one
     # comparison per distinct cell of one column).
     first = text_columns[0]
-    codes, uniques = pd.factorize(frame[first])
+    codes, uniques = pd.factorize(frame.iloc[:, first])
     same = np.array([_header_text(u) == names[first] for u in uniques] + [False])
     candidates = np.flatnonzero(same[codes])
     if len(candidates) == 0:
@@ -179,7 +180,7 @@ def _repeated_header_rows(frame: pd.DataFrame, names: list[str]) -> np.ndarray:
     part = frame.iloc[candidates]
     matches = np.zeros(len(part), dtype=int)
     for j in named:
-        matches += np.array([_header_text(v) == names[j] for v in part[j]], dtype=int)
+        matches += np.array([_header_text(v) == names[j] for v in part.iloc[:, j]], dtype=int)
     filled = part.notna().sum(axis=1).to_numpy()
     hit[candidates] = (matches == filled) & (matches >= max(1, int(np.ceil(0.5 * len(named)))))
     return hit
