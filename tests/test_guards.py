@@ -224,3 +224,18 @@ def test_guards_stop_when_cancelled(demo):
     assert len(asked) == 3  # two predictors screened, stopped before the third
     report = guard_design(table.frame, dictionary, design, cancel=lambda: False)
     assert "bed_booked" in report.leakage_columns
+
+
+def test_an_outcome_value_in_one_or_two_rows_is_said_to_be_a_likely_slip():
+    # Invented: a yes/no outcome with two stray "Yes?" cells (issue 15, item 9).
+    rng = np.random.default_rng(2)
+    frame = pd.DataFrame({"x": rng.normal(size=120),
+                          "y": ["no"] * 80 + ["yes"] * 38 + ["Yes?"] * 2})
+    dictionary, _ = infer_dictionary(frame)
+    data = prepare_analysis(frame, dictionary, DesignSpec("y", ("x",)))
+    found = outcome_findings(data)
+    assert len(found) == 1 and found[0].code == "guard.stray_outcome_value"
+    assert found[0].measures == {"class": "Yes?", "n": 2}
+    message = found[0].message
+    assert "Only 2 row(s) have 'Yes?'" in message and "typing slip" in message
+    assert "3 classes" in message and "missing code" in message

@@ -54,6 +54,9 @@ LEAKAGE_R2 = 0.90  # regression: R² of the outcome's ranks = 1 − 10 % error s
 SCREEN_FOLDS = 5
 SCREEN_DEPTH = 4
 RARE_CLASS = 10
+# An outcome value held by one or two rows beside common ones is most often a slip (a stray
+# space, an invisible mark, "Yes?"), not a real class: said loudly, on its own.
+STRAY_VALUE_ROWS = 2
 _PATIENT_WORDS = ("names", "record numbers")
 
 
@@ -335,7 +338,14 @@ def outcome_findings(data: AnalysisData) -> tuple[GuardFinding, ...]:
     counts = np.bincount(data.y, minlength=len(data.classes))
     found = []
     for label, count in zip(data.classes, counts):
-        if 0 < count < RARE_CLASS:
+        others = [c for c, k in zip(data.classes, counts) if c != label and k >= RARE_CLASS]
+        if 0 < count <= STRAY_VALUE_ROWS and others:
+            found.append(_finding("rare_class", data.outcome.name, "guard.stray_outcome_value",
+                                  measures={"class": label, "n": int(count)}, n=int(count),
+                                  label=label, outcome=data.outcome.name,
+                                  others=" and ".join(repr(c) for c in others),
+                                  classes=len(data.classes)))
+        elif 0 < count < RARE_CLASS:
             found.append(_finding("rare_class", data.outcome.name, "guard.rare_class",
                                   measures={"class": label, "n": int(count)}, n=int(count),
                                   label=label, outcome=data.outcome.name, limit=RARE_CLASS))

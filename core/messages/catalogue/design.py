@@ -74,6 +74,11 @@ ENTRIES = [
      "together.",
      "Without it, one patient can be in the training and the test part, and the error looks "
      "better than it is."),
+    ("guard.stray_outcome_value", "warning", "Only {n} row(s) have {label!r} for {outcome!r}, "
+     "beside {others}: a value this rare is most often a typing slip or a damaged cell, and "
+     "it makes the outcome {classes} classes; correct those rows in the spreadsheet, or mark "
+     "{label!r} as a missing code in the dictionary (step 1).",
+     "Correct the rows, or list the value as a missing code, then grow the tree again."),
     ("guard.rare_class", "warning", "Only {n} patient(s) have {label!r} for {outcome!r} "
      "(fewer than {limit}): too few to grow and cross-validate a tree on; treat the result as "
      "exploratory, or collect more patients with {label!r}.",
