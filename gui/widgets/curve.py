@@ -58,7 +58,7 @@ class CurveCanvas(FigureCanvasQTAgg):
         super().__init__(self.figure)
         self.setParent(parent)
         self.setSizePolicy(QSizePolicy.Expanding, QSizePolicy.Expanding)
-        self.setMinimumSize(320, 240)
+        self.setMinimumSize(320, 210)  # room for step 3's view row on small screens
         self.setToolTip("Click a point to choose that size of tree.")
         self._data: CurveData | None = None
         self._chosen: int | None = None
