@@ -50,6 +50,16 @@ class CurveData:
                    str(path.get("risk_measure", "risk")), measures, goal)
 
 
+def _size_axis(ax, sizes: np.ndarray) -> None:
+    """The tree-size axis both views share: log scale, ticks at 1, 2, 5, 10…, labelled."""
+    ax.set_xscale("log")
+    ax.xaxis.set_major_locator(LogLocator(base=10, subs=(1.0, 2.0, 5.0)))
+    ax.xaxis.set_major_formatter(FuncFormatter(lambda v, _pos: f"{v:g}"))
+    ax.xaxis.set_minor_formatter(NullFormatter())
+    ax.set_xlim(0.8, max(2.0, float(sizes.max()) * 1.25))
+    ax.set_xlabel("Size of the tree (number of outcome boxes)")
+
+
 class CurveCanvas(FigureCanvasQTAgg):
     size_clicked = Signal(int)  # number of leaves nearest the click
 
@@ -137,18 +147,16 @@ class CurveCanvas(FigureCanvasQTAgg):
             ax.axvline(self._chosen, color=CHOSEN_COLOUR, lw=1.0, alpha=0.6)
             ax.plot(x[at], data.cv_risk[at], "o", ms=16, mfc="none", mec=CHOSEN_COLOUR, mew=2,
                     label=f"Chosen ({plural(self._chosen, 'box', 'boxes')})")
-        ax.set_xscale("log")
-        ax.xaxis.set_major_locator(LogLocator(base=10, subs=(1.0, 2.0, 5.0)))
-        ax.xaxis.set_major_formatter(FuncFormatter(lambda v, _pos: f"{v:g}"))
-        ax.xaxis.set_minor_formatter(NullFormatter())
-        ax.set_xlim(0.8, max(2.0, float(x.max()) * 1.25))
-        ax.set_xlabel("Size of the tree (number of outcome boxes)")
+        _size_axis(ax, x)
         ax.set_ylabel(f"Error ({data.risk_measure})", wrap=True)
         ax.grid(True, which="major", color="#dddddd", lw=0.6)
-        # Below the axes, outside them, so it never hides a point of the curve.
+        self._legend_below()
+
+    def _legend_below(self) -> None:
+        """The legend below the axes, outside them, so it never hides a point of the curve."""
         for old in self.figure.legends:
             old.remove()
-        handles, labels = ax.get_legend_handles_labels()
+        handles, labels = self.axes.get_legend_handles_labels()
         self.figure.legend(handles, labels, loc="outside lower center", ncols=2,
                            fontsize="small", frameon=False, markerscale=0.7)
         self.draw_idle()
@@ -172,21 +180,11 @@ class CurveCanvas(FigureCanvasQTAgg):
         if self._chosen is not None and (x == self._chosen).any():
             ax.axvline(self._chosen, color=CHOSEN_COLOUR, lw=1.6, alpha=0.8,
                        label=f"Chosen ({plural(self._chosen, 'box', 'boxes')})")
-        ax.set_xscale("log")
-        ax.xaxis.set_major_locator(LogLocator(base=10, subs=(1.0, 2.0, 5.0)))
-        ax.xaxis.set_major_formatter(FuncFormatter(lambda v, _pos: f"{v:g}"))
-        ax.xaxis.set_minor_formatter(NullFormatter())
-        ax.set_xlim(0.8, max(2.0, float(x.max()) * 1.25))
+        _size_axis(ax, x)
         ax.set_ylim(-2, 102)
-        ax.set_xlabel("Size of the tree (number of outcome boxes)")
         ax.set_ylabel("Cross-validated share (%)")
         ax.grid(True, which="major", color="#dddddd", lw=0.6)
-        for old in self.figure.legends:
-            old.remove()
-        handles, labels = ax.get_legend_handles_labels()
-        self.figure.legend(handles, labels, loc="outside lower center", ncols=2,
-                           fontsize="small", frameon=False, markerscale=0.7)
-        self.draw_idle()
+        self._legend_below()
 
     def _clicked(self, event) -> None:
         if self._data is None or event.inaxes is not self.axes or event.x is None:
