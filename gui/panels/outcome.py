@@ -217,14 +217,9 @@ class OutcomePanel(StepPanel):
             return None
         return dictionary.get(design.outcome)
 
-    def _two_classes(self) -> bool:
-        spec, design = self._outcome_spec(), self.session.design
-        return (spec is not None and design.task == "classification"
-                and spec.kind in CATEGORY_KINDS and len(spec.levels) == 2)
-
     def _positive_choices(self) -> tuple:
         return tuple((level, level) for level in self._outcome_spec().levels) \
-            if self._two_classes() else ()
+            if self.session.two_classes() else ()
 
     def _predictor_choices(self) -> tuple:
         dictionary, design = self.session.dictionary, self.session.design
@@ -285,7 +280,7 @@ class OutcomePanel(StepPanel):
     def refresh(self) -> None:
         """Show the session's choices (the widgets are filled by their bindings)."""
         self.bindings.show()
-        two = self._two_classes()
+        two = self.session.two_classes()
         if two:
             self.cost_before.setText(f"Missing a patient with “{self.session.design.positive}” "
                                      "is:")
@@ -305,7 +300,7 @@ class OutcomePanel(StepPanel):
         """The chosen tree's cross-validated catches and needless alarms, named by the
         outcome's own levels; said to belong to the earlier tree once the choices change."""
         chosen, text = self.session.chosen, None
-        words = chosen_in_words(chosen) if chosen is not None and self._two_classes() else None
+        words = chosen_in_words(chosen) if chosen is not None and self.session.two_classes() else None
         if words:
             boxes = plural(len(chosen.model.leaves), "outcome box", "outcome boxes")
             old = "size" in self.session.stale_steps()
