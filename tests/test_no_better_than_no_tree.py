@@ -130,3 +130,26 @@ def test_command_line_says_so(random_run, tmp_path):
     assert not (tmp_path / "c.pdf").exists()
     chart = prunella("chart", tmp_path / "m.json", "--out", tmp_path / "c2.pdf")
     assert chart.returncode == 2 and STATEMENT in chart.stderr
+
+
+def test_a_costly_miss_names_the_answer_one_box_gives(tmp_path):
+    """With a miss cost that makes one box answer the rarer outcome, "the most common outcome"
+    would name the wrong comparison: the sentence says the single box treats everyone as it."""
+    frame = random_frame(seed=11)
+    frame["outcome"] = np.random.default_rng(11).choice(["yes", "no"], len(frame), p=[0.1, 0.9])
+    path = tmp_path / "rare.csv"
+    frame.to_csv(path, index=False)
+    table = read_table(path)
+    dictionary, _ = infer_dictionary(table.frame)
+    dictionary = dictionary.with_column("outcome", role="outcome")
+    request = DerivationRequest(DesignSpec("outcome", ("x1", "x2", "x3"), positive="yes"),
+                                tree=TreeSettings(min_leaf=40, miss_cost=20.0),
+                                cv=CVSettings(folds=5))
+    model = derive(table, dictionary, request).model
+    assert model.root.prediction == "yes"  # 10% × 20 outweighs 90% × 1
+    assert model.better_than_no_tree is False
+    assert model.no_better_statement == ("This tree predicts no better than treating everyone "
+                                         "as yes, the answer its miss cost gives when no "
+                                         "question is asked.")
+    assert "most common" not in model.no_better_warning()
+    assert model.no_better_statement in model.rules()

@@ -17,7 +17,7 @@ from typing import TYPE_CHECKING
 
 from ..errors import InputError
 from ..messages.message import Message, say
-from ..model.tree import NO_BETTER, TreeModel, better_than_no_tree
+from ..model.tree import TreeModel, better_than_no_tree
 from .content import chart_text
 from .layout import BoxSpec, LayoutStyle, Measure, Para, TreeSpec, layout_tree, reportlab_measure
 from .options import LARGER_PAPER, PAPER_NAMES, ChartOptions, margin_for, page_size
@@ -66,7 +66,7 @@ def plan_chart(model: TreeModel, options: ChartOptions | None = None,
     InputError for a one-box tree, which is never printed as if it were a decision chart."""
     options = (options or ChartOptions()).checked()
     if len(model.leaves) <= 1:  # one box for everyone is no decision chart
-        raise InputError(say("chart.one_box", statement=NO_BETTER[model.task]))
+        raise InputError(say("chart.one_box", statement=model.no_tree_statement))
     text = chart_text(model, options)
     if options.form == "rules":
         from .rules import plan_rules

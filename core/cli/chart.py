@@ -8,7 +8,7 @@ from typing import TYPE_CHECKING
 from ..chart.options import FORMS, ORIENTATIONS, PAPER_SIZES, ChartOptions, default_min_text
 from ..errors import InputError
 from ..messages.message import say
-from ..model.tree import NO_BETTER, TreeModel
+from ..model.tree import TreeModel
 from ..option_limits import option_type
 from ..safe_files import check_outputs
 from .arguments import csv_list
@@ -115,7 +115,7 @@ def fit_chart(args, derivation: Derivation) -> None:
     if len(derivation.model.leaves) <= 1:  # never printed as if it were a decision chart
         raise InputError(say("cli.chart_not_printed", model=args.model,
                              reason=say("chart.one_box",
-                                        statement=NO_BETTER[derivation.model.task])))
+                                        statement=derivation.model.no_tree_statement)))
     try:
         plan = write_chart(derivation.model, args.chart, options)
     except ChartTooLarge as refused:

@@ -109,6 +109,10 @@ NO_BETTER = {"classification": "This tree predicts no better than giving everyon
                                "common outcome.",
              "regression": "This tree predicts no better than giving everyone the average "
                            "outcome."}
+# When the miss cost (or goal) makes a single box answer a rarer outcome, "the most common
+# outcome" would name the wrong answer for the tree it is compared with.
+NO_BETTER_TREAT_ALL = ("This tree predicts no better than treating everyone as {answer}, the "
+                       "answer its miss cost gives when no question is asked.")
 
 
 def better_than_no_tree(leaves, cv_risk, index: int) -> bool:
@@ -320,7 +324,18 @@ class TreeModel:
     @property
     def no_better_statement(self) -> str | None:
         """The sentence saying this tree is no better than no tree, or None when it is."""
-        return None if self.better_than_no_tree else NO_BETTER[self.task]
+        return None if self.better_than_no_tree else self.no_tree_statement
+
+    @property
+    def no_tree_statement(self) -> str:
+        """What a one-box tree does for everyone, as said where this tree is no better: the
+        most common outcome, or the rarer one its costs make the single box's answer."""
+        root = self.root
+        if self.task == "classification" and root.counts and root.prediction is not None:
+            most_common = self.classes[max(range(len(root.counts)), key=root.counts.__getitem__)]
+            if str(root.prediction) != str(most_common):
+                return NO_BETTER_TREAT_ALL.format(answer=root.prediction)
+        return NO_BETTER[self.task]
 
     def coarsening(self) -> str | None:
         """Whether the tree was grown on coarsened measurements, in one sentence (the chart's
@@ -345,7 +360,7 @@ class TreeModel:
             return None
         chosen, risk = self.chosen, self.path.get("cv_risk") or [float("nan")]
         one_box = chosen.get("one_box_cv_risk", risk[-1])
-        return say("size.no_better_than_no_tree", statement=NO_BETTER[self.task],
+        return say("size.no_better_than_no_tree", statement=self.no_tree_statement,
                    error=f"{chosen['cv_risk']:.4g}", one_box=f"{one_box:.4g}",
                    se=f"{chosen['cv_se']:.2g}")
 
