@@ -10,12 +10,27 @@ ORGANISATION = "Prunella Tree Charts"  # our own names, for the settings' locati
 APPLICATION = "Prunella"
 
 
+# Qt's own command-line options that take a value (QGuiApplication, QApplication): kept with
+# their value for Qt, so that "-platform xcb" does not read "xcb" as the file to open.
+_QT_VALUE_OPTIONS = {"-platform", "-platformpluginpath", "-platformtheme", "-plugin",
+                     "-qwindowgeometry", "-qwindowicon", "-qwindowtitle", "-session", "-style",
+                     "-stylesheet", "-display", "-geometry"}
+
+
 def parse_arguments(argv: list[str]) -> tuple[argparse.Namespace, list[str]]:
+    ours, qt_args = [], []
+    words = iter(argv)
+    for word in words:
+        if word in _QT_VALUE_OPTIONS:
+            qt_args += [word, next(words, "")]
+        else:
+            ours.append(word)
     parser = argparse.ArgumentParser(prog="prunella", description="Open the Prunella app.")
     parser.add_argument("--demo", action="store_true",
                         help="open with the invented demo cohort loaded")
     parser.add_argument("file", nargs="?", help="a spreadsheet or a Prunella project to open")
-    return parser.parse_known_args(argv)  # the rest goes to Qt (e.g. -platform)
+    args, rest = parser.parse_known_args(ours)  # the rest goes to Qt (e.g. -reverse)
+    return args, qt_args + rest
 
 
 def make_application(qt_args: list[str] | None = None):
@@ -59,7 +74,10 @@ def run_app(argv: list[str]) -> int:
             print(problem, file=sys.stderr)
             return 2
 
-    app = make_application(qt_args)
+    from gui.window_system import sentence_if_qt_aborts
+
+    with sentence_if_qt_aborts():  # Qt would abort with a page of plugin names
+        app = make_application(qt_args)
     from gui.main_window import MainWindow
 
     window = MainWindow()

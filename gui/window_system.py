@@ -3,7 +3,9 @@
 On a minimal Linux without a desktop, Qt's X11 plugin ("xcb") cannot load until a few system
 libraries are installed, and Qt then aborts with a page of plugin names. Loading the plugin
 ourselves first (the dynamic loader names the first library it misses) lets the app say in
-one sentence what is wrong and which Debian/Ubuntu package to install.
+one sentence what is wrong and which Debian/Ubuntu package to install. Whatever else stops Qt
+from starting (a plugin it does not have, one that fails later) is caught as Qt gives up and
+said in one sentence too.
 """
 
 from __future__ import annotations
@@ -12,6 +14,8 @@ import ctypes
 import os
 import re
 import sys
+from collections.abc import Iterator
+from contextlib import contextmanager
 from pathlib import Path
 from typing import Callable, Mapping
 
@@ -98,3 +102,46 @@ def _display_answers(display: str, load: Callable[[str], object]) -> bool:
     answered = has_error(connection) == 0
     disconnect(connection)
     return answered
+
+
+_NOT_FOUND = re.compile(r'Could not find the Qt platform plugin "([^"]*)"')
+_AVAILABLE = re.compile(r"Available platform plugins are:\s*([^\n]*?)\.?\s*$", re.MULTILINE)
+
+
+def why_qt_aborted(messages: list[str]) -> str:
+    """One sentence from what Qt said before it gave up starting (a plugin it does not have,
+    or one that does not load), with the likely fix."""
+    said = "\n".join(messages)
+    wanted, available = _NOT_FOUND.search(said), _AVAILABLE.search(said)
+    if wanted is not None and wanted.group(1):
+        names = available.group(1).strip() if available else "xcb, wayland, offscreen"
+        return say("app.unknown_platform", name=wanted.group(1)[:40], available=names)
+    last = next((m for m in reversed(messages) if m.strip()), "no reason given")
+    detail = last.strip().splitlines()[0][:200].rstrip(".")
+    return say("app.plugin_fails", detail=detail, packages=" ".join(XCB_PACKAGES))
+
+
+@contextmanager
+def sentence_if_qt_aborts(stream=None) -> Iterator[None]:
+    """While inside (the QApplication being made), a Qt failure to start that would abort the
+    process with a page of plugin names is said in one sentence instead, and the process ends
+    with exit status 2. Qt's other messages meanwhile are passed on as Qt would print them."""
+    from PySide6.QtCore import QtMsgType, qInstallMessageHandler
+
+    stream = sys.stderr if stream is None else stream
+    heard: list[str] = []
+
+    def handler(kind, _context, text) -> None:
+        heard.append(text)
+        if kind == QtMsgType.QtFatalMsg:  # Qt aborts as soon as this returns
+            stream.write(why_qt_aborted(heard) + "\n")
+            stream.flush()
+            os._exit(2)
+
+    earlier = qInstallMessageHandler(handler)
+    try:
+        yield
+    finally:
+        qInstallMessageHandler(earlier)
+        for text in heard:  # it started after all: Qt's warnings as they would have been
+            stream.write(text + "\n")

@@ -96,3 +96,44 @@ def test_a_display_that_does_not_answer_is_named():
                          load=lambda p: None if p.endswith("libqxcb.so") else ctypes.CDLL(p))
     assert text == ("Prunella cannot open a window: the display :4321 does not answer; start "
                     "it from a desktop session, or set DISPLAY to a running one.")
+
+
+def test_a_display_plugin_qt_does_not_have_is_said_in_one_sentence_and_exits_2():
+    """QT_QPA_PLATFORM naming a plugin Qt lacks made Qt abort (status 134) with a page of
+    plugin names; the real entry point now says it in one sentence with the fix."""
+    env = {**os.environ, "QT_QPA_PLATFORM": "bogus"}
+    done = subprocess.run([sys.executable, "-m", "gui"], env=env, capture_output=True,
+                          text=True, timeout=60, cwd=Path(__file__).resolve().parents[2])
+    assert done.returncode == 2
+    text = done.stderr.strip()
+    assert text.startswith("Prunella cannot open a window: Qt has no display plugin called "
+                           "“bogus”")
+    assert "unset QT_QPA_PLATFORM" in text and "offscreen" in text and "xcb" in text
+    assert len(text.splitlines()) == 1 and text.endswith(".")
+    assert "Traceback" not in done.stderr and "Reinstalling" not in done.stderr
+    assert done.stdout == ""
+
+
+def test_what_qt_says_as_it_gives_up_becomes_one_sentence():
+    from gui.window_system import why_qt_aborted
+
+    unknown = why_qt_aborted(['Could not find the Qt platform plugin "wayland-x" in ""',
+                              "This application failed to start because no Qt platform plugin "
+                              "could be initialized.\n\nAvailable platform plugins are: "
+                              "offscreen, xcb.\n"])
+    assert "no display plugin called “wayland-x”" in unknown
+    assert unknown.endswith("name one Qt has: offscreen, xcb.")
+    other = why_qt_aborted(['Could not load the Qt platform plugin "xcb" in "" even though it '
+                            "was found."])
+    assert other.startswith("Prunella cannot open a window: Qt's display plugin does not load "
+                            "(Could not load the Qt platform plugin")
+    assert "sudo apt-get install " + " ".join(XCB_PACKAGES) in other
+
+
+def test_qt_options_keep_their_values():
+    from gui.app import parse_arguments
+
+    args, qt_args = parse_arguments(["-platform", "offscreen", "--demo"])
+    assert args.demo and args.file is None and qt_args == ["-platform", "offscreen"]
+    args, qt_args = parse_arguments(["cohort.csv", "-style", "fusion", "-reverse"])
+    assert args.file == "cohort.csv" and qt_args == ["-style", "fusion", "-reverse"]

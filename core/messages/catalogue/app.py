@@ -16,6 +16,10 @@ ENTRIES = [
     ("app.display_silent", "refused", "Prunella cannot open a window: the display {display} "
      "does not answer; start it from a desktop session, or set DISPLAY to a running one.",
      "Start Prunella from a desktop session, where the display is running."),
+    ("app.unknown_platform", "refused", "Prunella cannot open a window: Qt has no display "
+     "plugin called \u201c{name}\u201d (asked for by QT_QPA_PLATFORM or -platform); unset "
+     "QT_QPA_PLATFORM, or name one Qt has: {available}.",
+     "Unset QT_QPA_PLATFORM to let Qt choose (xcb on an X11 desktop, wayland under Wayland)."),
     ("app.no_demo", "refused", "The demo cohort is not installed with this copy of Prunella "
      "(it lives in sample_data/ of the source folder); open a spreadsheet instead.",
      "Install Prunella from its source folder (pip install -e .) to have the demo cohort."),
