@@ -10,7 +10,7 @@ from __future__ import annotations
 import hashlib
 import json
 from collections.abc import Iterable
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 
 import numpy as np
@@ -99,6 +99,17 @@ def question_text(question: Question, spec: ColumnSpec) -> str:
     if len(levels) == 1:
         return f"{label}: {levels[0]}?"
     return f"{label}: {', '.join(levels[:-1])} or {levels[-1]}?"
+
+
+def questions_from_splits(nodes: tuple[Node, ...],
+                          predictors: tuple[ColumnSpec, ...]) -> tuple[Node, ...]:
+    """The boxes with each question worded from its split (column, kind, threshold or levels)
+    and the column's label and unit, never from the words a file stores: a file edited to say
+    "above 70%" over a split at 91 still prints the question the tree asks."""
+    specs = {spec.name: spec for spec in predictors}
+    return tuple(replace(node, text=question_text(node.question, specs[node.question.column]))
+                 if node.question is not None and node.question.column in specs else node
+                 for node in nodes)
 
 
 ANSWERS = ("YES", "NO")  # the words on a question's branches, children in this order
@@ -422,10 +433,11 @@ class TreeModel:
         try:
             known = {"format", "task", "outcome", "outcome_spec", "classes", "positive", "n_rows",
                      "predictors", "nodes", "path", "chosen"}
+            predictors = tuple(ColumnSpec.from_dict(p) for p in data["predictors"])
             model = cls(task=data["task"], outcome=ColumnSpec.from_dict(data["outcome_spec"]),
-                        classes=tuple(data.get("classes", ())),
-                        predictors=tuple(ColumnSpec.from_dict(p) for p in data["predictors"]),
-                        nodes=tuple(Node.from_dict(n) for n in data["nodes"]),
+                        classes=tuple(data.get("classes", ())), predictors=predictors,
+                        nodes=questions_from_splits(
+                            tuple(Node.from_dict(n) for n in data["nodes"]), predictors),
                         n_rows=int(data["n_rows"]), path=data["path"], chosen=data["chosen"],
                         extra={k: v for k, v in data.items() if k not in known})
         except (KeyError, TypeError, ValueError, AttributeError) as exc:
