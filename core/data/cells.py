@@ -43,6 +43,12 @@ SPREADSHEET_ERRORS = frozenset({"#div/0!", "#value!", "#ref!", "#name?", "#num!"
 YES_WORDS = frozenset({"yes", "y", "true", "t", "1", "positive", "pos", "present"})
 NO_WORDS = frozenset({"no", "n", "false", "f", "0", "negative", "neg", "absent"})
 
+# Spreadsheets store a date as days since 30 December 1899 (the 1900 date system as they count
+# it today); serial numbers of 1 January 1920 to 31 December 2099 are plausible clinical dates.
+SERIAL_ORIGIN = pd.Timestamp("1899-12-30")
+FIRST_SERIAL = 7306
+LAST_SERIAL = 73050
+
 # The grower works in float32 (scikit-learn casts X); larger magnitudes would become infinite.
 LARGEST_NUMBER = float(np.finfo(np.float32).max)
 
@@ -337,13 +343,34 @@ def parse_levels(values: pd.Series, levels: tuple[str, ...], extra_codes: tuple[
     return cat, tuple(notes)
 
 
+def serial_dates(numbers) -> pd.Series:
+    """Spreadsheet serial day numbers (a time of day as the fraction) as dates; NaT where not
+    recorded or outside the plausible serials."""
+    days = pd.Series(numbers, dtype="float64")
+    days = days.where((days >= FIRST_SERIAL) & (days <= LAST_SERIAL + 1))
+    return SERIAL_ORIGIN + pd.to_timedelta(days, unit="D")
+
+
 def parse_dates(values: pd.Series) -> pd.Series:
-    """Dates from cells in ISO, day-first or month-name formats; NaT where unreadable."""
+    """Dates from cells in ISO, day-first or month-name formats, or spreadsheet serial day
+    numbers (a column of numbers); NaT where unreadable."""
     if pd.api.types.is_datetime64_any_dtype(values.dtype):
         return values
+    if _is_numeric(values):
+        return pd.Series(serial_dates(values.to_numpy(dtype="float64", na_value=np.nan)).to_numpy(),
+                         index=values.index)
     text = level_text(values)
     if text.notna().sum() == 0:
         return pd.Series(pd.NaT, index=values.index, dtype="datetime64[ns]")
+    # Cells written as plain numbers in the serial range are serial dates (a text column
+    # with a few words among the numbers); everything else is read as written dates.
+    serial = serial_dates(pd.to_numeric(text.astype(object), errors="coerce").to_numpy(
+        dtype="float64", na_value=np.nan))
+    serial.index = values.index
+    if serial.notna().any():
+        rest = parse_dates(text.where(serial.isna()).astype(object)) if \
+            (text.notna() & serial.isna()).any() else serial
+        return serial.fillna(rest) if rest is not serial else serial
     iso = pd.to_datetime(text, errors="coerce", format="ISO8601")
     rest = iso.isna() & text.notna()
     if not rest.any():

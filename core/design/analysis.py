@@ -163,6 +163,8 @@ def prepare_analysis(frame: pd.DataFrame, dictionary: DataDictionary,
     predictors = []
     for name in design.predictors:
         spec = dictionary.get(name)
+        if spec.kind == "date":
+            raise InputError(say("design.predictor_is_date", name=spec.display))
         if spec.kind not in PREDICTOR_KINDS:
             raise InputError(say("design.predictor_kind", name=spec.display, kind=spec.kind))
         column = typed_column(frame[name].iloc[rows].reset_index(drop=True), spec)

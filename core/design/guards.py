@@ -19,6 +19,8 @@ line show as they are:
   cross-validation keeps each patient's rows in one fold (grouped, the default); without one, a
   column that looks like a patient identifier and repeats is recommended.
 * **Rare classes** — an outcome class with fewer than 10 patients is flagged.
+* **Dates and periods** — a predictor whose header names a date or a calendar period is
+  flagged: its question would sort patients by when they came, not by anything about them.
 """
 
 from __future__ import annotations
@@ -31,6 +33,7 @@ import pandas as pd
 
 from ..data.cells import is_missing_text, level_text, parse_numbers
 from ..dictionary.columns import ColumnSpec, DataDictionary
+from ..dictionary.dates import names_a_date
 from ..dictionary.identity import (
     IdentityHint, identity_by_header, identity_hint, looks_like_record_numbers,
     may_group_patients,
@@ -64,7 +67,7 @@ _PATIENT_WORDS = ("names", "record numbers")
 class GuardFinding:
     """One finding: what kind, which column, the message, and whether the column is left out."""
 
-    kind: str  # "identity" | "leakage" | "repeat_visits" | "rare_class"
+    kind: str  # "identity" | "leakage" | "repeat_visits" | "rare_class" | "period"
     column: str | None
     message: str
     leave_out: bool = False
@@ -194,6 +197,22 @@ def kept_on_purpose(kept: Iterable[str], ticked: Iterable[str], offered: Iterabl
     if not many_at_once:
         chosen |= set(left_out) & ticked
     return frozenset(c for c in chosen if c in ticked or c not in offered)
+
+
+# --- dates and periods ----------------------------------------------------------------------
+
+
+def period_findings(dictionary: DataDictionary, columns: Iterable[str]) -> tuple[GuardFinding, ...]:
+    """A warning for every predictor among ``columns`` whose header names a date or a calendar
+    period ("Arrival date", "Admission year"): its question would sort patients by when they
+    came."""
+    found = []
+    for name in columns:
+        spec = dictionary.get(name) if name in dictionary else ColumnSpec(name)
+        # A column of kind date is refused as a predictor by prepare_analysis, in one sentence.
+        if spec.kind != "date" and (names_a_date(spec.name) or names_a_date(spec.label)):
+            found.append(_finding("period", name, "guard.date_as_question", column=name))
+    return tuple(found)
 
 
 # --- leakage --------------------------------------------------------------------------------
@@ -372,6 +391,7 @@ def guard_design(frame: pd.DataFrame, dictionary: DataDictionary, design: Design
     if design.predictors and not guarded.predictors:
         raise InputError(say("guard.nothing_left", columns=", ".join(repr(c) for c in left_out)))
     findings = [f for f in findings if f.column in left_out]
+    findings.extend(period_findings(dictionary, guarded.predictors))
     findings.extend(repeat_visit_findings(frame, dictionary, guarded, grouped))
     try:
         data = prepare_analysis(frame, dictionary, guarded)
@@ -386,7 +406,8 @@ def guard_design(frame: pd.DataFrame, dictionary: DataDictionary, design: Design
 
 __all__ = [
     "GuardFinding", "GuardReport", "findings_from_notes", "findings_record", "guard_design", "identity_findings", "identity_of",
-    "leakage_findings", "leave_out_identity", "outcome_findings", "repeat_visit_findings",
+    "leakage_findings", "leave_out_identity", "outcome_findings", "period_findings",
+    "repeat_visit_findings",
     "LEAKAGE_AUC", "LEAKAGE_BALANCED_ACCURACY", "LEAKAGE_ERROR_SHARE", "LEAKAGE_ONE_WAY",
     "LEAKAGE_OTHER_WAY", "LEAKAGE_R2", "RARE_CLASS", "SCREEN_FOLDS",
     "SCREEN_DEPTH",

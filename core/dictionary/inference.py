@@ -17,11 +17,13 @@ import numpy as np
 import pandas as pd
 
 from ..data.cells import (
-    missing_texts, parse_dates, parse_numbers, probable_missing, profile_cells, yes_no_levels,
+    missing_texts, parse_dates, parse_numbers, probable_missing, profile_cells, serial_dates,
+    yes_no_levels,
 )
 from ..messages.message import say
 from ..phrases import rows_phrase
 from .columns import MAX_NOMINAL_LEVELS, ColumnSpec, DataDictionary, canonical_levels
+from .dates import looks_like_serial_dates, names_a_date
 from .typed_columns import event_level
 from .identity import GROUPING_IDENTITIES, identity_hint, looks_like_record_numbers
 
@@ -159,6 +161,9 @@ def _infer(name: str, values: pd.Series, rows) -> tuple[ColumnSpec, list[str]]:
                                                                   if rows is not None else None)))
         # The words are now missing codes, so the "not numbers" note no longer applies.
         notes.extend(n for n in numbers.notes if n.code != "values.not_numbers")
+        dated = _serial_date(name, base, numbers.values, notes, rows)
+        if dated is not None:
+            return replace(dated[0], missing_codes=words), dated[1]
         return ColumnSpec(kind="numeric", missing_codes=words, **base), notes
 
     # Texts: counted per distinct trimmed text, and per spelling regardless of capitals.
@@ -237,6 +242,28 @@ def _date(name: str, base: dict, text: pd.Series, notes: list[str]):
     return ColumnSpec(kind="date", role="ignore", note="date", **base), notes
 
 
+def _serial_date(name: str, base: dict, numbers: np.ndarray, notes: list[str], rows):
+    """A column named as a date whose numbers are spreadsheet serial dates (45650 for 24
+    December 2024): a date column, left out of the predictors, with a note showing the
+    reading; None for any other column."""
+    if not (names_a_date(name) and looks_like_serial_dates(numbers)):
+        return None
+    finite = np.isfinite(numbers)
+    dates = serial_dates(numbers[finite])
+    first = int(np.flatnonzero(finite)[0])
+    example = numbers[first]
+    where = None if rows is None else rows[[first]]
+    notes.append(say("infer.serial_dates", column=name,
+                     example=f"{example:g}", date=_day(dates.iloc[0]),
+                     first=_day(dates.min()), last=_day(dates.max()),
+                     rows=rows_phrase(where)))
+    return ColumnSpec(kind="date", role="ignore", note="date", **{**base, "unit": ""}), notes
+
+
+def _day(stamp) -> str:
+    return f"{stamp.day} {stamp:%B %Y}"
+
+
 def _mostly_dates(text: pd.Series) -> bool:
     sample = text.iloc[:: max(1, len(text) // 5000)]
     if sample.str.contains(r"\d[-/.]\d|\d{1,2} [A-Za-z]{3}", regex=True).mean() <= 0.9:
@@ -254,6 +281,9 @@ def _numeric(name: str, base: dict, numbers, n_present: int, notes: list[str], r
         return ColumnSpec(kind="numeric", role="ignore", note="constant", **base), notes
     if len(distinct) == 2 and set(distinct.tolist()) <= {0.0, 1.0}:
         return ColumnSpec(kind="binary", levels=("0", "1"), **base), notes
+    dated = _serial_date(name, base, numbers.values, notes, rows)
+    if dated is not None:
+        return dated
     whole = bool(np.all(distinct == np.round(distinct)))
     # A negative code such as -99 in a column whose other values are all >= 0.
     sentinels = tuple(str(int(v)) for v in distinct[np.isin(distinct, _SENTINELS)]

@@ -347,7 +347,7 @@ class OutcomePanel(StepPanel):
                 kept = say("app.identity_kept", column=f.column, what=what)
                 rows.append(Finding("warning", kept, app_advice(kept), "leave", "Leave it out",
                                     f.column, "identity_kept"))
-        actions = {"leakage": ("leave", "Leave it out"),
+        actions = {"leakage": ("leave", "Leave it out"), "period": ("leave", "Leave it out"),
                    "repeats_no_id": ("patient", "Use as patient number"),
                    "repeats_not_grouped": ("group", "Keep visits together")}
         for f in screen.other_findings:

@@ -55,9 +55,9 @@ def guard_summary(screen) -> str:
     what = []
     for kind, words in (("identity", "columns that may identify patients"),
                         ("leakage", "probable leakage"), ("repeat_visits", "repeat visits"),
-                        ("rare_class", "a rare outcome")):
+                        ("rare_class", "a rare outcome"), ("period", "dates asked about")):
         columns = [f.column for f in warnings if f.kind == kind and f.column]
-        if columns and kind in ("identity", "leakage"):
+        if columns and kind in ("identity", "leakage", "period"):
             names = ", ".join(f"“{escape(c)}”" for c in dict.fromkeys(columns))
             what.append(f"{words} ({names})")
         elif any(f.kind == kind for f in warnings):

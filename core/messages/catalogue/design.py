@@ -19,6 +19,10 @@ ENTRIES = [
     ("design.predictor_kind", "refused", "{name!r} is marked as {kind}, which a tree cannot "
      "ask about; set its kind to numeric, binary, ordinal or nominal, or take it out of the "
      "predictors.", "Change its kind in the data dictionary, or leave it out."),
+    ("design.predictor_is_date", "refused", "{name!r} holds dates, and a question on them "
+     "would split patients by when they came, not by anything about them; take it out of the "
+     "predictors.", "If the period matters, add a column that names it (the year, or before "
+     "and after a change) and ask about that."),
     ("design.predictor_never_recorded", "refused", "{name!r} is not recorded for any patient "
      "with an outcome; take it out of the predictors.", "Leave the column out."),
     ("design.rows_without_outcome", "note", "{n} row(s) without a recorded outcome were left "
@@ -39,6 +43,11 @@ ENTRIES = [
     ("guard.identity", "warning", "{column!r} is left out of the predictors: {reason}, and a "
      "chart must never print who a patient is. Name it in the predictors yourself only if it "
      "does not identify anyone.", "Leave identifying columns out of the analysis file."),
+    ("guard.date_as_question", "warning", "{column!r} would split patients by when they "
+     "came, not by anything about them; leave it out unless the period matters (on the "
+     "command line: --exclude {column}).",
+     "A date or period on a wall chart sorts next week's patients by the calendar; ask about "
+     "it only to compare periods on purpose."),
     ("guard.nothing_left", "refused", "Every chosen predictor identifies patients "
      "({columns}), so none is left to ask about; choose other predictors, or name these "
      "explicitly if they truly do not identify anyone.", "Choose clinical predictors."),

@@ -36,6 +36,11 @@ ENTRIES = [
      "{examples}); where day and month could be swapped the day was read first (03/01/2024 is "
      "3 January). Check a few dates in the preview.",
      "Write dates one way, preferably yyyy-mm-dd."),
+    ("infer.serial_dates", "warning", "{column!r} holds numbers such as {example}{rows} that "
+     "are dates as a spreadsheet stores them ({example} is {date}); they were read as dates, "
+     "from {first} to {last}, and the column is left out of the predictors.",
+     "If they are not dates, set the column's kind to numeric in the data dictionary; when "
+     "exporting, format date cells as dates (yyyy-mm-dd) so they stay readable."),
     ("infer.capitals", "note", "{column!r} spells some categories with different capitals; "
      "they were merged.", "Nothing to do."),
     ("infer.sentinel", "warning", "{column!r}: the value {code}, found in {n} cell(s){rows}, "

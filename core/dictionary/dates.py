@@ -1,0 +1,36 @@
+"""Columns that hold dates or periods: headers that name a date, and numbers that are dates as a
+spreadsheet stores them (serial day numbers).
+
+A spreadsheet keeps a date as the number of days since 30 December 1899 and only shows it as a
+date through the cell's format; an export that loses the format writes 45650 for 24 December
+2024. Such a column read as numbers would become the bedside question "Arrival date above
+45650?", which splits patients by when they came, not by anything about them.
+"""
+
+from __future__ import annotations
+
+import re
+
+import numpy as np
+
+from ..data.cells import FIRST_SERIAL, LAST_SERIAL
+from .identity import normalised_header
+
+# A header that names a date or a calendar period ("Arrival date", "date_of_admission",
+# "Admission year", "Month seen"); durations ("days in hospital", "age in years") do not match.
+_DATE_HEADER = re.compile(r"\b(date|dates|dated|datetime|timestamp|time stamp|year|month|"
+                          r"week|quarter|calendar|day of (the )?(week|month|year))\b")
+
+
+def names_a_date(name: str) -> bool:
+    """Whether a column's header names a date or a calendar period."""
+    return bool(_DATE_HEADER.search(normalised_header(name)))
+
+
+def looks_like_serial_dates(numbers: np.ndarray) -> bool:
+    """Whether recorded numbers are all spreadsheet serial dates of 1920–2099 (a time of day
+    may be kept as the fraction), with at least two different days."""
+    finite = numbers[np.isfinite(numbers)]
+    if len(finite) < 2 or finite.min() < FIRST_SERIAL or finite.max() > LAST_SERIAL + 1:
+        return False
+    return np.unique(np.floor(finite)).size >= 2

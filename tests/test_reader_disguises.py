@@ -1,0 +1,147 @@
+"""Cells that pass for something they are not (issue 15, items 9 and 10): dates stored as
+spreadsheet serial numbers, dates and periods offered as questions, numbers written with their
+unit, and category levels that are people's names or record numbers. Each file loads correctly
+with a warning, or is refused in one sentence (exit status 2, no traceback), and every input
+stays byte-identical (SHA-256 and modification time).
+
+Every file here is invented and written by the test itself.
+"""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from core.data import read_table
+from core.data.cells import parse_dates
+from core.dictionary import infer_dictionary
+from tests.test_bad_inputs import HEADER, add_column, base_rows, csv_text
+from tests.test_hostile_inputs import refused
+from tests.test_reader_oddities import loads
+
+
+def _model(data: Path) -> dict:
+    return json.loads((data.parent / "m.json").read_text(encoding="utf-8"))
+
+
+def _inferred(data: Path):
+    table = read_table(data)
+    dictionary, notes = infer_dictionary(table.frame, table.row_numbers)
+    return table, dictionary, notes
+
+
+# --- item 9: dates stored as spreadsheet serial numbers ----------------------------------------
+
+
+def _serial_dates(n: int, seed: int = 0) -> list[int]:
+    # 45292 is 1 January 2024 as spreadsheets count days (from 30 December 1899).
+    return [45292 + int(d) for d in np.random.default_rng(seed).integers(0, 366, n)]
+
+
+def test_serial_numbers_in_a_date_column_are_read_as_dates_with_a_warning(tmp_path):
+    rows = add_column(base_rows(80), _serial_dates(80))
+    rows[0][-1] = 45650  # 24 December 2024
+    data = tmp_path / "arrivals.csv"
+    data.write_text(csv_text(HEADER + ["Arrival date"], rows), encoding="utf-8")
+    _table, dictionary, notes = _inferred(data)
+    spec = dictionary.get("Arrival date")
+    assert spec.kind == "date" and spec.role == "ignore"
+    note = next(n for n in notes if n.code == "infer.serial_dates")
+    assert "45650 (row 2)" in note and "24 December 2024" in note
+    stderr = loads(data)
+    assert "dates as a spreadsheet stores them" in stderr
+    model = _model(data)
+    assert "Arrival date" not in [p["name"] for p in model["predictors"]]
+    assert model["cohort"]["date_column"] == "Arrival date"  # the cohort's dates come from it
+    assert model["cohort"]["first_date"].startswith("2024-")
+
+
+def test_serial_dates_with_times_and_words_and_in_a_text_column_are_dates_too(tmp_path):
+    values = [f"{v + 0.375:g}" for v in _serial_dates(60, seed=2)]  # 09:00 as the fraction
+    values[3] = "not recorded"
+    values[7] = "unknown"
+    rows = add_column(base_rows(60), values)
+    data = tmp_path / "admitted_on.csv"
+    data.write_text(csv_text(HEADER + ["date_of_admission"], rows), encoding="utf-8")
+    table, dictionary, _notes = _inferred(data)
+    assert dictionary.get("date_of_admission").kind == "date"
+    dates = parse_dates(table.frame["date_of_admission"])
+    assert dates.notna().sum() == 58 and (dates.dt.hour[dates.notna()] == 9).all()
+    loads(data)
+
+
+def test_large_numbers_in_a_column_not_named_as_a_date_stay_numbers(tmp_path):
+    # Platelets per microlitre, hospital charges: numbers in the serial range are numbers when
+    # nothing says they are dates.
+    rng = np.random.default_rng(1)
+    rows = add_column(base_rows(60), [int(v) for v in rng.integers(30_000, 60_000, 60)])
+    data = tmp_path / "charges.csv"
+    data.write_text(csv_text(HEADER + ["charge"], rows), encoding="utf-8")
+    _table, dictionary, notes = _inferred(data)
+    assert dictionary.get("charge").kind == "numeric"
+    assert not any(n.code == "infer.serial_dates" for n in notes)
+
+
+def test_a_date_column_named_as_a_predictor_is_refused_in_one_sentence(tmp_path):
+    rows = add_column(base_rows(60), _serial_dates(60))
+    data = tmp_path / "arrivals.csv"
+    data.write_text(csv_text(HEADER + ["Arrival date"], rows), encoding="utf-8")
+    refused(["fit", data, "--outcome", "admitted", "--model", tmp_path / "m.json",
+             "--predictors", "Arrival date,age"],
+            ["'Arrival date' holds dates", "when they came", "take it out of the predictors"],
+            inputs=[data])
+    assert not (tmp_path / "m.json").exists()
+
+
+# --- item 9: a date or period never becomes a question without a warning ----------------------
+
+
+def test_a_period_column_offered_as_a_question_is_warned_about(tmp_path):
+    # The year of admission is a number, so it may be asked about, but only with a warning
+    # that it encodes a period.
+    rng = np.random.default_rng(3)
+    rows = add_column(base_rows(80), [int(v) for v in rng.integers(2019, 2025, 80)])
+    data = tmp_path / "by_year.csv"
+    data.write_text(csv_text(HEADER + ["Admission year"], rows), encoding="utf-8")
+    stderr = loads(data)
+    assert "'Admission year' would split patients by when they came, not by anything about " \
+           "them; leave it out unless the period matters" in stderr
+    model = _model(data)
+    assert any(f["kind"] == "period" and f["column"] == "Admission year"
+               for f in model["findings"])
+
+
+def test_a_date_column_set_to_numbers_in_the_dictionary_is_warned_about(tmp_path):
+    rows = add_column(base_rows(80), _serial_dates(80))
+    data = tmp_path / "arrivals.csv"
+    data.write_text(csv_text(HEADER + ["Arrival date"], rows), encoding="utf-8")
+    dictionary = tmp_path / "arrivals.dictionary.json"
+    dictionary.write_text(json.dumps({"format": "prunella-dictionary/1", "columns": [
+        {"name": "Arrival date", "kind": "numeric", "role": "predictor"}]}), encoding="utf-8")
+    from tests.test_hostile_inputs import state
+    before = state([dictionary])
+    stderr = loads(data)
+    assert "'Arrival date' would split patients by when they came" in stderr
+    assert state([dictionary]) == before
+
+
+def test_durations_and_ordinary_measurements_are_not_taken_for_periods():
+    from core.dictionary.dates import names_a_date
+
+    for name in ("Arrival date", "date_of_admission", "AdmissionDate", "Admission year",
+                 "month seen", "Day of week", "triage date-time"):
+        assert names_a_date(name), name
+    for name in ("days in hospital", "Age (years)", "months since diagnosis", "update_flag",
+                 "Length of stay", "resp_rate", "weekly alcohol units", "Mandated"):
+        assert not names_a_date(name), name
+
+
+def test_parse_dates_reads_serial_numbers_and_written_dates_side_by_side():
+    got = parse_dates(pd.Series(["45650", "03/01/2024", None, "2024-02-02"]))
+    assert [d.date().isoformat() if pd.notna(d) else None for d in got] == \
+        ["2024-12-24", "2024-01-03", None, "2024-02-02"]
+    got = parse_dates(pd.Series([45650.5, np.nan, 12.0]))
+    assert got.iloc[0] == pd.Timestamp("2024-12-24 12:00") and got.iloc[1:].isna().all()
