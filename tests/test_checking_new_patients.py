@@ -61,7 +61,9 @@ def test_same_campus_rows_agree_with_their_own_boxes(demo, north):
     result = check_table(north.model, _campus(table, "North"))
     for row in result.measures.calibration:
         assert row.n == row.derivation_n and row.agrees
-    assert result.source.startswith("external file breathless_ed.csv")
+    # The file's name is kept apart from the words, so the wall chart prints it only on request.
+    assert result.source == "an external file" and result.file == "breathless_ed.csv"
+    assert result.source_and_file == "an external file (breathless_ed.csv)"
 
 
 def test_heldout_check_replaces_the_simple_one(demo):

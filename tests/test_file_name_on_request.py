@@ -20,14 +20,16 @@ def _words(text) -> str:
     return " ".join(item.text for section in text.sections for item in section.items)
 
 
-def _fitted(tmp_path):
-    rng = np.random.default_rng(3)
-    n = 600
+def _frame(n: int = 600, seed: int = 3) -> pd.DataFrame:
+    rng = np.random.default_rng(seed)
     gait = rng.integers(0, 13, n)
-    frame = pd.DataFrame({"Age (years)": rng.integers(65, 99, n), "Gait score": gait,
-                          "Fell": np.where(rng.random(n) < 0.05 + 0.7 * (gait >= 9), "yes", "no")})
+    return pd.DataFrame({"Age (years)": rng.integers(65, 99, n), "Gait score": gait,
+                         "Fell": np.where(rng.random(n) < 0.05 + 0.7 * (gait >= 9), "yes", "no")})
+
+
+def _fitted(tmp_path):
     data = tmp_path / NAMED
-    frame.to_csv(data, index=False)
+    _frame().to_csv(data, index=False)
     model = tmp_path / "falls.model.json"
     done = prunella("fit", data, "--outcome", "Fell", "--folds", "3", "--model", model)
     assert done.returncode == 0, done.stderr
@@ -61,3 +63,31 @@ def test_a_project_keeps_the_choice():
     assert settings["show_file_name"] is True
     assert chart_options(settings).show_file_name is True
     assert chart_options({}).show_file_name is False  # older projects: not printed
+
+
+def test_a_check_names_its_file_on_the_chart_only_when_asked(tmp_path):
+    """The held-out part and an external file are checks of patients from named files: the
+    chart's "Checked on" panel says where they came from in words, and the file only on
+    request; the command line's own output (the user's screen) names it."""
+    from core.model import TreeModel
+
+    data = tmp_path / NAMED
+    _frame().to_csv(data, index=False)
+    other = tmp_path / "Brennan_Olu_DOB_1941-02-03.csv"
+    _frame(300, seed=8).to_csv(other, index=False)
+    held = tmp_path / "held.model.json"
+    done = prunella("fit", data, "--outcome", "Fell", "--folds", "3", "--holdout", "0.25",
+                    "--model", held)
+    assert done.returncode == 0, done.stderr
+    checked = tmp_path / "checked.model.json"
+    done = prunella("check", held, other, "--checked-model", checked)
+    assert done.returncode == 0, done.stderr
+    assert "an external file (Brennan_Olu_DOB_1941-02-03.csv)" in done.stdout
+    model = TreeModel.load(checked)
+    assert model.extra["validation"]["file"] == other.name
+    plain = _words(chart_text(model, ChartOptions().checked()))
+    assert "from an external file:" in plain and "Brennan" not in plain
+    asked = _words(chart_text(model, ChartOptions(show_file_name=True).checked()))
+    assert f"from an external file ({other.name}):" in asked
+    held_words = _words(chart_text(TreeModel.load(held), ChartOptions().checked()))
+    assert "held-out part of the derivation file" in held_words and "Okafor" not in held_words

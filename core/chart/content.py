@@ -281,7 +281,7 @@ def _cohort(model: TreeModel, options: ChartOptions) -> PanelSection:
     return PanelSection("Derived from", tuple(items))
 
 
-def _validation(model: TreeModel) -> PanelSection | None:
+def _validation(model: TreeModel, options: ChartOptions) -> PanelSection | None:
     check = model.extra.get("validation")
     if not check:
         return None
@@ -289,8 +289,10 @@ def _validation(model: TreeModel) -> PanelSection | None:
     if not summary:
         summary = "; ".join(f"{k.replace('_', ' ')} {v:.3f}" for k, v in check.items()
                             if isinstance(v, float))
-    items = (PanelItem(f"On {check.get('n', '?'):,} {count_word(model)} from "
-                       f"{check.get('source', 'separate data')}:"),
+    source = check.get("source", "separate data")
+    if check.get("file") and options.show_file_name:
+        source = f"{source} ({check['file']})"
+    items = (PanelItem(f"On {check.get('n', '?'):,} {count_word(model)} from {source}:"),
              PanelItem(summary, bold=True))
     if check.get("separate") is False:  # some were derivation patients: not a separate check
         shared = check.get("overlap_patients", 0)
@@ -349,7 +351,7 @@ def chart_text(model: TreeModel, options: ChartOptions) -> ChartText:
     small = frozenset(i for i in band_of if model.node(i).n < options.small_cell)
     banner = None if model.extra.get("validation") else (UNCHECKED_BANNER, UNCHECKED_DETAIL)
     sections = [_cohort(model, options), _performance(model)]
-    checked = _validation(model)
+    checked = _validation(model, options)
     if checked:
         sections.append(checked)
     sections.append(_key(model, bands, options))

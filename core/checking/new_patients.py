@@ -84,6 +84,15 @@ class CheckResult:
     overlap_patients: int = 0
     overlap_rows: int = 0
     overlap_left_out: bool = False
+    # The file's name, kept apart from ``source``: a name may hold a patient's name, a date
+    # of birth or a record number, so the chart prints it only when asked (issue 15.10).
+    file: str | None = None
+
+    @property
+    def source_and_file(self) -> str:
+        """Where the patients came from with the file's name, for the user's own screen and
+        the command line (not the wall chart)."""
+        return f"{self.source} ({self.file})" if self.file else self.source
 
     @property
     def separate(self) -> bool:
@@ -108,6 +117,8 @@ class CheckResult:
                   "calibration_outside": list(self.calibration_outside)}
         if self.data_sha256:
             record["data_sha256"] = self.data_sha256
+        if self.file:
+            record["file"] = self.file
         record["overlap_patients"] = self.overlap_patients
         record["separate"] = self.separate
         # Plain numbers under the keys the first held-out check used (accuracy, risk,
@@ -149,7 +160,7 @@ class CheckResult:
         """A printable account: source, columns, warnings, measures, calibration by box."""
         m = self.measures
         patients = f" ({self.patients} patients)" if self.patients else ""
-        lines = [f"Checked on: {self.source}", f"Visits checked: {self.n}{patients}"]
+        lines = [f"Checked on: {self.source_and_file}", f"Visits checked: {self.n}{patients}"]
         if self.n_excluded:
             lines.append(f"Left out: {self.n_excluded} of {self.n_rows} rows (outcome not "
                          "recorded or not a class the tree knows).")
@@ -311,8 +322,7 @@ def check_heldout(model: TreeModel, heldout: AnalysisData | None, share: float,
     values = model.asked_values(heldout.predictors)
     leaves, unseen, needs, unseen_found = _route(model, values, heldout.n, {})
     routed = leaves > 0
-    source = (f"held-out part of {model.extra.get('data', {}).get('file', 'the derivation file')} "
-              f"({share:.0%} of patients set aside before growing)")
+    source = f"held-out part of the derivation file ({share:.0%} of patients set aside before growing)"
     patients = (int(np.unique(heldout.groups[routed]).size) if heldout.groups is not None
                 else None)
     warnings = _unseen_warning(unseen_found, model) + needs_warning("check.needs_value", needs, model)
@@ -323,7 +333,7 @@ def check_heldout(model: TreeModel, heldout: AnalysisData | None, share: float,
                                None if heldout.groups is None else heldout.groups[routed]),
         columns=None, unseen_levels=unseen, warnings=tuple(warnings),
         model_fingerprint=_fingerprint_without_check(model), data_sha256=data_sha256,
-        needs_value=needs)
+        needs_value=needs, file=model.extra.get("data", {}).get("file"))
 
 
 # --- an external file -------------------------------------------------------------------------
@@ -452,17 +462,17 @@ def check_table(model: TreeModel, table: LoadedTable, source: str | None = None,
         # A row without an identifier is its own patient in the bootstrap.
         groups = ids.fillna(pd.Series([f"\0row{i}" for i in range(len(ids))],
                                       index=ids.index, dtype="string")).to_numpy(dtype=str)
+    name = Path(table.provenance.path).name
+    sheet = f", sheet {table.provenance.sheet}" if table.provenance.sheet else ""
     if source is None:
-        name = Path(table.provenance.path).name
-        sheet = f", sheet {table.provenance.sheet}" if table.provenance.sheet else ""
-        source = f"external file {name}{sheet}"
+        source = "an external file"
     return CheckResult(
         source=source, kind="external", n=len(rows), n_rows=n_rows, n_excluded=no_outcome,
         patients=patients, measures=measure_model(model, y, leaves, groups), columns=report,
         unseen_levels=unseen, warnings=tuple(notes), model_fingerprint=_fingerprint_without_check(model),
         data_sha256=table.provenance.sha256, needs_value=needs,
         overlap_patients=overlap_patients, overlap_rows=overlap_rows,
-        overlap_left_out=bool(leave_out_overlap and overlap_rows))
+        overlap_left_out=bool(leave_out_overlap and overlap_rows), file=f"{name}{sheet}")
 
 
 def with_check(model: TreeModel, result: CheckResult) -> TreeModel:

@@ -57,7 +57,7 @@ def check_html(result) -> str:
     """One check on separate patients: where from, how many, measures, confusion, calibration."""
     m = result.measures
     patients = f" ({result.patients:,} patients)" if result.patients else ""
-    parts = [f"<p><b>{escape(result.source[0].upper() + result.source[1:])}</b>: "
+    parts = [f"<p><b>{escape(result.source_and_file[0].upper() + result.source_and_file[1:])}</b>: "
              f"{result.n:,} visits checked{patients}.</p>"]
     if not result.separate:
         parts.append(f"<p><b>Not a check on separate patients:</b> {result.overlap_patients:,} "
@@ -442,7 +442,7 @@ class CheckingPanel(StepPanel):
 
         def checked(result) -> None:
             self.session.add_external_check(result, path)
-            self.status.setText(f"Checked on {result.n:,} visits from {result.source}.")
+            self.status.setText(f"Checked on {result.n:,} visits from {result.source_and_file}.")
 
         self._start(f"Checking the tree on {Path(path).name}…", read_and_check,
                     self.session.model, path, self.leave_out_overlap.isChecked(),

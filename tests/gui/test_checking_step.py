@@ -65,7 +65,7 @@ def test_check_on_another_file_is_printed_on_the_chart(grown, qtbot, dialogs, tm
     qtbot.waitUntil(lambda: not checking.running and len(checking.checks) == 2, timeout=20000)
     external = checking.checks[-1]
     assert external.kind == "external" and external.n == len(riverside)
-    assert "external file riverside.csv" in _labels(checking).lower()
+    assert "an external file (riverside.csv)" in _labels(checking).lower()
     assert checking.on_chart.isVisible() and checking.on_chart.isChecked()
     record = window.session.chart_derivation().model.extra["validation"]
     assert record["kind"] == "external" and record["n"] == len(riverside)
