@@ -70,27 +70,25 @@ def write_bytes_atomic(path: str | Path, data: bytes) -> None:
 TEMP_MARK = ".prunella-part-"  # only our atomic saves name files so
 _TEMP_NAME = re.compile(r"^\..+" + re.escape(TEMP_MARK) + r"(\d+)-[^./]+\.tmp$")
 STALE_AFTER_SECONDS = 60.0  # a temporary file no save holds and this old is a leftover
-_listeners: list[Callable[[str], None]] = []
-_listeners_lock = threading.Lock()
+# Listeners per thread: a note belongs to the save that made it, so the app's report written
+# in the background and a project saved meanwhile each hear only their own.
+_listening = threading.local()
 
 
 @contextmanager
 def save_notes(listener: Callable[[str], None]) -> Iterator[None]:
-    """While inside, ``listener`` hears every note a save makes (leftover temporary files
-    removed); the command line prints them, the app shows them."""
-    with _listeners_lock:
-        _listeners.append(listener)
+    """While inside, ``listener`` hears every note a save made in this thread makes (leftover
+    temporary files removed); the command line prints them, the app shows them."""
+    listeners = _listening.__dict__.setdefault("listeners", [])
+    listeners.append(listener)
     try:
         yield
     finally:
-        with _listeners_lock:
-            _listeners.remove(listener)
+        listeners.remove(listener)
 
 
 def _tell(note: str) -> None:
-    with _listeners_lock:
-        listeners = list(_listeners)
-    for listener in listeners:
+    for listener in list(getattr(_listening, "listeners", ())):
         listener(note)
 
 

@@ -20,7 +20,9 @@ from core.phrases import METHOD_NAME
 from core.data import read_table
 from core.dictionary import dictionary_for
 from core.project import PROJECT_SUFFIX, check_data_file, load_project, save_project
-from gui.panels.step_panel import ask_open_path, ask_save_path, heading_font, remember_folder
+from gui.panels.step_panel import (
+    ask_open_path, ask_save_path, heading_font, remember_folder, saving,
+)
 from gui.panels.wording import with_advice
 from gui.workers import JobRunner
 from gui.work_dialog import WorkPlaceDialog, save_work_place, saved_work_place
@@ -376,7 +378,8 @@ class MainWindow(QMainWindow):
 
     def _save_to(self, path: str) -> bool:
         try:
-            save_project(self.session.to_project(), path)
+            with saving(self):
+                save_project(self.session.to_project(), path)
         except OSError as exc:
             QMessageBox.warning(self, "The project could not be saved", with_advice(
                 say("app.not_saved", file=Path(path).name, reason=exc.strerror)))

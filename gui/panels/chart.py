@@ -24,7 +24,7 @@ from core.model import scored_table
 from core.safe_files import write_bytes_atomic, write_csv_safely, write_text_atomic
 from gui.binding import Bindings
 from gui.panels.step_panel import (
-    StepPanel, heading_font, scrolling, side_by_side, tool_buttons, with_tooltip,
+    StepPanel, heading_font, saving, scrolling, side_by_side, tool_buttons, with_tooltip,
 )
 from gui.panels.wording import warning_html
 from gui.widgets.chart_printing import chart_plan, page_layout, print_plan
@@ -386,7 +386,8 @@ class ChartPanel(StepPanel):
 
     def _copy_pdf(self, target: str) -> None:
         try:  # the preview file is complete: its bytes are the chart
-            write_bytes_atomic(target, Path(self.pdf_path).read_bytes())
+            with saving(self):
+                write_bytes_atomic(target, Path(self.pdf_path).read_bytes())
         except OSError as exc:
             self.warn(say("app.not_saved", file=Path(target).name, reason=exc.strerror))
             return
@@ -451,7 +452,8 @@ class ChartPanel(StepPanel):
 
     def _write(self, action, target: str) -> bool:
         try:
-            action()
+            with saving(self):
+                action()
         except InputError as exc:
             self.warn(str(exc))
             return False

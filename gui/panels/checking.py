@@ -24,13 +24,16 @@ from core.checking import (
 )
 from core.data import read_table
 from core.option_limits import spin_range
+from core.safe_files import save_notes
 from core.report import (
     DECISION_CURVE_READING, calibration_figure, decision_curve_figure, prepare_report,
     roc_figure, stability_figure, write_report,
 )
 from gui.binding import Bindings
 from gui.panels.data import DATA_FILTER
-from gui.panels.step_panel import Banner, StepPanel, ask_open_path, scrolling, with_tooltip
+from gui.panels.step_panel import (
+    Banner, StepPanel, ask_open_path, scrolling, show_save_notes, with_tooltip,
+)
 from gui.panels.wording import SIZE_RULES, errors_beside, warning_html
 
 
@@ -495,7 +498,9 @@ class CheckingPanel(StepPanel):
         derivation = replace(session.chart_derivation(), request=session.report_request())
         external = tuple(r for r in session.checks if r.kind == "external")
 
-        def done(contents) -> None:
+        def done(result) -> None:
+            contents, notes = result
+            show_save_notes(self, notes)
             if session.nested is None:
                 session.set_nested(contents.nested)
             if session.stability is None:
@@ -521,9 +526,12 @@ def _clear(layout) -> None:
 def make_report(derivation, external, outer_folds: int, resamples: int, nested, stability,
                 path: str, jobs: int = 1, progress=None, cancel=None):
     """Run what the report still needs (core.report.prepare_report reuses what is done),
-    then write it. In a worker."""
+    then write it. In a worker; returns the contents and what saving noted (leftover
+    temporary files removed), for the window to show."""
     contents = prepare_report(derivation, external, outer_folds=outer_folds, bootstrap=resamples,
                               nested_done=nested, stability_done=stability, jobs=jobs,
                               progress=progress, cancel=cancel)
-    write_report(contents, path)
-    return contents
+    notes: list[str] = []
+    with save_notes(notes.append):
+        write_report(contents, path)
+    return contents, tuple(notes)

@@ -18,7 +18,7 @@ from core.dictionary import (
 )
 from core.errors import InputError
 from core.messages import app_advice, app_wording, kind_of as catalogue_entry, say
-from gui.panels.step_panel import StepPanel, ask_open_path, heading_font, with_tooltip
+from gui.panels.step_panel import StepPanel, ask_open_path, heading_font, saving, with_tooltip
 from gui.widgets.dictionary_model import (
     KIND_WORDS, ROLE_WORDS, ChoiceDelegate, DictionaryModel,
 )
@@ -339,7 +339,8 @@ class DataPanel(StepPanel):
         if not path:
             return
         try:
-            self.session.dictionary.save(path)
+            with saving(self):
+                self.session.dictionary.save(path)
         except OSError as exc:
             self.warn(say("app.not_saved", file=Path(path).name, reason=exc.strerror))
         except InputError as exc:  # the write was refused (no room, no permission)

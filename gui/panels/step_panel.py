@@ -4,6 +4,8 @@ file-dialog and message helpers the steps share."""
 
 from __future__ import annotations
 
+from collections.abc import Iterator
+from contextlib import contextmanager
 from pathlib import Path
 
 from PySide6.QtCore import QSettings, Qt, Signal
@@ -14,7 +16,7 @@ from PySide6.QtWidgets import (
 )
 
 from core.messages import say
-from core.safe_files import names_an_input
+from core.safe_files import names_an_input, save_notes
 from gui.panels.wording import with_advice
 from gui.session import STEP_TITLES, STEPS, Session
 from gui.workers import JobRunner
@@ -82,6 +84,25 @@ def ask_save_path(parent: QWidget, session: Session, caption: str, filter_text: 
         QMessageBox.warning(parent, "Prunella", with_advice(say("app.save_over_input")))
         return None
     return path
+
+
+def show_save_notes(parent: QWidget, notes) -> None:
+    """What a save had to do besides saving (our leftover temporary files removed), shown as
+    a message with its advice."""
+    for note in dict.fromkeys(notes):
+        QMessageBox.information(parent, "Leftover temporary files removed", with_advice(note))
+
+
+@contextmanager
+def saving(parent: QWidget) -> Iterator[None]:
+    """Around a save made on this (the window's) thread: the notes it makes are shown once
+    it is over, whether it worked or not."""
+    notes: list[str] = []
+    try:
+        with save_notes(notes.append):
+            yield
+    finally:
+        show_save_notes(parent, notes)
 
 
 def ask_open_path(parent: QWidget, caption: str, filter_text: str) -> str | None:
