@@ -145,3 +145,77 @@ def test_parse_dates_reads_serial_numbers_and_written_dates_side_by_side():
         ["2024-12-24", "2024-01-03", None, "2024-02-02"]
     got = parse_dates(pd.Series([45650.5, np.nan, 12.0]))
     assert got.iloc[0] == pd.Timestamp("2024-12-24 12:00") and got.iloc[1:].isna().all()
+
+
+# --- item 9: numbers written with their unit -------------------------------------------------
+
+
+def _temperatures(n: int, seed: int = 0) -> list[float]:
+    return [round(float(t), 1) for t in np.random.default_rng(seed).uniform(35.5, 40.5, n)]
+
+
+def test_numbers_written_with_their_unit_are_read_as_numbers_with_a_warning(tmp_path):
+    rows = add_column(base_rows(80), [f"{t} °C" for t in _temperatures(80)])
+    rows[5][-1] = "not recorded"
+    rows[0][-1] = "38.2 °C"
+    data = tmp_path / "temperatures.csv"
+    data.write_text(csv_text(HEADER + ["Temperature"], rows), encoding="utf-8")
+    table, dictionary, notes = _inferred(data)
+    spec = dictionary.get("Temperature")
+    assert spec.kind == "numeric" and spec.unit == "°C" and spec.role == "predictor"
+    note = next(n for n in notes if n.code == "values.units")
+    assert note.startswith("Temperature: units were written in the cells (°C)")
+    assert "'38.2 °C'" in note and "79 value(s) were read as numbers in °C" in note
+    stderr = loads(data)
+    assert "Temperature: units were written in the cells (°C)" in stderr
+    temperature = next(p for p in _model(data)["predictors"] if p["name"] == "Temperature")
+    assert temperature["unit"] == "°C"
+
+
+def test_the_usual_clinical_units_are_read_and_named_one_way():
+    from core.data.cells import parse_numbers
+
+    cases = {
+        ("120 mmHg", "95mmHg", "101 mm Hg"): ("mmHg", [120, 95, 101]),
+        ("94%", "88 %", "100"): ("%", [94, 88, 100]),
+        ("5.4 mmol/L", "3.1 mmol/l", "7 mmol/L"): ("mmol/L", [5.4, 3.1, 7]),
+        ("12 mg/L", "140mg/L", "3 mg/l"): ("mg/L", [12, 140, 3]),
+        ("118 g/L", "97 g/l", "130 g/L"): ("g/L", [118, 97, 130]),
+        ("72.5 kg", "80kg", "61 KG"): ("kg", [72.5, 80, 61]),
+        ("170 cm", "158cm", "181 cm"): ("cm", [170, 158, 181]),
+        ("88 bpm", "120 BPM", "64 bpm"): ("bpm", [88, 120, 64]),
+        ("22 /min", "18/min", "30 /min"): ("/min", [22, 18, 30]),
+        ("38.2C", "37 degC", "36.9 ºC"): ("°C", [38.2, 37, 36.9]),
+        ("45 umol/L", "60 µmol/L", "72 μmol/l"): ("µmol/L", [45, 60, 72]),
+    }
+    for cells, (unit, values) in cases.items():
+        parsed = parse_numbers(pd.Series(cells), label="x")
+        assert parsed.unit == unit, cells
+        assert parsed.values.tolist() == values, cells
+        assert not parsed.mixed_units
+
+
+def test_text_that_only_starts_with_a_number_is_not_a_number_with_a_unit():
+    from core.data.cells import parse_numbers
+
+    parsed = parse_numbers(pd.Series(["3 times", "2 West", "1 Main Street", "12"]), label="x")
+    assert parsed.unit == "" and parsed.n_unreadable == 3
+
+
+def test_mixed_units_in_one_column_are_never_converted_but_left_as_text_with_a_warning(tmp_path):
+    temperatures = _temperatures(80, seed=4)
+    cells = [f"{t} °C" if i % 3 else f"{t * 9 / 5 + 32:.1f} °F" for i, t in enumerate(temperatures)]
+    rows = add_column(base_rows(80), cells)
+    data = tmp_path / "two_scales.csv"
+    data.write_text(csv_text(HEADER + ["Temperature"], rows), encoding="utf-8")
+    _table, dictionary, notes = _inferred(data)
+    spec = dictionary.get("Temperature")
+    assert spec.kind == "text" and spec.role == "ignore"
+    note = next(n for n in notes if n.code == "values.mixed_units")
+    assert "different units (°C, °F)" in note and "does not convert units" in note
+    stderr = loads(data)
+    assert "Temperature writes its values in different units (°C, °F)" in stderr
+    assert "Temperature" not in [p["name"] for p in _model(data)["predictors"]]
+    # Named as a predictor, it is refused in one sentence rather than grown on half its cells.
+    refused(["fit", data, "--outcome", "admitted", "--model", tmp_path / "m2.json",
+             "--predictors", "Temperature,age"], ["Temperature"], inputs=[data])

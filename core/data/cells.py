@@ -13,7 +13,7 @@ from __future__ import annotations
 
 import re
 from collections.abc import Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 import pandas as pd
@@ -57,6 +57,21 @@ _CENSORED = re.compile(r"^([<>]=?|≤|≥)\s*([+-]?(\d+\.?\d*|\.\d+))$")
 _THOUSANDS = re.compile(r"^[+-]?\d{1,3}(,\d{3})+(\.\d+)?$")
 _DECIMAL_COMMA = re.compile(r"^[+-]?\d+,\d+$")
 _PERCENT = re.compile(r"^([+-]?(\d+\.?\d*|\.\d+))\s*%$")
+# A number followed by its unit ("38.2 °C", "120 mmHg", "5.4 mmol/L"): the unit is a known one
+# (UNIT_SPELLINGS) or a rate such as "mg/L" or "/min".
+_WITH_UNIT = re.compile(r"^([+-]?(?:\d+\.?\d*|\.\d+))\s*([^\d\s+\-.,].{0,15})$")
+_RATE_UNIT = re.compile(r"^(?:[a-zA-Zµμ]+(?:\^?\d+)?)?/[a-zA-Zµμ]+(?:/[a-zA-Zµμ]+)?$")
+# Spellings of the usual clinical units (compared in lower case, spaces taken out), and how
+# Prunella writes each.
+UNIT_SPELLINGS = {
+    "°c": "°C", "ºc": "°C", "degc": "°C", "c": "°C", "celsius": "°C",
+    "°f": "°F", "ºf": "°F", "degf": "°F", "f": "°F", "fahrenheit": "°F",
+    "mmhg": "mmHg", "kpa": "kPa", "%": "%", "bpm": "bpm", "/min": "/min", "kg": "kg", "g": "g",
+    "lb": "lb", "lbs": "lb", "cm": "cm", "mm": "mm", "m": "m", "ml": "mL", "l": "L",
+    "h": "h", "hr": "h", "hrs": "h", "hours": "h", "min": "min", "mins": "min", "days": "days",
+    "yrs": "years", "years": "years", "mg": "mg", "mcg": "mcg", "µg": "µg", "iu": "IU",
+    "u": "U", "mmol": "mmol",
+}
 # Everything _text_number can read starts like this; one test spares the others.
 _MAYBE_NUMBER = re.compile(r"^([<>]=?|≤|≥)?\s*[+-]?[\d.,]|^[+-]?inf", re.IGNORECASE)
 
@@ -71,6 +86,8 @@ class ParsedNumbers:
     unreadable_texts: tuple[str, ...] = ()  # distinct unreadable texts, commonest first (≤ 20)
     n_unreadable_texts: int = 0  # how many distinct unreadable texts there are
     unreadable_rows: tuple[int, ...] = ()  # spreadsheet rows of unreadable cells (≤ 20)
+    unit: str = ""  # the one unit written in the cells beside the numbers ("°C"), if any
+    mixed_units: tuple[str, ...] = ()  # the units seen, when the cells write several
 
 
 @dataclass(frozen=True)
@@ -220,11 +237,24 @@ def parse_numbers(values: pd.Series, extra_codes: tuple[str, ...] = (), label: s
     missing = (index < 0) | np.append(code_missing, True)[index]
     parsed = pd.to_numeric(pd.Series(texts, dtype=object), errors="coerce").to_numpy(
         dtype="float64", na_value=np.nan).copy() if len(texts) else np.zeros(0)
-    kind = np.zeros(len(texts), dtype=np.int8)  # 0 plain, 1 thousands, 2 comma, 3 limit, 4 %
+    # 0 plain, 1 thousands, 2 comma, 3 limit, 4 %, 5 with another unit
+    kind = np.zeros(len(texts), dtype=np.int8)
+    unit_of: dict[int, str] = {}  # distinct text → the unit written beside its number
     for i in np.flatnonzero(np.isnan(parsed)):  # only the texts pandas could not read
         if _MAYBE_NUMBER.match(texts[i]):
             parsed[i], kind[i] = _text_number(texts[i])
+            if kind[i] == 4:
+                unit_of[i] = "%"
+            elif np.isnan(parsed[i]):
+                parsed[i], unit = _number_with_unit(texts[i])
+                if unit:
+                    kind[i], unit_of[i] = 5, unit
     parsed[code_missing] = np.nan
+    unit, mixed = _units_seen(unit_of, profile.counts, code_missing)
+    if mixed:
+        # Never converted: the cells with a unit stay unreadable, the column stays text.
+        for i in unit_of:
+            parsed[i], kind[i] = np.nan, 0
     lookup = np.append(parsed, np.nan)
     out = lookup[index]
     failed_u = np.isnan(parsed) & ~code_missing
@@ -232,16 +262,64 @@ def parse_numbers(values: pd.Series, extra_codes: tuple[str, ...] = (), label: s
     kinds = np.append(kind, 0)[index]
     kinds[missing] = 0
     for code, template in ((1, "values.thousands"), (2, "values.decimal_comma"),
-                           (3, "values.limits"), (4, "values.percent")):
+                           (3, "values.limits"), (4, "values.percent"), (5, "values.units")):
         hit = kinds == code
         if hit.any():
             example = texts[np.flatnonzero(kind == code)[0]]
             notes.append(say(template, n=int(hit.sum()), column=label, example=example,
-                             rows=rows_phrase(_rows_where(hit, rows))))
+                             rows=rows_phrase(_rows_where(hit, rows)), unit=unit))
+    if mixed:
+        hit = np.isin(index, list(unit_of))
+        notes.append(say("values.mixed_units", column=label, n=int(hit.sum()),
+                         units=", ".join(mixed), rows=rows_phrase(_rows_where(hit, rows))))
     numeric = _numeric_codes(extra_codes)
     if numeric:
         out[np.isin(out, numeric)] = np.nan
-    return _finish(out, missing, failed, (index, texts, failed_u), notes, label, rows)
+    parsed_numbers = _finish(out, missing, failed, (index, texts, failed_u), notes, label, rows)
+    return replace(parsed_numbers, unit=unit, mixed_units=mixed)
+
+
+def unit_spelling(text: str) -> str:
+    """How Prunella writes a unit ("degC" → "°C", "mmhg" → "mmHg", "mg/L" as it is); '' for
+    text that is not a unit."""
+    folded = re.sub(r"\s+", "", text).casefold()
+    if folded in UNIT_SPELLINGS:
+        return UNIT_SPELLINGS[folded]
+    squeezed = re.sub(r"\s+", "", text)
+    if not _RATE_UNIT.match(squeezed):
+        return ""
+    # One spelling per rate: litres with a capital L, micro as µ ("umol/l" → "µmol/L").
+    top, *under = squeezed.split("/")
+    top = re.sub(r"^(u|μ)(?=[a-z])", "µ", top)
+    under = [_PER_SPELLINGS.get(part.casefold(), part) for part in under]
+    return "/".join([top] + under)
+
+
+_PER_SPELLINGS = {"l": "L", "dl": "dL", "ml": "mL", "min": "min", "h": "h", "hr": "h",
+                  "kg": "kg", "day": "day", "d": "day", "s": "s"}
+
+
+def _number_with_unit(text: str) -> tuple[float, str]:
+    """'38.2 °C' → (38.2, '°C'); (NaN, '') when the text is not a number and a unit."""
+    match = _WITH_UNIT.match(text)
+    if match:
+        unit = unit_spelling(match.group(2))
+        if unit:
+            return float(match.group(1)), unit
+    return np.nan, ""
+
+
+def _units_seen(unit_of: dict[int, str], counts: np.ndarray, gone: np.ndarray,
+                ) -> tuple[str, tuple[str, ...]]:
+    """The one unit the cells write beside their numbers (or ''), and all the units seen,
+    commonest first, when they write several."""
+    tally: dict[str, int] = {}
+    for i, unit in unit_of.items():
+        if not gone[i] and counts[i]:
+            tally[unit] = tally.get(unit, 0) + int(counts[i])
+    if len(tally) > 1:
+        return "", tuple(sorted(tally, key=lambda u: -tally[u]))
+    return (next(iter(tally)) if tally else ""), ()
 
 
 def _text_number(text: str) -> tuple[float, int]:

@@ -148,6 +148,12 @@ def _infer(name: str, values: pd.Series, rows) -> tuple[ColumnSpec, list[str]]:
     if n_present == 0:
         notes.append(say("infer.all_missing", column=name))
         return ColumnSpec(kind="numeric", role="ignore", note="no recorded values", **base), notes
+    if numbers.mixed_units:
+        # Values in several units are never converted quietly: text, left out, with a warning.
+        notes.extend(n for n in numbers.notes if n.code != "values.not_numbers")
+        return ColumnSpec(kind="text", role="ignore", **base), notes
+    if numbers.unit and not base["unit"]:
+        base = {**base, "unit": numbers.unit}  # the unit the cells wrote: "38.2 °C"
     readable_share = 1.0 - numbers.n_unreadable / n_present
     finite = numbers.values[np.isfinite(numbers.values)]
     few_words = 0 < numbers.n_unreadable_texts <= _FEW_WORDS and pd.unique(finite).size > 10

@@ -158,6 +158,14 @@ ENTRIES = [
      "agreed values or leave the column out."),
     ("values.percent", "note", "{n} value(s) in {column} written with a % sign (e.g. "
      "{example!r}){rows} were read as the number before it.", "Nothing to do."),
+    ("values.units", "warning", "{column}: units were written in the cells ({unit}){rows}, "
+     "e.g. {example!r}; {n} value(s) were read as numbers in {unit}.",
+     "Check that every value of the column is in {unit}; a column header such as "
+     "'Temperature (°C)' keeps the unit out of the cells."),
+    ("values.mixed_units", "warning", "{column} writes its values in different units "
+     "({units}) in {n} cell(s){rows}; Prunella does not convert units, so the column is read "
+     "as text and left out. Convert them to one unit (or one column per unit) to use it.",
+     "Convert every value to one unit in the spreadsheet, then open it again."),
     ("values.infinite", "warning", "{n} infinite value(s) in {column}{rows} were treated as "
      "not recorded; correct them in the spreadsheet if they stand for real values.",
      "Infinite values usually come from a division by zero in a formula."),
