@@ -111,7 +111,9 @@ class Session(QObject):
     def _forget_checks(self) -> None:
         """A new tree: its checks start afresh (the held-out one is made by core with it)."""
         chosen = self.chosen
+        # Only a check that names the chosen tree by its fingerprint counts as its check.
         self.checks: tuple = () if chosen is None or chosen.heldout_check is None \
+            or not chosen.heldout_check.names(chosen.model) \
             else (chosen.heldout_check,)  # CheckResults, held-out first
         self.print_external = True  # the chart prints the latest external check
         self.nested = None  # a core.checking.nested.NestedResult for the chosen tree

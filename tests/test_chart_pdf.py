@@ -207,12 +207,17 @@ def test_footer_names_model_data_date_and_version(chosen, chosen_pdf) -> None:
 def test_validation_results_replace_the_unchecked_banner(chosen) -> None:
     extra = dict(chosen.extra)
     extra["validation"] = {"source": "the Riverside campus, 2025", "n": 1817,
-                           "summary": "error rate 21.0% (95% CI 19.2–22.9%); AUC 0.78"}
+                           "summary": "error rate 21.0% (95% CI 19.2–22.9%); AUC 0.78",
+                           "model_fingerprint": chosen.fingerprint_before_check}
     checked = dataclasses.replace(chosen, extra=extra)
     text = page_text(render_chart(checked, options()))
     assert UNCHECKED_BANNER not in text
     assert "error rate 21.0% (95% CI 19.2–22.9%); AUC 0.78" in text
     assert "the Riverside campus, 2025" in text and "1,817" in text
+    # The same record without the tree's fingerprint (as Prunella 0.1 wrote it) is no check.
+    del extra["validation"]["model_fingerprint"]
+    text = page_text(render_chart(dataclasses.replace(chosen, extra=extra), options()))
+    assert UNCHECKED_BANNER in text and "the Riverside campus, 2025" not in text
 
 
 def test_a_held_out_check_from_derive_is_printed() -> None:

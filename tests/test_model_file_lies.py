@@ -99,3 +99,62 @@ def test_a_split_moved_under_its_words_prints_where_it_now_splits(checked_file, 
     assert original["question"] not in words
     assert prunella("score", moved, cohort, "--out", moved.parent / "scored.csv").returncode == 0
     assert state([moved, cohort]) == before
+
+
+# --- a stored check counts only for the tree whose fingerprint it carries -------------------
+
+UNCHECKED = "Not yet checked on separate patients"
+
+
+@pytest.mark.parametrize("name, change", [
+    ("another tree", lambda record: record.update(model_fingerprint="0" * 64)),
+    ("version 0.1", lambda record: record.pop("model_fingerprint")),
+    ("hand-made", lambda record: (record.clear(), record.update(source="trust me", n=9999))),
+])
+def test_a_stored_check_that_does_not_name_the_tree_leaves_the_banner(checked_file, name,
+                                                                       change):
+    lying = tampered(checked_file, f"check of {name}.json",
+                     lambda document: change(document["validation"]))
+    out = lying.parent / f"check of {name}.pdf"
+    before = state([lying])
+    ran = prunella("chart", lying, "--out", out, "--paper", "a3")
+    assert ran.returncode == 0, ran.stderr
+    assert "Traceback" not in ran.stderr
+    warning = ran.stderr.strip().splitlines()[-1]
+    assert warning.startswith("prunella: warning: ")
+    for words in ("does not name this tree", "not yet checked", "run the check again"):
+        assert words in warning, warning
+    words = chart_words(out)
+    assert UNCHECKED in words
+    assert "Checked on separate patients" not in words and "trust me" not in words
+    assert state([lying]) == before
+
+
+def test_the_tree_s_own_check_replaces_the_banner(checked_file):
+    out = checked_file.parent / "own check.pdf"
+    ran = prunella("chart", checked_file, "--out", out, "--paper", "a3")
+    assert ran.returncode == 0 and "warning" not in ran.stderr, ran.stderr
+    words = chart_words(out)
+    assert UNCHECKED not in words and "Checked on separate patients" in words
+
+
+def test_check_records_the_tree_s_fingerprint_so_its_chart_counts_it(checked_file, cohort):
+    """prunella check writes the checked tree's fingerprint into the record it stores, and a
+    file whose stored check named another tree is checked afresh."""
+    from core.model import TreeModel
+
+    other = tampered(checked_file, "rechecked input.json",
+                     lambda document: document["validation"].update(model_fingerprint="1" * 64))
+    before = state([other, cohort])
+    checked = cohort.parent / "rechecked.json"
+    ran = prunella("check", other, cohort, "--source", "the spring ward list",
+                   "--checked-model", checked)
+    assert ran.returncode == 0, ran.stderr
+    assert state([other, cohort]) == before
+    model = TreeModel.load(checked)
+    assert model.extra["validation"]["model_fingerprint"] == model.fingerprint_before_check
+    assert model.recorded_check is not None and model.stored_check_refused is None
+    out = cohort.parent / "rechecked.pdf"
+    assert prunella("chart", checked, "--out", out, "--paper", "a3").returncode == 0
+    words = chart_words(out)
+    assert UNCHECKED not in words and "the spring ward list" in words

@@ -282,7 +282,7 @@ def _cohort(model: TreeModel, options: ChartOptions) -> PanelSection:
 
 
 def _validation(model: TreeModel, options: ChartOptions) -> PanelSection | None:
-    check = model.extra.get("validation")
+    check = model.recorded_check  # only a check that names this tree by its fingerprint
     if not check:
         return None
     summary = check.get("summary")
@@ -349,7 +349,7 @@ def chart_text(model: TreeModel, options: ChartOptions) -> ChartText:
     bands = banding(model, options.band_cuts, options.band_ratio)
     spec, band_of = tree_spec(model, options, bands)
     small = frozenset(i for i in band_of if model.node(i).n < options.small_cell)
-    banner = None if model.extra.get("validation") else (UNCHECKED_BANNER, UNCHECKED_DETAIL)
+    banner = None if model.recorded_check else (UNCHECKED_BANNER, UNCHECKED_DETAIL)
     sections = [_cohort(model, options), _performance(model)]
     checked = _validation(model, options)
     if checked:

@@ -244,7 +244,7 @@ def sizes_that_fit(derivation: "Derivation", options: ChartOptions | None = None
         most = _most_leaves(options.paper, options.min_text, measure)
         deepest = deepest_possible(chart_text(derivation.model, options), options, measure)
     path = derivation.path
-    checked = derivation.model.extra.get("validation")
+    checked = derivation.model.recorded_check
     depths = _subtree_depths(path)
     candidates = []
     for index, leaves in enumerate(int(v) for v in path.leaves):
@@ -254,8 +254,9 @@ def sizes_that_fit(derivation: "Derivation", options: ChartOptions | None = None
     def fits(leaves: int) -> bool:
         model = build_model(path, *path.index_for(leaves), derivation.table,
                             derivation.dictionary, derivation.request)
-        if checked:
-            model = replace(model, extra={**model.extra, "validation": checked})
+        if checked:  # named as the candidate's own, so it prints in place of the banner
+            model = replace(model, extra={**model.extra, "validation": {
+                **checked, "model_fingerprint": model.fingerprint_before_check}})
         return tree_fits(model, options, measure)
 
     found = fitting_sizes(candidates, fits)

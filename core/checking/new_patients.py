@@ -94,6 +94,11 @@ class CheckResult:
         the command line (not the wall chart)."""
         return f"{self.source} ({self.file})" if self.file else self.source
 
+    def names(self, model: TreeModel) -> bool:
+        """Whether this check was made on ``model``: its fingerprint is the tree's (without
+        the tree's own recorded check). A check of another tree says nothing of this one."""
+        return self.model_fingerprint == model.fingerprint_before_check
+
     @property
     def separate(self) -> bool:
         """Whether the patients checked are separate from the derivation patients."""
@@ -332,7 +337,7 @@ def check_heldout(model: TreeModel, heldout: AnalysisData | None, share: float,
         measures=measure_model(model, heldout.y[routed], leaves[routed],
                                None if heldout.groups is None else heldout.groups[routed]),
         columns=None, unseen_levels=unseen, warnings=tuple(warnings),
-        model_fingerprint=_fingerprint_without_check(model), data_sha256=data_sha256,
+        model_fingerprint=model.fingerprint_before_check, data_sha256=data_sha256,
         needs_value=needs, file=model.extra.get("data", {}).get("file"))
 
 
@@ -469,27 +474,21 @@ def check_table(model: TreeModel, table: LoadedTable, source: str | None = None,
     return CheckResult(
         source=source, kind="external", n=len(rows), n_rows=n_rows, n_excluded=no_outcome,
         patients=patients, measures=measure_model(model, y, leaves, groups), columns=report,
-        unseen_levels=unseen, warnings=tuple(notes), model_fingerprint=_fingerprint_without_check(model),
+        unseen_levels=unseen, warnings=tuple(notes),
+        model_fingerprint=model.fingerprint_before_check,
         data_sha256=table.provenance.sha256, needs_value=needs,
         overlap_patients=overlap_patients, overlap_rows=overlap_rows,
         overlap_left_out=bool(leave_out_overlap and overlap_rows), file=f"{name}{sheet}")
 
 
 def with_check(model: TreeModel, result: CheckResult) -> TreeModel:
-    """The same model with ``extra["validation"]`` recording this check (the chart prints it
-    instead of the 'not yet checked' banner)."""
-    if result.model_fingerprint != _fingerprint_without_check(model):
+    """The same model with ``extra["validation"]`` recording this check, named by the tree's
+    fingerprint (the chart prints it instead of the 'not yet checked' banner)."""
+    if not result.names(model):
         raise InputError(say("check.other_tree"))
     extra = dict(model.extra)
     extra["validation"] = result.to_model_record()
     return replace(model, extra=extra)
-
-
-def _fingerprint_without_check(model: TreeModel) -> str:
-    if "validation" not in model.extra:
-        return model.fingerprint
-    extra = {k: v for k, v in model.extra.items() if k != "validation"}
-    return replace(model, extra=extra).fingerprint
 
 
 def training_measures(model: TreeModel, data: AnalysisData) -> Measures:

@@ -276,7 +276,7 @@ def summary_text(derivation: Derivation) -> str:
         lines[-1:-1] = [goal_text(chosen)]
     if model.no_better_warning():
         lines.append(f"Warning: {model.no_better_warning()}")
-    check = model.extra.get("validation")
+    check = model.recorded_check
     if check:
         lines.append(f"Checked on {check['source']} ({check['n']} visits): {check['summary']}.")
     lines += ["", model.rules(), f"{CAUTION_TITLE}. {caution_text()}"]

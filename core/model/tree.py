@@ -417,6 +417,34 @@ class TreeModel:
         """The fingerprint as pages and screens print it (its first 12 digits)."""
         return short_fingerprint(self.fingerprint)
 
+    @property
+    def fingerprint_before_check(self) -> str:
+        """The fingerprint of the tree without its recorded check: the one a check names."""
+        if "validation" not in self.extra:
+            return self.fingerprint
+        extra = {k: v for k, v in self.extra.items() if k != "validation"}
+        return replace(self, extra=extra).fingerprint
+
+    @property
+    def recorded_check(self) -> dict | None:
+        """The recorded check on separate patients (``extra["validation"]``), only when it
+        names this very tree by its fingerprint. A check edited into a file, copied from
+        another tree or written by Prunella 0.1 (which did not name the tree) does not count:
+        the chart, the report and the app then say the tree is not yet checked."""
+        record = self.extra.get("validation")
+        if not isinstance(record, dict) or \
+                record.get("model_fingerprint") != self.fingerprint_before_check:
+            return None
+        return record
+
+    @property
+    def stored_check_refused(self) -> str | None:
+        """The sentence saying a stored check does not name this tree, or None when there is
+        no stored check or it does."""
+        if "validation" not in self.extra or self.recorded_check is not None:
+            return None
+        return say("model.check_not_this_tree")
+
     def save(self, path: str | Path) -> None:
         write_text_atomic(path, self.to_json())
 

@@ -74,6 +74,11 @@ ENTRIES = [
      "Use the model file as Prunella saved it; do not edit it by hand."),
     ("model.damaged_detail", "refused", "The model file is damaged ({kind}: {detail}); save "
      "the model again from Prunella.", "Use the model file as Prunella saved it."),
+    ("model.check_not_this_tree", "warning", "The check stored in the model file does not "
+     "name this tree (it lacks the tree's fingerprint, or gives another), so the tree is shown "
+     "as not yet checked; run the check again on this tree.",
+     "Check the tree on separate patients again (prunella check ... --checked-model, or step "
+     "5 of the app); a check counts only for the tree whose fingerprint it carries."),
     ("model.numbering", "refused", "The model file is damaged (boxes are not numbered 1, 2, "
      "3, ...); save the model again from Prunella.", "Use the model file as Prunella saved it."),
     ("model.damaged_box", "refused", "The model file is damaged at box {box}; save the model "
