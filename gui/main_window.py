@@ -61,6 +61,17 @@ def recent_names(paths: list[str]) -> list[tuple[str, str]]:
             for p, n in zip(paths, names)]
 
 
+def window_name(session: Session) -> str:
+    """What the window's title names: the project, else the data file open, else a new
+    project. The system adds the app's display name after it (" — Prunella"), so the title
+    itself never holds it and the name is not said twice."""
+    if session.project_path:
+        return Path(session.project_path).name
+    if session.table is not None:
+        return Path(session.table.provenance.path).name
+    return "New project"
+
+
 def cautions_text() -> str:
     return "\n".join(f"• {c}" for c in CAUTIONS)
 
@@ -268,8 +279,7 @@ class MainWindow(QMainWindow):
             item.setForeground(self.palette().text() if session.ready(step)
                                else self.palette().placeholderText())
         self.setWindowModified(session.dirty)
-        name = Path(session.project_path).name if session.project_path else "New project"
-        self.setWindowTitle(f"{name}[*]")  # Qt adds " — Prunella", the display name
+        self.setWindowTitle(f"{window_name(session)}[*]")  # Qt adds " — Prunella" once
         parts = []
         if session.table is not None:
             parts.append(f"Data {session.table.provenance.short_fingerprint}")

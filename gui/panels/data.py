@@ -23,7 +23,7 @@ from gui.widgets.dictionary_model import (
     KIND_WORDS, ROLE_WORDS, ChoiceDelegate, DictionaryModel,
 )
 from gui.widgets.findings import Finding, FindingsView
-from gui.widgets.frame_model import FrameModel
+from gui.widgets.frame_model import ROW_NUMBERS_TIP, FrameModel
 
 SPREADSHEET_PATTERNS = "*.csv *.tsv *.txt *.tab *.xlsx *.xlsm"
 DATA_FILTER = f"Spreadsheets ({SPREADSHEET_PATTERNS});;All files (*)"
@@ -115,7 +115,16 @@ class DataPanel(StepPanel):
         view.setAlternatingRowColors(True)
         view.setAccessibleName("Rows of the spreadsheet")
         self.rows_view = view
-        return view
+        # One numbering everywhere: the row headers are the spreadsheet's row numbers, those
+        # the notes and warnings name, and the tab says so.
+        self.rows_caption = QLabel()
+        self.rows_caption.setWordWrap(True)
+        tab = QWidget()
+        layout = QVBoxLayout(tab)
+        layout.setContentsMargins(0, 4, 0, 0)
+        layout.addWidget(self.rows_caption)
+        layout.addWidget(view, 1)
+        return tab
 
     def _fit_headers(self) -> None:
         """Each column of the Rows tab as wide as its header's name (within limits), the
@@ -373,7 +382,9 @@ class DataPanel(StepPanel):
             self._show_sheet_choice(False)
             return
         if self.frame_model.frame is not table.frame:
-            self.frame_model.set_frame(table.frame)
+            header = table.provenance.header_row
+            self.frame_model.set_frame(table.frame, table.row_numbers, header)
+            self.rows_caption.setText(ROW_NUMBERS_TIP.format(header=header))
             self._fit_headers()
         self.dictionary_model.set_dictionary(self.session.dictionary)
         p = table.provenance

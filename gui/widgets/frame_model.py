@@ -35,22 +35,35 @@ def cell_text(value) -> str:
     return str(value)
 
 
+ROW_NUMBERS_TIP = ("Rows are numbered as in the spreadsheet (row {header} holds the column "
+                   "names), as the notes and warnings number them.")
+
+
 class FrameModel(QAbstractTableModel):
-    """Rows of a DataFrame, shown lazily; row headers count from 1."""
+    """Rows of a DataFrame, shown lazily; row headers are the spreadsheet's row numbers when
+    given (those the notes name), else count from 1."""
 
     def __init__(self, frame: pd.DataFrame | None = None, parent=None) -> None:
         super().__init__(parent)
         self._frame = pd.DataFrame() if frame is None else frame
         self._arrays: dict[int, np.ndarray] = {}
         self._numeric: dict[int, bool] = {}
+        self._row_numbers: np.ndarray | None = None
+        self._header_row = 1
 
     @property
     def frame(self) -> pd.DataFrame:
         return self._frame
 
-    def set_frame(self, frame: pd.DataFrame | None) -> None:
+    def set_frame(self, frame: pd.DataFrame | None, row_numbers=None,
+                  header_row: int = 1) -> None:
+        """Show ``frame``; ``row_numbers`` (one per row) are the spreadsheet's numbers of its
+        rows, shown as the row headers, ``header_row`` the row of the column names."""
         self.beginResetModel()
         self._frame = pd.DataFrame() if frame is None else frame
+        self._row_numbers = None if row_numbers is None or frame is None or \
+            len(row_numbers) != len(frame) else np.asarray(row_numbers)
+        self._header_row = header_row
         self._arrays.clear()
         self._numeric.clear()
         self.endResetModel()
@@ -86,8 +99,13 @@ class FrameModel(QAbstractTableModel):
         return None
 
     def headerData(self, section: int, orientation, role: int = Qt.DisplayRole):  # noqa: N802
+        if role == Qt.ToolTipRole and orientation == Qt.Vertical and \
+                self._row_numbers is not None:
+            return ROW_NUMBERS_TIP.format(header=self._header_row)
         if role != Qt.DisplayRole:
             return None
         if orientation == Qt.Horizontal:
             return str(self._frame.columns[section])
+        if self._row_numbers is not None:
+            return str(int(self._row_numbers[section]))
         return str(section + 1)

@@ -47,9 +47,9 @@ def test_prunella_demo_opens_the_app_with_the_demo_loaded(qapp, qtbot, dialogs, 
     monkeypatch.setattr(QApplication, "exec", event_loop)
     assert main(["--demo"]) == 0
     assert seen["rows"] == 3950 and seen["outcome"] == "admitted"
-    # The window's own title names the project; the system adds the app's display name after
-    # it (" — Prunella"), so the name is not said twice.
-    assert seen["title"].startswith("New project") and "Prunella" not in seen["title"]
+    # The window's own title names the data file open (no project is saved yet); the system
+    # adds the app's display name after it (" — Prunella"), so the name is not said twice.
+    assert seen["title"].startswith("breathless_ed.csv") and "Prunella" not in seen["title"]
     assert QApplication.applicationDisplayName() == "Prunella"
     # The first start showed the cautions (once).
     shown = dialogs.texts("information")

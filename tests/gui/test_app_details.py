@@ -1,0 +1,97 @@
+"""Details of the app a new user met on their own spreadsheet (issue 15, item 14): the window
+title names the file once; the Rows tab numbers rows as the notes do (the spreadsheet's row
+numbers); a dd/mm/yyyy date column is a date, never phone numbers. The data are invented."""
+
+from __future__ import annotations
+
+import os
+
+os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
+
+import numpy as np  # noqa: E402
+import pandas as pd  # noqa: E402
+from PySide6.QtCore import Qt  # noqa: E402
+from PySide6.QtWidgets import QApplication  # noqa: E402
+
+from tests.gui.test_guards_step import settled  # noqa: E402
+
+
+def falls_sheet(path, n: int = 90, seed: int = 11) -> None:
+    """Invented falls audit: dd/mm/yyyy visit dates (day first, days above 12 included),
+    a date and time of arrival, a word among the ages, and a rare outcome."""
+    rng = np.random.default_rng(seed)
+    ages = rng.integers(60, 99, n).astype(object)
+    ages[5] = "ninety"  # the seventh spreadsheet row (header in row 1): a typed word
+    pd.DataFrame({
+        "MRN": [f"M{700000 + i}" for i in range(n)],
+        "Visit date": [f"{1 + (i * 7) % 28:02d}/{1 + i % 12:02d}/2025" for i in range(n)],
+        "Arrived": [f"{1 + (i * 5) % 28:02d}/{1 + i % 12:02d}/2025 {i % 24:02d}:{i % 60:02d}"
+                    for i in range(n)],
+        "Age": ages,
+        "Gait": rng.choice(["steady", "unsteady", "frame"], n),
+        "Fell again": np.where(rng.random(n) < 0.2, "yes", "no"),
+    }).to_csv(path, index=False)
+
+
+def _open(window, qtbot, path) -> None:
+    window.open_any(str(path))
+    qtbot.waitUntil(lambda: window.session.table is not None, timeout=20000)
+
+
+def _shown_title(window) -> str:
+    """The title as the system shows it: the window's own, then the app's display name."""
+    own = window.windowTitle().replace("[*]", "*" if window.isWindowModified() else "")
+    return f"{own} — {QApplication.applicationDisplayName()}"
+
+
+def test_the_title_names_the_file_once(window, qtbot, tmp_path, dialogs):
+    assert _shown_title(window) == "New project — Prunella"
+    path = tmp_path / "falls_home.csv"
+    falls_sheet(path)
+    _open(window, qtbot, path)
+    window.session.dirty = False
+    window.update_state()
+    assert _shown_title(window) == "falls_home.csv — Prunella"
+    assert "Prunella" not in window.windowTitle()
+    dialogs.save_name = str(tmp_path / "falls audit.prunella")
+    assert window.save_as()
+    assert _shown_title(window) == "falls audit.prunella — Prunella"
+
+
+def test_the_rows_tab_numbers_rows_as_the_notes_do(window, qtbot, tmp_path):
+    path = tmp_path / "falls.csv"
+    falls_sheet(path)
+    text = path.read_text(encoding="utf-8").splitlines()
+    # A blank line after the third patient: later rows are numbered as the spreadsheet does.
+    path.write_text("\n".join(text[:4] + [""] + text[4:]) + "\n", encoding="utf-8")
+    _open(window, qtbot, path)
+    notes = list(window.session.table.provenance.warnings) + list(window.session.notes)
+    assert any("(row 5)" in n for n in notes)  # the empty row left out
+    age = next(n for n in notes if "'Age' holds numbers and a few words" in n)
+    assert "(row 8)" in age  # 'ninety': header in row 1, blank row 5
+    panel = window.panels["data"]
+    model = panel.frame_model
+    headers = [model.headerData(r, Qt.Vertical) for r in range(model.rowCount())]
+    assert headers[:5] == ["2", "3", "4", "6", "7"]
+    row = headers.index("8")
+    assert model.data(model.index(row, 3)) == "ninety"  # the row the note names
+    assert "numbered as in the spreadsheet (row 1 holds the column names)" in \
+        panel.rows_caption.text()
+    assert "as the notes and warnings number them" in model.headerData(0, Qt.Vertical,
+                                                                        Qt.ToolTipRole)
+
+
+def test_a_day_first_date_column_is_a_date_not_phone_numbers(window, qtbot, tmp_path):
+    path = tmp_path / "falls.csv"
+    falls_sheet(path)
+    _open(window, qtbot, path)
+    dictionary = window.session.dictionary
+    assert dictionary.get("Visit date").kind == "date"
+    assert dictionary.get("Arrived").kind == "date"
+    window.session.choose_outcome("Fell again")
+    window.go_to("outcome")
+    settled(window, qtbot)
+    said = [r.finding.text for r in window.panels["outcome"].findings.rows] + \
+        [r.finding.text for r in window.panels["data"].notes_view.rows]
+    assert not any("phone" in t for t in said), said
+    assert not any(("Visit date" in t or "Arrived" in t) and "identif" in t for t in said)
