@@ -160,6 +160,10 @@ def test_the_report_prints_box_means_to_the_data(ward):
         assert f"mean {leaf.mean:.1f}" in words
     mean = float(pd.read_csv(folder / "ward.csv")["Length of stay (days)"].mean())
     assert f"{mean:.1f} days" in words
+    # A measured outcome's boxes have means, not rates, wherever the report names them.
+    assert "derivation rate" not in words
+    if external.calibration_outside:
+        assert "the derivation mean of box(es)" in words
 
 
 def test_an_older_model_file_keeps_three_significant_figures(ward):

@@ -266,5 +266,6 @@ def test_the_report_calls_the_error_an_error(written):
     """'Risk' reads as the chance of the outcome; the report's tables say 'error' (issue 10.8)."""
     words = " ".join(_text(written).split())
     assert "Cross-validated error" in words and "Training error" in words
-    for wrong in ("Training risk", "Cross-validated risk", "Node risk"):
+    for wrong in ("Training risk", "Cross-validated risk", "Node risk", "Risk:"):
         assert wrong not in words
+    assert "Error: " in words  # the pruning-path table's caption

@@ -189,7 +189,8 @@ def _definitions(c: ReportContents, s: Styles) -> list:
     roles = [("Patient identifier", design.patient_id), ("Site", design.site)]
     text_roles = "; ".join(f"{name}: {col}" for name, col in roles if col)
     if text_roles:
-        story.append(para(f"Other roles: {text_roles}.", s.body))
+        # A column name may end in its own full stop ("Hospital no.").
+        story.append(para(f"Other roles: {text_roles.rstrip('.')}.", s.body))
     return story
 
 
@@ -291,7 +292,7 @@ def _pruning(c: ReportContents, s: Styles) -> list:
                      digits(path["cv_risk"][k]), digits(path["cv_se"][k])])
     shown = "" if len(keep) == len(leaves) else (f" ({len(keep)} of the {len(leaves)} sizes "
                                                  "shown: the smallest trees and the marked ones)")
-    story.append(KeepTogether([para(f"Risk: {path.get('risk_measure', 'risk')}{shown}.", s.body),
+    story.append(KeepTogether([para(f"Error: {path.get('risk_measure', 'error')}{shown}.", s.body),
                                table(rows, [0.1, 0.24, 0.2, 0.24, 0.16], s,
                                      align_right=(0, 2, 3, 4), keep=False)]))
     return story
@@ -422,7 +423,8 @@ def _limitations(c: ReportContents, s: Styles) -> list:
     for check in c.checks:
         outside = check.calibration_outside
         if outside:
-            items.append(f"In {check.source}, the derivation rate of box(es) "
+            what = "rate" if model.task == "classification" else "mean"
+            items.append(f"In {check.source}, the derivation {what} of box(es) "
                          f"{', '.join(map(str, outside))} lies outside the observed interval: "
                          "the tree is miscalibrated there and should be recalibrated or "
                          "rederived locally.")
