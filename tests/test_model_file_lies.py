@@ -158,3 +158,123 @@ def test_check_records_the_tree_s_fingerprint_so_its_chart_counts_it(checked_fil
     assert prunella("chart", checked, "--out", out, "--paper", "a3").returncode == 0
     words = chart_words(out)
     assert UNCHECKED not in words and "the spring ward list" in words
+
+
+# --- impossible values are refused by every command, naming the field -----------------------
+
+
+@pytest.fixture(scope="module")
+def regression_file(cohort) -> Path:
+    """A regression tree (breathing rate from the rest) with its own check."""
+    model = cohort.parent / "breathing.json"
+    ran = prunella("fit", cohort, "--outcome", "resp_rate", "--task", "regression", "--folds",
+                   "3", "--holdout", "0.25", "--model", model, "--quiet")
+    assert ran.returncode == 0, ran.stderr
+    assert "rmse" in json.loads(model.read_text(encoding="utf-8"))["validation"]
+    return model
+
+
+def leaf(document: dict) -> dict:
+    return next(node for node in document["nodes"] if node["leaf"])
+
+
+def set_in(*keys, value):
+    """A change that sets the field at ``keys`` (the last may be a list index)."""
+    def change(document):
+        target = document
+        for key in keys[:-1]:
+            target = target[key]
+        target[keys[-1]] = value(target[keys[-1]]) if callable(value) else value
+    return change
+
+
+def reversed_triple(triple):
+    value, low, high = triple
+    return [value, high, low]
+
+
+CLASSIFICATION_LIES = [
+    ("an inverted interval", set_in("validation", "sensitivity", value=reversed_triple),
+     ["validation.sensitivity", "lower end", "above its upper end"]),
+    ("an AUC above 1", set_in("validation", "auc", value=[1.3, 1.2, 1.4]),
+     ["validation.auc", "between 0 and 1", "1.3"]),
+    ("a share above 1", set_in("validation", "accuracy", value=1.2),
+     ["validation.accuracy", "between 0 and 1"]),
+    ("a sensitivity outside its interval", set_in("validation", "specificity",
+                                                 value=[0.2, 0.6, 0.7]),
+     ["validation.specificity", "outside its own interval"]),
+    ("a negative count checked", set_in("validation", "n", value=-40),
+     ["validation.n", "cannot be negative"]),
+    ("more patients than visits checked", set_in("validation", "patients", value=10 ** 6),
+     ["validation.patients", "cannot have made only"]),
+    ("a negative outcome count", set_in("cohort", "outcome_counts", "yes", value=-3),
+     ["cohort.outcome_counts.yes", "cannot be negative"]),
+    ("more patients than visits", set_in("cohort", "patients", value=10 ** 6),
+     ["cohort.patients", "cannot have made only"]),
+    ("priors outside 0-1", set_in("costs", "priors", value=[1.5, -0.5]),
+     ["costs.priors[0]", "between 0 and 1"]),
+    ("a negative standard error on the path", set_in("path", "cv_se", 1, value=-0.01),
+     ["path.cv_se[1]", "standard error", "cannot be negative"]),
+    ("a negative chosen error", set_in("chosen", "cv_risk", value=-0.2),
+     ["chosen.cv_risk", "cannot be negative"]),
+    ("a CV sensitivity above 1", set_in("path", "cv_sensitivity", 0, value=1.7),
+     ["path.cv_sensitivity[0]", "between 0 and 1"]),
+    ("an inverted CV interval", set_in("path", "cv_specificity_interval", 0,
+                                       value=lambda pair: pair[::-1]),
+     ["path.cv_specificity_interval[0]", "above its upper end"]),
+    ("a negative count in a box", lambda document: leaf(document).update(
+        counts=[-1] + leaf(document)["counts"][1:]), ["box", "whole numbers"]),
+]
+
+REGRESSION_LIES = [
+    ("a negative SD", lambda document: leaf(document).update(sd=-2.5),
+     ["box", "'sd' cannot be negative"]),
+    ("quartiles out of order", lambda document: leaf(document).update(
+        quartiles=leaf(document)["quartiles"][::-1]), ["box", "quartiles", "lower first"]),
+    ("a mean outside the outcomes grown on", lambda document: leaf(document).update(mean=900.0),
+     ["mean", "outside the outcomes the tree was grown on", "cohort.outcome_range"]),
+    ("a negative RMSE", set_in("validation", "rmse", value=-1.0),
+     ["validation.rmse", "cannot be negative"]),
+    ("an R² above 1", set_in("validation", "r2", value=1.4), ["validation.r2", "above 1"]),
+    ("an inverted error interval", set_in("validation", "mae_interval",
+                                          value=lambda pair: pair[::-1]),
+     ["validation.mae_interval", "above its upper end"]),
+]
+
+
+def command_args(command: str, model: Path, data: Path) -> list:
+    out = model.parent / "out"
+    return {"chart": ["chart", model, "--out", out.with_suffix(".pdf")],
+            "score": ["score", model, data, "--out", out.with_suffix(".csv")],
+            "check": ["check", model, data, "--checked-model", out.with_suffix(".json")],
+            "report": ["report", model, data, "--out", out.with_suffix(".pdf"), "--no-nested",
+                       "--bootstrap", "0"]}[command]
+
+
+@pytest.mark.parametrize("name, change, words", CLASSIFICATION_LIES,
+                         ids=[case[0] for case in CLASSIFICATION_LIES])
+def test_an_impossible_value_is_refused_by_every_command(checked_file, cohort, name, change,
+                                                          words):
+    lying = tampered(checked_file, f"{name}.json", change)
+    for command in ("chart", "score", "check", "report"):
+        last = refused(command_args(command, lying, cohort), words + ["save the model again"],
+                       inputs=[lying, cohort])
+        assert f"{name}.json" in last or "model file" in last
+
+
+@pytest.mark.parametrize("name, change, words", REGRESSION_LIES,
+                         ids=[case[0] for case in REGRESSION_LIES])
+def test_an_impossible_regression_value_is_refused_by_every_command(regression_file, cohort,
+                                                                     name, change, words):
+    lying = tampered(regression_file, f"{name}.json", change)
+    for command in ("chart", "score", "check", "report"):
+        refused(command_args(command, lying, cohort), words + ["save the model again"],
+                inputs=[lying, cohort])
+
+
+def test_the_files_prunella_writes_hold_no_impossible_value(checked_file, regression_file):
+    """The checks refuse only what no tree can have: every file fitted here passes them."""
+    from core.model import TreeModel
+
+    for path in (checked_file, regression_file):
+        assert TreeModel.load(path).recorded_check is not None

@@ -13,6 +13,7 @@ from ..design.analysis import TASKS
 from ..errors import InputError
 from ..messages.message import say
 from ..safe_files import is_finite_number, is_whole_number
+from .value_checks import check_possible_values
 
 SPLIT_KINDS = ("above", "in", "missing")
 
@@ -109,6 +110,7 @@ def check_model_document(data: dict) -> None:
     unreached = [i for i in range(2, len(nodes) + 1) if i not in parents]
     if unreached:
         raise _damaged(f"box {unreached[0]}", "no question leads to it")
+    check_possible_values(data, _damaged)  # values of the right type that no tree can have
 
 
 def _check_split(split, where: str, predictors: set) -> None:
