@@ -24,6 +24,7 @@ from core.checking import (
 )
 from core.data import read_table
 from core.option_limits import spin_range
+from core.phrases import plural
 from core.safe_files import save_notes
 from core.report import (
     DECISION_CURVE_READING, calibration_figure, decision_curve_figure, prepare_report,
@@ -48,7 +49,8 @@ def cross_validated_html(model) -> str:
     chosen, path = model.chosen, model.path
     folds = path.get("folds")
     return _table([
-        ("Size", f"{chosen['leaves']} outcome boxes ({SIZE_RULES[chosen['rule']]})"),
+        ("Size", f"{plural(int(chosen['leaves']), 'outcome box', 'outcome boxes')} "
+                 f"({SIZE_RULES[chosen['rule']]})"),
         ("Error measured as", path["risk_measure"]),
         ("Error", errors_beside(chosen, sentence=True)),
         ("How it was checked", path["cv"] + (f", {folds} fits on parts of the data" if folds else "")),

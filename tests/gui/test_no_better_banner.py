@@ -36,6 +36,8 @@ def test_banner_on_size_tree_and_chart_steps(window, qtbot, run, dialogs, tmp_pa
     assert window.panels["tree"].size_label.text() == "0 questions, 1 outcome box"
     for step in ("data", "outcome", "checking"):
         assert window.panels[step].no_better_banner.isHidden()
+    from gui.panels.checking import cross_validated_html
+    assert "1 outcome box (" in cross_validated_html(model)  # not "1 outcome boxes"
     chart = window.panels["chart"]
     chart.render_preview()
     qtbot.waitUntil(lambda: statement in chart.preview_note.text(), timeout=60000)
