@@ -68,9 +68,29 @@ def test_route_patient_missing_and_unreadable_values(demo):
     # SpO2 is never blank in the demo: no branch for it, so the lookup asks for it (issue 10).
     assert (nothing.outcome_box, nothing.needs, nothing.waiting_box) == (0, "spo2", 1)
     assert nothing.prediction is None and nothing.boxes == (1,)
+    # A word where a number is asked for is refused in the lookup's own words (issue 15,
+    # item 14), not with the wording of a file's cells, and no route is given.
     odd = route_patient(model, {"spo2": "very low"})
-    assert (odd.outcome_box, odd.needs) == (0, "spo2")
-    assert any("not numbers" in w for w in odd.warnings)
+    assert odd.outcome_box == 0 and odd.boxes == () and not odd.warnings
+    assert odd.refused == (f"{model.spec('spo2').display} needs a number, and “very low” is "
+                           "not one; type it in digits, or leave it blank if it was not "
+                           "measured.",)
+
+
+def test_route_patient_flags_impossible_and_unseen_values(demo):
+    _, model = demo
+    label = model.spec("spo2").display
+    flagged = route_patient(model, {"spo2": "250"}, {"spo2": (70.0, 100.0)})
+    assert flagged.boxes[0] == 1 and not flagged.refused  # routed all the same
+    assert flagged.warnings[:2] == (
+        f"{label} 250% is impossible for a percentage (0 to 100%); check the value that was "
+        "typed.",
+        f"{label} 250% lies outside the values of the patients the tree was grown on (70 to "
+        "100%), so the tree has not learnt about such a patient; check the value before "
+        "relying on the answer.")
+    usual = route_patient(model, {"spo2": "88"}, {"spo2": (70.0, 100.0)})
+    assert not any(label in w for w in usual.warnings)
+    assert route_patient(model, {"spo2": "NA"}).refused == ()  # not recorded, not a word
 
 
 def test_scored_table_columns(demo):

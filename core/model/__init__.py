@@ -5,6 +5,6 @@ from ..package_face import lazy_face
 __getattr__, __dir__, __all__ = lazy_face(__name__, {
     "tree": ("Node", "Question", "TreeModel"),
     "thresholds": ("format_number",),
-    "details": ("box_details", "route_patient"),
+    "details": ("box_details", "observed_ranges", "route_patient"),
     "scoring": ("scored_table",),
 })

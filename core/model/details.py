@@ -12,8 +12,15 @@ import numpy as np
 import pandas as pd
 
 from ..checking.intervals import wilson_interval
+from ..data.cells import is_missing_text
+from ..dictionary.typed_columns import typed_column
+from ..messages.message import say
 from ..precision import summary_number
 from .tree import Step, TreeModel
+
+# Values no patient can have, whatever the cohort: a percentage lies within 0 to 100
+# (common practice; SpO2 250 is a slip of the keyboard).
+_POSSIBLE = {"%": ("a percentage", 0.0, 100.0)}
 
 
 @dataclass(frozen=True)
@@ -80,17 +87,85 @@ class PatientRoute:
     warnings: tuple[str, ...] = ()
     needs: str | None = None  # the column to measure: not recorded, and no branch for it
     waiting_box: int = 0  # the question box where the patient waits for that value
+    refused: tuple[str, ...] = ()  # typed values that are not numbers: no route is given
 
 
-def route_patient(model: TreeModel, values: dict[str, object]) -> PatientRoute:
+def observed_ranges(columns) -> dict[str, tuple[float, float]]:
+    """The least and greatest recorded value of each numeric typed column (e.g. the
+    predictors of the rows a tree was grown on), by column name."""
+    ranges = {}
+    for column in columns:
+        numbers = column.numbers
+        if numbers is None or not np.isfinite(numbers).any():
+            continue
+        ranges[column.spec.name] = (float(np.nanmin(numbers)), float(np.nanmax(numbers)))
+    return ranges
+
+
+def _shown(value: float) -> str:
+    return f"{value:.6g}"
+
+
+def _typed_numbers(model: TreeModel, values: dict[str, object],
+                   ranges: dict[str, tuple[float, float]]):
+    """Each numeric value typed for the lookup as a number, with what is wrong with it: a
+    word is refused, and a number outside what is possible or outside the patients the tree
+    was grown on is flagged, in the lookup's own words (not a file's)."""
+    numbers, refused, flags = {}, [], []
+    for column in model.columns_asked():
+        spec, value = model.spec(column), values.get(column)
+        if spec.kind != "numeric" or value is None:
+            continue
+        cell = pd.Series([value], dtype=object)
+        if is_missing_text(cell, spec.missing_codes)[0]:
+            numbers[column] = None  # blank or a code for not recorded
+            continue
+        number = float(typed_column(cell, spec).numbers[0])
+        label = spec.display
+        if not np.isfinite(number):
+            low = ranges.get(column, (None,))[0]
+            example = "" if low is None else f" (for example {_shown(round(low))})"
+            refused.append(say("app.lookup_not_a_number", label=label,
+                               value=str(value).strip()[:40], example=example))
+            continue
+        numbers[column] = number
+        unit = spec.unit.strip()
+
+        def with_unit(x: float) -> str:
+            return _shown(x) + (unit if unit == "%" else f" {unit}" if unit else "")
+
+        if unit in _POSSIBLE:
+            what, low, high = _POSSIBLE[unit]
+            if not low <= number <= high:
+                flags.append(say("app.lookup_impossible", label=label, value=with_unit(number),
+                                 what=what, low=_shown(low), high=with_unit(high)))
+        if column in ranges:
+            low, high = ranges[column]
+            if not low <= number <= high:
+                flags.append(say("app.lookup_outside_cohort", label=label,
+                                 value=with_unit(number), low=_shown(low),
+                                 high=with_unit(high)))
+    return numbers, tuple(refused), tuple(flags)
+
+
+def route_patient(model: TreeModel, values: dict[str, object],
+                  ranges: dict[str, tuple[float, float]] | None = None) -> PatientRoute:
     """Route one patient given as {column: value}; a value left out or None is not recorded.
 
     Where a value is not recorded at a question with no branch for it (no derivation patient
     there lacked it), the route stops at that question and ``needs`` names the column.
 
     Values are read as the model reads any spreadsheet cell (text like "92" or "ambulance"
-    is fine), so the lookup and scoring a file agree.
+    is fine), so the lookup and scoring a file agree. A typed word where a number is asked
+    for is refused (``refused``, no route); a number outside what is possible, or outside
+    ``ranges`` (the derivation patients' values, :func:`observed_ranges`), is routed and
+    flagged in ``warnings``.
     """
+    numbers, refused, flags = _typed_numbers(model, values, ranges or {})
+    if refused:
+        return PatientRoute(boxes=(), steps=(), outcome_box=0, prediction=None,
+                            refused=refused)
+    values = {**values, **numbers}
     row = {c: [values.get(c)] for c in model.columns_asked()}
     frame = pd.DataFrame({c: pd.Series(v, dtype=object) for c, v in row.items()})
     scored = model.apply(frame)
@@ -103,4 +178,4 @@ def route_patient(model: TreeModel, values: dict[str, object]) -> PatientRoute:
     if isinstance(prediction, (np.floating, float)):
         prediction = float(prediction)
     return PatientRoute(boxes=boxes, steps=steps, outcome_box=leaf, prediction=prediction,
-                        warnings=scored.warnings, needs=needs, waiting_box=waiting)
+                        warnings=flags + scored.warnings, needs=needs, waiting_box=waiting)

@@ -13,7 +13,7 @@ from PySide6.QtWidgets import (
 
 from core.messages import say
 from core.phrases import plural
-from core.model import box_details, route_patient
+from core.model import box_details, observed_ranges, route_patient
 from gui.panels.step_panel import StepPanel, scrolling, side_by_side, tool_buttons, with_tooltip
 from gui.panels.wording import warning_html
 from gui.widgets.tree_view import TreeView
@@ -218,6 +218,17 @@ class TreePanel(StepPanel):
     def clear_lookup(self) -> None:
         self.set_values({c: None for c in self._fields})
 
+    def _derivation_ranges(self) -> dict:
+        """The values of the patients the tree was grown on (core computes them once per
+        run), against which a typed value is flagged."""
+        chosen = self.session.chosen
+        if chosen is None:
+            return {}
+        if getattr(self, "_ranges_of", None) is not chosen.data:
+            self._ranges_of = chosen.data
+            self._ranges = observed_ranges(chosen.data.predictors)
+        return self._ranges
+
     def look_up(self, *_args) -> None:
         model = self.session.model
         values = self.values()
@@ -226,8 +237,13 @@ class TreePanel(StepPanel):
             self.result.setText("Enter values to see where this patient goes.")
             self.last_route = None
             return
-        route = route_patient(model, values)
+        route = route_patient(model, values, self._derivation_ranges())
         self.last_route = route
+        if route.refused:  # a word typed for a number: said in the lookup's words, no route
+            self.view.light_path(())
+            self.result.setText("<p><b>Not looked up yet.</b></p>"
+                                + "".join(warning_html(r) for r in route.refused))
+            return
         self.view.light_path(route.boxes)
         warn = "".join(warning_html(w) for w in route.warnings)
         if route.needs is not None:  # no branch for this missing value: which one to measure

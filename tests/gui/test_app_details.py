@@ -95,3 +95,51 @@ def test_a_day_first_date_column_is_a_date_not_phone_numbers(window, qtbot, tmp_
         [r.finding.text for r in window.panels["data"].notes_view.rows]
     assert not any("phone" in t for t in said), said
     assert not any(("Visit date" in t or "Arrived" in t) and "identif" in t for t in said)
+
+
+def test_the_lookup_flags_values_no_patient_had_and_refuses_words(demo, run, qtbot):
+    window = demo
+    run(window)
+    model = window.session.model
+    assert "spo2" in model.columns_asked()
+    spo2 = window.session.chosen.data.predictors
+    numbers = next(p.numbers for p in spo2 if p.spec.name == "spo2")
+    low, high = float(np.nanmin(numbers)), float(np.nanmax(numbers))
+    window.go_to("tree")
+    tree = window.panels["tree"]
+    label = model.spec("spo2").display
+    typed = {p.spec.name: p for p in window.session.chosen.data.predictors}
+    others = {c: (f"{np.nanmedian(typed[c].numbers):g}" if typed[c].numbers is not None
+                  else model.spec(c).levels[0]) for c in model.columns_asked()}
+    tree.set_values(others)
+    # A slip of the keyboard: still routed, with both flags beside the answer.
+    tree.set_values({"spo2": "250"})
+    route = tree.last_route
+    assert route.outcome_box > 0
+    text = tree.result.text()
+    assert f"Reaches box {route.outcome_box}" in text
+    assert f"{label} 250% is impossible for a percentage (0 to 100%)" in text
+    assert (f"{label} 250% lies outside the values of the patients the tree was grown on "
+            f"({low:g} to {high:g}%)") in text
+    assert text.index("Reaches box") < text.index("impossible")  # next to the answer
+    # Inside what the patients had: no flag.
+    tree.set_values({"spo2": f"{(low + high) // 2:g}"})
+    assert tree.last_route.outcome_box > 0 and not tree.last_route.warnings
+    assert "⚠" not in tree.result.text()
+    # Below the patients' values but possible: the cohort flag only.
+    if low > 1:
+        tree.set_values({"spo2": f"{low - 1:g}"})
+        assert len(tree.last_route.warnings) == 1
+        assert "lies outside the values" in tree.result.text()
+    # A word: refused in the lookup's words, nothing lit, no file wording.
+    tree.set_values({"spo2": "ninety"})
+    assert tree.last_route.refused and tree.last_route.outcome_box == 0
+    text = tree.result.text()
+    assert f"{label} needs a number, and “ninety” is not one; type it in digits " \
+        f"(for example {round(low):g}), or leave it blank if it was not measured." in \
+        text.replace("&quot;", '"')
+    assert "Reaches box" not in text and "row" not in text and "cell" not in text
+    assert not any(b.lit for b in tree.view.boxes.values())
+    # Not recorded is not a word: blank follows the tree's branch for missing values.
+    tree.set_values({"spo2": ""})
+    assert not (tree.last_route and tree.last_route.refused)

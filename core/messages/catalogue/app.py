@@ -42,6 +42,17 @@ ENTRIES = [
     ("app.measure_first", "warning", "{label} is needed: it is not recorded, and at box {box} "
      "no patient the tree was grown on lacked it, so the tree cannot say which way this "
      "patient goes; measure it first.", "Enter the measured value to see the outcome box."),
+    ("app.lookup_not_a_number", "refused", "{label} needs a number, and \u201c{value}\u201d "
+     "is not one; type it in digits{example}, or leave it blank if it was not measured.",
+     "The lookup reads digits only (a decimal point is fine); words and ranges are not "
+     "numbers."),
+    ("app.lookup_outside_cohort", "warning", "{label} {value} lies outside the values of the "
+     "patients the tree was grown on ({low} to {high}), so the tree has not learnt about such "
+     "a patient; check the value before relying on the answer.",
+     "Check the value that was typed; a tree says nothing reliable beyond its patients."),
+    ("app.lookup_impossible", "warning", "{label} {value} is impossible for {what} "
+     "({low} to {high}); check the value that was typed.",
+     "Correct the value: a slip of the keyboard still reaches an outcome box."),
     ("app.chart_not_drawn", "refused", "The chart could not be drawn.",
      "Look at the message on step 6, or choose a smaller tree or larger paper."),
     ("app.not_the_saved_tree", "warning", "The tree grown again differs from the one saved "
