@@ -219,3 +219,110 @@ def test_mixed_units_in_one_column_are_never_converted_but_left_as_text_with_a_w
     # Named as a predictor, it is refused in one sentence rather than grown on half its cells.
     refused(["fit", data, "--outcome", "admitted", "--model", tmp_path / "m2.json",
              "--predictors", "Temperature,age"], ["Temperature"], inputs=[data])
+
+
+# --- item 10: category levels that are people's names or record numbers -----------------------
+
+NURSES = ["Margaret Okafor", "John Smith", "Aisha Khan", "Peter O'Neill", "Mary-Jane Watts",
+          "Li Wei", "Dr Tomasz Nowak", "Grace Mensah"]
+
+
+def _cycle(levels, n):
+    return [levels[i % len(levels)] for i in range(n)]
+
+
+def test_a_category_whose_levels_are_names_is_left_out_with_the_identity_warning(tmp_path):
+    rows = add_column(base_rows(80), _cycle(NURSES, 80))
+    data = tmp_path / "wards.csv"
+    data.write_text(csv_text(HEADER + ["Ward"], rows), encoding="utf-8")
+    _table, dictionary, notes = _inferred(data)
+    assert dictionary.get("Ward").role == "ignore"
+    note = next(n for n in notes if n.code == "infer.identity")
+    assert "'Ward' seems to identify patients (its categories look like names)" in note
+    assert not any(name in note for name in NURSES)  # the warning never repeats a name
+    stderr = loads(data)
+    assert "its categories look like names" in stderr
+    model = _model(data)
+    assert "Ward" not in [p["name"] for p in model["predictors"]]
+    assert any(f["kind"] == "identity" and f["column"] == "Ward" for f in model["findings"])
+    assert not any(name in json.dumps(model) for name in NURSES)
+
+
+def test_the_guard_screens_levels_too_when_a_dictionary_offers_the_column(tmp_path):
+    from core.design import DesignSpec, guard_design
+    from core.dictionary import DataDictionary
+
+    frame = pd.DataFrame({"Ward": _cycle(NURSES[:3], 60),
+                          "Referred from": _cycle(["H400123", "H400124", "H577001"], 60),
+                          "age": _cycle([34, 51, 67, 72, 80, 45, 29], 60),
+                          "admitted": _cycle(["yes", "no", "no", "yes", "no"], 60)})
+    dictionary, _ = infer_dictionary(frame)
+    dictionary = DataDictionary(tuple(
+        c if c.name not in ("Ward", "Referred from") else
+        type(c)(name=c.name, kind="nominal", role="predictor", levels=tuple(sorted(set(frame[c.name]))))
+        for c in dictionary.columns))
+    report = guard_design(frame, dictionary, DesignSpec("admitted", ("Ward", "Referred from", "age")),
+                          leakage=False)
+    assert report.design.predictors == ("age",)
+    reasons = {f.column: f.message for f in report.of_kind("identity")}
+    assert "its categories look like names" in reasons["Ward"]
+    assert "its categories look like record numbers" in reasons["Referred from"]
+
+
+# Levels of wards, services, triage, arrival, ethnicity, diagnoses and severity as spreadsheets
+# hold them (common practice in clinical exports); none is a person.
+ORDINARY_LEVELS = {
+    "Ward": ["Medical", "Surgical", "A&E", "Ward 3", "Ward 10", "Dr on call", "AMU North",
+             "Florence Nightingale Ward", "Labour Ward", "ICU Step Down", "ED Majors"],
+    "Service": ["General Medicine", "General Surgery", "Acute Medical Unit", "Intensive Care",
+                "High Dependency", "Emergency Department", "Care Of The Elderly",
+                "Trauma And Orthopaedics", "Respiratory Medicine", "Same Day Emergency Care",
+                "Mental Health", "Short Stay"],
+    "Triage": ["Red", "Orange", "Yellow", "Green", "Blue", "Very Urgent", "Non Urgent",
+               "Immediate", "Standard"],
+    "Arrival": ["Walk In", "Ambulance", "GP Referral", "Inter-hospital Transfer",
+                "Self Referred", "Care Home", "Nursing Home", "Police"],
+    "Ethnicity": ["White British", "Asian Indian", "Black Caribbean", "Mixed Other",
+                  "Asian Pakistani", "Not Stated", "Any Other", "White Irish"],
+    "Diagnosis": ["Heart Failure", "Chest Pain", "Atrial Fibrillation", "Community Acquired "
+                  "Pneumonia", "Urinary Tract Infection", "Fractured Neck Of Femur", "COPD "
+                  "Exacerbation", "Pulmonary Embolism", "Sepsis"],
+    "Oxygen": ["none", "Room Air", "Nasal Cannula", "Venturi Mask", "Reservoir Mask"],
+}
+
+
+def test_ordinary_clinical_categories_are_not_taken_for_names(tmp_path):
+    from core.dictionary.identity import identity_by_levels
+
+    for column, levels in ORDINARY_LEVELS.items():
+        assert identity_by_levels(levels) is None, column
+    rows = base_rows(120)
+    header = list(HEADER)
+    for column, levels in ORDINARY_LEVELS.items():
+        rows = add_column(rows, _cycle(levels, 120))
+        header.append(column)
+    data = tmp_path / "ordinary.csv"
+    data.write_text(csv_text(header, rows), encoding="utf-8")
+    _table, dictionary, notes = _inferred(data)
+    assert not [n for n in notes if n.code == "infer.identity"]
+    assert all(dictionary.get(c).role == "predictor" for c in ORDINARY_LEVELS)
+
+
+def test_names_written_in_other_ways_and_record_numbers_as_levels_are_caught():
+    from core.dictionary.identity import identity_by_levels
+
+    assert identity_by_levels(["MARGARET OKAFOR", "JOHN SMITH", "AISHA KHAN"]).what == "names"
+    assert identity_by_levels(["Dr Okafor", "Mr Smith", "Sister Mensah", "Medical"]).what == \
+        "names"
+    assert identity_by_levels(["943 476 5919", "401 023 2137", "none"]).what == "record numbers"
+    assert identity_by_levels(["MRN 0012345", "MRN 0012346"]).what == "record numbers"
+    assert identity_by_levels(["Margaret Okafor", "Medical", "Surgical", "A&E"]) is None
+
+
+def test_a_site_column_named_after_people_is_not_taken_for_names(tmp_path):
+    rows = add_column(base_rows(80), _cycle(["John Radcliffe", "Charles Gairdner"], 80))
+    data = tmp_path / "two_hospitals.csv"
+    data.write_text(csv_text(HEADER + ["hospital"], rows), encoding="utf-8")
+    _table, dictionary, notes = _inferred(data)
+    assert dictionary.get("hospital").role == "site"
+    assert not [n for n in notes if n.code == "infer.identity"]

@@ -52,12 +52,14 @@ class IdentityHint:
     """Why a column looks like it identifies patients."""
 
     what: str  # "names", "e-mail addresses", ... or "an identifier unique to each row"
-    basis: str  # "header" or "contents"
+    basis: str  # "header", "contents" or "levels" (a category column's few answers)
 
     @property
     def reason(self) -> str:
         if self.basis == "header":
             return f"its name suggests {self.what}"
+        if self.basis == "levels":
+            return f"its categories look like {self.what}"
         return f"its cells look like {self.what}"
 
 
@@ -94,6 +96,10 @@ def identity_by_contents(values: pd.Series) -> IdentityHint | None:
     distinct = len(distinct_cells) / len(sample)
     # Patterns are judged on distinct texts: a few hundred at most, however long the column.
     texts = [v.strip() for v in distinct_cells[:500] if isinstance(v, str) and v.strip()]
+    if 2 <= len(texts) <= _FEW_LEVELS:
+        by_levels = identity_by_levels(texts)
+        if by_levels is not None:
+            return by_levels
     if len(texts) < 5:
         return None
     if _share(texts, _EMAIL) >= 0.5:
@@ -118,6 +124,93 @@ def identity_by_contents(values: pd.Series) -> IdentityHint | None:
             _person_names(texts) >= 0.8:
         return IdentityHint("names", "contents")
     return None
+
+
+# A category column has at most this many answers (columns.MAX_NOMINAL_LEVELS); its levels are
+# screened one by one, as they would be printed on a chart ("Ward: Margaret Okafor?").
+_FEW_LEVELS = 40
+# Words of wards, services, sites, arrivals, triage and severity: a level that holds one is a
+# clinical category, not a person ("General Surgery", "Walk In", "Very Urgent", "St Mary's").
+_CATEGORY_WORDS = frozenset("""
+    a e and or of the in on at to for by with without from via plus not no none nil other
+    ward wards unit units bay bays bed beds room rooms floor level block wing side suite lounge
+    area zone pod hub base centre center clinic clinics department dept service services team
+    teams theatre theatres hospital hospitals infirmary college university memorial royal
+    general district county city community site campus annex annexe main new old
+    st saint queen queens king kings prince princess sir lady
+    north south east west central upper lower front back inner outer left right
+    medical medicine medicines surgical surgery surgeries emergency accident urgent urgency
+    acute intensive critical care high dependency step down short long stay day days night
+    same assessment admission admissions admitted discharge discharged observation observations
+    resus resuscitation majors minors major minor trauma orthopaedics orthopedics orthopaedic
+    orthopedic cardiology cardiac coronary respiratory renal stroke neurology neuro oncology
+    haematology hematology paediatric paediatrics pediatric pediatrics neonatal maternity
+    labour labor delivery obstetrics gynaecology gynecology elderly older people adult adults
+    child children mental health psychiatry psychiatric rehab rehabilitation palliative
+    hospice geriatric geriatrics frailty infectious diseases isolation endoscopy radiology
+    imaging outpatient outpatients inpatient inpatients recovery ambulatory virtual
+    ambulance walk walked self referral referred referrer transfer transferred police gp
+    home homes nursing residential carer relative family friend taxi car bus foot helicopter
+    private public primary secondary tertiary local national regional
+    red amber yellow green blue orange white black purple grey gray pink
+    immediate very standard routine non semi elective planned unplanned emergent
+    mild moderate severe none light heavy low medium high normal abnormal positive negative
+    first second third fourth fifth one two three four five six seven eight nine ten
+    i ii iii iv v vi vii viii ix x
+    current ex never former smoker smokers non-smoker daily weekly occasional
+    male female man woman men women boy girl unknown other
+    room air oxygen nasal cannula mask venturi reservoir
+    ed ae icu hdu ccu amu sau cdu mau itu picu nicu or
+    white black asian mixed british irish indian pakistani bangladeshi chinese african
+    caribbean arab any european hispanic latino latina american native pacific islander
+    aboriginal maori traveller gypsy roma english welsh scottish polish not stated declined
+    united kingdom states republic medicare medicaid insurance insured uninsured pay
+    pain chest abdominal back head headache heart failure attack infection infections tract
+    urinary sepsis septic pneumonia acquired aspiration asthma copd exacerbation fracture
+    fractured hip neck femur wrist ankle injury injuries fall falls collapse syncope stroke
+    bleed bleeding haemorrhage hemorrhage embolism pulmonary atrial fibrillation flutter
+    kidney liver disease chronic obstructive diabetes diabetic ketoacidosis hypoglycaemia
+    cancer tumour tumor overdose poisoning alcohol drug drugs withdrawal seizure epilepsy
+    delirium dementia confusion cellulitis wound ulcer burns burn shortness breath breathless
+    breathlessness fever cough vomiting diarrhoea diarrhea bowel obstruction appendicitis
+    cholecystitis pancreatitis gastroenteritis anaemia anemia dehydration covid influenza flu
+    viral bacterial infarction myocardial angina arrest cardiac arrhythmia hypertension
+    hypotension shock anaphylaxis allergic reaction rash skin eye ear nose throat dental
+    mouth limb arm leg foot hand spine spinal lumbar musculoskeletal soft tissue
+    social psychosocial self harm harmed suicide attempt ideation anxiety depression
+    review follow up plus minus only both neither partial full complete incomplete
+""".split())
+_RECORD_LEVEL = re.compile(r"^[A-Za-z]{0,4}[\s\-/#:.]?\d{5,}[A-Za-z]?$|^\d{3}[\s\-]?\d{3}[\s\-]?\d{4}$")
+
+
+def identity_by_levels(levels: list[str]) -> IdentityHint | None:
+    """A hint from a category column's answers, each judged as a chart would print it: most of
+    them written like people's names ("Margaret Okafor", "Dr Okafor", "Mary-Jane Watts") or like
+    record numbers ("H400123", "MRN 0012345", "943 476 5919"). At least two must look so."""
+    levels = [lv.strip() for lv in levels if lv and lv.strip()]
+    if len(levels) < 2:
+        return None
+    for what, looks in (("names", _level_is_a_name), ("record numbers", _RECORD_LEVEL.match)):
+        hits = sum(1 for lv in levels if looks(lv))
+        if hits >= 2 and hits >= 0.5 * len(levels):
+            return IdentityHint(what, "levels")
+    return None
+
+
+def _level_is_a_name(text: str) -> bool:
+    """A person's name as a category would hold it: 2–4 capitalised words, none of them a
+    word of wards, services or severity, and no short capitals (ICU, AMU) beside small
+    letters."""
+    tokens = text.replace(",", ", ").split()
+    if not 2 <= len(tokens) <= 4 or not all(_NAME_TOKEN.match(t) for t in tokens):
+        return False
+    bare = [t.strip(".,").replace("’", "'") for t in tokens]
+    if sum(len(t) >= 2 for t in bare) < 2:
+        return False
+    if any(t.casefold().removesuffix("'s").removesuffix("'") in _CATEGORY_WORDS for t in bare):
+        return False
+    mixed_case = any(ch.islower() for ch in text)
+    return not (mixed_case and any(2 <= len(t) <= 4 and t.isupper() for t in bare))
 
 
 def _person_names(texts: list[str]) -> float:
@@ -160,9 +253,18 @@ def may_group_patients(spec) -> bool:
                 note[len("identity: "):] not in GROUPING_IDENTITIES)
 
 
+# Hospitals and campuses are often named after people ("John Radcliffe"): a site column's
+# levels are not screened for names.
+_SITE_HEADER = re.compile(r"\b(site|sites|campus|hospital|centre|center|facility|trust)\b")
+
+
 def identity_hint(name: str, values: pd.Series) -> IdentityHint | None:
     """Why the column looks like it identifies patients, or None."""
-    return identity_by_header(name) or identity_by_contents(values)
+    hint = identity_by_header(name) or identity_by_contents(values)
+    if hint is not None and hint.basis == "levels" and hint.what == "names" and \
+            _SITE_HEADER.search(normalised_header(name)):
+        return None
+    return hint
 
 
 def looks_like_record_numbers(numbers: np.ndarray, n_present: int, hinted: bool) -> bool:
