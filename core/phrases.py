@@ -21,6 +21,33 @@ def plural(n: int, singular: str, plural: str) -> str:
     return f"{n:,} {singular if n == 1 else plural}"
 
 
+def rows_word(rows: int, patients: int | None) -> str:
+    """What one row of the data is, in the plural: "visits" when a patient-number column is
+    set and some patients have more than one row, else "patients" (every row is a patient).
+
+    The one place that decides the word: the chart, rules, report, command line and app all
+    count rows with it, so "visits" and "patients" never disagree about the same rows."""
+    return "visits" if patients is not None and patients < rows else "patients"
+
+
+def rows_count(n: int, word: str) -> str:
+    """'1 visit', '412 visits', '1 patient': a count of rows in their word (:func:`rows_word`)."""
+    return plural(n, {"visits": "visit", "patients": "patient"}[word], word)
+
+
+def rows_and_patients(rows: int, patients: int | None) -> str:
+    """'412 visits of 300 patients' where patients came more than once, else '300 patients'."""
+    word = rows_word(rows, patients)
+    if word == "visits":
+        return f"{rows_count(rows, word)} of {plural(int(patients), 'patient', 'patients')}"
+    return rows_count(rows, word)
+
+
+def patients_among(groups) -> int | None:
+    """How many patients the rows hold, by their patient codes (None: no patient number)."""
+    return None if groups is None else int(np.unique(np.asarray(groups)).size)
+
+
 def short_fingerprint(digest: str) -> str:
     """The first 12 hexadecimal digits of a SHA-256, as every page and screen shows it."""
     return str(digest)[:12]

@@ -192,7 +192,7 @@ def test_side_panel_shows_cross_validated_error_beside_training_error() -> None:
     assert "“P% of N”: share admitted to hospital among the N visits in the box" in text
     assert "95% confidence interval (Wilson)" in text
     cohort = chosen.extra["cohort"]
-    assert f"{cohort['visits']:,} visits by {cohort['patients']:,} patients" in text
+    assert f"{cohort['visits']:,} visits of {cohort['patients']:,} patients" in text
     assert f"{cohort['first_date']} to {cohort['last_date']}" in text
 
 

@@ -13,7 +13,7 @@ from ..cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER, UNCHECKED_DETA
 from ..checking.intervals import as_percent
 from ..precision import summary_number
 from ..model.tree import ANSWERS, MEASURE_FIRST, Node, TreeModel, answer_verb
-from ..phrases import plural, short_fingerprint
+from ..phrases import plural, rows_and_patients, rows_count, short_fingerprint
 from .bands import Band, Banding, banding, number, percent, rate_phrase
 from .layout import BoxSpec, Para, TreeSpec
 from .options import ChartOptions
@@ -60,15 +60,12 @@ class ChartText:
 
 def count_word(model: TreeModel) -> str:
     """Rows are visits; when patients came more than once, say visits, not patients."""
-    cohort = model.extra.get("cohort", {})
-    patients, visits = cohort.get("patients"), cohort.get("visits", model.n_rows)
-    return "visits" if patients is not None and patients != visits else "patients"
+    return model.rows_word
 
 
 def _count(n: int, model: TreeModel) -> str:
     """'1 patient', '412 visits': a count in the chart's word for a row."""
-    word = count_word(model)
-    return plural(n, {"visits": "visit", "patients": "patient"}[word], word)
+    return rows_count(n, model.rows_word)
 
 
 def span(low: str, high: str) -> str:
@@ -179,12 +176,7 @@ def default_subtitle(model: TreeModel) -> str:
 
 
 def _cohort_size(model: TreeModel) -> str:
-    cohort = model.extra.get("cohort", {})
-    visits = cohort.get("visits", model.n_rows)
-    patients = cohort.get("patients")
-    if patients is not None and patients != visits:
-        return f"{visits:,} visits by {patients:,} patients"
-    return plural(visits, "patient", "patients")
+    return model.rows_counted
 
 
 def _is_error_rate(model: TreeModel) -> bool:
@@ -292,7 +284,12 @@ def _validation(model: TreeModel, options: ChartOptions) -> PanelSection | None:
     source = check.get("source", "separate data")
     if check.get("file") and options.show_file_name:
         source = f"{source} ({check['file']})"
-    items = (PanelItem(f"On {check.get('n', '?'):,} {count_word(model)} from {source}:"),
+    checked = check.get("n")
+    # Counted in the check's own word: its file may hold one row per patient where the
+    # derivation file held visits, or the other way round.
+    counted = rows_and_patients(checked, check.get("patients")) \
+        if isinstance(checked, int) else f"? {count_word(model)}"
+    items = (PanelItem(f"On {counted} from {source}:"),
              PanelItem(summary, bold=True))
     if check.get("separate") is False:  # some were derivation patients: not a separate check
         shared = check.get("overlap_patients", 0)

@@ -21,6 +21,7 @@ from .bootstrap_intervals import (
 )
 from .intervals import LEVEL, Proportion, as_percent, mean_interval, normal_quantile, proportion
 from ..precision import summary_number
+from ..phrases import patients_among, rows_and_patients, rows_word
 from .net_benefit import NetBenefitPoint, net_benefit
 
 NET_BENEFIT_ROWS = (0.05, 0.1, 0.2)  # the thresholds listed among the measures' rows
@@ -182,6 +183,12 @@ class ClassificationMeasures:
     net_benefit: tuple[NetBenefitPoint, ...] = ()
     brier_interval: Interval = None  # 95% percentile bootstrap over patients
     intervals: BootstrapPlan | None = None  # how the bootstrap intervals were drawn
+    patients: int | None = None  # distinct patients among the rows, when their codes are known
+
+    @property
+    def rows_word(self) -> str:
+        """"visits" where some patients came more than once, else "patients"."""
+        return rows_word(self.n, self.patients)
 
     @property
     def headline(self) -> ClassResult | None:
@@ -199,13 +206,15 @@ class ClassificationMeasures:
         parts = [f"Accuracy {self.accuracy.text()}"]
         if self.auc_macro is not None:
             parts.append(f"mean one-vs-rest AUC {self.auc_macro:.2f}")
-        parts.append(f"cost {self.cost:.3f} per patient")
+        parts.append(f"cost {self.cost:.3f} per {self.rows_word[:-1]}")
         return ", ".join(parts)
 
     def rows(self) -> list[tuple[str, str]]:
         """(measure, value with interval) lines for a table."""
-        lines = [("Patients", str(self.n)), ("Accuracy", self.accuracy.text()),
-                 ("Misclassification cost per patient", f"{self.cost:.3f} (SE {self.cost_se:.3f})"),
+        lines = _counted(self.n, self.patients) + [
+                 ("Accuracy", self.accuracy.text()),
+                 (f"Misclassification cost per {self.rows_word[:-1]}",
+                  f"{self.cost:.3f} (SE {self.cost_se:.3f})"),
                  ("Brier score", f"{self.brier:.3f}{interval_text(self.brier_interval, '.3f')}")]
         for result in self.per_class:
             name = f" ({result.label})" if self.positive is None or len(self.per_class) > 1 else ""
@@ -286,7 +295,8 @@ def classification_measures(y: np.ndarray, predicted: np.ndarray, probabilities:
         confusion=tuple(tuple(int(v) for v in row) for row in matrix), accuracy=accuracy,
         cost=cost, cost_se=cost_se, brier=brier, per_class=tuple(results), auc_macro=auc_macro,
         calibration=calibration, net_benefit=benefit,
-        brier_interval=brier_interval(squared, groups, plan), intervals=plan)
+        brier_interval=brier_interval(squared, groups, plan), intervals=plan,
+        patients=patients_among(groups))
 
 
 def _one_class(label: str, truth: np.ndarray, said: np.ndarray, score: np.ndarray) -> ClassResult:
@@ -337,6 +347,12 @@ class RegressionMeasures:
     r2_interval: Interval = None
     intervals: BootstrapPlan | None = None
     decimals: int | None = None  # the outcome's recorded decimals, which the errors follow
+    patients: int | None = None  # distinct patients among the rows, when their codes are known
+
+    @property
+    def rows_word(self) -> str:
+        """"visits" where some patients came more than once, else "patients"."""
+        return rows_word(self.n, self.patients)
 
     def number(self, value: float, with_unit: bool = False) -> str:
         """An error in the outcome's unit, to the outcome's precision (core/precision.py)."""
@@ -353,10 +369,11 @@ class RegressionMeasures:
     def summary(self) -> str:
         return (f"RMSE {self._error(self.rmse, self.rmse_interval)}, "
                 f"MAE {self._error(self.mae, self.mae_interval)}, "
-                f"R² {self.r2:.2f}{interval_text(self.r2_interval, '.2f')} ({self.n} patients)")
+                f"R² {self.r2:.2f}{interval_text(self.r2_interval, '.2f')} "
+                f"({rows_and_patients(self.n, self.patients)})")
 
     def rows(self) -> list[tuple[str, str]]:
-        lines = [("Patients", str(self.n)),
+        lines = _counted(self.n, self.patients) + [
                  ("Root mean squared error", self._error(self.rmse, self.rmse_interval)),
                  ("Mean absolute error", self._error(self.mae, self.mae_interval)),
                  ("R²", f"{self.r2:.3f}{interval_text(self.r2_interval, '.3f')}"),
@@ -405,7 +422,17 @@ def regression_measures(y: np.ndarray, predicted: np.ndarray, leaves: np.ndarray
     spread = regression_intervals(y, predicted, groups, plan)
     return RegressionMeasures(n, rmse, mae, r2, bias, tuple(rows), unit,
                               rmse_interval=spread.rmse, mae_interval=spread.mae,
-                              r2_interval=spread.r2, intervals=plan, decimals=decimals)
+                              r2_interval=spread.r2, intervals=plan, decimals=decimals,
+                              patients=patients_among(groups))
+
+
+def _counted(n: int, patients: int | None) -> list[tuple[str, str]]:
+    """The first rows of a measures table: how many visits (and patients) or patients."""
+    word = rows_word(n, patients)
+    lines = [(word.capitalize(), f"{n:,}")]
+    if word == "visits":
+        lines.append(("Patients", f"{patients:,}"))
+    return lines
 
 
 Measures = ClassificationMeasures | RegressionMeasures

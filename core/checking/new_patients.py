@@ -29,7 +29,7 @@ from ..dictionary.columns import ColumnSpec
 from ..dictionary.typed_columns import typed_column
 from ..errors import InputError
 from ..messages.message import say
-from ..phrases import plural
+from ..phrases import patients_among, plural, rows_and_patients, rows_word
 from ..model.scoring import needs_counts, needs_warning
 from .overlap import overlapping_rows
 from ..model.tree import TreeModel, column_values
@@ -105,6 +105,17 @@ class CheckResult:
         return self.overlap_patients == 0 or self.overlap_left_out
 
     @property
+    def rows_word(self) -> str:
+        """What a checked row is: "visits" where some patients came more than once, else
+        "patients" (core/phrases.py)."""
+        return rows_word(self.n, self.patients)
+
+    @property
+    def counted(self) -> str:
+        """'412 visits of 300 patients', or '100 patients' where every row is a patient."""
+        return rows_and_patients(self.n, self.patients)
+
+    @property
     def summary(self) -> str:
         """One printable line, e.g. 'Sensitivity 84% (79–88%), specificity 71% (68–74%), ...'."""
         return self.measures.summary()
@@ -164,8 +175,7 @@ class CheckResult:
     def text(self) -> str:
         """A printable account: source, columns, warnings, measures, calibration by box."""
         m = self.measures
-        patients = f" ({self.patients} patients)" if self.patients else ""
-        lines = [f"Checked on: {self.source_and_file}", f"Visits checked: {self.n}{patients}"]
+        lines = [f"Checked on: {self.source_and_file}", f"Checked: {self.counted}"]
         if self.n_excluded:
             lines.append(f"Left out: {self.n_excluded} of {self.n_rows} rows (outcome not "
                          "recorded or not a class the tree knows).")
@@ -463,10 +473,10 @@ def check_table(model: TreeModel, table: LoadedTable, source: str | None = None,
     patients = groups = None
     if patient and patient in rows.columns:
         ids = rows[patient].astype("string").str.strip()
-        patients = int(ids.dropna().nunique())
-        # A row without an identifier is its own patient in the bootstrap.
+        # A row without an identifier is its own patient (in the count and the bootstrap).
         groups = ids.fillna(pd.Series([f"\0row{i}" for i in range(len(ids))],
                                       index=ids.index, dtype="string")).to_numpy(dtype=str)
+        patients = patients_among(groups)
     name = Path(table.provenance.path).name
     sheet = f", sheet {table.provenance.sheet}" if table.provenance.sheet else ""
     if source is None:
@@ -498,4 +508,5 @@ def training_measures(model: TreeModel, data: AnalysisData) -> Measures:
     """
     leaves = model.route(model.asked_values(data.predictors), data.n)
     routed = leaves > 0  # every derivation patient is, unless an older file is read the safe way
-    return measure_model(model, data.y[routed], leaves[routed])
+    return measure_model(model, data.y[routed], leaves[routed],
+                         None if data.groups is None else data.groups[routed])

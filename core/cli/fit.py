@@ -20,7 +20,7 @@ from ..dictionary.for_table import dictionary_for
 from ..errors import InputError
 from ..messages.message import distinct_messages, kind_of, say
 from ..model.tree import TreeModel
-from ..phrases import plural
+from ..phrases import plural, rows_and_patients
 from ..precision import summary_number
 from ..safe_files import check_outputs, write_csv_safely, write_text_atomic
 from ..option_limits import check_setting, option_type
@@ -233,9 +233,10 @@ def summary_text(derivation: Derivation) -> str:
     """What a fit found: the pruning path with CV beside training risk, and the chosen tree."""
     path, model = derivation.path, derivation.model
     counts = path.counts
-    lines = [f"Prunella {__version__}: {model.outcome.display} ({model.task}), {model.n_rows} rows, "
+    lines = [f"Prunella {__version__}: {model.outcome.display} ({model.task}), "
+             f"{model.rows_counted}, "
              f"{path.description}.",
-             f"Error: {model.path['risk_measure']}"
+             f"Error: {model.error_measure}"
              + (f" (in {model.outcome.unit} squared)" if model.task == "regression"
                 and model.outcome.unit else "")
              + "; the cross-validated error is the honest "
@@ -278,7 +279,8 @@ def summary_text(derivation: Derivation) -> str:
         lines.append(f"Warning: {model.no_better_warning()}")
     check = model.recorded_check
     if check:
-        lines.append(f"Checked on {check['source']} ({check['n']} visits): {check['summary']}.")
+        counted = rows_and_patients(int(check["n"]), check.get("patients"))
+        lines.append(f"Checked on {check['source']} ({counted}): {check['summary']}.")
     lines += ["", model.rules(), f"{CAUTION_TITLE}. {caution_text()}"]
     return "\n".join(lines)
 

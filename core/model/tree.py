@@ -21,7 +21,7 @@ from ..dictionary.columns import ColumnSpec
 from ..dictionary.typed_columns import TypedColumn, typed_column
 from ..errors import InputError
 from ..messages.message import say
-from ..phrases import names_phrase, short_fingerprint
+from ..phrases import names_phrase, rows_and_patients, rows_word, short_fingerprint
 from ..safe_files import check_format, read_json_document, write_text_atomic
 from .file_checks import check_model_document
 from ..precision import MAX_DECIMALS, summary_number
@@ -316,6 +316,33 @@ class TreeModel:
         if isinstance(value, int) and not isinstance(value, bool) and 0 <= value <= MAX_DECIMALS:
             return value
         return None
+
+    @property
+    def rows_word(self) -> str:
+        """What a derivation row is: "visits" where some patients came more than once (the
+        cohort counts patients apart from visits), else "patients" (core/phrases.py)."""
+        cohort = self.extra.get("cohort")
+        cohort = cohort if isinstance(cohort, dict) else {}
+        patients = cohort.get("patients")
+        return rows_word(int(cohort.get("visits", self.n_rows)),
+                         patients if isinstance(patients, int) else None)
+
+    @property
+    def rows_counted(self) -> str:
+        """The derivation rows counted: '412 visits of 300 patients', or '300 patients'."""
+        cohort = self.extra.get("cohort")
+        cohort = cohort if isinstance(cohort, dict) else {}
+        patients = cohort.get("patients")
+        return rows_and_patients(int(cohort.get("visits", self.n_rows)),
+                                 patients if isinstance(patients, int) else None)
+
+    @property
+    def error_measure(self) -> str:
+        """What the error of the pruning path measures, in the rows' own word: "expected
+        misclassification cost per visit" where the rows are visits (the file says "per
+        patient" whatever the rows were)."""
+        measure = str(self.path.get("risk_measure", "error"))
+        return measure.replace("per patient", f"per {self.rows_word[:-1]}")
 
     @property
     def better_than_no_tree(self) -> bool:

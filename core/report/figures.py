@@ -37,8 +37,8 @@ def _style(ax) -> None:
     ax.set_axisbelow(True)
 
 
-def pruning_curve_figure(path: dict) -> Figure:
-    """Cross-validated risk ±1 SE beside training risk over the pruning path, in the colours
+def pruning_curve_figure(path: dict, measure: str | None = None) -> Figure:
+    """Cross-validated error ±1 SE beside training error over the pruning path, in the colours
     and markers of the app's curve (core.chart.style.CURVE).
 
     ``path`` is ``TreeModel.path`` (lists ``leaves``, ``train_risk``, ``cv_risk``, ``cv_se``,
@@ -71,7 +71,7 @@ def pruning_curve_figure(path: dict) -> Figure:
         ticks = [t for t in (1, 2, 3, 5, 10, 20, 50, 100, 200, 500, 1000) if t <= leaves.max()]
         ax.set_xticks(ticks, [str(t) for t in ticks])
     ax.set_xlabel("Size of the tree (number of outcome boxes)", fontsize=9)
-    ax.set_ylabel(path.get("risk_measure", "risk").capitalize(), fontsize=8)
+    ax.set_ylabel((measure or path.get("risk_measure", "error")).capitalize(), fontsize=8)
     # Below the axes, so the legend never hides a point whatever the curve's shape.
     fig.legend(loc="outside lower center", ncols=3, fontsize=7.5, frameon=False)
     return fig

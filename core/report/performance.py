@@ -73,16 +73,19 @@ def performance_section(c: ReportContents, s: Styles) -> list:
     number = section("Performance")
     classification = model.task == "classification"
     binary = classification and model.positive is not None
+    word = model.rows_word  # the rows counted: visits, or patients where each came once
+    per = f"Cost per {word[:-1]} (± SE)"
     if binary:
-        head = ["Estimate (patients used)", "Visits", "Cost per patient (± SE)", "Accuracy",
+        head = ["Estimate (patients used)", word.capitalize(), per, "Accuracy",
                 "Sensitivity", "Specificity", "ROC area"]
         widths = [0.25, 0.07, 0.13, 0.13, 0.14, 0.14, 0.14]
     elif classification:
-        head = ["Estimate (patients used)", "Visits", "Cost per patient (± SE)", "Accuracy",
+        head = ["Estimate (patients used)", word.capitalize(), per, "Accuracy",
                 "Mean one-vs-rest ROC area"]
         widths = [0.36, 0.1, 0.18, 0.18, 0.18]
     else:
-        head = ["Estimate (patients used)", "Visits", "Mean squared error (± SE)", "RMSE", "MAE", "R²"]
+        head = ["Estimate (patients used)", word.capitalize(), "Mean squared error (± SE)", "RMSE",
+                "MAE", "R²"]
         widths = [0.36, 0.1, 0.18, 0.12, 0.12, 0.12]
     width = len(head)
     ch, task = model.chosen, model.task
@@ -107,15 +110,15 @@ def performance_section(c: ReportContents, s: Styles) -> list:
                   "Intervals are 95%: Wilson for proportions, DeLong for the ROC area, a "
                   "percentile bootstrap over patients for the Brier score and the errors (the "
                   "resample count is given with each check); ± is one standard error. " + ("Cost is the expected misclassification cost per "
-                  f"patient under the costs and priors of section {section('Model building')}, "
+                  f"{word[:-1]} under the costs and priors of section {section('Model building')}, "
                   "comparable across rows."
                   if classification else "Errors are in the outcome's unit."), s.body),
              KeepTogether([para(f"{number}.1 Overview", s.h2),
                            table(rows, widths, s, align_right=(1,), keep=False)])]
     if c.nested is not None:
-        story += _nested_detail(c.nested, f"{number}.2", s)
+        story += _nested_detail(c.nested, f"{number}.2", s, word)
     for i, check in enumerate(c.checks, 2 + (c.nested is not None)):
-        story += _check_detail(check, f"{number}.{i}", s)
+        story += _check_detail(check, f"{number}.{i}", s, word)
     if not c.checks:
         story.append(para(f"{UNCHECKED_BANNER}. {UNCHECKED_DETAIL}", s.body))
         cv_points = model.chosen.get("cv_net_benefit")
@@ -128,9 +131,9 @@ def performance_section(c: ReportContents, s: Styles) -> list:
     return story
 
 
-def _nested_detail(nested: NestedResult, number: str, s: Styles) -> list:
+def _nested_detail(nested: NestedResult, number: str, s: Styles, word: str = "visits") -> list:
     task = "regression" if nested.risk_measure == "mean squared error" else "classification"
-    rows = [["Outer fold", "Growing patients", "Test visits", "Boxes chosen inside",
+    rows = [["Outer fold", f"Growing {word}", f"Test {word}", "Boxes chosen inside",
              "Inner cross-validated error", "Error on the outer part"]]
     for f in nested.folds:
         rows.append([str(f.fold), f"{f.n_train:,}", f"{f.n_test:,}", str(f.leaves),
@@ -147,16 +150,18 @@ def _measure_tables(m: Measures, s: Styles) -> list:
     if not isinstance(m, ClassificationMeasures) or m.positive is not None:
         return [table([["Measure", "Value (95% interval)"]] + [list(r) for r in m.rows()],
                       [0.5, 0.5], s)]
-    overall = [["Measure", "Value (95% interval)"], ["Patients", f"{m.n:,}"],
+    counted = [list(r) for r in m.rows()[:2] if r[0] in ("Visits", "Patients")]
+    overall = [["Measure", "Value (95% interval)"]] + counted + [
                ["Accuracy", m.accuracy.text()],
-               ["Misclassification cost per patient", f"{m.cost:.3f} (SE {m.cost_se:.3f})"],
+               [f"Misclassification cost per {m.rows_word[:-1]}",
+                f"{m.cost:.3f} (SE {m.cost_se:.3f})"],
                ["Brier score (summed over classes)",
                 f"{m.brier:.3f}{interval_text(m.brier_interval, '.3f')}"]]
     if m.auc_macro is not None:
         overall.append(["Mean one-vs-rest ROC area", f"{m.auc_macro:.2f}"])
     if m.intervals is not None:
         overall.append(["Interval of the Brier score", m.intervals.text()])
-    per_class = [["Class (against the rest)", "Patients", "Sensitivity", "Specificity", "PPV",
+    per_class = [["Class (against the rest)", m.rows_word.capitalize(), "Sensitivity", "Specificity", "PPV",
                   "NPV", "ROC area (DeLong)"]]
     for r in m.per_class:
         per_class.append([r.label, f"{r.n_with:,}", r.sensitivity.text(), r.specificity.text(),
@@ -165,12 +170,12 @@ def _measure_tables(m: Measures, s: Styles) -> list:
             table(per_class, [0.19, 0.1, 0.14, 0.14, 0.14, 0.14, 0.15], s, align_right=(1,))]
 
 
-def _check_detail(check: CheckResult, number: str, s: Styles) -> list:
+def _check_detail(check: CheckResult, number: str, s: Styles, word: str = "patients") -> list:
+    """One check in full; ``word`` counts the derivation rows (visits or patients)."""
     m = check.measures
-    patients = f" ({check.patients} patients)" if check.patients else ""
     story = [para(f"{number} {'Held-out' if check.kind == 'held-out' else 'External'} check: "
                   f"{check.source}", s.h2),
-             para(f"{check.n} visits{patients} checked.", s.body)]
+             para(f"{check.counted[0].upper()}{check.counted[1:]} checked.", s.body)]
     if check.columns is not None:
         story += [para(line, s.bullet) for line in check.columns.lines()]
     story += [para(f"Warning: {w}", s.bullet) for w in check.warnings]
@@ -189,7 +194,8 @@ def _check_detail(check: CheckResult, number: str, s: Styles) -> list:
         percent = isinstance(m, ClassificationMeasures)
         what = "rate" if percent else "mean"
         rows = [["Box", "Rate of" if percent else "Outcome", f"Derivation {what}",
-                 "Derivation patients", f"Observed {what} (95% CI)", "New patients", "Agrees"]]
+                 f"Derivation {word}", f"Observed {what} (95% CI)", f"New {check.rows_word}",
+                 "Agrees"]]
         for r in m.calibration:
             places = getattr(m, "decimals", None)
             rows.append([str(r.box), r.label, r.derivation_text(percent, places),

@@ -15,7 +15,7 @@ from reportlab.platypus import KeepTogether, Paragraph
 from .. import __version__
 from ..cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER, UNCHECKED_DETAIL
 from ..chart.options import SMALL_GROUP  # the chart dashes the boxes the report flags
-from ..phrases import METHOD_NAME, plural, short_fingerprint
+from ..phrases import METHOD_NAME, patients_among, plural, rows_and_patients, short_fingerprint
 from ..precision import summary_number
 from .figures import pruning_curve_figure, stability_figure
 from .performance import performance_section, risk_text
@@ -64,7 +64,6 @@ def title_page(c: ReportContents, title: str, s: Styles) -> list:
                   f" · printed {c.printed_on.isoformat()}", s.subtitle)]
     story.append(para("", s.body))
     cohort = model.extra.get("cohort", {})
-    patients = f" from {cohort['patients']:,} patients" if cohort.get("patients") else ""
     asked = ", ".join(model.spec(col).display for col in model.columns_asked()) or "no question"
     boxes = plural(len(model.leaves), "outcome box", "outcome boxes")
 
@@ -72,12 +71,12 @@ def title_page(c: ReportContents, title: str, s: Styles) -> list:
         return risk_text(value, model.task)
 
     summary = (f"A tree for <b>{text(model.outcome.display)}</b>, by the method of "
-               f"{METHOD_NAME}, was grown on {model.n_rows:,} visits{patients} "
+               f"{METHOD_NAME}, was grown on {_derivation_rows(model)} "
                f"({text(data.get('file', 'the data file'))}), pruned by weakest-link "
                f"cost-complexity pruning, and sized by {text(model.path.get('cv', 'cross-validation'))}. "
                f"The chosen tree has {boxes} and asks about {text(asked)}. "
                f"Its cross-validated error is {risk(model.chosen['cv_risk'])} ± "
-               f"{risk(model.chosen['cv_se'])} ({text(model.path.get('risk_measure', 'risk'))}; "
+               f"{risk(model.chosen['cv_se'])} ({text(model.error_measure)}; "
                f"training error {risk(model.chosen['train_risk'])}).")
     story.append(para(summary, s.body, markup=True))
     lines = []
@@ -87,7 +86,7 @@ def title_page(c: ReportContents, title: str, s: Styles) -> list:
         shared = ("" if check.separate else f"; {check.overlap_patients:,} of these patients "
                   "were among the derivation patients, so this is not a check on separate "
                   "patients")
-        lines.append(f"Checked on {check.source} ({check.n:,} visits{shared}): {check.summary}.")
+        lines.append(f"Checked on {check.source} ({check.counted}{shared}): {check.summary}.")
     if c.stability is not None:
         lines.append(f"Stability: {c.stability.summary()}.")
     story += [Paragraph(text(line), s.bullet, bulletText="•") for line in lines]
@@ -125,16 +124,29 @@ def _data_source(c: ReportContents, s: Styles) -> list:
     return story
 
 
+def _derivation_rows(model) -> str:
+    """'412 visits of 300 patients', or '300 patients' where every row is a patient."""
+    return model.rows_counted
+
+
+def _resampled(st, model, together: bool = False) -> str:
+    """What the bootstrap drew: whole patients (with all their visits) or single rows."""
+    if model.rows_word == "visits" and st.patient_level:
+        return "patients (all their visits together)" if together else "patients"
+    return "patients" if model.rows_word == "patients" else "visits"
+
+
 def _participants(c: ReportContents, s: Styles) -> list:
     der, model = c.derivation, c.model
     cohort = model.extra.get("cohort", {})
     rows = [["Item", "Derivation"]]
-    rows.append(["Visits (rows with a recorded outcome, used for growing)",
+    word = model.rows_word.capitalize()
+    rows.append([f"{word} (rows with a recorded outcome, used for growing)",
                  f"{cohort.get('visits', model.n_rows):,}"])
-    if cohort.get("patients"):
+    if word == "Visits":
         rows.append(["Patients", f"{cohort['patients']:,}"])
     for site, n in _site_counts(c).items():
-        rows.append([f"Visits at {site}", _count_pct(n, model.n_rows)])
+        rows.append([f"{word} at {site}", _count_pct(n, model.n_rows)])
     if cohort.get("first_date"):
         rows.append([f"Dates ({cohort.get('date_column', 'date')})",
                      f"{cohort['first_date']} to {cohort['last_date']}"])
@@ -147,17 +159,16 @@ def _participants(c: ReportContents, s: Styles) -> list:
                                     model.outcome.unit)])
     if der.heldout is not None:
         held = der.heldout
-        patients = f" ({np.unique(held.groups).size} patients)" if held.groups is not None else ""
-        rows.append(["Set aside before growing (held-out check)", f"{held.n:,} visits{patients}"])
+        rows.append(["Set aside before growing (held-out check)",
+                     rows_and_patients(held.n, patients_among(held.groups))])
     story = [para("Eligible were all rows of the file with a recorded outcome. Repeat visits of "
                   "one patient are kept together in every fold when a patient identifier is set.",
                   s.body), table(rows, [0.62, 0.38], s)]
     story += [para(note, s.bullet) for note in der.notes]
     for check in c.checks:
         if check.kind == "external":
-            patients = f" ({check.patients} patients)" if check.patients else ""
-            story.append(para(f"External check: {check.source}: {check.n} visits{patients} with a "
-                              f"usable outcome, of {check.n_rows} rows.", s.bullet))
+            story.append(para(f"External check: {check.source}: {check.counted} with a "
+                              f"usable outcome, of {check.n_rows:,} rows.", s.bullet))
     return story
 
 
@@ -256,7 +267,7 @@ def _settings(c: ReportContents, s: Styles) -> list:
     if c.stability is not None:
         st = c.stability
         rows.append(["Bootstrap stability", f"{st.resamples} resamples of "
-                     f"{'patients' if st.patient_level else 'visits'}, seed {st.seed}"])
+                     f"{_resampled(st, model)}, seed {st.seed}"])
     rows.append(["Software", f"Prunella {__version__}, Python {platform.python_version()}, "
                              f"scikit-learn {sklearn.__version__}, NumPy {np.__version__}, "
                              f"pandas {pd.__version__}"])
@@ -267,7 +278,7 @@ def _settings(c: ReportContents, s: Styles) -> list:
 
 def _pruning(c: ReportContents, s: Styles) -> list:
     path = c.model.path
-    story = [figure(pruning_curve_figure(path),
+    story = [figure(pruning_curve_figure(path, c.model.error_measure),
                     f"Figure {s.next_figure()}. Cross-validated error (±1 SE) and training error for each size on "
                     f"the pruning path. Triangle: lowest cross-validated error "
                     f"({plural(int(path['min_leaves']), 'box', 'boxes')}); diamond: the 1-SE choice "
@@ -292,7 +303,7 @@ def _pruning(c: ReportContents, s: Styles) -> list:
                      digits(path["cv_risk"][k]), digits(path["cv_se"][k])])
     shown = "" if len(keep) == len(leaves) else (f" ({len(keep)} of the {len(leaves)} sizes "
                                                  "shown: the smallest trees and the marked ones)")
-    story.append(KeepTogether([para(f"Error: {path.get('risk_measure', 'error')}{shown}.", s.body),
+    story.append(KeepTogether([para(f"Error: {c.model.error_measure}{shown}.", s.body),
                                table(rows, [0.1, 0.24, 0.2, 0.24, 0.16], s,
                                      align_right=(0, 2, 3, 4), keep=False)]))
     return story
@@ -333,7 +344,7 @@ def _tree(c: ReportContents, s: Styles) -> list:
     else:
         unit = f" ({model.outcome.unit})" if model.outcome.unit else ""
         head = f"Mean{unit} (95% CI); middle half"
-    rows = [["Box", "Route to the box", "Expected outcome", "Patients", head]]
+    rows = [["Box", "Route to the box", "Expected outcome", model.rows_word.capitalize(), head]]
     small = []
     for leaf_id, steps in _leaf_paths(model).items():
         leaf = model.node(leaf_id)
@@ -370,7 +381,7 @@ def _stability(c: ReportContents, s: Styles) -> list:
     st = c.stability
     if st is None:
         return [para("Not assessed in this report (bootstrap resamples were switched off).", s.body)]
-    unit = "patients (all their visits together)" if st.patient_level else "visits"
+    unit = _resampled(st, c.model, together=True)
     story = [para(f"The whole procedure (growing, cross-validating, choosing the size) was rerun "
                   f"on {st.resamples} bootstrap resamples of {unit}. {st.summary()}."
                   + (f" {st.no_question} resample(s) chose a tree without any question."
@@ -430,10 +441,10 @@ def _limitations(c: ReportContents, s: Styles) -> list:
                          "rederived locally.")
     small = [leaf.id for leaf in model.leaves if leaf.n < SMALL_GROUP]
     if small:
-        items.append(f"Box(es) {', '.join(map(str, small))} rest on fewer than {SMALL_GROUP} patients.")
+        items.append(f"Box(es) {', '.join(map(str, small))} rest on fewer than {SMALL_GROUP} {model.rows_word}.")
     heavy = [t.spec.display for t in der.data.predictors if t.missing.mean() > 0.2]
     if heavy:
-        items.append("Often not recorded (over 20% of visits): " + ", ".join(heavy) + "; where "
+        items.append(f"Often not recorded (over 20% of {model.rows_word}): " + ", ".join(heavy) + "; where "
                      "such patients go follows the derivation's recording habits, which may "
                      "differ elsewhere.")
     cohort = model.extra.get("cohort", {})

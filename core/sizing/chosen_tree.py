@@ -15,7 +15,7 @@ from ..design.matrix import MatrixColumn
 from ..dictionary.columns import DataDictionary
 from ..checking.overlap import derivation_ids
 from ..model.thresholds import round_threshold
-from ..phrases import plural
+from ..phrases import patients_among, rows_count, rows_word
 from ..precision import decimals_observed
 from ..model.tree import (
     Node, Question, TreeModel, better_than_no_tree, expected_outcome, question_text, shared_count,
@@ -39,8 +39,7 @@ def build_model(path: CrossValidatedPath, index: int, rule: str, table: LoadedTa
     box_of = {node: i + 1 for i, (node, _) in enumerate(order)}
     nodes = []
     # Rows are visits; where patients came more than once, the counts are of visits.
-    rows_are = "visits" if data.groups is not None and \
-        np.unique(data.groups).size != data.n else "patients"
+    rows_are = rows_word(data.n, patients_among(data.groups))
     decimals = decimals_observed(data.y) if data.task == "regression" else None
     for node, depth in order:
         # Every box keeps its spread, so a smaller tree made from the file has it too.
@@ -155,7 +154,7 @@ def _outcome_text(stats: dict, data: AnalysisData, rows_are: str = "patients",
     n = stats["n"]
     expected = expected_outcome(data.outcome, data.task, stats["prediction"], stats.get("mean"),
                                 stats.get("counts", ()), tuple(data.classes or ()), decimals)
-    rows = plural(n, rows_are[:-1], rows_are)
+    rows = rows_count(n, rows_are)
     if data.task == "regression":
         return f"{expected} ({rows})"
     share = shared_count(stats["counts"], data.classes, stats["prediction"]) / max(n, 1)

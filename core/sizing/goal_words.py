@@ -10,6 +10,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 
 from ..messages.message import say
+from ..phrases import patients_among, rows_word
 from .goal import cost_words
 
 if TYPE_CHECKING:
@@ -74,8 +75,7 @@ def chosen_in_words(derivation: "Derivation") -> str | None:
     k = size_index(path, derivation.model.chosen["leaves"])
     confusion = counts.confusion[k]
     # Rows are visits where patients came more than once (as the boxes count them).
-    unit = "visits" if data.groups is not None and np.unique(data.groups).size != data.n \
-        else "patients"
+    unit = rows_word(data.n, patients_among(data.groups))
     if request.goal is not None:
         aim, cost = request.goal.measure, None
     else:

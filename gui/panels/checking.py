@@ -51,19 +51,18 @@ def cross_validated_html(model) -> str:
     return _table([
         ("Size", f"{plural(int(chosen['leaves']), 'outcome box', 'outcome boxes')} "
                  f"({SIZE_RULES[chosen['rule']]})"),
-        ("Error measured as", path["risk_measure"]),
+        ("Error measured as", model.error_measure),
         ("Error", errors_beside(chosen, sentence=True)),
         ("How it was checked", path["cv"] + (f", {folds} fits on parts of the data" if folds else "")),
-        ("Grown on", f"{model.n_rows:,} rows"),
+        ("Grown on", model.rows_counted),
     ])
 
 
 def check_html(result) -> str:
     """One check on separate patients: where from, how many, measures, confusion, calibration."""
     m = result.measures
-    patients = f" ({result.patients:,} patients)" if result.patients else ""
     parts = [f"<p><b>{escape(result.source_and_file[0].upper() + result.source_and_file[1:])}</b>: "
-             f"{result.n:,} visits checked{patients}.</p>"]
+             f"{result.counted} checked.</p>"]
     if not result.separate:
         parts.append(f"<p><b>Not a check on separate patients:</b> {result.overlap_patients:,} "
                      "of these patients were among the derivation patients.</p>")
@@ -447,7 +446,7 @@ class CheckingPanel(StepPanel):
 
         def checked(result) -> None:
             self.session.add_external_check(result, path)
-            self.status.setText(f"Checked on {result.n:,} visits from {result.source_and_file}.")
+            self.status.setText(f"Checked on {result.counted} from {result.source_and_file}.")
 
         self._start(f"Checking the tree on {Path(path).name}…", read_and_check,
                     self.session.model, path, self.leave_out_overlap.isChecked(),

@@ -514,7 +514,8 @@ class SizePanel(StepPanel):
         self.view_combo.setEnabled(measures is not None)
         if measures is None and self.view_combo.currentData() != "error":
             self.view_combo.setCurrentIndex(0)
-        self.curve.show_curve(CurveData.from_path(model.path, measures, model.chosen.get("goal")),
+        self.curve.show_curve(CurveData.from_path(model.path, measures, model.chosen.get("goal"),
+                                                   model.error_measure),
                               int(model.chosen["leaves"]), fits, label)
 
     @property

@@ -12,7 +12,7 @@ from PySide6.QtWidgets import (
 )
 
 from core.messages import say
-from core.phrases import plural
+from core.phrases import plural, rows_count
 from core.model import box_details, observed_ranges, route_patient
 from gui.panels.step_panel import StepPanel, scrolling, side_by_side, tool_buttons, with_tooltip
 from gui.panels.wording import warning_html
@@ -25,25 +25,26 @@ def details_html(model, box: int) -> str:
     """The details of a box as a short HTML page (numbers from core.model.details)."""
     d = box_details(model, box)
     kind = "Outcome box" if d.leaf else "Question"
+    word = model.rows_word  # visits where patients came more than once, else patients
     rows = [f"<h3>Box {d.box}: {kind}</h3>", f"<p><b>{escape(d.text)}</b></p>",
-            f"<p>{d.n:,} patients reach this box ({d.share_of_all:.0%} of the "
+            f"<p>{rows_count(d.n, word)} reach this box ({d.share_of_all:.0%} of the "
             f"{model.n_rows:,} it was grown on).</p>"]
     if d.classes:
         rows.append("<table cellspacing='0' cellpadding='3' border='1' style='border-collapse:"
-                    "collapse'><tr><th align='left'>Outcome</th><th align='right'>Patients</th>"
+                    f"collapse'><tr><th align='left'>Outcome</th><th align='right'>{word.capitalize()}</th>"
                     "<th align='right'>Share</th><th align='left'>95% interval</th></tr>")
         for c in d.classes:
             rows.append(f"<tr><td>{escape(c.label)}</td><td align='right'>{c.count:,}</td>"
                         f"<td align='right'>{c.share:.0%}</td>"
                         f"<td>{c.low:.0%} to {c.high:.0%}</td></tr>")
         rows.append("</table><p style='color:#444'>The interval is the Wilson 95% interval: "
-                    "where the true rate plausibly lies, given this many patients.</p>")
+                    f"where the true rate plausibly lies, given this many {word}.</p>")
     elif d.mean is not None:
         rows.append(f"<p>Mean {escape(d.number(d.mean, True))} (SD {escape(d.number(d.sd))}); "
                     f"95% interval of the mean {escape(d.number(d.mean_low))} to "
                     f"{escape(d.number(d.mean_high, True))}.</p>")
         if d.quartiles is not None:
-            rows.append(f"<p>The middle half of these patients (25th to 75th percentile): "
+            rows.append(f"<p>The middle half of these {word} (25th to 75th percentile): "
                         f"{escape(d.number(d.quartiles[0]))} to "
                         f"{escape(d.number(d.quartiles[1], True))}. The interval of "
                         "the mean is not the range for one patient.</p>")

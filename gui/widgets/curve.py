@@ -43,11 +43,11 @@ class CurveData:
 
     @classmethod
     def from_path(cls, path: dict, measures: dict | None = None,
-                  goal: dict | None = None) -> "CurveData":
+                  goal: dict | None = None, measure: str | None = None) -> "CurveData":
         return cls(np.asarray(path["leaves"]), np.asarray(path["cv_risk"]),
                    np.asarray(path["cv_se"]), np.asarray(path["train_risk"]),
                    int(path["min_leaves"]), int(path["one_se_leaves"]),
-                   str(path.get("risk_measure", "risk")), measures, goal)
+                   measure or str(path.get("risk_measure", "error")), measures, goal)
 
 
 def _size_axis(ax, sizes: np.ndarray) -> None:

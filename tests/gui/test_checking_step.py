@@ -43,7 +43,7 @@ def test_cv_beside_training_and_the_heldout_check(grown):
     expected = window.session.chosen.check_on_heldout()  # the numbers come from core
     assert checking.unchecked.isHidden()
     shown = _labels(checking)
-    assert f"{expected.n:,} visits checked" in shown
+    assert f"{expected.counted} checked" in shown
     assert expected.measures.headline.sensitivity.text() in shown
     # The Brier score's bootstrap interval over whole patients, its resamples stated (10.10).
     low, high = expected.measures.brier_interval
