@@ -118,3 +118,34 @@ def test_a_regression_box_gives_the_middle_half_of_its_patients():
         assert low < high and details.quartiles == leaf.quartiles
         # The interval of the mean lies well inside the spread of patients.
         assert (details.mean_high - details.mean_low) < (high - low)
+
+
+def test_the_dictionarys_plausible_values_are_kept_and_flag_the_lookup(demo, tmp_path):
+    from dataclasses import replace
+
+    from core.dictionary import ColumnSpec, DataDictionary
+    from core.errors import InputError
+    from core.model import TreeModel
+
+    _, model = demo
+    spec = replace(model.spec("spo2"), plausible=(50.0, 100.0))
+    assert ColumnSpec.from_dict(spec.to_dict()) == spec
+    assert "plausible" not in model.spec("spo2").to_dict()  # none given: files as before
+    for bad in ([100, 50], [0], ["low", "high"], [0, float("nan")], True):
+        with pytest.raises(InputError, match="'plausible' must be two numbers"):
+            ColumnSpec.from_dict({**spec.to_dict(), "plausible": bad})
+    # Kept by the dictionary's JSON and CSV files (a column only when used).
+    dictionary = DataDictionary((spec, ColumnSpec("age", unit="years")))
+    for name in ("d.json", "d.csv"):
+        dictionary.save(tmp_path / name)
+        assert DataDictionary.load(tmp_path / name).get("spo2").plausible == (50.0, 100.0)
+    # The model carries them, so the lookup flags a value outside them.
+    predictors = tuple(spec if c.name == "spo2" else c for c in model.predictors)
+    limited = TreeModel(**{**model.__dict__, "predictors": predictors})
+    limited.save(tmp_path / "m.json")
+    again = TreeModel.load(tmp_path / "m.json")
+    route = route_patient(again, {"spo2": "45"})
+    assert route.warnings[0] == (f"{spec.display} 45% lies outside the plausible values the "
+                                 "data dictionary gives for it (50 to 100%); check the value "
+                                 "that was typed.")
+    assert not route_patient(again, {"spo2": "88"}).warnings

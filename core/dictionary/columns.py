@@ -12,6 +12,7 @@ from __future__ import annotations
 import csv
 import io
 import json
+import math
 from collections.abc import Iterable
 from dataclasses import asdict, dataclass, replace
 from pathlib import Path
@@ -55,6 +56,9 @@ class ColumnSpec:
     levels: tuple[str, ...] = ()
     positive: str | None = None
     note: str = ""
+    # The lowest and highest value a measurement can plausibly take (e.g. 0 and 100 for a
+    # percentage, 20 and 45 for a temperature in °C); the lookup flags a value outside them.
+    plausible: tuple[float, float] | None = None
 
     def __post_init__(self) -> None:
         if self.role not in ROLES:
@@ -76,6 +80,10 @@ class ColumnSpec:
         data = asdict(self)
         data["missing_codes"] = list(self.missing_codes)
         data["levels"] = list(self.levels)
+        if self.plausible is None:  # written only when given: older files stay as they were
+            del data["plausible"]
+        else:
+            data["plausible"] = list(self.plausible)
         return data
 
     @classmethod
@@ -104,6 +112,7 @@ class ColumnSpec:
                 clean.pop(key, None)
         if clean.get("positive") in ("", None):
             clean["positive"] = None
+        clean["plausible"] = _plausible(clean.get("plausible"), name)
         return cls(**clean)
 
 
@@ -176,11 +185,14 @@ class DataDictionary:
         if path.suffix.lower() == ".json":
             write_text_atomic(path, json.dumps(self.to_dict(), indent=2, ensure_ascii=False) + "\n")
             return
+        limits = any(c.plausible is not None for c in self.columns)  # a column only if used
         rows = [["name", "role", "kind", "label", "unit", "missing_codes", "levels", "positive",
-                 "note"]]
+                 "note"] + (["plausible"] if limits else [])]
         for c in self.columns:
             rows.append([c.name, c.role, c.kind, c.label, c.unit, "|".join(c.missing_codes),
-                         "|".join(c.levels), c.positive or "", c.note])
+                         "|".join(c.levels), c.positive or "", c.note] +
+                        (["" if c.plausible is None else "|".join(f"{v:.15g}" for v in c.plausible)]
+                         if limits else []))
         buffer = io.StringIO()
         csv.writer(buffer, lineterminator="\n").writerows(rows)
         write_text_atomic(path, buffer.getvalue())
@@ -202,6 +214,26 @@ class DataDictionary:
         if not rows or "name" not in rows[0]:
             raise InputError(say("variables.dictionary_csv_no_name", file=path.name))
         return cls(tuple(ColumnSpec.from_dict(r) for r in rows))
+
+
+def _plausible(value, name: str) -> tuple[float, float] | None:
+    """A column's plausible limits from a file: two numbers, lowest first (in a CSV
+    dictionary written as "0|100"); empty means none."""
+    if value in (None, "", []):
+        return None
+    if isinstance(value, str):
+        value = value.split("|")
+    try:
+        if len(value) != 2 or any(isinstance(v, bool) for v in value):
+            raise ValueError
+        low, high = (float(v) for v in value)
+    except (TypeError, ValueError):
+        low = high = math.nan
+    if not (math.isfinite(low) and math.isfinite(high) and low <= high):
+        raise InputError(say("dictionary.bad_field", column=name, key="plausible",
+                             expected="two numbers, the lowest and the highest plausible "
+                                      "value (e.g. [0, 100])"))
+    return (low, high)
 
 
 def canonical_levels(spellings: Iterable[str]) -> list[str]:

@@ -18,8 +18,9 @@ from ..messages.message import say
 from ..precision import summary_number
 from .tree import Step, TreeModel
 
-# Values no patient can have, whatever the cohort: a percentage lies within 0 to 100
-# (common practice; SpO2 250 is a slip of the keyboard).
+# Values no patient can have, whatever the cohort, where the data dictionary gives no
+# plausible values: a percentage lies within 0 to 100 (common practice; SpO2 250 is a slip of
+# the keyboard).
 _POSSIBLE = {"%": ("a percentage", 0.0, 100.0)}
 
 
@@ -134,7 +135,13 @@ def _typed_numbers(model: TreeModel, values: dict[str, object],
         def with_unit(x: float) -> str:
             return _shown(x) + (unit if unit == "%" else f" {unit}" if unit else "")
 
-        if unit in _POSSIBLE:
+        if spec.plausible is not None:  # the data dictionary's own limits come first
+            low, high = spec.plausible
+            if not low <= number <= high:
+                flags.append(say("app.lookup_implausible", label=label,
+                                 value=with_unit(number), low=_shown(low),
+                                 high=with_unit(high)))
+        elif unit in _POSSIBLE:
             what, low, high = _POSSIBLE[unit]
             if not low <= number <= high:
                 flags.append(say("app.lookup_impossible", label=label, value=with_unit(number),

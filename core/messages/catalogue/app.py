@@ -53,6 +53,10 @@ ENTRIES = [
     ("app.lookup_impossible", "warning", "{label} {value} is impossible for {what} "
      "({low} to {high}); check the value that was typed.",
      "Correct the value: a slip of the keyboard still reaches an outcome box."),
+    ("app.lookup_implausible", "warning", "{label} {value} lies outside the plausible values "
+     "the data dictionary gives for it ({low} to {high}); check the value that was typed.",
+     "Correct the value, or widen the column's plausible values in the data dictionary if it "
+     "can be right."),
     ("app.chart_not_drawn", "refused", "The chart could not be drawn.",
      "Look at the message on step 6, or choose a smaller tree or larger paper."),
     ("app.not_the_saved_tree", "warning", "The tree grown again differs from the one saved "
