@@ -191,8 +191,12 @@ def test_a_model_holding_1e999_is_refused_by_every_command(cohort, model_file, c
 
 def test_a_model_without_its_settings_design_is_refused_by_report(cohort, model_file):
     raw = json.loads(model_file.read_text(encoding="utf-8"))
-    del raw["settings"]["design"]
+    del raw["settings"]["design"]  # settings without their design: a damaged file
     tampered = cohort.parent / "no-design.json"
+    tampered.write_text(json.dumps(raw), encoding="utf-8")
+    refused(["report", tampered, cohort, "--out", cohort.parent / "r.pdf"],
+            ["no-design.json", "damaged at settings.design"], inputs=[tampered, cohort])
+    del raw["settings"]  # no settings at all (a bare file): the chart prints, report cannot
     tampered.write_text(json.dumps(raw), encoding="utf-8")
     refused(["report", tampered, cohort, "--out", cohort.parent / "r.pdf"],
             ["no derivation settings", "fit the model again"], inputs=[tampered, cohort])

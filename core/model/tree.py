@@ -476,15 +476,17 @@ class TreeModel:
         write_text_atomic(path, self.to_json())
 
     @classmethod
-    def from_dict(cls, data: dict, name: str = "This file") -> "TreeModel":
-        """A model from parsed JSON; damaged, foreign or newer files are refused (InputError)."""
-        check_format(data, "model", MODEL_VERSIONS, name)
-        return cls._from_checked_format(data)
+    def from_dict(cls, data: dict, name: str | None = None) -> "TreeModel":
+        """A model from parsed JSON; damaged, foreign or newer files are refused (InputError)
+        naming the file ``name`` (if it has one) and the field."""
+        check_format(data, "model", MODEL_VERSIONS, name or "This file")
+        return cls._from_checked_format(data, name or "(not saved)")
 
     @classmethod
-    def _from_checked_format(cls, data: dict) -> "TreeModel":
-        """A model from parsed JSON whose format and version were already checked."""
-        check_model_document(data)
+    def _from_checked_format(cls, data: dict, name: str) -> "TreeModel":
+        """A model from parsed JSON whose format and version were already checked; the whole
+        document is checked (core/model/file_checks.py) before any of it is used."""
+        check_model_document(data, name)
         try:
             known = {"format", "task", "outcome", "outcome_spec", "classes", "positive", "n_rows",
                      "predictors", "nodes", "path", "chosen"}
@@ -505,7 +507,8 @@ class TreeModel:
     def load(cls, path: str | Path) -> "TreeModel":
         """Read a model file written by :meth:`save` (JSON only; nothing in it is executed)."""
         # read_json_document refuses a missing, foreign or newer file with the catalogue's message.
-        return cls._from_checked_format(read_json_document(path, "model", MODEL_VERSIONS))
+        return cls._from_checked_format(read_json_document(path, "model", MODEL_VERSIONS),
+                                        Path(path).name)
 
     def _check(self) -> None:
         ids = [n.id for n in self.nodes]

@@ -69,8 +69,8 @@ ENTRIES = [
      "again on the new data (and check it again)."),
     ("project.data_same", "note", "{file} is unchanged since the project was saved.",
      "Nothing to do."),
-    ("model.damaged", "refused", "The model file is damaged at {where}: {problem}; save the "
-     "model again from Prunella.",
+    ("model.damaged", "refused", "The model file {file} is damaged at {where}: {problem}; "
+     "save the model again from Prunella.",
      "Use the model file as Prunella saved it; do not edit it by hand."),
     ("model.damaged_detail", "refused", "The model file is damaged ({kind}: {detail}); save "
      "the model again from Prunella.", "Use the model file as Prunella saved it."),
