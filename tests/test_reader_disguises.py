@@ -326,3 +326,51 @@ def test_a_site_column_named_after_people_is_not_taken_for_names(tmp_path):
     _table, dictionary, notes = _inferred(data)
     assert dictionary.get("hospital").role == "site"
     assert not [n for n in notes if n.code == "infer.identity"]
+
+
+def test_a_header_unit_the_cells_contradict_is_never_converted(tmp_path):
+    rows = add_column(base_rows(60), [f"{t} °C" for t in _temperatures(60)])
+    data = tmp_path / "fahrenheit_header.csv"
+    data.write_text(csv_text(HEADER + ["Temperature (°F)"], rows), encoding="utf-8")
+    _table, dictionary, notes = _inferred(data)
+    assert dictionary.get("Temperature (°F)").kind == "text"
+    note = next(n for n in notes if n.code == "infer.unit_disagrees")
+    assert "the header says °F, but the cells write °C" in note
+    # Spellings of one unit agree: "breaths/min" in the header, "22 /min" in the cells.
+    rows = add_column(base_rows(60), [f"{r[2]} /min" for r in base_rows(60)])
+    data = tmp_path / "per_minute.csv"
+    data.write_text(csv_text(HEADER + ["Breathing rate (breaths/min)"], rows), encoding="utf-8")
+    _table, dictionary, notes = _inferred(data)
+    spec = dictionary.get("Breathing rate (breaths/min)")
+    assert spec.kind == "numeric" and spec.unit == "breaths/min"
+
+
+def test_a_check_on_a_file_in_another_unit_is_refused_in_one_sentence(tmp_path):
+    temperatures = _temperatures(120, seed=6)
+    rows = base_rows(120)
+    for row, t in zip(rows, temperatures):
+        row[-1] = "yes" if t > 38.3 else row[-1]
+    data = tmp_path / "derivation.csv"
+    data.write_text(csv_text(HEADER + ["Temperature"], add_column(
+        rows, [f"{t} °C" for t in temperatures])), encoding="utf-8")
+    loads(data, "--predictors", "Temperature,age")
+    model = tmp_path / "m.json"
+    assert any(n["split"]["column"] == "Temperature"
+               for n in _model(data)["nodes"] if not n["leaf"])
+    other = tmp_path / "other_campus.csv"
+    other.write_text(csv_text(HEADER + ["Temperature"], add_column(
+        base_rows(60, seed=9), [f"{t * 9 / 5 + 32:.1f} °F" for t in _temperatures(60)])),
+        encoding="utf-8")
+    last = refused(["check", model, other],
+                   ["Temperature", "°F", "°C", "does not convert units"], inputs=[model, other])
+    assert last == ("prunella: Temperature: the cells write °F, but the column's unit is °C, "
+                    "and Prunella does not convert units; convert the values to °C (or correct "
+                    "the column's unit in the data dictionary) and try again.")
+    # The app's one-patient lookup says the same instead of routing 100.4 as °C.
+    from core.model import TreeModel
+    from core.model.details import route_patient
+
+    tree = TreeModel.load(model)
+    route = route_patient(tree, {"Temperature": "100.4 °F", "age": 50})
+    assert route.prediction is None and "does not convert units" in route.refused[0]
+    assert route_patient(tree, {"Temperature": "39.5 °C", "age": 50}).prediction is not None

@@ -295,6 +295,17 @@ def unit_spelling(text: str) -> str:
     return "/".join([top] + under)
 
 
+def same_unit(first: str, second: str) -> bool:
+    """Whether two written units are one ("mmol/l" and "mmol/L", "bpm" and "beats/min")."""
+    return _unit_key(first) == _unit_key(second)
+
+
+def _unit_key(unit: str) -> str:
+    written = unit_spelling(unit) or re.sub(r"\s+", "", unit)
+    per_minute = {"/min", "bpm", "breaths/min", "beats/min", "permin", "min-1", "min⁻¹"}
+    return "/min" if written.casefold() in per_minute else written.casefold()
+
+
 _PER_SPELLINGS = {"l": "L", "dl": "dL", "ml": "mL", "min": "min", "h": "h", "hr": "h",
                   "kg": "kg", "day": "day", "d": "day", "s": "s"}
 

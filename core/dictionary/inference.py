@@ -17,8 +17,8 @@ import numpy as np
 import pandas as pd
 
 from ..data.cells import (
-    missing_texts, parse_dates, parse_numbers, probable_missing, profile_cells, serial_dates,
-    yes_no_levels,
+    missing_texts, parse_dates, parse_numbers, probable_missing, profile_cells, same_unit,
+    serial_dates, yes_no_levels,
 )
 from ..messages.message import say
 from ..phrases import rows_phrase
@@ -151,6 +151,11 @@ def _infer(name: str, values: pd.Series, rows) -> tuple[ColumnSpec, list[str]]:
     if numbers.mixed_units:
         # Values in several units are never converted quietly: text, left out, with a warning.
         notes.extend(n for n in numbers.notes if n.code != "values.not_numbers")
+        return ColumnSpec(kind="text", role="ignore", **base), notes
+    header_unit = base["unit"] or _unit_after_name(base)["unit"]
+    if numbers.unit and header_unit and not same_unit(numbers.unit, header_unit):
+        notes.append(say("infer.unit_disagrees", column=name, header=header_unit,
+                         found=numbers.unit))
         return ColumnSpec(kind="text", role="ignore", **base), notes
     if numbers.unit and not base["unit"]:
         base = {**base, "unit": numbers.unit}  # the unit the cells wrote: "38.2 °C"

@@ -15,6 +15,7 @@ import pandas as pd
 
 from ..data.cells import (
     NO_WORDS, YES_WORDS, counted, is_missing_text, level_text, parse_levels, parse_numbers,
+    same_unit,
 )
 from ..errors import InputError
 from ..messages.message import say
@@ -42,6 +43,11 @@ def typed_column(values: pd.Series, spec: ColumnSpec) -> TypedColumn:
     # Notes name the column by its header, as the user finds it in the spreadsheet.
     if spec.kind == "numeric":
         parsed = parse_numbers(values, spec.missing_codes, spec.name)
+        found = parsed.unit or ", ".join(parsed.mixed_units)
+        if found and spec.unit.strip() and not (parsed.unit and same_unit(parsed.unit, spec.unit)):
+            # Never read 100.4 °F against a question in °C: the units are not converted.
+            raise InputError(say("values.unit_disagrees", column=spec.name, found=found,
+                                 unit=spec.unit.strip()))
         return TypedColumn(spec, numbers=parsed.values, notes=parsed.notes)
     if spec.kind in CATEGORY_KINDS:
         levels = spec.levels

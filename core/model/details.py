@@ -14,6 +14,7 @@ import pandas as pd
 from ..checking.intervals import wilson_interval
 from ..data.cells import is_missing_text
 from ..dictionary.typed_columns import typed_column
+from ..errors import InputError
 from ..messages.message import say
 from ..precision import summary_number
 from .tree import Step, TreeModel
@@ -121,8 +122,12 @@ def _typed_numbers(model: TreeModel, values: dict[str, object],
         if is_missing_text(cell, spec.missing_codes)[0]:
             numbers[column] = None  # blank or a code for not recorded
             continue
-        number = float(typed_column(cell, spec).numbers[0])
         label = spec.display
+        try:
+            number = float(typed_column(cell, spec).numbers[0])
+        except InputError as error:  # a unit other than the tree's ("100.4 °F" for °C)
+            refused.append(str(error))
+            continue
         if not np.isfinite(number):
             low = ranges.get(column, (None,))[0]
             example = "" if low is None else f" (for example {_shown(round(low))})"

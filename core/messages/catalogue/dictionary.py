@@ -41,6 +41,10 @@ ENTRIES = [
      "from {first} to {last}, and the column is left out of the predictors.",
      "If they are not dates, set the column's kind to numeric in the data dictionary; when "
      "exporting, format date cells as dates (yyyy-mm-dd) so they stay readable."),
+    ("infer.unit_disagrees", "warning", "{column!r}: the header says {header}, but the cells "
+     "write {found}; Prunella does not convert units, so the column is read as text and left "
+     "out. Correct the header or the values to use it.",
+     "Make the header's unit and the cells' unit the same."),
     ("infer.capitals", "note", "{column!r} spells some categories with different capitals; "
      "they were merged.", "Nothing to do."),
     ("infer.sentinel", "warning", "{column!r}: the value {code}, found in {n} cell(s){rows}, "

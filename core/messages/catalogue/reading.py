@@ -166,6 +166,10 @@ ENTRIES = [
      "({units}) in {n} cell(s){rows}; Prunella does not convert units, so the column is read "
      "as text and left out. Convert them to one unit (or one column per unit) to use it.",
      "Convert every value to one unit in the spreadsheet, then open it again."),
+    ("values.unit_disagrees", "refused", "{column}: the cells write {found}, but the "
+     "column's unit is {unit}, and Prunella does not convert units; convert the values to "
+     "{unit} (or correct the column's unit in the data dictionary) and try again.",
+     "Write every value in the unit the tree was grown with."),
     ("values.infinite", "warning", "{n} infinite value(s) in {column}{rows} were treated as "
      "not recorded; correct them in the spreadsheet if they stand for real values.",
      "Infinite values usually come from a division by zero in a formula."),
