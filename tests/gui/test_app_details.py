@@ -1,6 +1,8 @@
 """Details of the app a new user met on their own spreadsheet (issue 15, item 14): the window
 title names the file once; the Rows tab numbers rows as the notes do (the spreadsheet's row
-numbers); a dd/mm/yyyy date column is a date, never phone numbers. The data are invented."""
+numbers); a dd/mm/yyyy date column is a date, never phone numbers; the one-patient lookup
+flags values no patient had and refuses words in its own wording; a reopened project of a
+spreadsheet the app never saw lists what its first opening found. The data are invented."""
 
 from __future__ import annotations
 
@@ -143,3 +145,30 @@ def test_the_lookup_flags_values_no_patient_had_and_refuses_words(demo, run, qtb
     # Not recorded is not a word: blank follows the tree's branch for missing values.
     tree.set_values({"spo2": ""})
     assert not (tree.last_route and tree.last_route.refused)
+
+
+def test_a_reopened_project_of_a_new_spreadsheet_lists_its_things_to_check(
+        window, qtbot, tmp_path, dialogs):
+    """A spreadsheet without a dictionary beside it: the project saves the dictionary the
+    first opening made, and reopening still lists what reading the file found."""
+    path = tmp_path / "falls.csv"
+    falls_sheet(path)
+    _open(window, qtbot, path)
+    first = [r.finding.text for r in window.panels["data"].notes_view.rows]
+    assert any("'Age' holds numbers and a few words" in t for t in first)
+    assert any("'MRN' seems to identify patients" in t for t in first)
+    dialogs.save_name = str(tmp_path / "falls.prunella")
+    assert window.save_as()
+    from gui.main_window import MainWindow
+
+    again = MainWindow()
+    qtbot.addWidget(again)
+    again.open_any(str(tmp_path / "falls.prunella"))
+    qtbot.waitUntil(lambda: again.session.table is not None, timeout=20000)
+    assert not dialogs.texts("warning")
+    shown = [r.finding.text for r in again.panels["data"].notes_view.rows]
+    assert not any(t.startswith("Nothing to check") for t in shown)
+    for text in first:
+        if "dictionary" not in text:  # which dictionary was used may differ: the saved one
+            assert text in shown, text
+    again.session.dirty = False
