@@ -16,7 +16,7 @@ from pathlib import Path
 import pypdf
 import pytest
 
-from tests.helpers import prunella
+from tests.helpers import prunella, run_prunella
 from tests.test_bad_inputs import HEADER, base_rows, csv_text
 from tests.test_hostile_inputs import refused, state
 
@@ -278,3 +278,34 @@ def test_the_files_prunella_writes_hold_no_impossible_value(checked_file, regres
 
     for path in (checked_file, regression_file):
         assert TreeModel.load(path).recorded_check is not None
+
+
+def test_a_child_process_refuses_an_inverted_interval_in_one_line(checked_file):
+    """As a user runs it: the real entry point, exit 2, one line, no traceback."""
+    lying = tampered(checked_file, "inverted as run.json",
+                     set_in("validation", "sensitivity", value=reversed_triple))
+    before = state([lying])
+    ran = run_prunella("chart", lying, "--out", lying.parent / "as run.pdf", timeout=60)
+    assert ran.returncode == 2, ran.stderr
+    assert "Traceback" not in ran.stderr
+    lines = ran.stderr.strip().splitlines()
+    assert len(lines) == 1 and "validation.sensitivity" in lines[0], lines
+    assert not (lying.parent / "as run.pdf").exists()
+    assert state([lying]) == before
+
+
+def test_a_smaller_tree_cut_from_a_checked_one_is_not_checked(checked_file):
+    """The check names the tree it checked: a smaller tree of its pruning sequence does not
+    borrow it (only the measuring of what fits on a page lends it, as the tree will print
+    once checked)."""
+    from core.chart.fitting import as_checked, pruned_model, smaller_trees
+    from core.model import TreeModel
+
+    model = TreeModel.load(checked_file)
+    trees = smaller_trees(model)
+    assert len(trees) > 1 and model.recorded_check is not None
+    smaller = pruned_model(model, trees[1][1])
+    assert smaller.recorded_check is None and smaller.stored_check_refused
+    measured = as_checked(smaller, model.recorded_check)
+    assert measured.recorded_check["summary"] == model.recorded_check["summary"]
+    assert as_checked(smaller, None) is smaller

@@ -91,13 +91,24 @@ def tree_fits(model: TreeModel, options: ChartOptions, measure: Measure = report
     if options.form == "rules":
         from .rules import plan_rules
 
-        model = pruned_model(model, collapsed) if collapsed else model
+        if collapsed:
+            model = as_checked(pruned_model(model, collapsed), model.recorded_check)
         return plan_rules(model, chart_text(model, options), options, measure) is not None
     if _leaf_count(model, collapsed) > _most_leaves(options.paper, options.min_text, measure):
         return False
     if collapsed:
-        model = pruned_model(model, collapsed)
+        model = as_checked(pruned_model(model, collapsed), model.recorded_check)
     return plan_page(chart_text(model, options), options, measure, quick=True) is not None
+
+
+def as_checked(model: TreeModel, check: dict | None) -> TreeModel:
+    """``model`` carrying ``check`` as its own (None: as it is), for measuring only: a smaller
+    tree is measured with the side panel it prints once it is checked, as the tree it comes
+    from was. Never saved or printed: a check counts only for the tree it names."""
+    if not check:
+        return model
+    record = {**check, "model_fingerprint": model.fingerprint_before_check}
+    return replace(model, extra={**model.extra, "validation": record})
 
 
 def pruned_model(model: TreeModel, collapsed: frozenset[int]) -> TreeModel:
@@ -254,10 +265,7 @@ def sizes_that_fit(derivation: "Derivation", options: ChartOptions | None = None
     def fits(leaves: int) -> bool:
         model = build_model(path, *path.index_for(leaves), derivation.table,
                             derivation.dictionary, derivation.request)
-        if checked:  # named as the candidate's own, so it prints in place of the banner
-            model = replace(model, extra={**model.extra, "validation": {
-                **checked, "model_fingerprint": model.fingerprint_before_check}})
-        return tree_fits(model, options, measure)
+        return tree_fits(as_checked(model, checked), options, measure)
 
     found = fitting_sizes(candidates, fits)
     return [leaves for leaves in candidates if leaves in found]
