@@ -32,7 +32,7 @@ from gui.panels.data import DATA_FILTER, SPREADSHEET_PATTERNS, DataPanel
 from gui.panels.outcome import OutcomePanel
 from gui.panels.size import SizePanel
 from gui.panels.tree import TreePanel
-from gui.resources import ICON, demo_files
+from gui.resources import ICON, demo_files, is_demo_file
 from gui.session import STEP_TITLES, STEPS, Session
 
 PROJECT_FILTER = f"Prunella project (*{PROJECT_SUFFIX})"
@@ -433,7 +433,8 @@ class MainWindow(QMainWindow):
 
     def _remember(self, path: str) -> None:
         path = str(Path(path).resolve())
-        remember_folder(path)
+        if not is_demo_file(path):  # the open dialog starts where the user's own files are
+            remember_folder(path)
         recent = [p for p in self.recent_files() if p != path]
         recent.insert(0, path)
         self.settings.setValue("recent", recent[:MAX_RECENT])

@@ -18,3 +18,12 @@ def demo_files() -> tuple[Path, Path]:
     if not (DEMO_DATA.is_file() and DEMO_DICTIONARY.is_file()):
         raise InputError(say("app.no_demo"))
     return DEMO_DATA, DEMO_DICTIONARY
+
+
+def is_demo_file(path: str | Path) -> bool:
+    """Whether ``path`` is one of the demo's files (the app's own, not a folder the user
+    chose: the open dialog does not start there after the demo)."""
+    try:
+        return Path(path).resolve().parent == DEMO_DATA.resolve().parent
+    except OSError:
+        return False

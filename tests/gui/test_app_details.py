@@ -172,3 +172,37 @@ def test_a_reopened_project_of_a_new_spreadsheet_lists_its_things_to_check(
         if "dictionary" not in text:  # which dictionary was used may differ: the saved one
             assert text in shown, text
     again.session.dirty = False
+
+
+def test_open_after_the_demo_starts_in_the_users_own_folder(window, qtbot, monkeypatch,
+                                                          tmp_path):
+    from PySide6.QtWidgets import QFileDialog
+
+    from gui.resources import DEMO_DATA
+
+    asked = []
+    folder = tmp_path / "audits"
+    folder.mkdir()
+    falls_sheet(folder / "falls.csv")
+
+    def ask(_parent, _caption, start, filters, *args, **kwargs):
+        asked.append((start, filters.split(";;")[0]))
+        return str(folder / "falls.csv"), ""
+
+    monkeypatch.setattr(QFileDialog, "getOpenFileName", staticmethod(ask))
+    window.demo_action.trigger()
+    qtbot.waitUntil(lambda: window.session.table is not None, timeout=20000)
+    window.session.dirty = False
+    window.open_action.trigger()  # the demo is the app's, not a folder the user chose
+    qtbot.waitUntil(lambda: window.session.table is not None and
+                    window.session.table.provenance.path.endswith("falls.csv"), timeout=20000)
+    assert asked[0][0] != str(DEMO_DATA.parent) and "sample_data" not in asked[0][0]
+    assert asked[0][1].startswith("Spreadsheets and projects")
+    window.session.dirty = False
+    window.demo_action.trigger()  # the demo again: the user's folder is still remembered
+    qtbot.waitUntil(lambda: window.session.table.provenance.path.endswith(DEMO_DATA.name),
+                    timeout=20000)
+    window.session.dirty = False
+    window.open_action.trigger()
+    assert asked[-1][0] == str(folder.resolve())
+    window.session.dirty = False
