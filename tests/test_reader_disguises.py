@@ -66,8 +66,10 @@ def test_serial_dates_with_times_and_words_and_in_a_text_column_are_dates_too(tm
     rows = add_column(base_rows(60), values)
     data = tmp_path / "admitted_on.csv"
     data.write_text(csv_text(HEADER + ["date_of_admission"], rows), encoding="utf-8")
-    table, dictionary, _notes = _inferred(data)
+    table, dictionary, notes = _inferred(data)
     assert dictionary.get("date_of_admission").kind == "date"
+    note = next(n for n in notes if n.code == "infer.serial_dates")
+    assert f"such as {values[0]} (row 2)" in note  # the number as written, its time kept
     dates = parse_dates(table.frame["date_of_admission"])
     assert dates.notna().sum() == 58 and (dates.dt.hour[dates.notna()] == 9).all()
     loads(data)
@@ -374,3 +376,21 @@ def test_a_check_on_a_file_in_another_unit_is_refused_in_one_sentence(tmp_path):
     route = route_patient(tree, {"Temperature": "100.4 °F", "age": 50})
     assert route.prediction is None and "does not convert units" in route.refused[0]
     assert route_patient(tree, {"Temperature": "39.5 °C", "age": 50}).prediction is not None
+
+
+def test_a_workbook_with_serial_dates_units_and_names_loads_with_its_warnings(tmp_path):
+    from tests.test_bad_inputs import workbook
+
+    rows = add_column(base_rows(80), _serial_dates(80, seed=5))
+    rows = add_column(rows, [f"{t} °C" for t in _temperatures(80, seed=5)])
+    rows = add_column(rows, _cycle(NURSES, 80))
+    book = tmp_path / "ward_export.xlsx"
+    workbook(book, {"Export": [HEADER + ["Date of admission", "Temperature", "Ward"]] + rows})
+    _table, dictionary, _notes = _inferred(book)
+    assert dictionary.get("Date of admission").kind == "date"
+    assert dictionary.get("Temperature").unit == "°C"
+    assert dictionary.get("Ward").role == "ignore"
+    stderr = loads(book)
+    for words in ("dates as a spreadsheet stores them", "units were written in the cells (°C)",
+                  "its categories look like names"):
+        assert words in stderr

@@ -265,7 +265,7 @@ def _serial_date(name: str, base: dict, numbers: np.ndarray, notes: list[str], r
     example = numbers[first]
     where = None if rows is None else rows[[first]]
     notes.append(say("infer.serial_dates", column=name,
-                     example=f"{example:g}", date=_day(dates.iloc[0]),
+                     example=f"{example:.12g}", date=_day(dates.iloc[0]),
                      first=_day(dates.min()), last=_day(dates.max()),
                      rows=rows_phrase(where)))
     return ColumnSpec(kind="date", role="ignore", note="date", **{**base, "unit": ""}), notes
