@@ -106,6 +106,7 @@ class Session(QObject):
         self.size: str | int = "1se"
         self.external_path: str | None = None  # the other file checked on (redone per size)
         self.shading: Shading | None = None
+        self.earlier_check = None  # the last tree's check on another file, until redone
         self._forget_checks()
 
     def _forget_checks(self) -> None:
@@ -317,6 +318,7 @@ class Session(QObject):
         if self.chosen is not None:
             self.size = self._size_of(self.chosen)
         self.shading = None
+        self._keep_earlier_check()
         self._forget_checks()
         self.dirty = self.dirty or (derivation is not None and changes_work)
         self._announce(self.result_changed, self.checks_changed, self.shading_changed)
@@ -324,6 +326,7 @@ class Session(QObject):
     def set_chosen(self, chosen: Derivation) -> None:
         self.chosen = chosen
         self.size = self._size_of(chosen)
+        self._keep_earlier_check()
         self._forget_checks()
         self.dirty = True
         self._announce(self.chosen_changed, self.checks_changed)
@@ -342,7 +345,25 @@ class Session(QObject):
         """A check of the chosen tree on another file (it replaces an earlier one)."""
         self.checks = tuple(r for r in self.checks if r.kind != "external") + (result,)
         self.external_path = path
+        if self.model is not None and result.names(self.model):
+            self.earlier_check = None
         self._announce(self.checks_changed)
+
+    def _keep_earlier_check(self) -> None:
+        """Before another tree takes this one's place: its check on another file, so that the
+        app can say whose check it was until the file is checked again for the new tree."""
+        external = [r for r in self.checks if r.kind == "external"]
+        if external:
+            self.earlier_check = external[-1]
+
+    @property
+    def check_of_earlier_tree(self):
+        """The check on another file made on an earlier tree, not on the one chosen now
+        (None when there is none, or once the file is checked again)."""
+        check = self.earlier_check
+        if check is None or self.model is None or check.names(self.model):
+            return None
+        return check
 
     def set_print_external(self, printed: bool) -> None:
         """Whether the chart prints the latest external check (else the held-out one)."""

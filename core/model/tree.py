@@ -258,6 +258,17 @@ class Scored:
     waiting: np.ndarray | None = None  # the question box where that row waits, else 0
 
 
+# Parts of a model file that are not the tree: the guards' notes about the data, and the
+# check recorded on separate patients (which names the tree by this fingerprint itself).
+NOT_THE_TREE = ("findings", "validation")
+
+
+def _digest(document: dict) -> str:
+    canonical = json.dumps(document, sort_keys=True, separators=(",", ":"),
+                           ensure_ascii=False, allow_nan=False)
+    return hashlib.sha256(canonical.encode("utf-8")).hexdigest()
+
+
 @dataclass(frozen=True)
 class TreeModel:
     """The chosen tree and everything needed to print, score and reproduce it."""
@@ -433,11 +444,22 @@ class TreeModel:
     @property
     def fingerprint(self) -> str:
         """SHA-256 of the model's canonical JSON (keys sorted, no whitespace), without the
-        guards' ``findings`` (notes about the data, not part of the tree)."""
-        tree = {k: v for k, v in self.to_dict().items() if k != "findings"}
-        canonical = json.dumps(tree, sort_keys=True, separators=(",", ":"),
-                               ensure_ascii=False, allow_nan=False)
-        return hashlib.sha256(canonical.encode("utf-8")).hexdigest()
+        guards' ``findings`` (notes about the data) and without its recorded check
+        (``validation``): the fingerprint names the tree, so checking it does not change it,
+        and a check carries the same fingerprint as the tree it was made on."""
+        return _digest({k: v for k, v in self.to_dict().items() if k not in NOT_THE_TREE})
+
+    @property
+    def fingerprint_with_check(self) -> str:
+        """The fingerprint as Prunella 0.1 computed it, with the recorded check inside: only
+        to recognise a tree in a project saved by that version."""
+        return _digest({k: v for k, v in self.to_dict().items() if k != "findings"})
+
+    def is_named_by(self, fingerprint: str | None) -> bool:
+        """Whether ``fingerprint`` (from a project or a check) names this tree, as this
+        version or Prunella 0.1 (whose fingerprint held the check) computed it."""
+        return fingerprint is not None and fingerprint in (self.fingerprint,
+                                                           self.fingerprint_with_check)
 
     @property
     def short_fingerprint(self) -> str:
@@ -446,11 +468,9 @@ class TreeModel:
 
     @property
     def fingerprint_before_check(self) -> str:
-        """The fingerprint of the tree without its recorded check: the one a check names."""
-        if "validation" not in self.extra:
-            return self.fingerprint
-        extra = {k: v for k, v in self.extra.items() if k != "validation"}
-        return replace(self, extra=extra).fingerprint
+        """The fingerprint a check names: the tree's own (:attr:`fingerprint` leaves the
+        recorded check out, so it is the same before and after a check)."""
+        return self.fingerprint
 
     @property
     def recorded_check(self) -> dict | None:

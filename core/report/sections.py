@@ -113,8 +113,8 @@ def _data_source(c: ReportContents, s: Styles) -> list:
     if p.encoding:
         rows.append(["Text encoding, delimiter, decimal mark",
                      f"{p.encoding}, {p.delimiter!r}, {p.decimal!r}"])
-    rows.append(["Model fingerprint (SHA-256 of the model's canonical JSON: keys sorted, "
-                 "no spaces)",
+    rows.append(["Model fingerprint (SHA-256 of the model's canonical JSON without its "
+                 "recorded check: keys sorted, no spaces; a check names the tree by it)",
                  _grouped(model.fingerprint)])
     story = [para("The tree was derived from the file below. The fingerprint identifies its exact "
                   "bytes: a file with another fingerprint is other data.", s.body),

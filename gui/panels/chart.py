@@ -26,7 +26,7 @@ from gui.binding import Bindings
 from gui.panels.step_panel import (
     StepPanel, heading_font, saving, scrolling, side_by_side, tool_buttons, with_tooltip,
 )
-from gui.panels.wording import warning_html
+from gui.panels.wording import warning_html, whose_check
 from gui.widgets.chart_printing import chart_plan, page_layout, print_plan
 from gui.widgets.pdf_preview import PdfPreview
 
@@ -173,6 +173,12 @@ class ChartPanel(StepPanel):
         layout.addWidget(options)
         layout.addLayout(main_buttons)
         layout.addWidget(self.message)
+        # Which tree the chart is of, and which tree its check was made on.
+        self.whose = QLabel("")
+        self.whose.setWordWrap(True)
+        self.whose.setTextInteractionFlags(Qt.TextSelectableByMouse)
+        self.whose.setAccessibleName("Which tree the chart and its check belong to")
+        layout.addWidget(self.whose)
         layout.addWidget(cautions_widget())
         layout.addWidget(other)
         layout.addStretch(1)
@@ -260,9 +266,17 @@ class ChartPanel(StepPanel):
     def schedule_preview(self) -> None:
         """Draw the preview soon, but only while the step is on screen (drawing takes a
         moment; export and print draw it if it is missing)."""
+        self._say_whose()
         self._outdated = True
         if self.session.model is not None and self.isVisible():
             self._timer.start()
+
+    def _say_whose(self) -> None:
+        if self.session.model is None:
+            self.whose.setText("")
+            return
+        words, earlier = whose_check(self.session)
+        self.whose.setText(warning_html(words) if earlier else escape(words))
 
     def showEvent(self, event) -> None:  # noqa: N802
         super().showEvent(event)

@@ -24,7 +24,7 @@ from core.checking import (
 )
 from core.data import read_table
 from core.option_limits import spin_range
-from core.phrases import plural
+from core.phrases import plural, short_fingerprint
 from core.safe_files import save_notes
 from core.report import (
     DECISION_CURVE_READING, calibration_figure, decision_curve_figure, prepare_report,
@@ -35,7 +35,7 @@ from gui.panels.data import DATA_FILTER
 from gui.panels.step_panel import (
     Banner, StepPanel, ask_open_path, scrolling, show_save_notes, with_tooltip,
 )
-from gui.panels.wording import SIZE_RULES, errors_beside, warning_html
+from gui.panels.wording import SIZE_RULES, errors_beside, warning_html, whose_check
 
 
 def _table(rows: list[tuple[str, str]], header: tuple[str, str] | None = None) -> str:
@@ -62,7 +62,8 @@ def check_html(result) -> str:
     """One check on separate patients: where from, how many, measures, confusion, calibration."""
     m = result.measures
     parts = [f"<p><b>{escape(result.source_and_file[0].upper() + result.source_and_file[1:])}</b>: "
-             f"{result.counted} checked.</p>"]
+             f"{result.counted} checked, on the tree with fingerprint "
+             f"{short_fingerprint(result.model_fingerprint)}.</p>"]
     if not result.separate:
         parts.append(f"<p><b>Not a check on separate patients:</b> {result.overlap_patients:,} "
                      "of these patients were among the derivation patients.</p>")
@@ -138,6 +139,8 @@ class CheckingPanel(StepPanel):
         work_row.addWidget(self.cancel_button)
         self.body.addLayout(work_row)
         self.body.addWidget(self.status)
+        self.whose = Banner("⚠")  # a check on screen that belongs to an earlier tree
+        self.body.addWidget(self.whose)
         self.work = self.runner(progress=self.progress, cancel_button=self.cancel_button,
                                 hide_when_idle=True)
         self.work.busy_changed.connect(self._enable)
@@ -300,6 +303,11 @@ class CheckingPanel(StepPanel):
             return
         self.cv_label.setText(cross_validated_html(model))
         session = self.session
+        words, earlier = whose_check(session)
+        if earlier:
+            self.whose.show_text(escape(words))
+        else:
+            self.whose.hide()
         if self._shown.get("checks") != (session.checks, model.fingerprint):
             self._show_checks()
         self.on_chart.setVisible(any(r.kind == "external" for r in session.checks))

@@ -430,7 +430,8 @@ class SizePanel(StepPanel):
         session = self.session
         expected = session.expected_fingerprint
         session.expected_fingerprint = None
-        reproduced = expected is not None and chosen.model.fingerprint == expected
+        # A project of Prunella 0.1 named the tree with its held-out check inside.
+        reproduced = chosen.model.is_named_by(expected)
         session.set_result(derivation, chosen, changes_work=not reproduced)
         seconds = time.monotonic() - self._started
         text = f"Done in {seconds:.1f} s. {len(derivation.path.leaves)} sizes on the pruning path."
@@ -439,7 +440,7 @@ class SizePanel(StepPanel):
         if expected is not None:
             if reproduced:
                 text += (" This is exactly the tree saved in the project (fingerprint "
-                         f"{expected[:12]}).")
+                         f"{chosen.model.short_fingerprint}).")
             else:
                 self.warn(say("app.not_the_saved_tree", fingerprint=chosen.model.fingerprint[:12],
                               saved=expected[:12]), "Not the saved tree")

@@ -49,3 +49,25 @@ def warning_html(text: str) -> str:
     shown = escape(app_wording(text) or text)
     more = "" if advice is None else f"<br><i>What to do: {escape(advice)}</i>"
     return f"<p>⚠ {shown}{more}</p>"
+
+
+def whose_check(session) -> tuple[str, bool]:
+    """Which tree the chart is of and which tree its check was made on, in one sentence, and
+    whether that is a warning (the check on screen belongs to an earlier tree). One
+    fingerprint names the tree everywhere: checking a tree does not change it."""
+    from core.messages import say
+    from core.phrases import short_fingerprint
+
+    model = session.model
+    tree = model.short_fingerprint
+    earlier = session.check_of_earlier_tree
+    if earlier is not None:
+        return say("app.check_of_earlier_tree", source=earlier.source_and_file,
+                   earlier=short_fingerprint(earlier.model_fingerprint), tree=tree), True
+    record = session.chart_derivation().model.recorded_check
+    if record is None:
+        return say("app.chart_of_unchecked_tree", tree=tree), False
+    source = record.get("source", "separate patients")
+    if record.get("file"):
+        source = f"{source} ({record['file']})"
+    return say("app.chart_of_checked_tree", tree=tree, source=source), False

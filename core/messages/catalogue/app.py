@@ -63,6 +63,16 @@ ENTRIES = [
      "in the project (fingerprint {fingerprint}, saved {saved}). The data file or Prunella's "
      "version may have changed; check the data before relying on this tree.",
      "Compare the data file with the one the project was saved with."),
+    ("app.chart_of_checked_tree", "note", "The chart is of the tree with fingerprint {tree} "
+     "and prints its check on {source}, made on this same tree (fingerprint {tree}).",
+     "One fingerprint names the tree on screen, on the chart and in its check."),
+    ("app.chart_of_unchecked_tree", "note", "The chart is of the tree with fingerprint {tree}; "
+     "no check on separate patients was made on this tree, so it says it is not yet checked.",
+     "Check the tree on step 5 (held-out patients or another file) to print the check."),
+    ("app.check_of_earlier_tree", "warning", "The check on {source} belongs to the earlier "
+     "tree (fingerprint {earlier}); the chart is of this tree (fingerprint {tree}), which is "
+     "not checked on that file yet.", "A check counts only for the tree it was made on; "
+     "step 5 checks the file again for the tree chosen now."),
     ("app.identity_kept", "warning", "“{column}” is asked about because you ticked it, "
      "although it looks like {what}. The chart prints every question the tree asks: keep it "
      "only if it identifies no one.", "Untick it unless it identifies no one."),
