@@ -206,3 +206,24 @@ def test_open_after_the_demo_starts_in_the_users_own_folder(window, qtbot, monke
     window.open_action.trigger()
     assert asked[-1][0] == str(folder.resolve())
     window.session.dirty = False
+
+
+def test_a_workbook_with_title_rows_is_numbered_as_the_spreadsheet(window, qtbot, tmp_path):
+    import openpyxl
+
+    book = openpyxl.Workbook()
+    sheet = book.active
+    sheet.append(["Falls audit 2025, ward 7"])
+    sheet.append([])
+    sheet.append(["Age", "Gait", "Fell"])
+    for i in range(40):
+        sheet.append(["ninety" if i == 6 else 60 + i, ("steady", "frame")[i % 2],
+                      ("yes", "no")[i % 3 == 0]])
+    book.save(tmp_path / "falls.xlsx")
+    _open(window, qtbot, tmp_path / "falls.xlsx")
+    notes = list(window.session.notes)
+    assert any("'ninety'" in n and "(row 10)" in n for n in notes)
+    model = window.panels["data"].frame_model
+    assert model.headerData(0, Qt.Vertical) == "4"
+    assert model.data(model.index(6, 0)) == "ninety" and model.headerData(6, Qt.Vertical) == "10"
+    assert "(row 3 holds the column names)" in window.panels["data"].rows_caption.text()
