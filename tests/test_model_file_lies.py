@@ -309,3 +309,29 @@ def test_a_smaller_tree_cut_from_a_checked_one_is_not_checked(checked_file):
     measured = as_checked(smaller, model.recorded_check)
     assert measured.recorded_check["summary"] == model.recorded_check["summary"]
     assert as_checked(smaller, None) is smaller
+
+
+# --- the check's summary line is built from its numbers -------------------------------------
+
+
+def test_the_check_s_line_on_the_chart_says_what_its_numbers_say(checked_file, regression_file):
+    """Words edited beside the numbers (the fingerprint kept) are not printed: the line is
+    built from the numbers, as prunella check words it, so a real check prints unchanged."""
+    from core.checking.new_patients import record_summary
+    from core.model import TreeModel
+
+    for path in (checked_file, regression_file):
+        model = TreeModel.load(path)
+        record = model.recorded_check
+        assert record_summary(record, model) == record["summary"]
+    true_line = TreeModel.load(checked_file).recorded_check["summary"]
+    boasting = tampered(checked_file, "boasting words.json", set_in(
+        "validation", "summary", value="Sensitivity 99% (98–100%), specificity 99% (98–100%)"))
+    out = boasting.parent / "boasting words.pdf"
+    before = state([boasting])
+    ran = prunella("chart", boasting, "--out", out, "--paper", "a3")
+    assert ran.returncode == 0 and "warning" not in ran.stderr, ran.stderr
+    words = chart_words(out)
+    assert "Sensitivity 99%" not in words
+    assert " ".join(true_line.split()) in words
+    assert state([boasting]) == before

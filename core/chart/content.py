@@ -11,6 +11,7 @@ from dataclasses import dataclass
 from .. import __version__
 from ..cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER, UNCHECKED_DETAIL
 from ..checking.intervals import as_percent
+from ..checking.new_patients import record_summary
 from ..precision import summary_number
 from ..model.tree import ANSWERS, MEASURE_FIRST, Node, TreeModel, answer_verb
 from ..phrases import plural, rows_and_patients, rows_count, short_fingerprint
@@ -277,7 +278,8 @@ def _validation(model: TreeModel, options: ChartOptions) -> PanelSection | None:
     check = model.recorded_check  # only a check that names this tree by its fingerprint
     if not check:
         return None
-    summary = check.get("summary")
+    # Built from the numbers the check records, never from the words stored beside them.
+    summary = record_summary(check, model) or check.get("summary")
     if not summary:
         summary = "; ".join(f"{k.replace('_', ' ')} {v:.3f}" for k, v in check.items()
                             if isinstance(v, float))

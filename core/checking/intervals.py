@@ -76,9 +76,14 @@ class Proportion:
 
     def text(self) -> str:
         """'84% (79–88%)', or 'not estimable' when there is nobody to count."""
-        if self.value is None:
-            return "not estimable (no patients)"
-        return f"{as_percent(self.value)} ({as_percent(self.low, sign=False)}–{as_percent(self.high)})"
+        return share_text(self.value, self.low, self.high)
+
+
+def share_text(value: float | None, low: float | None, high: float | None) -> str:
+    """A share with its interval as printed, '84% (79–88%)'; 'not estimable' without one."""
+    if value is None or low is None or high is None:
+        return "not estimable (no patients)"
+    return f"{as_percent(value)} ({as_percent(low, sign=False)}–{as_percent(high)})"
 
 
 def proportion(k: int, n: int) -> Proportion:

@@ -46,7 +46,31 @@ class RocCurve:
     n_negative: int
 
     def text(self) -> str:
-        return f"{self.auc:.2f} ({self.low:.2f}–{self.high:.2f})"
+        return auc_text(self.auc, self.low, self.high)
+
+
+def auc_text(auc: float, low: float, high: float) -> str:
+    """An area under the ROC curve with its interval as printed, '0.82 (0.79–0.85)'."""
+    return f"{auc:.2f} ({low:.2f}–{high:.2f})"
+
+
+def two_class_summary(sensitivity: str, specificity: str, auc: str | None) -> str:
+    """The summary line of a two-class check from its printed measures."""
+    parts = [f"Sensitivity {sensitivity}", f"specificity {specificity}"]
+    if auc is not None:
+        parts.append(f"AUC {auc}")
+    return ", ".join(parts)
+
+
+def several_class_summary(accuracy: str, auc_macro: float | None, cost: float,
+                          row: str) -> str:
+    """The summary line of a check of three or more classes from its measures (``row``:
+    "visit" or "patient", what the cost is per)."""
+    parts = [f"Accuracy {accuracy}"]
+    if auc_macro is not None:
+        parts.append(f"mean one-vs-rest AUC {auc_macro:.2f}")
+    parts.append(f"cost {cost:.3f} per {row}")
+    return ", ".join(parts)
 
 
 def hanley_mcneil_se(auc: float, n_positive: int, n_negative: int) -> float:
@@ -198,16 +222,10 @@ class ClassificationMeasures:
         """One printable line of the main measures with their intervals."""
         head = self.headline
         if head is not None:
-            parts = [f"Sensitivity {head.sensitivity.text()}",
-                     f"specificity {head.specificity.text()}"]
-            if head.roc is not None:
-                parts.append(f"AUC {head.roc.text()}")
-            return ", ".join(parts)
-        parts = [f"Accuracy {self.accuracy.text()}"]
-        if self.auc_macro is not None:
-            parts.append(f"mean one-vs-rest AUC {self.auc_macro:.2f}")
-        parts.append(f"cost {self.cost:.3f} per {self.rows_word[:-1]}")
-        return ", ".join(parts)
+            return two_class_summary(head.sensitivity.text(), head.specificity.text(),
+                                     None if head.roc is None else head.roc.text())
+        return several_class_summary(self.accuracy.text(), self.auc_macro, self.cost,
+                                     self.rows_word[:-1])
 
     def rows(self) -> list[tuple[str, str]]:
         """(measure, value with interval) lines for a table."""

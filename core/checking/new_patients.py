@@ -33,9 +33,10 @@ from ..phrases import patients_among, plural, rows_and_patients, rows_word
 from ..model.scoring import needs_counts, needs_warning
 from .overlap import overlapping_rows
 from ..model.tree import TreeModel, column_values
+from .intervals import share_text
 from .metrics import (
-    ClassificationMeasures, DerivationBox, Measures, RegressionMeasures, classification_measures,
-    regression_measures,
+    ClassificationMeasures, DerivationBox, Measures, RegressionMeasures, auc_text,
+    classification_measures, regression_measures, several_class_summary, two_class_summary,
 )
 
 
@@ -205,6 +206,55 @@ class CheckResult:
                 lines.append(f"  box {r.box:>3} {r.label:<14} derivation {derived:>6} of "
                              f"{r.derivation_n:<5} new {r.observed_text(percent, places)} of {r.n}{flag}")
         return "\n".join(lines)
+
+
+def record_summary(record: dict, model: TreeModel) -> str | None:
+    """The summary line of a recorded check (``model.extra["validation"]``) built from the
+    numbers it records, worded as :attr:`CheckResult.summary` words them, so a chart never
+    prints words that say other than its numbers; None when the record lacks the numbers (a
+    hand-made or early record)."""
+    n, patients = record.get("n"), record.get("patients")
+    if not _numbers(n) or (patients is not None and not _numbers(patients)):
+        return None
+    if model.task == "regression":
+        if not _numbers(record.get("rmse"), record.get("mae"), record.get("r2")):
+            return None
+        measures = RegressionMeasures(
+            n=int(n), rmse=float(record["rmse"]), mae=float(record["mae"]),
+            r2=float(record["r2"]), mean_error=float("nan"), calibration=(),
+            unit=model.outcome.unit, rmse_interval=_interval(record.get("rmse_interval")),
+            mae_interval=_interval(record.get("mae_interval")),
+            r2_interval=_interval(record.get("r2_interval")), decimals=model.outcome_decimals,
+            patients=None if patients is None else int(patients))
+        return measures.summary()
+    sensitivity, specificity, auc = (record.get(k) for k in ("sensitivity", "specificity",
+                                                             "auc"))
+    if _shares(sensitivity) and _shares(specificity):
+        return two_class_summary(share_text(*sensitivity), share_text(*specificity),
+                                 auc_text(*auc) if _shares(auc) and _numbers(*auc) else None)
+    accuracy, interval = record.get("accuracy"), _interval(record.get("accuracy_interval"))
+    macro, cost = record.get("auc_macro"), record.get("risk")
+    if _numbers(accuracy, cost) and interval is not None and \
+            (macro is None or _numbers(macro)):
+        row = rows_word(int(n), None if patients is None else int(patients))[:-1]
+        return several_class_summary(share_text(accuracy, *interval), macro, cost, row)
+    return None
+
+
+def _numbers(*values) -> bool:
+    return all(isinstance(v, (int, float)) and not isinstance(v, bool) and math.isfinite(v)
+               for v in values)
+
+
+def _shares(triple) -> bool:
+    """[value, low, high], each a number or null (not estimable)."""
+    return isinstance(triple, list) and len(triple) == 3 and \
+        all(v is None or _numbers(v) for v in triple)
+
+
+def _interval(pair) -> tuple[float, float] | None:
+    return (float(pair[0]), float(pair[1])) if isinstance(pair, list) and len(pair) == 2 \
+        and _numbers(*pair) else None
 
 
 def _pair(interval) -> list | None:
