@@ -134,10 +134,11 @@ def test_durations_and_ordinary_measurements_are_not_taken_for_periods():
     from core.dictionary.dates import names_a_date
 
     for name in ("Arrival date", "date_of_admission", "AdmissionDate", "Admission year",
-                 "month seen", "Day of week", "triage date-time"):
+                 "month seen", "Day of week", "triage date-time", "Seen on", "Admitted on"):
         assert names_a_date(name), name
     for name in ("days in hospital", "Age (years)", "months since diagnosis", "update_flag",
-                 "Length of stay", "resp_rate", "weekly alcohol units", "Mandated"):
+                 "Length of stay", "resp_rate", "weekly alcohol units", "Mandated",
+                 "Temperature on arrival", "SpO2 on air"):
         assert not names_a_date(name), name
 
 
@@ -394,3 +395,15 @@ def test_a_workbook_with_serial_dates_units_and_names_loads_with_its_warnings(tm
     for words in ("dates as a spreadsheet stores them", "units were written in the cells (°C)",
                   "its categories look like names"):
         assert words in stderr
+
+
+def test_written_dates_set_to_categories_in_the_dictionary_are_warned_about(tmp_path):
+    # "Seen on" holds dd/mm/yyyy dates; a hand-made dictionary calls it a category.
+    rows = add_column(base_rows(80), [f"{1 + i % 3:02d}/0{1 + i % 2}/2024" for i in range(80)])
+    data = tmp_path / "seen.csv"
+    data.write_text(csv_text(HEADER + ["When"], rows), encoding="utf-8")
+    (tmp_path / "seen.dictionary.json").write_text(json.dumps({
+        "format": "prunella-dictionary/1", "columns": [
+            {"name": "When", "kind": "nominal", "role": "predictor"}]}), encoding="utf-8")
+    stderr = loads(data)
+    assert "'When' would split patients by when they came" in stderr

@@ -33,7 +33,7 @@ import pandas as pd
 
 from ..data.cells import is_missing_text, level_text, parse_numbers
 from ..dictionary.columns import ColumnSpec, DataDictionary
-from ..dictionary.dates import names_a_date
+from ..dictionary.dates import holds_dates, names_a_date
 from ..dictionary.identity import (
     IdentityHint, identity_by_header, identity_hint, looks_like_record_numbers,
     may_group_patients,
@@ -202,15 +202,18 @@ def kept_on_purpose(kept: Iterable[str], ticked: Iterable[str], offered: Iterabl
 # --- dates and periods ----------------------------------------------------------------------
 
 
-def period_findings(dictionary: DataDictionary, columns: Iterable[str]) -> tuple[GuardFinding, ...]:
-    """A warning for every predictor among ``columns`` whose header names a date or a calendar
-    period ("Arrival date", "Admission year"): its question would sort patients by when they
-    came."""
+def period_findings(frame: pd.DataFrame, dictionary: DataDictionary,
+                    columns: Iterable[str]) -> tuple[GuardFinding, ...]:
+    """A warning for every predictor among ``columns`` that is a date or a calendar period, by
+    its header ("Arrival date", "Admission year", "Seen on") or its cells (dates set to another
+    kind): its question would sort patients by when they came."""
     found = []
     for name in columns:
+        if name not in frame.columns:
+            continue
         spec = dictionary.get(name) if name in dictionary else ColumnSpec(name)
         # A column of kind date is refused as a predictor by prepare_analysis, in one sentence.
-        if spec.kind != "date" and (names_a_date(spec.name) or names_a_date(spec.label)):
+        if spec.kind != "date" and (names_a_date(spec.label) or holds_dates(name, frame[name])):
             found.append(_finding("period", name, "guard.date_as_question", column=name))
     return tuple(found)
 
@@ -391,7 +394,7 @@ def guard_design(frame: pd.DataFrame, dictionary: DataDictionary, design: Design
     if design.predictors and not guarded.predictors:
         raise InputError(say("guard.nothing_left", columns=", ".join(repr(c) for c in left_out)))
     findings = [f for f in findings if f.column in left_out]
-    findings.extend(period_findings(dictionary, guarded.predictors))
+    findings.extend(period_findings(frame, dictionary, guarded.predictors))
     findings.extend(repeat_visit_findings(frame, dictionary, guarded, grouped))
     try:
         data = prepare_analysis(frame, dictionary, guarded)

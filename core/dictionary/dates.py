@@ -12,14 +12,17 @@ from __future__ import annotations
 import re
 
 import numpy as np
+import pandas as pd
 
-from ..data.cells import FIRST_SERIAL, LAST_SERIAL
+from ..data.cells import FIRST_SERIAL, LAST_SERIAL, is_missing_text, parse_dates
 from .identity import normalised_header
 
 # A header that names a date or a calendar period ("Arrival date", "date_of_admission",
 # "Admission year", "Month seen"); durations ("days in hospital", "age in years") do not match.
 _DATE_HEADER = re.compile(r"\b(date|dates|dated|datetime|timestamp|time stamp|year|month|"
-                          r"week|quarter|calendar|day of (the )?(week|month|year))\b")
+                          r"week|quarter|calendar|day of (the )?(week|month|year))\b|"
+                          r"\b(seen|admitted|arrived|attended|discharged|referred|triaged|"
+                          r"registered|operated|died) on\b")
 
 
 def names_a_date(name: str) -> bool:
@@ -34,3 +37,27 @@ def looks_like_serial_dates(numbers: np.ndarray) -> bool:
     if len(finite) < 2 or finite.min() < FIRST_SERIAL or finite.max() > LAST_SERIAL + 1:
         return False
     return np.unique(np.floor(finite)).size >= 2
+
+
+def mostly_dates(text: pd.Series) -> bool:
+    """Whether distinct cell texts are (at least 90%) written dates ("03/01/2024", "2024-01-03",
+    "3 Jan 2024")."""
+    sample = text.iloc[:: max(1, len(text) // 5000)]
+    if sample.str.contains(r"\d[-/.]\d|\d{1,2} [A-Za-z]{3}", regex=True).mean() <= 0.9:
+        return False
+    uniques = pd.Series(pd.unique(sample))
+    return parse_dates(uniques).notna().mean() >= 0.9
+
+
+def holds_dates(name: str, values: pd.Series) -> bool:
+    """Whether a column is a date or a period, by its header, or by its cells: written dates,
+    or serial dates under a header that names a date."""
+    if names_a_date(name):
+        return True
+    if pd.api.types.is_datetime64_any_dtype(values.dtype):
+        return True
+    if pd.api.types.is_numeric_dtype(values.dtype) or pd.api.types.is_bool_dtype(values.dtype):
+        return False
+    present = values[~is_missing_text(values)]
+    distinct = pd.Series(pd.unique(present.astype(str).str.strip()), dtype=object)[:500]
+    return len(distinct) >= 2 and mostly_dates(distinct)

@@ -17,13 +17,13 @@ import numpy as np
 import pandas as pd
 
 from ..data.cells import (
-    missing_texts, parse_dates, parse_numbers, probable_missing, profile_cells, same_unit,
-    serial_dates, yes_no_levels,
+    missing_texts, parse_numbers, probable_missing, profile_cells, same_unit, serial_dates,
+    yes_no_levels,
 )
 from ..messages.message import say
 from ..phrases import rows_phrase
 from .columns import MAX_NOMINAL_LEVELS, ColumnSpec, DataDictionary, canonical_levels
-from .dates import looks_like_serial_dates, names_a_date
+from .dates import looks_like_serial_dates, mostly_dates, names_a_date
 from .typed_columns import event_level
 from .identity import GROUPING_IDENTITIES, identity_hint, looks_like_record_numbers
 
@@ -206,11 +206,11 @@ def _infer(name: str, values: pd.Series, rows) -> tuple[ColumnSpec, list[str]]:
         return ColumnSpec(kind="binary", levels=levels, role=role, positive=positive,
                           **base), notes
     if n_unique >= 0.95 * n_present and n_present >= 20:
-        if _mostly_dates(distinct):
+        if mostly_dates(distinct):
             return _date(name, base, distinct, notes)
         notes.append(say("infer.identifier", column=name))
         return ColumnSpec(kind="identifier", role="ignore", **base), notes
-    if _mostly_dates(distinct):
+    if mostly_dates(distinct):
         return _date(name, base, distinct, notes)
     if _PATIENT_HINT.search(name) and n_unique < n_present:
         notes.append(say("infer.patient_id", column=name))
@@ -273,14 +273,6 @@ def _serial_date(name: str, base: dict, numbers: np.ndarray, notes: list[str], r
 
 def _day(stamp) -> str:
     return f"{stamp.day} {stamp:%B %Y}"
-
-
-def _mostly_dates(text: pd.Series) -> bool:
-    sample = text.iloc[:: max(1, len(text) // 5000)]
-    if sample.str.contains(r"\d[-/.]\d|\d{1,2} [A-Za-z]{3}", regex=True).mean() <= 0.9:
-        return False
-    uniques = pd.Series(pd.unique(sample))
-    return parse_dates(uniques).notna().mean() >= 0.9
 
 
 def _numeric(name: str, base: dict, numbers, n_present: int, notes: list[str], rows):
