@@ -33,7 +33,10 @@ class Interval:
         """True if ``value`` is a number of this kind inside the interval (never a bool)."""
         if isinstance(value, bool) or not isinstance(value, self.kind):
             return False
-        if not math.isfinite(value):
+        try:
+            if not math.isfinite(value):
+                return False
+        except OverflowError:  # a whole number too large for a float: far outside any limit
             return False
         above = value >= self.low if self.closed in ("both", "left") else value > self.low
         below = value <= self.high if self.closed in ("both", "right") else value < self.high

@@ -49,8 +49,12 @@ def is_whole_number(value) -> bool:
 
 def is_finite_number(value) -> bool:
     """A JSON number that is neither NaN nor infinite (nor true or false)."""
-    return isinstance(value, (int, float)) and not isinstance(value, bool) and \
-        math.isfinite(value)
+    if not isinstance(value, (int, float)) or isinstance(value, bool):
+        return False
+    try:
+        return math.isfinite(value)
+    except OverflowError:  # a whole number too large for a float (10**400) is not usable
+        return False
 
 
 def write_bytes_atomic(path: str | Path, data: bytes) -> None:

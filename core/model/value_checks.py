@@ -9,10 +9,10 @@ core/model/file_checks.py has checked the types (a value of another type is left
 
 from __future__ import annotations
 
-import math
 from collections.abc import Callable
 
 from ..errors import InputError
+from ..safe_files import is_finite_number
 
 Refusal = Callable[[str, str], InputError]  # (where, problem) → the error to raise
 _SLACK = 1e-9  # floating-point rounding allowed at the ends of a range
@@ -36,8 +36,7 @@ def check_possible_values(data: dict, refuse: Refusal) -> None:
 
 
 def _number(value) -> bool:
-    return isinstance(value, (int, float)) and not isinstance(value, bool) and \
-        math.isfinite(value)
+    return is_finite_number(value)  # 10**400 is no usable number either
 
 
 def _pair(value) -> bool:
