@@ -107,7 +107,8 @@ def roc_figure(measures: ClassificationMeasures, title: str | None = None) -> Fi
 DECISION_CURVE_READING = (
     "Net benefit counts, per patient, those with the outcome whom the tree treats (sends for "
     "the test, admits) less those without it whom it treats needlessly, weighted by the odds of "
-    "the threshold probability: the risk at which a clinician would treat. Read it at the "
+    "the threshold probability: the chance of the outcome at which a clinician would treat. "
+    "Read it at the "
     "threshold you would use: the tree is worth using where its curve lies above both "
     "'treat all' and 'treat none' (Vickers & Elkin 2006).")
 
