@@ -58,6 +58,7 @@ def holds_dates(name: str, values: pd.Series) -> bool:
         return True
     if pd.api.types.is_numeric_dtype(values.dtype) or pd.api.types.is_bool_dtype(values.dtype):
         return False
-    present = values[~is_missing_text(values)]
-    distinct = pd.Series(pd.unique(present.astype(str).str.strip()), dtype=object)[:500]
-    return len(distinct) >= 2 and mostly_dates(distinct)
+    # Judged on distinct cells (hashed once), never on every row of a long column.
+    distinct = pd.Series(pd.unique(values.dropna()), dtype=object)
+    distinct = distinct[~is_missing_text(distinct)].astype(str).str.strip()[:500]
+    return len(distinct) >= 2 and mostly_dates(distinct.reset_index(drop=True))
