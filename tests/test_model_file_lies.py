@@ -222,6 +222,14 @@ CLASSIFICATION_LIES = [
     ("an inverted CV interval", set_in("path", "cv_specificity_interval", 0,
                                        value=lambda pair: pair[::-1]),
      ["path.cv_specificity_interval[0]", "above its upper end"]),
+    ("a cohort larger than the tree", set_in("cohort", "visits", value=lambda n: n + 25),
+     ["cohort.visits", "must equal the patients of box 1"]),
+    ("outcome counts swapped", lambda document: document["cohort"].update(outcome_counts=dict(
+        zip(document["classes"], document["nodes"][0]["counts"][::-1]))),
+     ["cohort.outcome_counts.no", "must equal box 1's count"]),
+    ("a first date after the last", lambda document: document["cohort"].update(
+        date_column="Seen on", first_date="2025-06-30", last_date="2024-01-02"),
+     ["cohort.first_date", "is after the last"]),
     ("a negative count in a box", lambda document: leaf(document).update(
         counts=[-1] + leaf(document)["counts"][1:]), ["box", "whole numbers"]),
 ]
@@ -233,6 +241,8 @@ REGRESSION_LIES = [
         quartiles=leaf(document)["quartiles"][::-1]), ["box", "quartiles", "lower first"]),
     ("a mean outside the outcomes grown on", lambda document: leaf(document).update(mean=900.0),
      ["mean", "outside the outcomes the tree was grown on", "cohort.outcome_range"]),
+    ("a mean outcome outside its range", set_in("cohort", "outcome_mean", value=-4.0),
+     ["cohort.outcome_mean", "outside the outcome's range"]),
     ("a negative RMSE", set_in("validation", "rmse", value=-1.0),
      ["validation.rmse", "cannot be negative"]),
     ("an R² above 1", set_in("validation", "r2", value=1.4), ["validation.r2", "above 1"]),

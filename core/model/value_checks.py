@@ -9,6 +9,7 @@ core/model/file_checks.py has checked the types (a value of another type is left
 
 from __future__ import annotations
 
+import datetime as dt
 from collections.abc import Callable
 
 from ..errors import InputError
@@ -26,6 +27,7 @@ def check_possible_values(data: dict, refuse: Refusal) -> None:
     _check_path(data.get("path"), refuse)
     _check_chosen(data.get("chosen"), refuse)
     _check_cohort(data.get("cohort"), refuse)
+    _check_cohort_fits_tree(data, refuse)
     _check_costs(data.get("costs"), refuse)
     classes = data.get("classes")
     _check_validation(data.get("validation"), len(classes) if isinstance(classes, list) else 2,
@@ -176,6 +178,55 @@ def _check_cohort(cohort, refuse: Refusal) -> None:
         raise refuse("cohort.patients", f"{patients:g} patients cannot have made only "
                                         f"{visits:g} visits")
     _ordered(cohort.get("outcome_range"), "cohort.outcome_range", refuse)
+
+
+def _check_cohort_fits_tree(data: dict, refuse: Refusal) -> None:
+    """The cohort the chart prints is the one the tree was grown on: as many visits as the
+    first box holds, its outcome counts the first box's, its sites no more than its visits,
+    its first date not after its last, and the mean outcome inside its range."""
+    cohort, nodes = data.get("cohort"), data.get("nodes")
+    if not isinstance(cohort, dict) or not isinstance(nodes, list) or not nodes or \
+            not isinstance(nodes[0], dict):
+        return
+    root, visits = nodes[0], cohort.get("visits")
+    if _number(visits) and _number(root.get("n")) and visits != root["n"]:
+        raise refuse("cohort.visits", f"it must equal the patients of box 1 ({root['n']:g}), "
+                                      f"not {visits:g}")
+    counts, classes = cohort.get("outcome_counts"), data.get("classes")
+    if isinstance(counts, dict) and isinstance(root.get("counts"), list) and \
+            isinstance(classes, list) and len(classes) == len(root["counts"]):
+        for name, expected in zip(classes, root["counts"]):
+            found = counts.get(name, 0)
+            if _number(found) and _number(expected) and found != expected:
+                raise refuse(f"cohort.outcome_counts.{name}",
+                             f"it must equal box 1's count of {name!r} ({expected:g}), "
+                             f"not {found:g}")
+    sites = cohort.get("sites")
+    if isinstance(sites, dict) and _number(visits) and \
+            all(_number(k) for k in sites.values()) and sum(sites.values()) > visits:
+        raise refuse("cohort.sites", f"its visits add up to {sum(sites.values()):g}, more "
+                                     f"than the {visits:g} visits of the cohort")
+    first, last = cohort.get("first_date"), cohort.get("last_date")
+    if _iso_date(first) and _iso_date(last) and first > last:
+        raise refuse("cohort.first_date", f"the first date ({first}) is after the last "
+                                          f"({last})")
+    mean, span = cohort.get("outcome_mean"), cohort.get("outcome_range")
+    if _number(mean) and _pair(span) and \
+            not span[0] - _SLACK * max(1.0, abs(span[0])) <= mean \
+            <= span[1] + _SLACK * max(1.0, abs(span[1])):
+        raise refuse("cohort.outcome_mean", f"{mean:g} lies outside the outcome's range "
+                                            f"({span[0]:g} to {span[1]:g})")
+
+
+def _iso_date(text) -> bool:
+    """A date as Prunella writes it (YYYY-MM-DD), so that two compare as text."""
+    if not isinstance(text, str) or len(text) != 10:
+        return False
+    try:
+        dt.date.fromisoformat(text)
+    except ValueError:
+        return False
+    return True
 
 
 def _check_costs(costs, refuse: Refusal) -> None:
