@@ -345,3 +345,25 @@ def test_the_check_s_line_on_the_chart_says_what_its_numbers_say(checked_file, r
     assert "Sensitivity 99%" not in words
     assert " ".join(true_line.split()) in words
     assert state([boasting]) == before
+
+
+def test_the_report_is_not_fooled_by_a_check_copied_into_the_file(checked_file, cohort):
+    """prunella report grows the tree again from the settings and checks only what it can
+    check itself: a model without patients set aside, given another tree's check, still
+    reports the tree as not yet checked."""
+    unchecked = cohort.parent / "unchecked.json"
+    ran = prunella("fit", cohort, "--outcome", "admitted", "--folds", "3", "--model",
+                   unchecked, "--quiet")
+    assert ran.returncode == 0, ran.stderr
+    borrowed = json.loads(checked_file.read_text(encoding="utf-8"))["validation"]
+    forged = tampered(unchecked, "borrowed check.json",
+                      lambda document: document.update(validation=borrowed))
+    before = state([forged, cohort])
+    out = cohort.parent / "borrowed check report.pdf"
+    ran = prunella("report", forged, cohort, "--out", out, "--no-nested", "--bootstrap", "0",
+                   "--date", "2026-01-05")
+    assert ran.returncode == 0, ran.stderr
+    words = chart_words(out)
+    assert UNCHECKED in words
+    assert " ".join(borrowed["summary"].split()) not in words
+    assert state([forged, cohort]) == before
