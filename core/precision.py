@@ -52,6 +52,15 @@ def summary_decimals(value: float, data_decimals: int | None = None, power: int 
     return decimals
 
 
+def column_decimals(values: Iterable[float], data_decimals: int | None = None,
+                    power: int = 1) -> int:
+    """One number of decimals for a column of summaries (a table's errors, say), so that its
+    rows compare digit by digit: the most any value of it gets from :func:`summary_decimals`,
+    still at most one decimal more than the data (or their squares, ``power`` 2)."""
+    finite = [float(v) for v in values if v is not None and math.isfinite(float(v))]
+    return max((summary_decimals(v, data_decimals, power) for v in finite), default=0)
+
+
 def summary_number(value: float, data_decimals: int | None = None, unit: str = "",
                    decimals: int | None = None, power: int = 1) -> str:
     """A summary as printed: :func:`summary_decimals` decimals (or ``decimals`` when given,

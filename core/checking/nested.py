@@ -17,7 +17,7 @@ from joblib import Parallel, delayed
 
 from ..design.analysis import AnalysisData
 from ..errors import InputError
-from ..precision import decimals_observed
+from ..precision import decimals_observed, summary_number
 from ..messages.message import say
 from ..option_limits import check_request_limits, check_setting
 from ..phrases import plural
@@ -27,7 +27,7 @@ from ..sizing.folds import CVSettings, fold_plan
 from ..sizing.grow import class_costs
 from ..sizing.request import DerivationRequest
 from ..work_place import sent_once
-from .metrics import Measures, classification_measures, regression_measures
+from .metrics import Measures, RegressionMeasures, classification_measures, regression_measures
 
 DEFAULT_OUTER_FOLDS = 5
 
@@ -61,7 +61,15 @@ class NestedResult:
         """One printable line."""
         sizes = sorted(f.leaves for f in self.folds)
         size_text = (f"{sizes[0]}" if sizes[0] == sizes[-1] else f"{sizes[0]}–{sizes[-1]}")
-        return (f"Nested cross-validated error {self.risk:.3f} ± {self.risk_se:.3f} "
+        if isinstance(self.measures, RegressionMeasures):
+            decimals = self.measures.decimals
+            # A mean squared error, to the squares' precision, and its root in the unit.
+            error = (f"{summary_number(self.risk, decimals, power=2)} ± "
+                     f"{summary_number(self.risk_se, decimals, power=2)} (root "
+                     f"{self.measures.number(math.sqrt(max(self.risk, 0.0)), with_unit=True)})")
+        else:
+            error = f"{self.risk:.3f} ± {self.risk_se:.3f}"
+        return (f"Nested cross-validated error {error} "
                 f"({self.risk_measure}; {self.description}; {size_text} outcome boxes chosen "
                 "inside the folds)")
 

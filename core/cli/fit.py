@@ -3,7 +3,6 @@ spreadsheet; route the rows of a spreadsheet through a saved tree."""
 
 from __future__ import annotations
 
-import math
 
 import sys
 from dataclasses import replace
@@ -19,9 +18,9 @@ from ..dictionary.columns import DataDictionary
 from ..dictionary.for_table import dictionary_for
 from ..errors import InputError
 from ..messages.message import distinct_messages, kind_of, say
+from ..model.path_table import error_text, path_rows, root_text
 from ..model.tree import TreeModel
 from ..phrases import plural, rows_and_patients
-from ..precision import summary_number
 from ..safe_files import check_outputs, write_csv_safely, write_text_atomic
 from ..option_limits import check_setting, option_type
 from .arguments import (DICTIONARY_HELP, add_work_options, csv_list, dictionary_path, size_option,
@@ -240,11 +239,21 @@ def summary_text(derivation: Derivation) -> str:
              + (f" (in {model.outcome.unit} squared)" if model.task == "regression"
                 and model.outcome.unit else "")
              + "; the cross-validated error is the honest "
-             "one, the training error is optimistic.", "",
-             f"{'boxes':>7} {'CV error':>9} {'± SE':>7} {'training':>9}"
-             + (f" {'CV sens.':>9} {'CV spec.':>9}" if counts is not None else "")]
+             "one, the training error is optimistic.", ""]
+    # Cross-validated error first, its root in the outcome's unit beside it (regression),
+    # then the training error; each column to one precision (core/model/path_table.py).
+    rows = path_rows(model)
+    regression = model.task == "regression"
+    root_head = f"CV root ({model.outcome.unit})" if model.outcome.unit else "CV root"
+    wide = {name: max([len(head)] + [len(getattr(r, name) or "") for r in rows])
+            for name, head in (("cv", "CV error"), ("se", "± SE"), ("cv_root", root_head),
+                               ("train", "training"))}
+    lines.append(f"{'boxes':>7} {'CV error':>{wide['cv']}} {'± SE':>{wide['se']}}"
+                 + (f" {root_head:>{wide['cv_root']}}" if regression else "")
+                 + f" {'training':>{wide['train']}}"
+                 + (f" {'CV sens.':>9} {'CV spec.':>9}" if counts is not None else ""))
     chosen = model.chosen
-    for k in range(len(path.leaves)):
+    for k, row in enumerate(rows):
         mark = ""
         if k == path.min_index:
             mark += "  minimum"
@@ -254,22 +263,24 @@ def summary_text(derivation: Derivation) -> str:
             mark += "  goal choice"
         beside = (f" {counts.sensitivity[k]:>9.1%} {counts.specificity[k]:>9.1%}"
                   if counts is not None else "")
-        lines.append(f"{path.leaves[k]:>7} {path.cv_risk[k]:>9.4f} {path.cv_se[k]:>7.4f} "
-                     f"{path.train_risk[k]:>9.4f}{beside}{mark}")
+        root = f" {row.cv_root:>{wide['cv_root']}}" if regression else ""
+        lines.append(f"{row.leaves:>7} {row.cv:>{wide['cv']}} {row.se:>{wide['se']}}{root} "
+                     f"{row.train:>{wide['train']}}{beside}{mark}")
     boxes = plural(chosen["leaves"], "outcome box", "outcome boxes")
     in_unit = ""
-    if model.task == "regression":
+    if regression:
         # A mean squared error is in the unit squared: its root reads in the outcome's unit,
         # as a held-out RMSE does.
-        def root(error: float) -> str:  # in the unit, to the outcome's precision
-            return summary_number(math.sqrt(max(error, 0)), model.outcome_decimals,
-                                  model.outcome.unit)
+        in_unit = (f" Root of the cross-validated error: {root_text(model, chosen['cv_risk'])} "
+                   f"(training {root_text(model, chosen['train_risk'])}), comparable with a "
+                   "held-out RMSE.")
 
-        in_unit = (f" Root of the cross-validated error: {root(chosen['cv_risk'])} (training "
-                   f"{root(chosen['train_risk'])}), comparable with a held-out RMSE.")
+    def error(value: float) -> str:
+        return error_text(model, value, class_decimals=4)
+
     lines += ["", f"Chosen: {boxes} ({RULE_WORDS.get(chosen['rule'], chosen['rule'])}), "
-              f"cross-validated error {chosen['cv_risk']:.4f} ± {chosen['cv_se']:.4f} "
-              f"(training error {chosen['train_risk']:.4f}, optimistic).{in_unit}",
+              f"cross-validated error {error(chosen['cv_risk'])} ± {error(chosen['cv_se'])} "
+              f"(training error {error(chosen['train_risk'])}, optimistic).{in_unit}",
               f"Model fingerprint: {model.short_fingerprint}"]
     if chosen["rule"] == "goal":
         from ..sizing.goal_words import goal_text

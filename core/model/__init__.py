@@ -7,4 +7,5 @@ __getattr__, __dir__, __all__ = lazy_face(__name__, {
     "thresholds": ("format_number",),
     "details": ("box_details", "observed_ranges", "route_patient"),
     "scoring": ("scored_table",),
+    "path_table": ("PathRow", "error_text", "path_rows", "root_text"),
 })

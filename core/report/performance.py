@@ -23,11 +23,12 @@ if TYPE_CHECKING:
     from .contents import ReportContents
 
 
-def risk_text(value: float, task: str) -> str:
-    """A risk as printed: 3 decimals for costs per patient, 4 significant digits for errors."""
+def risk_text(value: float, task: str, data_decimals: int | None = None) -> str:
+    """An error as printed: 3 decimals for costs per patient; a mean squared error to the
+    squares' precision (at most one decimal more than the squared outcome, core/precision.py)."""
     if task == "classification":
         return f"{value:.3f}"
-    return f"{value:.0f}" if abs(value) >= 1000 else f"{value:.4g}"
+    return summary_number(value, data_decimals, power=2)
 
 
 def _perf_row(name: str, basis: str, n: int, m: Measures | None, risk: str, s: Styles) -> list:
@@ -89,20 +90,21 @@ def performance_section(c: ReportContents, s: Styles) -> list:
         widths = [0.36, 0.1, 0.18, 0.12, 0.12, 0.12]
     width = len(head)
     ch, task = model.chosen, model.task
+    places = model.outcome_decimals  # a measured outcome's errors follow its precision
     rows = [head,
             _perf_row("Training (optimistic)", "the derivation patients themselves", model.n_rows,
-                      training_measures(model, der.data), risk_text(ch["train_risk"], task), s),
-            _cv_row(model, f"{risk_text(ch['cv_risk'], task)} ± {risk_text(ch['cv_se'], task)}",
+                      training_measures(model, der.data), risk_text(ch["train_risk"], task, places), s),
+            _cv_row(model, f"{risk_text(ch['cv_risk'], task, places)} ± {risk_text(ch['cv_se'], task, places)}",
                     s)[:width]]
     if c.nested is not None:
         rows.append(_perf_row("Nested cross-validation (honest)",
                               "outer folds never used for growing or sizing", c.nested.n,
-                              c.nested.measures, f"{risk_text(c.nested.risk, task)} ± "
-                              f"{risk_text(c.nested.risk_se, task)}", s))
+                              c.nested.measures, f"{risk_text(c.nested.risk, task, places)} ± "
+                              f"{risk_text(c.nested.risk_se, task, places)}", s))
     for check in c.checks:
         m = check.measures
         risk = (f"{m.cost:.3f} ± {m.cost_se:.3f}" if isinstance(m, ClassificationMeasures)
-                else risk_text(m.rmse ** 2, task))
+                else risk_text(m.rmse ** 2, task, places))
         rows.append(_perf_row("Held-out check" if check.kind == "held-out" else "External check",
                               check.source, check.n, m, risk, s))
     story = [para("Performance of the chosen tree, from the most optimistic estimate (the "
@@ -116,7 +118,7 @@ def performance_section(c: ReportContents, s: Styles) -> list:
              KeepTogether([para(f"{number}.1 Overview", s.h2),
                            table(rows, widths, s, align_right=(1,), keep=False)])]
     if c.nested is not None:
-        story += _nested_detail(c.nested, f"{number}.2", s, word)
+        story += _nested_detail(c.nested, f"{number}.2", s, word, model.outcome_decimals)
     for i, check in enumerate(c.checks, 2 + (c.nested is not None)):
         story += _check_detail(check, f"{number}.{i}", s, word)
     if not c.checks:
@@ -131,13 +133,14 @@ def performance_section(c: ReportContents, s: Styles) -> list:
     return story
 
 
-def _nested_detail(nested: NestedResult, number: str, s: Styles, word: str = "visits") -> list:
+def _nested_detail(nested: NestedResult, number: str, s: Styles, word: str = "visits",
+                   places: int | None = None) -> list:
     task = "regression" if nested.risk_measure == "mean squared error" else "classification"
     rows = [["Outer fold", f"Growing {word}", f"Test {word}", "Boxes chosen inside",
              "Inner cross-validated error", "Error on the outer part"]]
     for f in nested.folds:
         rows.append([str(f.fold), f"{f.n_train:,}", f"{f.n_test:,}", str(f.leaves),
-                     risk_text(f.inner_cv_risk, task), risk_text(f.test_risk, task)])
+                     risk_text(f.inner_cv_risk, task, places), risk_text(f.test_risk, task, places)])
     return [para(f"{number} Nested cross-validation", s.h2),
             para(f"{nested.description}. Inside every outer fold the whole procedure ran again "
                  f"(growing, cross-validating the pruning path, choosing the size "

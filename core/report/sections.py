@@ -16,6 +16,7 @@ from .. import __version__
 from ..cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER, UNCHECKED_DETAIL
 from ..chart.options import SMALL_GROUP  # the chart dashes the boxes the report flags
 from ..phrases import METHOD_NAME, patients_among, plural, rows_and_patients, short_fingerprint
+from ..model.path_table import path_rows
 from ..precision import summary_number
 from .figures import pruning_curve_figure, stability_figure
 from .performance import performance_section, risk_text
@@ -68,7 +69,7 @@ def title_page(c: ReportContents, title: str, s: Styles) -> list:
     boxes = plural(len(model.leaves), "outcome box", "outcome boxes")
 
     def risk(value: float) -> str:
-        return risk_text(value, model.task)
+        return risk_text(value, model.task, model.outcome_decimals)
 
     summary = (f"A tree for <b>{text(model.outcome.display)}</b>, by the method of "
                f"{METHOD_NAME}, was grown on {_derivation_rows(model)} "
@@ -288,7 +289,15 @@ def _pruning(c: ReportContents, s: Styles) -> list:
     order = sorted(range(len(leaves)), key=lambda k: leaves[k])
     keep = set(order[:14]) | {leaves.index(path["min_leaves"]), leaves.index(path["one_se_leaves"]),
                               leaves.index(c.model.chosen["leaves"])}
-    rows = [["Boxes", "Mark", "Training error", "Cross-validated error", "SE"]]
+    # The cross-validated error first (and, for a measured outcome, its root in the outcome's
+    # unit), the optimistic training error last; each column to one precision.
+    model = c.model
+    regression = model.task == "regression"
+    unit = f" ({model.outcome.unit})" if model.outcome.unit else ""
+    rows = [["Boxes", "Mark", "Cross-validated error", "SE"]
+            + ([f"Root of the cross-validated error{unit}"] if regression else [])
+            + ["Training error (optimistic)"]]
+    printed = path_rows(model)
     for k in sorted(keep, key=lambda k: leaves[k]):
         marks = []
         if leaves[k] == path["min_leaves"]:
@@ -297,15 +306,16 @@ def _pruning(c: ReportContents, s: Styles) -> list:
             marks.append("1-SE")
         if leaves[k] == c.model.chosen["leaves"]:
             marks.append("chosen")
-        digits = (lambda v: f"{v:.4f}") if c.model.task == "classification" else (
-            lambda v: risk_text(v, "regression"))
-        rows.append([str(leaves[k]), ", ".join(marks), digits(path["train_risk"][k]),
-                     digits(path["cv_risk"][k]), digits(path["cv_se"][k])])
+        row = printed[k]
+        rows.append([str(leaves[k]), ", ".join(marks), row.cv, row.se]
+                    + ([row.cv_root] if regression else []) + [row.train])
     shown = "" if len(keep) == len(leaves) else (f" ({len(keep)} of the {len(leaves)} sizes "
                                                  "shown: the smallest trees and the marked ones)")
     story.append(KeepTogether([para(f"Error: {c.model.error_measure}{shown}.", s.body),
-                               table(rows, [0.1, 0.24, 0.2, 0.24, 0.16], s,
-                                     align_right=(0, 2, 3, 4), keep=False)]))
+                               table(rows, ([0.08, 0.2, 0.19, 0.1, 0.23, 0.2] if regression
+                                            else [0.1, 0.24, 0.24, 0.16, 0.26]), s,
+                                     align_right=tuple(range(2, len(rows[0]))) + (0,),
+                                     keep=False)]))
     return story
 
 

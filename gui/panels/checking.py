@@ -23,6 +23,7 @@ from core.checking import (
     check_table, nested_cross_validate,
 )
 from core.data import read_table
+from core.model import error_text
 from core.option_limits import spin_range
 from core.phrases import plural, short_fingerprint
 from core.safe_files import save_notes
@@ -52,7 +53,7 @@ def cross_validated_html(model) -> str:
         ("Size", f"{plural(int(chosen['leaves']), 'outcome box', 'outcome boxes')} "
                  f"({SIZE_RULES[chosen['rule']]})"),
         ("Error measured as", model.error_measure),
-        ("Error", errors_beside(chosen, sentence=True)),
+        ("Error", errors_beside(model, sentence=True)),
         ("How it was checked", path["cv"] + (f", {folds} fits on parts of the data" if folds else "")),
         ("Grown on", model.rows_counted),
     ])
@@ -380,14 +381,16 @@ class CheckingPanel(StepPanel):
         if result is None:
             self.nested_label.setText("Not run yet.")
             return
+        model = self.session.model
         rows = "".join(f"<tr><td align='right'>{f.fold}</td><td align='right'>{f.n_test:,}</td>"
-                       f"<td align='right'>{f.leaves}</td><td align='right'>{f.inner_cv_risk:.3f}"
-                       f"</td><td align='right'>{f.test_risk:.3f}</td></tr>" for f in result.folds)
+                       f"<td align='right'>{f.leaves}</td><td align='right'>"
+                       f"{escape(error_text(model, f.inner_cv_risk))}</td><td align='right'>"
+                       f"{escape(error_text(model, f.test_risk))}</td></tr>" for f in result.folds)
         self.nested_label.setText(
             f"<p><b>{escape(result.summary())}</b></p><p>Beside it: "
-            f"{escape(errors_beside(self.session.model.chosen))}, for the chosen size.</p>"
+            f"{escape(errors_beside(model))}, for the chosen size.</p>"
             "<table cellpadding='3' border='1' cellspacing='0'><tr><th>Outer part</th>"
-            "<th>Visits tested</th><th>Size chosen inside</th><th>Its cross-validated error inside the part</th>"
+            f"<th>{model.rows_word.capitalize()} tested</th><th>Size chosen inside</th><th>Its cross-validated error inside the part</th>"
             f"<th>Error on the outer part</th></tr>{rows}</table>"
             f"<p>{escape(result.measures.summary())}</p>")
 

@@ -473,7 +473,7 @@ class SizePanel(StepPanel):
             return
         path = model.path
         for k, leaves in enumerate(path["leaves"]):
-            self.size_combo.addItem(size_choice(path, k), int(leaves))
+            self.size_combo.addItem(size_choice(model, k), int(leaves))
         # The open list is as wide as its longest line: every size's errors are read whole
         # (the chosen size's are also in full under the list).
         view = self.size_combo.view()
@@ -536,7 +536,7 @@ class SizePanel(StepPanel):
         self.choice.setText(
             f"<b>Chosen: {plural(chosen['leaves'], 'outcome box', 'outcome boxes')}</b> "
             f"({SIZE_RULES[chosen['rule']]}). "
-            f"{errors_beside(chosen, sentence=True)}. Checked by {model.path['cv']}."
+            f"{errors_beside(model, sentence=True)}. Checked by {model.path['cv']}."
             + (f" {escape(goal_text(chosen))}" if chosen.get("goal") else ""))
 
     def choose_size(self, leaves: int) -> None:

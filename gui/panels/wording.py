@@ -7,6 +7,7 @@ from __future__ import annotations
 from html import escape
 
 from core.messages import app_advice, app_wording
+from core.model import error_text, path_rows, root_text
 
 # How each size rule is said (the codes are core.sizing's).
 SIZE_RULES = {"1se": "the smallest tree within one standard error (SE) of the lowest error",
@@ -14,22 +15,34 @@ SIZE_RULES = {"1se": "the smallest tree within one standard error (SE) of the lo
               "goal": "the smallest tree that meets the clinical goal"}
 
 
-def errors_beside(chosen: dict, sentence: bool = False) -> str:
-    """A size's cross-validated error ± SE with its training error beside it (from a model's
-    ``chosen`` record): the one wording, so training error is never shown alone."""
-    text = (f"cross-validated error {chosen['cv_risk']:.3f} ± {chosen['cv_se']:.3f} (one SE); "
-            f"training error {chosen['train_risk']:.3f} beside it, which always looks better "
-            "(it is measured on the patients the tree was grown on)")
+def errors_beside(model, sentence: bool = False) -> str:
+    """The chosen size's cross-validated error ± SE (and, for a measured outcome, its root in
+    the outcome's unit) with its training error after it, as core prints them
+    (core/model/path_table.py): the one wording, so training error is never shown alone."""
+    chosen = model.chosen
+
+    def error(value: float) -> str:
+        return error_text(model, value, class_decimals=3)
+
+    root = (f" (root {root_text(model, chosen['cv_risk'])})" if model.task == "regression"
+            else "")
+    text = (f"cross-validated error {error(chosen['cv_risk'])} ± {error(chosen['cv_se'])} "
+            f"(one SE){root}; training error {error(chosen['train_risk'])} beside it, which "
+            "always looks better (it is measured on the patients the tree was grown on)")
     return text[0].upper() + text[1:] if sentence else text
 
 
-def size_choice(path: dict, index: int) -> str:
-    """One size of a pruning path as the size list offers it: its outcome boxes, its
-    cross-validated error ± SE with the training error after it, and its mark."""
-    leaves = path["leaves"][index]
+def size_choice(model, index: int) -> str:
+    """One size of the pruning path as the size list offers it: its outcome boxes, its
+    cross-validated error ± SE (its root in the outcome's unit for a measured outcome) with
+    the training error after it, and its mark."""
+    path = model.path
+    row = path_rows(model, class_decimals=3)[index]
+    leaves = row.leaves
+    unit = f" {model.outcome.unit}" if model.outcome.unit else ""
+    root = f" (root {row.cv_root}{unit})" if row.cv_root is not None else ""
     words = (f"{leaves} outcome box{'' if leaves == 1 else 'es'}: cross-validated error "
-             f"{path['cv_risk'][index]:.3f} ± {path['cv_se'][index]:.3f}, training "
-             f"{path['train_risk'][index]:.3f}")
+             f"{row.cv} ± {row.se}{root}, training {row.train}")
     marks = [mark for mark, at in (("smallest within 1 SE", path["one_se_leaves"]),
                                    ("lowest error", path["min_leaves"])) if leaves == at]
     return words + ("".join(f" — {m}" for m in marks))
