@@ -18,7 +18,9 @@ from .safe_files import is_finite_number, is_whole_number
 
 # Upper ends of what a file may hold (README: "Limits on what a file may ask for").
 NAME_LENGTH = 1_000  # a column name, label, unit, level, class, site, file name
-TEXT_LENGTH = 10_000  # any other text: a note, a question, a message, a description
+TEXT_LENGTH = 10_000  # any other text: a note, a title, a source, a description
+LONG_TEXT_LENGTH = 100_000  # a box's question or outcome in words (up to 40 levels), a
+#                             finding naming many columns; no text anywhere is longer
 LIST_LENGTH = 100_000  # items of a list of names, levels, boxes or sizes
 DEPTH = 20  # objects and lists inside one another (Prunella's own files use at most 6)
 
@@ -184,7 +186,7 @@ class Field:
 
 def check_nesting(document, refuse: Refusal, deepest: int = DEPTH) -> None:
     """Refuse a document with objects or lists nested more than ``deepest`` deep, or with a
-    text or key longer than TEXT_LENGTH anywhere, before any part of it is used. Walked
+    text or key longer than LONG_TEXT_LENGTH anywhere, before any part of it is used. Walked
     without recursion, so no depth can exhaust Python's stack; the path of the first
     too-deep or too-long value is named."""
     stack = [(document, "", 0)]
@@ -196,10 +198,10 @@ def check_nesting(document, refuse: Refusal, deepest: int = DEPTH) -> None:
                          "Prunella writes")
         pairs = value.items() if isinstance(value, dict) else enumerate(value)
         for key, item in pairs:
-            if isinstance(key, str) and len(key) > TEXT_LENGTH:
+            if isinstance(key, str) and len(key) > LONG_TEXT_LENGTH:
                 _too_long(refuse, path, key)
             if isinstance(item, str):
-                if len(item) > TEXT_LENGTH:
+                if len(item) > LONG_TEXT_LENGTH:
                     _too_long(refuse, _join(path, key), item)
             elif isinstance(item, (dict, list)):
                 stack.append((item, _join(path, key), depth + 1))
@@ -219,4 +221,4 @@ def _join(path: str, key) -> str:
 def _too_long(refuse: Refusal, path: str, text: str):
     raise refuse(_short(path) or "the top of the file",
                  f"a text of {len(text):,} characters, far longer than any Prunella writes "
-                 f"(at most {TEXT_LENGTH:,})")
+                 f"(at most {LONG_TEXT_LENGTH:,})")

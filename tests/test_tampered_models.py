@@ -246,3 +246,44 @@ def test_a_child_process_refuses_ten_million_repeats_at_once(fitted, tmp_path):
     assert ran.stderr.strip().splitlines()[-1].startswith("prunella: The model file")
     assert "settings.cv.repeats" in ran.stderr and "from 1 to 100" in ran.stderr
     assert sha256_of(tampered) == before
+
+
+# --- fit never writes a model that the checker refuses -----------------------------------------
+
+
+def test_a_header_too_long_for_a_model_file_is_refused_when_read(tmp_path):
+    text = invented_visits().replace("resp_rate", "resp_rate " + "x" * 1_500, 1)
+    data = tmp_path / "long-header.csv"
+    data.write_text(text, encoding="utf-8")
+    refused(["fit", data, "--outcome", "admitted", "--model", tmp_path / "m.json"],
+            ["long-header.csv", "header of column", "1,510 characters", "shorten it"],
+            inputs=[data])
+    assert not (tmp_path / "m.json").exists()
+
+
+def test_a_category_with_very_long_texts_is_left_out_and_the_model_prints(tmp_path):
+    lines = invented_visits().splitlines()
+    lines[0] += ",remark"
+    lines[1:] = [f"{line},{'stable ' * 200 if i % 2 else 'fine'}" for i, line in
+                 enumerate(lines[1:])]
+    data = tmp_path / "remarks.csv"
+    data.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    model = tmp_path / "m.json"
+    ran = prunella("fit", data, "--outcome", "admitted", "--folds", "3", "--model", model)
+    assert ran.returncode == 0, ran.stderr
+    assert "'remark' holds texts of up to 1,399 characters" in ran.stderr
+    assert "remark" not in [p["name"] for p in json.loads(model.read_text())["predictors"]]
+    assert prunella("chart", model, "--out", tmp_path / "c.pdf").returncode == 0
+
+
+def test_a_dictionary_label_too_long_for_a_model_file_is_refused_before_growing(tmp_path):
+    data = tmp_path / "visits.csv"
+    data.write_text(invented_visits(), encoding="utf-8")
+    dictionary = tmp_path / "visits.dictionary.json"
+    dictionary.write_text(json.dumps({"format": "prunella-dictionary/1", "columns": [
+        {"name": "spo2", "label": "Oxygen saturation " * 100, "kind": "numeric"}]}),
+        encoding="utf-8")
+    refused(["fit", data, "--outcome", "admitted", "--model", tmp_path / "m.json"],
+            ["label for 'spo2'", "1,800 characters", "shorten it in the dictionary"],
+            inputs=[data, dictionary])
+    assert not (tmp_path / "m.json").exists()

@@ -13,6 +13,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from ..document_checks import NAME_LENGTH
 from ..errors import InputError
 from ..messages.message import say
 from ..phrases import rows_phrase
@@ -111,6 +112,10 @@ def tidy(frame: pd.DataFrame, header: list, rows: np.ndarray, where: str,
     dropped = set(drop)
     kept = [j for j in range(len(names)) if j not in dropped]
     names = [names[j] for j in kept]
+    for j, name in zip(kept, names):  # a model file could not hold it (core/document_checks.py)
+        if len(name) > NAME_LENGTH:
+            raise InputError(say("read.long_header", where=where, length=f"{len(name):,}",
+                                 column=column_name_at(j, letters), limit=f"{NAME_LENGTH:,}"))
     repeated = _repeated_header_rows(frame, names)
     if repeated.any():
         frame = _numbers_again(frame.loc[~repeated])

@@ -17,6 +17,7 @@ import pandas as pd
 from ..dictionary.columns import CATEGORY_KINDS, PREDICTOR_KINDS, ColumnSpec, DataDictionary
 from ..dictionary.identity import may_group_patients
 from ..dictionary.typed_columns import TypedColumn, positive_level, typed_column
+from ..document_checks import NAME_LENGTH, TEXT_LENGTH
 from ..errors import InputError
 from ..messages.message import say
 
@@ -133,6 +134,20 @@ def default_design(dictionary: DataDictionary, outcome: str | None = None, *,
                       positive=positive, patient_id=patient_id, site=site)
 
 
+def _check_lengths(spec: ColumnSpec) -> None:
+    """Refuse an entry a model file could not hold (core/document_checks.py's limits): the
+    model would be written, then refused by every command that reads it."""
+    fields = [("label", spec.label, NAME_LENGTH), ("unit", spec.unit, NAME_LENGTH),
+              ("note", spec.note, TEXT_LENGTH), ("positive level", spec.positive or "",
+                                                 NAME_LENGTH)]
+    fields += [("level", level, NAME_LENGTH) for level in spec.levels]
+    fields += [("missing-value code", code, NAME_LENGTH) for code in spec.missing_codes]
+    for field, text, limit in fields:
+        if len(text) > limit:
+            raise InputError(say("design.entry_too_long", column=spec.name[:40], field=field,
+                                 length=f"{len(text):,}", limit=f"{limit:,}"))
+
+
 def prepare_analysis(frame: pd.DataFrame, dictionary: DataDictionary,
                      design: DesignSpec) -> AnalysisData:
     """Check the user's choices against the data and parse the columns they name."""
@@ -140,6 +155,8 @@ def prepare_analysis(frame: pd.DataFrame, dictionary: DataDictionary,
         raise InputError(say("design.no_outcome_column", name=design.outcome,
                              columns=", ".join(repr(c) for c in list(frame.columns)[:20])))
     outcome = dictionary.get(design.outcome)
+    for spec in [outcome] + [dictionary.get(n) for n in design.predictors if n in dictionary]:
+        _check_lengths(spec)
     task = design.task or suggest_task(outcome)
     if task not in TASKS:
         raise InputError(say("design.bad_task", task=task))

@@ -20,6 +20,7 @@ from ..data.cells import (
     missing_texts, parse_numbers, probable_missing, profile_cells, same_unit, serial_dates,
     yes_no_levels,
 )
+from ..document_checks import NAME_LENGTH
 from ..messages.message import say
 from ..phrases import rows_phrase
 from .columns import MAX_NOMINAL_LEVELS, ColumnSpec, DataDictionary, canonical_levels
@@ -187,6 +188,10 @@ def _infer(name: str, values: pd.Series, rows) -> tuple[ColumnSpec, list[str]]:
         key = text.casefold()
         by_folded[key] = by_folded.get(key, 0) + count
     levels_seen = sorted(by_folded, key=lambda k: -by_folded[k])
+    longest = max(map(len, by_text), default=0)
+    if longest > NAME_LENGTH:  # free text: no chart question, and no model file could hold it
+        notes.append(say("infer.long_texts", column=name, length=f"{longest:,}", limit=f"{NAME_LENGTH:,}"))
+        return ColumnSpec(kind="text", role="ignore", **base), notes
     n_unique = len(by_text)
     distinct = pd.Series(list(by_text), dtype=object)
     if len(levels_seen) == 1:

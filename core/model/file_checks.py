@@ -24,7 +24,7 @@ from __future__ import annotations
 
 from ..design.analysis import TASKS
 from ..dictionary.columns import CATEGORY_KINDS, KINDS, PREDICTOR_KINDS, ROLES
-from ..document_checks import TEXT_LENGTH, Field, check_nesting
+from ..document_checks import LONG_TEXT_LENGTH, TEXT_LENGTH, Field, check_nesting
 from ..errors import InputError
 from ..messages.message import say
 from ..safe_files import is_whole_number
@@ -147,11 +147,11 @@ def _check_box(box: Field, position: int, total: int, task: str, classes: list,
         box["leaf"].fail("it must be true exactly when the box has no children")
     if internal:
         _check_split(box["split"], predictors, box.value["n"])
-        box["question"].text(longest=TEXT_LENGTH)
+        box["question"].text(longest=LONG_TEXT_LENGTH)
     else:
         if box.value.get("split") is not None:
             box["split"].fail("an outcome box asks no question")
-        box["outcome"].text(longest=TEXT_LENGTH, empty=True)
+        box["outcome"].text(longest=LONG_TEXT_LENGTH, empty=True)
     _check_prediction(box["prediction"], task, classes, optional=internal)
     if task == "classification":
         _check_counts(box["counts"], classes, box.value["n"])

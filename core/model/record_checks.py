@@ -12,7 +12,7 @@ from __future__ import annotations
 
 import math
 
-from ..document_checks import TEXT_LENGTH, Field
+from ..document_checks import LONG_TEXT_LENGTH, TEXT_LENGTH, Field
 from ..precision import MAX_DECIMALS
 from ..sizing.request_checks import check_request_document
 
@@ -192,8 +192,8 @@ def _check_findings(findings: Field) -> None:
     for finding in findings.items():
         finding.object(optional=False)
         finding["kind"].text(optional=False, longest=100)
-        finding["message"].text(optional=False, longest=5000)
-        finding["column"].text()
+        finding["message"].text(optional=False, longest=LONG_TEXT_LENGTH)
+        finding["column"].text(longest=LONG_TEXT_LENGTH)
         finding["severity"].text(longest=100)
 
 
@@ -215,13 +215,14 @@ def _check_validation(check: Field) -> None:
     if not check.object(optional=check.unsaid):
         return
     check["n"].whole(optional=False, least=None)  # its sign: value_checks.py
-    check["source"].text(optional=check["source"].unsaid, longest=TEXT_LENGTH, empty=True)
-    check["summary"].text(longest=TEXT_LENGTH, empty=True)
+    check["source"].text(optional=check["source"].unsaid, longest=LONG_TEXT_LENGTH,
+                         empty=True)
+    check["summary"].text(longest=LONG_TEXT_LENGTH, empty=True)
     check["patients"].whole(least=None)
     check["overlap_patients"].whole(optional=check["overlap_patients"].unsaid, least=None)
     check["separate"].truth()
     check["model_fingerprint"].text(longest=128)
-    check["warnings"].texts(most=MAX_FINDINGS, longest=TEXT_LENGTH)
+    check["warnings"].texts(most=MAX_FINDINGS, longest=LONG_TEXT_LENGTH)
     check["calibration_outside"].list(most=MAX_FINDINGS)
     for key, value in check.entries():
         if isinstance(value.value, list):

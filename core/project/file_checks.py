@@ -9,7 +9,7 @@ grown or a chart is printed. Booleans are not numbers here: JSON's ``true`` is n
 
 from __future__ import annotations
 
-from ..document_checks import Field, check_nesting
+from ..document_checks import TEXT_LENGTH, Field, check_nesting
 from ..errors import InputError
 from ..messages.message import say
 from ..sizing.request_checks import check_request_document, check_size
@@ -44,7 +44,7 @@ def check_project_document(data: dict, file: str = "The project") -> None:
     chart = top["chart"]
     if chart.object():
         for key in ("title", "subtitle"):
-            chart[key].text(empty=True)
+            chart[key].text(empty=True, longest=TEXT_LENGTH)
         chart["paper"].text()
         chart["orientation"].text()
         chart["min_text"].number(least=0, most=1000)  # the chart says 6 to 40 pt

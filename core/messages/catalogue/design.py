@@ -1,6 +1,10 @@
 """Messages of choosing the outcome and predictors, and of the guards that run before growing."""
 
 ENTRIES = [
+    ("design.entry_too_long", "refused", "The data dictionary's {field} for {column!r} is "
+     "{length} characters long, longer than a model file may hold (at most {limit}); "
+     "shorten it in the dictionary.", "Keep labels, units and levels short; put explanations "
+     "in the column's note."),
     ("design.no_outcome_column", "refused", "There is no column called {name!r} to use as "
      "the outcome; choose one of: {columns}.", "Pick the outcome from the listed columns."),
     ("design.bad_task", "refused", "The task must be classification or regression, not "

@@ -19,6 +19,9 @@ ENTRIES = [
      "left out of the predictors so that no chart can print it. Name it as a predictor "
      "yourself only if it does not identify anyone.",
      "Keep identifying columns out of the analysis file when you can."),
+    ("infer.long_texts", "note", "{column!r} holds texts of up to {length} characters, "
+     "too long for a chart question (at most {limit}); it is left out as free text.",
+     "Code the texts into a few short categories in a new column to use them."),
     ("infer.too_many_levels", "note", "{column!r} has {n} different texts, too many for a "
      "chart question (at most {limit}); it is left out (group the texts into fewer categories "
      "to use it).", "Group the texts into a few categories in a new column."),

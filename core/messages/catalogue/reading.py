@@ -99,6 +99,10 @@ ENTRIES = [
      "Nothing to do."),
     ("read.no_columns", "refused", "{where} holds no columns; choose a file that holds a "
      "table.", "Choose the file or sheet that holds the data."),
+    ("read.long_header", "refused", "{where}: the header of column {column} is {length} "
+     "characters long, longer than Prunella can keep or print (at most {limit}); shorten it "
+     "and save the file again.", "Give the column a short header; put long explanations in "
+     "the data dictionary's note."),
     ("read.blank_headers", "warning", "{where}: column(s) {columns} have no header; they "
      "were named 'column …'. Give every column a header in the spreadsheet to name them "
      "yourself.", "Type a name into each empty header cell."),
