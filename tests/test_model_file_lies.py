@@ -239,8 +239,11 @@ REGRESSION_LIES = [
      ["box", "'sd' cannot be negative"]),
     ("quartiles out of order", lambda document: leaf(document).update(
         quartiles=leaf(document)["quartiles"][::-1]), ["box", "quartiles", "lower first"]),
-    ("a mean outside the outcomes grown on", lambda document: leaf(document).update(mean=900.0),
+    ("a mean outside the outcomes grown on",
+     lambda document: leaf(document).update(mean=900.0, prediction=900.0),
      ["mean", "outside the outcomes the tree was grown on", "cohort.outcome_range"]),
+    ("a prediction other than the box's mean", lambda document: leaf(document).update(
+        prediction=leaf(document)["mean"] + 3), ["prediction", "a box predicts its mean"]),
     ("a mean outcome outside its range", set_in("cohort", "outcome_mean", value=-4.0),
      ["cohort.outcome_mean", "outside the outcome's range"]),
     ("a negative RMSE", set_in("validation", "rmse", value=-1.0),

@@ -95,7 +95,8 @@ def _triple(value, where: str, refuse: Refusal, contains: bool) -> None:
 
 def _check_boxes(nodes, span, refuse: Refusal) -> None:
     """Each box's spread and mean: no negative SD, quartiles in order, and (regression) a
-    mean, prediction and quartiles inside the range of outcomes the tree was grown on."""
+    prediction that is the box's mean, and a mean and quartiles inside the range of outcomes
+    the tree was grown on."""
     if not isinstance(nodes, list):
         return
     for index, node in enumerate(nodes):
@@ -105,6 +106,13 @@ def _check_boxes(nodes, span, refuse: Refusal) -> None:
         _not_negative(node.get("sd"), where.format("sd"), "a standard deviation", refuse)
         _not_negative(node.get("variance"), where.format("variance"), "a variance", refuse)
         _ordered(node.get("quartiles"), where.format("quartiles"), refuse)
+        mean, prediction = node.get("mean"), node.get("prediction")
+        if _number(mean) and _number(prediction) and \
+                abs(mean - prediction) > _SLACK * max(1.0, abs(mean)):
+            # A measured outcome's box predicts its mean: the chart prints the mean and
+            # patients are scored with the prediction, so the two never differ.
+            raise refuse(where.format("prediction"), f"a box predicts its mean ({mean:g}), "
+                                                     f"not {prediction:g}")
         if span is None:
             continue
         low, high = span
