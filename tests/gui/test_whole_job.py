@@ -107,7 +107,8 @@ def test_tree_view_click_and_patient_lookup(demo, qtbot, run):
     centre = tree.view.mapFromScene(item.sceneBoundingRect().center())
     qtbot.mouseClick(tree.view.viewport(), Qt.LeftButton, pos=centre)
     html = tree.details.toHtml()
-    assert f"Box {leaf.id}" in html and f"{leaf.n:,} patients" in html
+    # The demo's rows are visits (some patients came more than once): counted as visits.
+    assert f"Box {leaf.id}" in html and f"{leaf.n:,} visits reach this box" in html
     # A patient with low oxygen saturation lights the path to the SpO2 box.
     fields = tree._fields
     assert "spo2" in fields
