@@ -274,8 +274,8 @@ def _cohort(model: TreeModel, options: ChartOptions) -> PanelSection:
     return PanelSection("Derived from", tuple(items))
 
 
-def _validation(model: TreeModel, options: ChartOptions) -> PanelSection | None:
-    check = model.recorded_check  # only a check that names this tree by its fingerprint
+def _validation(model: TreeModel, options: ChartOptions, check: dict | None
+                ) -> PanelSection | None:
     if not check:
         return None
     # Built from the numbers the check records, never from the words stored beside them.
@@ -348,9 +348,10 @@ def chart_text(model: TreeModel, options: ChartOptions) -> ChartText:
     bands = banding(model, options.band_cuts, options.band_ratio)
     spec, band_of = tree_spec(model, options, bands)
     small = frozenset(i for i in band_of if model.node(i).n < options.small_cell)
-    banner = None if model.recorded_check else (UNCHECKED_BANNER, UNCHECKED_DETAIL)
+    check = model.recorded_check  # only a check that names this tree by its fingerprint
+    banner = None if check else (UNCHECKED_BANNER, UNCHECKED_DETAIL)
     sections = [_cohort(model, options), _performance(model)]
-    checked = _validation(model, options)
+    checked = _validation(model, options, check)
     if checked:
         sections.append(checked)
     sections.append(_key(model, bands, options))

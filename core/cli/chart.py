@@ -102,8 +102,9 @@ def run_chart(args) -> int:
     check_outputs({"--out": args.out}, [args.model])
     options = chart_options_from_args(args)  # bad options are told before any reading
     model = TreeModel.load(args.model)
-    if model.stored_check_refused:  # the chart prints the banner instead: say why
-        print(f"prunella: warning: {model.stored_check_refused}", file=sys.stderr)
+    refused = model.stored_check_refused
+    if refused:  # the chart prints the banner instead: say why
+        print(f"prunella: warning: {refused}", file=sys.stderr)
     plan = write_chart(model, args.out, options)
     print(_chart_note(plan, args.out))
     return 0
