@@ -222,6 +222,11 @@ CLASSIFICATION_LIES = [
     ("an inverted CV interval", set_in("path", "cv_specificity_interval", 0,
                                        value=lambda pair: pair[::-1]),
      ["path.cv_specificity_interval[0]", "above its upper end"]),
+    ("a tree no better than no tree said to be better", lambda document: (
+        document["path"]["cv_risk"].__setitem__(-1, document["chosen"]["cv_risk"]),
+        document["chosen"].update(one_box_cv_risk=document["chosen"]["cv_risk"])),
+     ["chosen.better_than_no_tree", "says the tree is better than no tree",
+      "pruning path says otherwise"]),
     ("a cohort larger than the tree", set_in("cohort", "visits", value=lambda n: n + 25),
      ["cohort.visits", "must equal the patients of box 1"]),
     ("outcome counts swapped", lambda document: document["cohort"].update(outcome_counts=dict(

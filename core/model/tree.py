@@ -363,11 +363,17 @@ class TreeModel:
         recorded = self.chosen.get("better_than_no_tree")
         if recorded is not None:
             return bool(recorded)
+        judged = self._judged_from_path()
+        return True if judged is None else judged  # nothing to judge by: as the file says
+
+    def _judged_from_path(self) -> bool | None:
+        """Whether the tree is better than no tree by its own pruning path (None when the
+        path cannot say)."""
         if len(self.leaves) <= 1:
             return False
         leaves, risk, se = (self.path.get(k) for k in ("leaves", "cv_risk", "cv_se"))
         if not leaves or not risk or not se or self.chosen.get("leaves") not in leaves:
-            return True  # nothing to judge by: as the file says
+            return None
         return better_than_no_tree(leaves, (risk, se), leaves.index(self.chosen["leaves"]))
 
     @property
@@ -521,6 +527,7 @@ class TreeModel:
             raise InputError(say("model.damaged_detail", kind=type(exc).__name__, detail=str(exc))
                              ) from None
         model._check()
+        model._check_judgement(name)
         return model
 
     @classmethod
@@ -529,6 +536,18 @@ class TreeModel:
         # read_json_document refuses a missing, foreign or newer file with the catalogue's message.
         return cls._from_checked_format(read_json_document(path, "model", MODEL_VERSIONS),
                                         Path(path).name)
+
+    def _check_judgement(self, name: str) -> None:
+        """A file saying its tree is better than no tree (or not) must agree with its own
+        pruning path: the chart's "no better than no tree" statement hangs on it."""
+        recorded, judged = self.chosen.get("better_than_no_tree"), self._judged_from_path()
+        if recorded is None or judged is None or bool(recorded) == judged:
+            return
+        says = "better than" if recorded else "no better than"
+        raise InputError(say("model.damaged", file=name, where="chosen.better_than_no_tree",
+                             problem=f"it says the tree is {says} no tree, but its pruning "
+                                     "path says otherwise (its cross-validated error against "
+                                     "one box's, by one standard error)"))
 
     def _check(self) -> None:
         ids = [n.id for n in self.nodes]
