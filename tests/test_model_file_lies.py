@@ -227,6 +227,9 @@ CLASSIFICATION_LIES = [
         document["chosen"].update(one_box_cv_risk=document["chosen"]["cv_risk"])),
      ["chosen.better_than_no_tree", "says the tree is better than no tree",
       "pruning path says otherwise"]),
+    ("a one-box error off the path", set_in("chosen", "one_box_cv_risk",
+                                            value=lambda risk: risk * 3),
+     ["chosen.one_box_cv_risk", "pruning path's error for one box"]),
     ("a cohort larger than the tree", set_in("cohort", "visits", value=lambda n: n + 25),
      ["cohort.visits", "must equal the patients of box 1"]),
     ("outcome counts swapped", lambda document: document["cohort"].update(outcome_counts=dict(

@@ -26,6 +26,7 @@ def check_possible_values(data: dict, refuse: Refusal) -> None:
     _check_boxes(data.get("nodes"), span if _pair(span) else None, refuse)
     _check_path(data.get("path"), refuse)
     _check_chosen(data.get("chosen"), refuse)
+    _check_one_box_on_path(data.get("chosen"), data.get("path"), refuse)
     _check_cohort(data.get("cohort"), refuse)
     _check_cohort_fits_tree(data, refuse)
     _check_costs(data.get("costs"), refuse)
@@ -166,6 +167,19 @@ def _check_chosen(chosen, refuse: Refusal) -> None:
     for index, point in enumerate(points if isinstance(points, list) else ()):
         if isinstance(point, dict):
             _share(point.get("threshold"), f"chosen.cv_net_benefit[{index}].threshold", refuse)
+
+
+def _check_one_box_on_path(chosen, path, refuse: Refusal) -> None:
+    """The one-box error the chosen size is judged against is the pruning path's last."""
+    if not isinstance(chosen, dict) or not isinstance(path, dict):
+        return
+    one_box, risks = chosen.get("one_box_cv_risk"), path.get("cv_risk")
+    if not _number(one_box) or not isinstance(risks, list) or not risks or \
+            not _number(risks[-1]):
+        return
+    if abs(one_box - risks[-1]) > _SLACK * max(1.0, abs(risks[-1])):
+        raise refuse("chosen.one_box_cv_risk", f"it must be the pruning path's error for one "
+                                               f"box ({risks[-1]:.6g}), not {one_box:.6g}")
 
 
 def _check_cohort(cohort, refuse: Refusal) -> None:
