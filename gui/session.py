@@ -70,9 +70,6 @@ class Session(QObject):
 
     def __init__(self, parent: QObject | None = None) -> None:
         super().__init__(parent)
-        self.tree = TreeSettings()
-        self.cv = CVSettings()
-        self.holdout: float | None = None
         self.chart = ChartOptions()
         # Where folds, nested CV and bootstrap resamples run (all cores unless the user said
         # otherwise in "Where the work runs"); a setting of this computer, not of the project.
@@ -89,6 +86,9 @@ class Session(QObject):
         self.serial = 0  # which file is open (a new number for each one opened)
         self.design: DesignSpec | None = None
         self.goal: Goal | None = None  # a clinical goal sizes the tree instead of a miss cost
+        # Every setting of steps 2 and 3 starts at its default: a miss cost, priors or a loss
+        # belong to the previous outcome's classes, and a new file is a new piece of work.
+        self.tree, self.cv, self.holdout = TreeSettings(), CVSettings(), None
         # The guards of step 2 (gui/guard_watch.py): identity columns the user chose to keep
         # although they look like they identify patients, the latest result for the current
         # choices, and whether a check is under way.
@@ -469,8 +469,6 @@ class Session(QObject):
         if request is not None:
             self.design, self.tree, self.cv = request.design, request.tree, request.cv
             self.holdout, self.goal = request.holdout, request.goal
-        else:
-            self.tree, self.cv, self.holdout = TreeSettings(), CVSettings(), None
         # The saved predictors were the user's choices: any identity-like column among them was
         # kept deliberately, so the reopened project grows the same tree (the app still says so).
         self.kept = frozenset(() if request is None else request.design.predictors)
