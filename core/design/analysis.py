@@ -9,7 +9,7 @@ that would look good for the wrong reasons.
 from __future__ import annotations
 
 from collections.abc import Iterable
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 import pandas as pd
@@ -154,7 +154,10 @@ def prepare_analysis(frame: pd.DataFrame, dictionary: DataDictionary,
     if design.outcome not in frame.columns:
         raise InputError(say("design.no_outcome_column", name=design.outcome,
                              columns=", ".join(repr(c) for c in list(frame.columns)[:20])))
-    outcome = dictionary.get(design.outcome)
+    # The roles are those of this design, not of the dictionary it came with: the command
+    # line's dictionary may still call the outcome a predictor while the app's says
+    # "outcome", and one tree must have one fingerprint whichever path grew it.
+    outcome = _in_role(dictionary.get(design.outcome), "outcome")
     for spec in [outcome] + [dictionary.get(n) for n in design.predictors if n in dictionary]:
         _check_lengths(spec)
     task = design.task or suggest_task(outcome)
@@ -179,7 +182,7 @@ def prepare_analysis(frame: pd.DataFrame, dictionary: DataDictionary,
     rows = np.flatnonzero(keep)
     predictors = []
     for name in design.predictors:
-        spec = dictionary.get(name)
+        spec = _in_role(dictionary.get(name), "predictor")
         if spec.kind == "date":
             raise InputError(say("design.predictor_is_date", name=spec.display))
         if spec.kind not in PREDICTOR_KINDS:
@@ -199,6 +202,10 @@ def prepare_analysis(frame: pd.DataFrame, dictionary: DataDictionary,
     return AnalysisData(task=task, outcome=outcome, y=y, classes=classes,
                         predictors=tuple(predictors), rows=rows, groups=groups, sites=sites,
                         site_levels=site_levels, notes=tuple(notes))
+
+
+def _in_role(spec: ColumnSpec, role: str) -> ColumnSpec:
+    return spec if spec.role == role else replace(spec, role=role)
 
 
 def _codes(values: pd.Series) -> np.ndarray:
