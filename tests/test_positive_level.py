@@ -83,3 +83,51 @@ def test_a_saved_dictionary_that_names_no_positive_keeps_the_event(tmp_path):
     DataDictionary(entries).save(saved)
     again, _ = dictionary_for(read_table(path), saved)
     assert again.get("outcome").positive == "fell"
+
+
+def _icu_file(tmp_path):
+    """An invented audit whose file writes "Yes" and "No" (read as the levels yes and no)."""
+    rng = np.random.default_rng(9)
+    n = 300
+    lactate = rng.gamma(2.0, 1.0, n).round(1)
+    icu = np.where((lactate > 3) & (rng.random(n) < 0.8), "Yes", "No")
+    path = tmp_path / "icu audit.csv"
+    pd.DataFrame({"Lactate": lactate, "Pulse": rng.integers(45, 150, n),
+                  "Went to ICU": icu}).to_csv(path, index=False)
+    return path
+
+
+def test_positive_class_is_taken_in_any_case(tmp_path):
+    """`--positive Yes` (as the file writes it) and " YES " name the level yes: the same tree,
+    with the same fingerprint, as `--positive yes`."""
+    from core.model import TreeModel
+
+    path = _icu_file(tmp_path)
+    prints = set()
+    for given in ("yes", "Yes", " YES "):
+        model = tmp_path / f"m{len(prints)}.json"
+        ran = prunella("fit", path, "--outcome", "Went to ICU", "--positive", given,
+                       "--folds", "5", "--model", model, "--quiet")
+        assert ran.returncode == 0, ran.stderr
+        assert json.loads(model.read_text())["positive"] == "yes"
+        prints.add(TreeModel.load(model).fingerprint)
+    assert len(prints) == 1
+
+
+def test_a_positive_class_that_is_no_level_is_still_refused(tmp_path):
+    path = _icu_file(tmp_path)
+    ran = prunella("fit", path, "--outcome", "Went to ICU", "--positive", "Yess",
+                   "--model", tmp_path / "m.json")
+    assert ran.returncode == 2 and "Traceback" not in ran.stderr
+    assert "'Yess' is not a level" in ran.stderr and "'no', 'yes'" in ran.stderr
+    assert not (tmp_path / "m.json").exists()
+
+
+def test_same_level_needs_exactly_one_match():
+    from core.design.analysis import same_level
+
+    assert same_level("Yes", ("no", "yes")) == "yes"
+    assert same_level("  no ", ("no", "yes")) == "no"
+    assert same_level("Yes", ("Yes", "yes")) == "Yes"   # the exact level first
+    assert same_level("YES", ("Yes", "yes")) == "YES"   # two matches: none chosen
+    assert same_level("maybe", ("no", "yes")) == "maybe"

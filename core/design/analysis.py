@@ -127,11 +127,24 @@ def default_design(dictionary: DataDictionary, outcome: str | None = None, *,
     if predictors is None:
         predictors = (c.name for c in dictionary.by_role("predictor") if c.kind in PREDICTOR_KINDS)
     task = task or suggest_task(spec)
+    if positive is not None:
+        positive = same_level(positive, spec.levels)
     if positive is None and task == "classification" and spec.kind in CATEGORY_KINDS \
             and len(spec.levels) == 2:
         positive = positive_level(spec)
     return DesignSpec(outcome, tuple(p for p in predictors if p not in taken), task=task,
                       positive=positive, patient_id=patient_id, site=site)
+
+
+def same_level(given: str, levels: Iterable[str]) -> str:
+    """The level ``given`` names: itself when it is one, else the one level equal to it but
+    for case and surrounding spaces (levels are lowercased when read, while the file and the
+    user write "Yes"); unchanged when none or several match, to be refused with the levels."""
+    levels = tuple(levels)
+    if given in levels:
+        return given
+    matches = [level for level in levels if level.strip().casefold() == given.strip().casefold()]
+    return matches[0] if len(matches) == 1 else given
 
 
 def _check_lengths(spec: ColumnSpec) -> None:
@@ -248,6 +261,7 @@ def _outcome_values(values: pd.Series, spec: ColumnSpec, task: str, positive: st
     codes = column.codes[keep]
     remap = np.full(len(spec.levels), -1, dtype=np.int64)
     if len(levels) == 2:
+        positive = None if positive is None else same_level(positive, levels)
         pos = positive or (spec.positive if spec.positive in levels else None) or \
             positive_level(ColumnSpec(spec.name, kind="binary", levels=tuple(levels)),
                            np.bincount(column.codes[keep])[present].tolist())
