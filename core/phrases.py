@@ -13,6 +13,16 @@ METHOD_SOURCE = "Breiman, Friedman, Olshen and Stone, 1984"
 METHOD_NAME = f"{METHOD} ({METHOD_SOURCE})"
 
 
+def in_sentence(label: str) -> str:
+    """A label as it reads inside a sentence: 'Length of stay' → 'length of stay', while
+    abbreviations keep their capitals ('PICU transfer' → 'PICU transfer', 'Systolic BP' →
+    'systolic BP', 'SpO2' stays): lower-casing all of it printed 'picu transfer'."""
+    def word(w: str) -> str:
+        rest = w[1:]
+        return w if any(ch.isupper() or ch.isdigit() for ch in rest) else w[:1].lower() + rest
+    return " ".join(word(w) for w in label.split(" "))
+
+
 def plural(n: int, singular: str, plural: str) -> str:
     """A count with its noun: '1 outcome box', '2,104 outcome boxes'.
 

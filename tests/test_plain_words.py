@@ -160,3 +160,15 @@ def test_a_regression_fit_gives_its_error_in_the_outcomes_unit(tmp_path):
     # Stays recorded in whole days: the root is printed to one decimal more (core/precision.py).
     assert f"Root of the cross-validated error: {math.sqrt(chosen['cv_risk']):.1f} days" in out
     assert "Length of stay (Length of stay" not in out
+
+
+def test_a_label_inside_a_sentence_keeps_its_abbreviations():
+    """'Decision tree for picu transfer' broke the abbreviation (common practice: an
+    abbreviation keeps its capitals inside a sentence)."""
+    from core.phrases import in_sentence
+
+    assert in_sentence("Length of stay") == "length of stay"
+    assert in_sentence("PICU transfer") == "PICU transfer"
+    assert in_sentence("Systolic BP") == "systolic BP"
+    assert in_sentence("SpO2 on air") == "SpO2 on air"
+    assert in_sentence("Went to") == "went to"

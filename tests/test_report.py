@@ -119,6 +119,11 @@ def test_chosen_tree_section_shows_the_wall_chart_itself(contents, written):
     for node in contents.model.nodes:
         if not node.leaf:
             assert node.text in words
+    # The chart carries the report's own external check: it never says "Not yet checked"
+    # above a section reporting a check.
+    chart = words[words.index("7. The chosen tree"):words.index("The tree as numbered rules")]
+    assert UNCHECKED_BANNER not in chart
+    assert "with the check on Riverside campus visits of section 8" in chart
 
 
 def test_no_page_ends_with_a_heading(contents, written):
@@ -260,6 +265,10 @@ def test_the_cross_validated_row_is_never_emptier_than_the_training_row(contents
         low, high = path[name + "_interval"][k]
         shown = f"{as_percent(path[name][k])} ({as_percent(low, sign=False)}–{as_percent(high)})"
         assert shown in row, (name, row)
+    # Never the training error above the cross-validated one: the optimistic row comes last.
+    overview = words[words.index("Overview"):]
+    assert overview.index("Cross-validated 5-fold") < overview.index("Training (optimistic)")
+    assert overview.index("External check") < overview.index("Training (optimistic)")
 
 
 def test_the_report_calls_the_error_an_error(written):

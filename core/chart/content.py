@@ -14,7 +14,7 @@ from ..checking.intervals import as_percent
 from ..checking.new_patients import record_summary
 from ..precision import summary_number
 from ..model.tree import ANSWERS, MEASURE_FIRST, Node, TreeModel, answer_verb
-from ..phrases import plural, rows_and_patients, rows_count, short_fingerprint
+from ..phrases import in_sentence, plural, rows_and_patients, rows_count, short_fingerprint
 from .bands import Band, Banding, banding, number, percent, rate_phrase
 from .layout import BoxSpec, Para, TreeSpec
 from .options import ChartOptions
@@ -266,7 +266,7 @@ def _cohort(model: TreeModel, options: ChartOptions) -> PanelSection:
         items.append(PanelItem(f"{model.outcome.display}: " + ", ".join(
             f"{c} {percent(k / total)}" for c, k in counts.items()) + "."))
     elif cohort.get("outcome_mean") is not None:
-        items.append(PanelItem(f"Mean {model.outcome.display.lower()}: "
+        items.append(PanelItem(f"Mean {in_sentence(model.outcome.display)}: "
                                f"{number(cohort['outcome_mean'], model.outcome.unit, model.outcome_decimals)}."))
     data = model.extra.get("data", {})
     if data.get("file") and options.show_file_name:
@@ -308,7 +308,7 @@ def _key(model: TreeModel, bands: Banding, options: ChartOptions) -> PanelSectio
         items.append(PanelItem(f"Dashed: under {options.small_cell} {count_word(model)}, "
                                "uncertain", dashed=True))
     if model.task == "regression":
-        what = (f"Mean: average {model.outcome.display.lower()} in the box; CI: its 95% "
+        what = (f"Mean: average {in_sentence(model.outcome.display)} in the box; CI: its 95% "
                 "confidence interval (t), not the range for one patient")
         if any(n.quartiles is not None for n in model.leaves):
             what += (f"; IQR: where the middle half of the box's {count_word(model)} lay "

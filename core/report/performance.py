@@ -91,9 +91,8 @@ def performance_section(c: ReportContents, s: Styles) -> list:
     width = len(head)
     ch, task = model.chosen, model.task
     places = model.outcome_decimals  # a measured outcome's errors follow its precision
+    # The honest estimates first; the training row, always the best-looking, comes last.
     rows = [head,
-            _perf_row("Training (optimistic)", "the derivation patients themselves", model.n_rows,
-                      training_measures(model, der.data), risk_text(ch["train_risk"], task, places), s),
             _cv_row(model, f"{risk_text(ch['cv_risk'], task, places)} ± {risk_text(ch['cv_se'], task, places)}",
                     s)[:width]]
     if c.nested is not None:
@@ -107,8 +106,12 @@ def performance_section(c: ReportContents, s: Styles) -> list:
                 else risk_text(m.rmse ** 2, task, places))
         rows.append(_perf_row("Held-out check" if check.kind == "held-out" else "External check",
                               check.source, check.n, m, risk, s))
-    story = [para("Performance of the chosen tree, from the most optimistic estimate (the "
-                  "patients it was grown on) to the most honest (patients it never saw). "
+    rows.append(_perf_row("Training (optimistic)", "the derivation patients themselves",
+                          model.n_rows, training_measures(model, der.data),
+                          risk_text(ch["train_risk"], task, places), s))
+    story = [para("Performance of the chosen tree: cross-validated, then on patients it never "
+                  "saw where it was checked, and last, for comparison only, on the patients it "
+                  "was grown on (always optimistic). "
                   "Intervals are 95%: Wilson for proportions, DeLong for the ROC area, a "
                   "percentile bootstrap over patients for the Brier score and the errors (the "
                   "resample count is given with each check); ± is one standard error. " + ("Cost is the expected misclassification cost per "

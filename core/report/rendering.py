@@ -11,6 +11,7 @@ from __future__ import annotations
 from pathlib import Path
 
 from .. import __version__
+from ..phrases import in_sentence
 from ..safe_files import write_bytes_atomic
 from .contents import ReportContents
 from .section_numbers import SECTIONS, section
@@ -22,7 +23,7 @@ def render_report(contents: ReportContents) -> bytes:
     """The report as PDF bytes (deterministic for the same contents)."""
     s = Styles()
     model = contents.model
-    title = f"Decision tree for {model.outcome.display.lower()}: methods and validation report"
+    title = f"Decision tree for {in_sentence(model.outcome.display)}: methods and validation report"
     story = title_page(contents, title, s)
     for number, name in enumerate(SECTIONS, 1):
         story.append(para(f"{number}. {name}", s.h1))

@@ -332,13 +332,25 @@ def _chart(c: ReportContents, s: Styles) -> list:
     if len(c.model.leaves) <= 1:  # one box for everyone: no decision chart (never drawn as one)
         return [para(f"{c.model.no_better_statement or ''} The chosen tree has one outcome box, "
                      "so no decision chart is printed.", s.body)]
+    # The chart in the report carries the report's own check (an external file's first, as
+    # the stronger one), so the figure never says "Not yet checked" above a section that
+    # reports a check; a check that shares derivation patients is printed as such.
+    from ..checking.new_patients import with_check
+
+    model, recorded = c.model, ""
+    checks = sorted(c.checks, key=lambda ch: ch.kind != "external")
+    if checks and checks[0].names(model):
+        model = with_check(model, checks[0])
+        recorded = (", with the check on " + checks[0].source + " of section "
+                    f"{section('Performance')}")
     for paper in ("a4", "a3"):
         try:
-            plan = plan_chart(c.model, ChartOptions(paper=paper, printed=c.printed_on))
+            plan = plan_chart(model, ChartOptions(paper=paper, printed=c.printed_on))
         except InputError:
             continue
         return [chart_figure(plan, f"Figure {s.next_figure()}. The one-page wall chart of the "
-                             f"chosen tree as it prints on {paper.upper()} paper (reduced).", s)]
+                             f"chosen tree as it prints on {paper.upper()} paper (reduced)"
+                             f"{recorded}.", s)]
     return [para("The chosen tree is too large for a legible one-page chart on A4 or A3; it is "
                  "given as rules only.", s.body)]
 
