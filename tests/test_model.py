@@ -82,7 +82,7 @@ def test_scoring_new_rows_matches_the_derivation_and_warns_on_unseen_levels():
 
 def test_missing_columns_are_named():
     model = _derive().model
-    with pytest.raises(InputError, match="lack column"):
+    with pytest.raises(InputError, match="lacks column"):
         model.apply(pd.DataFrame({"other": [1, 2]}))
 
 

@@ -15,7 +15,6 @@ The result is a plain dataclass with every measure (core/checking/metrics.py);
 from __future__ import annotations
 
 import math
-import re
 from dataclasses import asdict, dataclass, replace
 from pathlib import Path
 
@@ -30,6 +29,7 @@ from ..dictionary.typed_columns import typed_column
 from ..errors import InputError
 from ..messages.message import say
 from ..phrases import patients_among, plural, rows_and_patients, rows_word
+from ..model.column_names import find_columns, near_name, refuse_absent
 from ..model.scoring import needs_counts, needs_warning
 from .overlap import overlapping_rows
 from ..model.tree import TreeModel, column_values
@@ -404,43 +404,30 @@ def check_heldout(model: TreeModel, heldout: AnalysisData | None, share: float,
 # --- an external file -------------------------------------------------------------------------
 
 
-def _key(name: str) -> str:
-    return re.sub(r"\s+", "", str(name)).casefold()
-
-
 def match_columns(model: TreeModel, columns) -> tuple[ColumnReport, dict[str, str]]:
-    """Match a file's columns to the model's by name (then ignoring case and spaces).
+    """Match a file's columns to the model's by name (then ignoring case and spaces:
+    core/model/column_names.py, as ``prunella score`` does).
 
     Returns the account and the mapping file column → model column. Raises InputError naming
-    every column the tree asks about that the file lacks.
+    every column the tree asks about that the file lacks, and the file's column that looks
+    meant for it.
     """
     columns = [str(c) for c in columns]
     settings = model.extra.get("settings", {}).get("design", {})
     wanted = [model.outcome.name] + [p.name for p in model.predictors]
     wanted += [c for c in (settings.get("patient_id"), settings.get("site")) if c]
-    exact = set(columns)
-    by_key: dict[str, list[str]] = {}
-    for c in columns:
-        by_key.setdefault(_key(c), []).append(c)
-    mapping, matched, renamed, absent = {}, [], [], []
-    for name in dict.fromkeys(wanted):
-        if name in exact:
-            mapping[name] = name
-            matched.append(name)
-        elif len(by_key.get(_key(name), [])) == 1:
-            found = by_key[_key(name)][0]
-            mapping[found] = name
-            renamed.append((found, name))
-        else:
-            absent.append(name)
+    mapping, matched, renamed, absent = find_columns(wanted, columns)
     asked = set(model.columns_asked())
     missing_asked = [c for c in absent if c in asked]
     if model.outcome.name in absent:
+        near = near_name(model.outcome.name, columns, mapping)
+        if near is not None:
+            raise InputError(say("check.no_outcome_near", name=model.outcome.name,
+                                 label=model.outcome.display, near=near))
         raise InputError(say("check.no_outcome", name=model.outcome.name,
                              label=model.outcome.display))
     if missing_asked:
-        raise InputError(say("check.columns_absent", columns=", ".join(
-            f"{c!r} ({model.spec(c).display})" for c in missing_asked)))
+        refuse_absent(model, missing_asked, columns, mapping)
     offered = [c for c in absent if c not in asked and c != model.outcome.name
                and c in {p.name for p in model.predictors}]
     extra = tuple(c for c in columns if c not in mapping)

@@ -9,6 +9,7 @@ import numpy as np
 import pandas as pd
 
 from ..messages.message import say
+from .column_names import columns_for_tree
 from .tree import TreeModel
 
 
@@ -18,7 +19,11 @@ def scored_table(model: TreeModel, frame: pd.DataFrame) -> tuple[pd.DataFrame, t
 
     A row stopped at a question whose value is not recorded, where no derivation patient
     lacked it, gets none of these; ``prunella_missing`` names the column to measure."""
-    scored = model.apply(frame)
+    # The columns found as prunella check finds them (case and spaces aside); the scored
+    # file keeps the spreadsheet's own headers.
+    mapping, renamed = columns_for_tree(model, frame.columns)
+    asked = frame.rename(columns={str(k): v for k, v in mapping.items()})
+    scored = model.apply(asked.loc[:, list(mapping.values())])
     out = frame.copy()
     leaf = np.asarray(scored.leaf)
     routed = leaf > 0
@@ -33,7 +38,8 @@ def scored_table(model: TreeModel, frame: pd.DataFrame) -> tuple[pd.DataFrame, t
         for node in model.leaves:
             share[node.id] = node.counts[1] / max(node.n, 1)
         out[f"prunella_share_{model.positive}"] = np.round(share[leaf], 4)
-    warnings = list(scored.warnings)
+    warnings = [say("check.column_renamed", found=found, wanted=wanted)
+                for found, wanted in renamed] + list(scored.warnings)
     if model.asks_unroutable():
         out["prunella_missing"] = scored.needs
         warnings += needs_warning("check.scored_needs_value", _counted(scored.needs), model)

@@ -567,8 +567,8 @@ class TreeModel:
         used = self.columns_asked()
         absent = [c for c in used if c not in frame.columns]
         if absent:
-            raise InputError(say("model.columns_absent",
-                                 columns=", ".join(repr(c) for c in absent)))
+            raise InputError(say("check.columns_absent", columns=", ".join(
+                f"{c!r} ({self.spec(c).display})" for c in absent)))
         warnings: list[str] = []
         values: dict[str, np.ndarray] = {}
         for column in used:

@@ -10,6 +10,13 @@ ENTRIES = [
     ("check.columns_absent", "refused", "The file lacks column(s) the tree asks about: "
      "{columns}; add them, named as in the derivation data.",
      "Every column the tree asks about must be in the file."),
+    ("check.columns_near", "refused", "The file lacks column(s) the tree asks about: "
+     "{columns}; it has {near}, which looks meant for it: rename that column to the tree's "
+     "name (or add the column).", "Every column the tree asks about must be in the file, "
+     "named as in the derivation data."),
+    ("check.no_outcome_near", "refused", "The file has no column {name!r} ({label}), the "
+     "outcome the tree predicts; it has {near!r}, which looks meant for it: rename that "
+     "column to {name!r}.", "Name the outcome column as in the derivation data."),
     ("check.no_outcome_rows", "refused", "No row of the file has a recorded {label} that the "
      "tree can be checked against; check the outcome column.",
      "Check the outcome column and its spellings."),

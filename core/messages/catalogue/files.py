@@ -86,7 +86,4 @@ ENTRIES = [
     ("model.unknown_column", "refused", "The model file is damaged: box {box} asks about an "
      "unknown column; save the model again from Prunella.",
      "Use the model file as Prunella saved it."),
-    ("model.columns_absent", "refused", "The data lack column(s) the tree asks about: "
-     "{columns}; add them (same names as in the derivation data) or rename them.",
-     "Scoring needs every column the tree asks about, named as when it was grown."),
 ]
