@@ -17,9 +17,9 @@ def test_the_search_runs_only_when_the_message_or_size_is_asked_for(monkeypatch)
     calls = []
     real = fitting.smaller_trees
 
-    def counted(model):
+    def counted(model, *most):
         calls.append(model)
-        return real(model)
+        return real(model, *most)
 
     monkeypatch.setattr(fitting, "smaller_trees", counted)
     big = demo.admitted_size(40).model
@@ -36,7 +36,7 @@ def test_the_search_runs_only_when_the_message_or_size_is_asked_for(monkeypatch)
 def test_trying_one_paper_after_another_searches_nothing(monkeypatch) -> None:
     """As the report's chart figure does (A4, then A3): a refusal it never shows costs no search."""
     calls = []
-    monkeypatch.setattr(fitting, "smaller_trees", lambda model: calls.append(model) or [])
+    monkeypatch.setattr(fitting, "smaller_trees", lambda model, *most: calls.append(model) or [])
     big = demo.admitted_size(40).model
     for paper in ("a4", "a3"):
         with pytest.raises(ChartTooLarge):

@@ -287,3 +287,69 @@ def test_a_dictionary_label_too_long_for_a_model_file_is_refused_before_growing(
             ["label for 'spo2'", "1,800 characters", "shorten it in the dictionary"],
             inputs=[data, dictionary])
     assert not (tmp_path / "m.json").exists()
+
+
+# --- a file's large tree is sized and refused in seconds ----------------------------------------
+
+
+def _complete_tree(model: Path, depth: int, target: Path) -> Path:
+    """The fitted file with its tree replaced by a complete tree of 2**depth outcome boxes,
+    each question box collapsing at its own α (1/box number), as a hand-made or foreign file
+    may hold: every one of its 2**depth - 1 prunings is a distinct size."""
+    raw = json.loads(model.read_text(encoding="utf-8"))
+    total, leaves = 2 ** (depth + 1) - 1, 2 ** depth
+    nodes = []
+    for i in range(1, total + 1):
+        level = i.bit_length() - 1
+        below = 2 ** (depth - level)
+        node = {"id": i, "leaf": level == depth, "depth": level, "n": 2 * below,
+                "children": [] if level == depth else [2 * i, 2 * i + 1],
+                "counts": [below, below], "prediction": "no"}
+        if level < depth:
+            node["split"] = {"column": "spo2", "kind": "above", "threshold": 90.0,
+                             "missing_goes": None, "missing_in_derivation": 0}
+        nodes.append(node)
+    raw.update(nodes=nodes, n_rows=2 * leaves, columns_asked=["spo2"])
+    raw["path"] = {"leaves": [leaves, 1], "cv_risk": [0.5, 0.5], "cv_se": [0.01, 0.01],
+                   "train_risk": [0.4, 0.5], "collapse_alpha": [
+                       None if n["leaf"] else 1.0 / n["id"] for n in nodes]}
+    raw["chosen"] = {"leaves": leaves, "rule": "user", "cv_risk": 0.5, "cv_se": 0.01,
+                     "train_risk": 0.4, "one_box_cv_risk": 0.5, "better_than_no_tree": False}
+    raw["cohort"] = {"visits": 2 * leaves, "outcome_counts": {"no": leaves, "yes": leaves}}
+    for key in ("validation", "derivation_ids", "findings"):
+        raw.pop(key, None)
+    target.write_text(json.dumps(raw), encoding="utf-8")
+    return target
+
+
+def test_every_pruning_of_a_file_s_tree_is_sized_as_the_boxes_say(fitted, tmp_path):
+    from core.chart.fitting import _leaf_count, recorded_collapse, smaller_trees
+
+    _, model = fitted
+    tree = TreeModel.load(_complete_tree(model, 8, tmp_path / "complete.json"))
+    collapse = recorded_collapse(tree)
+    # Each pruning counted box by box, as the chart counts one tree, largest first.
+    expected, seen = [], set()
+    for alpha in sorted({0.0} | set(collapse.values())):
+        collapsed = frozenset(b for b, at in collapse.items() if at <= alpha)
+        leaves = _leaf_count(tree, collapsed)
+        if leaves not in seen:
+            seen.add(leaves)
+            expected.append((leaves, collapsed))
+    assert smaller_trees(tree) == expected and len(expected) == 256
+    assert smaller_trees(tree, most=20) == [expected[0]] + [t for t in expected if t[0] <= 20]
+    real = TreeModel.load(model)  # the fitted tree's own prunings, counted both ways
+    assert [n for n, _ in smaller_trees(real)] == [
+        _leaf_count(real, c) for _, c in smaller_trees(real)]
+
+
+def test_a_file_s_tree_of_thousands_of_boxes_is_refused_by_the_chart_at_once(fitted, tmp_path):
+    """2**12 outcome boxes with 4,095 distinct prunings: refused in seconds (it took minutes
+    when every pruning was counted box by box and every page arrangement was tried)."""
+    _, model = fitted
+    big = _complete_tree(model, 12, tmp_path / "big.json")
+    refused(["chart", big, "--out", tmp_path / "c.pdf"],
+            ["4096 outcome boxes", "does not fit", "largest tree of its pruning sequence that "
+             "fits has 9 outcome boxes"], inputs=[big])
+    refused(["chart", big, "--out", tmp_path / "c.pdf", "--form", "rules"],
+            ["numbered rules", "4096 outcome boxes"], inputs=[big])

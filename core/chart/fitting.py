@@ -11,6 +11,7 @@ outcome boxes.
 
 from __future__ import annotations
 
+import math
 from dataclasses import replace
 from functools import cached_property, lru_cache
 from typing import TYPE_CHECKING
@@ -44,7 +45,8 @@ class ChartTooLarge(InputError):
         """Outcome boxes of the largest tree of the model's pruning sequence that fits (up
         from the smallest, as :func:`fitting_sizes` searches)."""
         model, options, measure = self._model, self._options, self._measure
-        trees = dict(smaller_trees(model)[1:])
+        most = _most_leaves(options.paper, options.min_text, measure)
+        trees = dict(smaller_trees(model, most)[1:])
         return max(fitting_sizes(trees, lambda n: tree_fits(model, options, measure,
                                                              trees[n])), default=None)
 
@@ -76,6 +78,10 @@ def plan_chart(model: TreeModel, options: ChartOptions | None = None,
             raise InputError(say("chart.rules_too_large", leaves=len(model.leaves),
                                  paper=options.paper_name, size=f"{options.min_text:g}"))
         return plan
+    # More outcome boxes than the page could hold packed edge to edge: no arrangement is
+    # tried (a file's tree of thousands of boxes would take minutes to refuse).
+    if len(model.leaves) > _most_leaves(options.paper, options.min_text, measure):
+        raise ChartTooLarge(model, options, measure)
     plan = plan_page(text, options, measure)
     if plan is None:
         raise ChartTooLarge(model, options, measure)
@@ -145,21 +151,47 @@ def pruned_model(model: TreeModel, collapsed: frozenset[int]) -> TreeModel:
     return replace(model, nodes=tuple(nodes), chosen=chosen)
 
 
-def smaller_trees(model: TreeModel) -> list[tuple[int, frozenset[int]]]:
+def smaller_trees(model: TreeModel, most: int | None = None) -> list[tuple[int, frozenset[int]]]:
     """The model's tree and every smaller tree of its pruning sequence, largest first, each as
-    (number of outcome boxes, question boxes collapsed into outcome boxes). A model file that
-    does not record its boxes' collapse α (an older one) yields its own tree alone."""
+    (number of outcome boxes, question boxes collapsed into outcome boxes); with ``most``,
+    only the model's own tree and those of at most ``most`` boxes. A model file that does not
+    record its boxes' collapse α (an older one) yields its own tree alone.
+
+    The sizes of all trees are counted in one pass (a box is an outcome box of the tree at α
+    from its own collapse α, or from the start for an outcome box, until an ancestor
+    collapses), so a file's tree of 100,000 boxes is sized in well under a second."""
     collapse = recorded_collapse(model)
     if not collapse:
         return [(len(model.leaves), frozenset())]
+    alphas = sorted({0.0} | set(collapse.values()))
+    counts = _leaf_counts(model, collapse, alphas)
     trees, seen = [], set()
-    for alpha in sorted({0.0} | set(collapse.values())):
-        collapsed = frozenset(box for box, at in collapse.items() if at <= alpha)
-        leaves = _leaf_count(model, collapsed)
-        if leaves not in seen:
-            seen.add(leaves)
-            trees.append((leaves, collapsed))
+    for alpha, leaves in zip(alphas, counts):
+        if leaves in seen or (trees and most is not None and leaves > most):
+            continue
+        seen.add(leaves)
+        trees.append((leaves, frozenset(box for box, at in collapse.items() if at <= alpha)))
     return trees
+
+
+def _leaf_counts(model: TreeModel, collapse: dict[int, float], alphas: list[float]) -> list[int]:
+    """Outcome boxes of the tree pruned at each α of ``alphas`` (ascending), as
+    :func:`_leaf_count` would count them for the boxes collapsed at or below it."""
+    import bisect
+
+    above = {model.root.id: math.inf}  # the least collapse α of a box's ancestors
+    starts, ends = [], []
+    for node in model.nodes:  # parents come before children
+        if not node.leaf:
+            for child in node.children:
+                above[child] = min(above[node.id], collapse[node.id])
+        start = -math.inf if node.leaf else collapse[node.id]
+        if start < above[node.id]:  # an outcome box of the trees from start up to that α
+            starts.append(start)
+            ends.append(above[node.id])
+    starts.sort()
+    ends.sort()
+    return [bisect.bisect_right(starts, a) - bisect.bisect_right(ends, a) for a in alphas]
 
 
 def recorded_collapse(model: TreeModel) -> dict[int, float]:

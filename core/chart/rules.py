@@ -18,7 +18,7 @@ from .arrange import MAX_TREE_SCALE, STEP, rows_arrangements
 from .boxes import LayoutStyle, TreeSpec, size_boxes
 from .content import ChartText
 from .layout import PlacedBox
-from .options import ChartOptions
+from .options import ChartOptions, page_size
 from .page import ChartPlan, finished_plan, frames
 from .text import Line, Measure, Rect
 
@@ -95,11 +95,20 @@ def _rows(model: TreeModel, spec: TreeSpec, frame, area: Rect, size: float, colu
     return rows
 
 
+def _most_rows(options: ChartOptions) -> int:
+    """An upper bound on the rules a page can hold: each takes at least one line of the
+    minimum text size, in at most three columns down the longer side of the page."""
+    w, h = page_size(options.paper, False)
+    return 3 * int(max(w, h) / options.min_text) + 1
+
+
 def plan_rules(model: TreeModel, text: ChartText, options: ChartOptions,
                measure: Measure) -> ChartPlan | None:
     """The best page of rows for ``model`` (largest text, then fewest columns), or None when
     the rows fit no arrangement at the minimum text size."""
     floor = options.min_text
+    if len(model.leaves) > _most_rows(options):  # refused at once, not after every layout
+        return None
     best, best_key = None, None
     for frame in frames(text, options, measure):
         for (area, panel), columns in itertools.product(rows_arrangements(frame), (1, 2, 3)):
