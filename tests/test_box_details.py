@@ -77,17 +77,25 @@ def test_route_patient_missing_and_unreadable_values(demo):
                            "measured.",)
 
 
-def test_route_patient_flags_impossible_and_unseen_values(demo):
+def test_route_patient_refuses_impossible_and_flags_unseen_values(demo):
     _, model = demo
     label = model.spec("spo2").display
-    flagged = route_patient(model, {"spo2": "250"}, {"spo2": (70.0, 100.0)})
-    assert flagged.boxes[0] == 1 and not flagged.refused  # routed all the same
-    assert flagged.warnings[:2] == (
-        f"{label} 250% is impossible for a percentage (0 to 100%); check the value that was "
-        "typed.",
-        f"{label} 250% lies outside the values of the patients the tree was grown on (70 to "
+    for slip in ("250", "150", "-3"):
+        impossible = route_patient(model, {"spo2": slip}, {"spo2": (70.0, 100.0)})
+        # No box for a value no patient can have, as for a typed word.
+        assert impossible.outcome_box == 0 and impossible.boxes == () and not impossible.warnings
+        assert impossible.refused == (
+            f"{label} {slip}% is impossible for a percentage (0 to 100%), so the tree gives no "
+            "outcome box for it; correct the value, or leave it blank if it was not measured.",)
+    # Possible, but below every derivation patient's value: routed and flagged.
+    unseen = route_patient(model, {"spo2": "60"}, {"spo2": (70.0, 100.0)})
+    assert unseen.boxes[0] == 1 and not unseen.refused  # on its way (other values may wait)
+    assert unseen.warnings[0] == (
+        f"{label} 60% lies outside the values of the patients the tree was grown on (70 to "
         "100%), so the tree has not learnt about such a patient; check the value before "
         "relying on the answer.")
+    edge = route_patient(model, {"spo2": "100"}, {"spo2": (70.0, 100.0)})
+    assert edge.boxes[0] == 1 and not edge.refused and not edge.warnings  # a possible limit
     usual = route_patient(model, {"spo2": "88"}, {"spo2": (70.0, 100.0)})
     assert not any(label in w for w in usual.warnings)
     assert route_patient(model, {"spo2": "NA"}).refused == ()  # not recorded, not a word
@@ -145,7 +153,9 @@ def test_the_dictionarys_plausible_values_are_kept_and_flag_the_lookup(demo, tmp
     limited.save(tmp_path / "m.json")
     again = TreeModel.load(tmp_path / "m.json")
     route = route_patient(again, {"spo2": "45"})
-    assert route.warnings[0] == (f"{spec.display} 45% lies outside the plausible values the "
-                                 "data dictionary gives for it (50 to 100%); check the value "
-                                 "that was typed.")
+    assert route.outcome_box == 0 and route.boxes == () and not route.warnings
+    assert route.refused == (f"{spec.display} 45% lies outside the plausible values the "
+                             "data dictionary gives for it (50 to 100%), so the tree gives no "
+                             "outcome box for it; correct the value, or leave it blank if it "
+                             "was not measured.",)
     assert not route_patient(again, {"spo2": "88"}).warnings

@@ -89,7 +89,7 @@ class PatientRoute:
     warnings: tuple[str, ...] = ()
     needs: str | None = None  # the column to measure: not recorded, and no branch for it
     waiting_box: int = 0  # the question box where the patient waits for that value
-    refused: tuple[str, ...] = ()  # typed values that are not numbers: no route is given
+    refused: tuple[str, ...] = ()  # typed words or impossible numbers: no route is given
 
 
 def observed_ranges(columns) -> dict[str, tuple[float, float]]:
@@ -111,8 +111,8 @@ def _shown(value: float) -> str:
 def _typed_numbers(model: TreeModel, values: dict[str, object],
                    ranges: dict[str, tuple[float, float]]):
     """Each numeric value typed for the lookup as a number, with what is wrong with it: a
-    word is refused, and a number outside what is possible or outside the patients the tree
-    was grown on is flagged, in the lookup's own words (not a file's)."""
+    word or a number outside what is possible is refused, and a number outside the patients
+    the tree was grown on is flagged, in the lookup's own words (not a file's)."""
     numbers, refused, flags = {}, [], []
     for column in model.columns_asked():
         spec, value = model.spec(column), values.get(column)
@@ -140,17 +140,22 @@ def _typed_numbers(model: TreeModel, values: dict[str, object],
         def with_unit(x: float) -> str:
             return _shown(x) + (unit if unit == "%" else f" {unit}" if unit else "")
 
+        # A value no patient can have gets no box, as a word does: a confident answer for a
+        # slip of the keyboard would be read at the bedside before the flag beneath it.
         if spec.plausible is not None:  # the data dictionary's own limits come first
             low, high = spec.plausible
             if not low <= number <= high:
-                flags.append(say("app.lookup_implausible", label=label,
-                                 value=with_unit(number), low=_shown(low),
-                                 high=with_unit(high)))
+                refused.append(say("app.lookup_implausible", label=label,
+                                   value=with_unit(number), low=_shown(low),
+                                   high=with_unit(high)))
+                continue
         elif unit in _POSSIBLE:
             what, low, high = _POSSIBLE[unit]
             if not low <= number <= high:
-                flags.append(say("app.lookup_impossible", label=label, value=with_unit(number),
-                                 what=what, low=_shown(low), high=with_unit(high)))
+                refused.append(say("app.lookup_impossible", label=label,
+                                   value=with_unit(number), what=what, low=_shown(low),
+                                   high=with_unit(high)))
+                continue
         if column in ranges:
             low, high = ranges[column]
             if not low <= number <= high:
@@ -169,8 +174,9 @@ def route_patient(model: TreeModel, values: dict[str, object],
 
     Values are read as the model reads any spreadsheet cell (text like "92" or "ambulance"
     is fine), so the lookup and scoring a file agree. A typed word where a number is asked
-    for is refused (``refused``, no route); a number outside what is possible, or outside
-    ``ranges`` (the derivation patients' values, :func:`observed_ranges`), is routed and
+    for, or a number outside what is possible (the dictionary's plausible values, else 0 to
+    100 for a percentage), is refused (``refused``, no route); a possible number outside
+    ``ranges`` (the derivation patients' values, :func:`observed_ranges`) is routed and
     flagged in ``warnings``.
     """
     numbers, refused, flags = _typed_numbers(model, values, ranges or {})

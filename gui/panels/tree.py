@@ -240,22 +240,23 @@ class TreePanel(StepPanel):
             return
         route = route_patient(model, values, self._derivation_ranges())
         self.last_route = route
-        if route.refused:  # a word typed for a number: said in the lookup's words, no route
+        if route.refused:  # a word or an impossible number: said in the lookup's words, no box
             self.view.light_path(())
             self.result.setText("<p><b>Not looked up yet.</b></p>"
                                 + "".join(warning_html(r) for r in route.refused))
             return
         self.view.light_path(route.boxes)
+        # A value no patient the tree was grown on had is read before the answer, not after.
         warn = "".join(warning_html(w) for w in route.warnings)
         if route.needs is not None:  # no branch for this missing value: which one to measure
             label = model.spec(route.needs).display
-            self.result.setText(f"<p><b>Stops at box {route.waiting_box}.</b></p>"
+            self.result.setText(warn + f"<p><b>Stops at box {route.waiting_box}.</b></p>"
                                 + warning_html(say("app.measure_first", label=label,
-                                                   box=route.waiting_box)) + warn)
+                                                   box=route.waiting_box)))
             self.show_box(route.waiting_box)
             return
         leaf = model.node(route.outcome_box)
         # The way there is lit in the diagram and listed in the box details above.
-        self.result.setText(f"<p><b>Reaches box {route.outcome_box}:</b> {escape(leaf.text)}</p>"
-                            f"{warn}")
+        self.result.setText(f"{warn}<p><b>Reaches box {route.outcome_box}:</b> "
+                            f"{escape(leaf.text)}</p>")
         self.show_box(route.outcome_box)

@@ -114,16 +114,29 @@ def test_the_lookup_flags_values_no_patient_had_and_refuses_words(demo, run, qtb
     others = {c: (f"{np.nanmedian(typed[c].numbers):g}" if typed[c].numbers is not None
                   else model.spec(c).levels[0]) for c in model.columns_asked()}
     tree.set_values(others)
-    # A slip of the keyboard: still routed, with both flags beside the answer.
-    tree.set_values({"spo2": "250"})
-    route = tree.last_route
-    assert route.outcome_box > 0
-    text = tree.result.text()
-    assert f"Reaches box {route.outcome_box}" in text
-    assert f"{label} 250% is impossible for a percentage (0 to 100%)" in text
-    assert (f"{label} 250% lies outside the values of the patients the tree was grown on "
-            f"({low:g} to {high:g}%)") in text
-    assert text.index("Reaches box") < text.index("impossible")  # next to the answer
+    # An impossible value (SpO2 250%, or 150%): no box, like a word; it says which value
+    # is impossible and what to do (issue: a confident answer above the flag).
+    for slip in ("250", "150"):
+        tree.set_values({"spo2": slip})
+        route = tree.last_route
+        assert route.refused and route.outcome_box == 0 and route.boxes == ()
+        text = tree.result.text()
+        assert "Reaches box" not in text and "expect" not in text.lower()
+        assert (f"{label} {slip}% is impossible for a percentage (0 to 100%), so the tree "
+                "gives no outcome box for it; correct the value, or leave it blank if it was "
+                "not measured.") in text
+        assert not any(b.lit for b in tree.view.boxes.values())
+    # Possible but above every patient's value (100% when no patient had it): still a box,
+    # the flag read first.
+    if high < 100:
+        tree.set_values({"spo2": "100"})
+        route = tree.last_route
+        assert route.outcome_box > 0 and not route.refused
+        text = tree.result.text()
+        assert f"Reaches box {route.outcome_box}" in text
+        assert (f"{label} 100% lies outside the values of the patients the tree was grown on "
+                f"({low:g} to {high:g}%)") in text
+        assert text.index("lies outside") < text.index("Reaches box")  # the flag first
     # Inside what the patients had: no flag.
     tree.set_values({"spo2": f"{(low + high) // 2:g}"})
     assert tree.last_route.outcome_box > 0 and not tree.last_route.warnings
@@ -131,8 +144,10 @@ def test_the_lookup_flags_values_no_patient_had_and_refuses_words(demo, run, qtb
     # Below the patients' values but possible: the cohort flag only.
     if low > 1:
         tree.set_values({"spo2": f"{low - 1:g}"})
-        assert len(tree.last_route.warnings) == 1
-        assert "lies outside the values" in tree.result.text()
+        assert len(tree.last_route.warnings) == 1 and tree.last_route.outcome_box > 0
+        text = tree.result.text()
+        assert "lies outside the values" in text
+        assert text.index("lies outside") < text.index("Reaches box")  # the flag first
     # A word: refused in the lookup's words, nothing lit, no file wording.
     tree.set_values({"spo2": "ninety"})
     assert tree.last_route.refused and tree.last_route.outcome_box == 0

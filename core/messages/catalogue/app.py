@@ -50,11 +50,14 @@ ENTRIES = [
      "patients the tree was grown on ({low} to {high}), so the tree has not learnt about such "
      "a patient; check the value before relying on the answer.",
      "Check the value that was typed; a tree says nothing reliable beyond its patients."),
-    ("app.lookup_impossible", "warning", "{label} {value} is impossible for {what} "
-     "({low} to {high}); check the value that was typed.",
-     "Correct the value: a slip of the keyboard still reaches an outcome box."),
-    ("app.lookup_implausible", "warning", "{label} {value} lies outside the plausible values "
-     "the data dictionary gives for it ({low} to {high}); check the value that was typed.",
+    ("app.lookup_impossible", "refused", "{label} {value} is impossible for {what} "
+     "({low} to {high}), so the tree gives no outcome box for it; correct the value, or leave "
+     "it blank if it was not measured.",
+     "Correct the value: an impossible value gets no outcome box, so a slip of the keyboard "
+     "never gets an answer."),
+    ("app.lookup_implausible", "refused", "{label} {value} lies outside the plausible values "
+     "the data dictionary gives for it ({low} to {high}), so the tree gives no outcome box for "
+     "it; correct the value, or leave it blank if it was not measured.",
      "Correct the value, or widen the column's plausible values in the data dictionary if it "
      "can be right."),
     ("app.chart_not_drawn", "refused", "The chart could not be drawn.",
