@@ -58,6 +58,11 @@ def patients_among(groups) -> int | None:
     return None if groups is None else int(np.unique(np.asarray(groups)).size)
 
 
+def shared_patients(n: int) -> str:
+    """'1 of these patients was among the derivation patients' (or 'N … were …')."""
+    return f"{n:,} of these patients {'was' if n == 1 else 'were'} among the derivation patients"
+
+
 def short_fingerprint(digest: str) -> str:
     """The first 12 hexadecimal digits of a SHA-256, as every page and screen shows it."""
     return str(digest)[:12]

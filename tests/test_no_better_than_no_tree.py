@@ -123,7 +123,17 @@ def test_command_line_says_so(random_run, tmp_path):
                    "--model", tmp_path / "m.json")
     assert fit.returncode == 0, fit.stderr
     assert f"Warning: {STATEMENT}" in fit.stdout
-    assert re.search(r"warning: " + re.escape(STATEMENT), fit.stderr)
+    assert STATEMENT not in fit.stderr  # said once, not again on stderr
+    # --quiet prints warnings only: this one on stderr, and no notes.
+    quiet = prunella("fit", path, "--outcome", "outcome", "--folds", "5", "--min-leaf", "40",
+                     "--model", tmp_path / "q.json", "--quiet")
+    assert quiet.returncode == 0 and not quiet.stdout.strip()
+    assert f"warning: {STATEMENT}" in quiet.stderr and "note:" not in quiet.stderr
+    # A chart refused for its one box still leaves the pruning table and the chosen size.
+    charted = prunella("fit", path, "--outcome", "outcome", "--folds", "5", "--min-leaf", "40",
+                       "--model", tmp_path / "c.json", "--chart", tmp_path / "c.pdf")
+    assert charted.returncode == 2 and "Chosen: 1 outcome box" in charted.stdout
+    assert "no decision chart to print" in charted.stderr and "Traceback" not in charted.stderr
     charted = prunella("fit", path, "--outcome", "outcome", "--folds", "5", "--min-leaf", "40",
                        "--model", tmp_path / "m2.json", "--chart", tmp_path / "c.pdf")
     assert charted.returncode == 2 and "no decision chart to print" in charted.stderr
@@ -153,3 +163,17 @@ def test_a_costly_miss_names_the_answer_one_box_gives(tmp_path):
                                          "question is asked.")
     assert "most common" not in model.no_better_warning()
     assert model.no_better_statement in model.rules()
+
+
+def test_the_warning_prints_errors_as_the_app_and_the_path_do(random_run):
+    """'(0.08035) … SE (0.007)' mixed precisions; the warning prints its errors as step 3's
+    '0.088 ± 0.008' does (common practice: one precision for numbers compared together)."""
+    from core.model.path_table import error_text
+
+    model = random_run[0].model
+    chosen = model.chosen
+    warning = model.no_better_warning()
+    assert f"({error_text(model, chosen['cv_risk'])})" in warning
+    assert f"by at least one SE ({error_text(model, chosen['cv_se'])})" in warning
+    assert re.findall(r"\((\d+\.\d+)\)", warning) and all(
+        len(number.split(".")[1]) == 3 for number in re.findall(r"\((\d+\.\d+)\)", warning))

@@ -172,3 +172,10 @@ def test_a_label_inside_a_sentence_keeps_its_abbreviations():
     assert in_sentence("Systolic BP") == "systolic BP"
     assert in_sentence("SpO2 on air") == "SpO2 on air"
     assert in_sentence("Went to") == "went to"
+
+
+def test_one_shared_patient_was_among_the_derivation_patients():
+    from core.phrases import shared_patients
+
+    assert shared_patients(1) == "1 of these patients was among the derivation patients"
+    assert shared_patients(1200) == "1,200 of these patients were among the derivation patients"

@@ -14,7 +14,7 @@ from ..checking.intervals import as_percent
 from ..checking.new_patients import record_summary
 from ..precision import summary_number
 from ..model.tree import ANSWERS, MEASURE_FIRST, Node, TreeModel, answer_verb
-from ..phrases import in_sentence, plural, rows_and_patients, rows_count, short_fingerprint
+from ..phrases import in_sentence, plural, shared_patients, rows_and_patients, rows_count, short_fingerprint
 from .bands import Band, Banding, banding, number, percent, rate_phrase
 from .layout import BoxSpec, Para, TreeSpec
 from .options import ChartOptions
@@ -295,8 +295,8 @@ def _validation(model: TreeModel, options: ChartOptions, check: dict | None
              PanelItem(summary, bold=True))
     if check.get("separate") is False:  # some were derivation patients: not a separate check
         shared = check.get("overlap_patients", 0)
-        items = items + (PanelItem(f"{shared:,} of these patients were among the derivation "
-                                   "patients: not a check on separate patients.", bold=True),)
+        items = items + (PanelItem(f"{shared_patients(shared)}: not a check on separate "
+                                   "patients.", bold=True),)
         return PanelSection("Checked on patients who include derivation patients", items,
                             kind="checked")
     return PanelSection("Checked on separate patients", items, kind="checked")

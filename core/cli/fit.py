@@ -172,7 +172,7 @@ def _fit(args, place) -> int:
                   [args.data, dictionary_path(args.dictionary, args.data)])
     table = read_table(args.data, sheet=args.sheet)
     dictionary, notes = dictionary_for(table, dictionary_path(args.dictionary, args.data))
-    shown = _print_notes(list(table.provenance.warnings) + notes)
+    shown = _print_notes(list(table.provenance.warnings) + notes, quiet=args.quiet)
     request = request_from_args(args, dictionary)
     request, findings = _guarded(args, table, dictionary, request)
     from ..design.guards import findings_from_notes
@@ -187,23 +187,32 @@ def _fit(args, place) -> int:
         write_csv_safely(curve_frame(derivation), args.curve)
     if args.rules:
         write_text_atomic(args.rules, model.rules())
+    # The summary says a tree is no better than no tree itself; --quiet, which prints only
+    # warnings, still gets that one on stderr.
+    no_better = model.no_better_warning() if args.quiet else None
+    _print_notes(list(derivation.notes) + ([no_better] if no_better else []), shown,
+                 quiet=args.quiet)
+    if not args.quiet:
+        # Printed before the chart, so a chart refused (one box, too large) still leaves the
+        # pruning table and the chosen size on screen.
+        print(summary_text(derivation), flush=True)
     if args.chart:
         fit_chart(args, derivation)
-    no_better = model.no_better_warning()
-    _print_notes(list(derivation.notes) + ([no_better] if no_better else []), shown)
-    if not args.quiet:
-        print(summary_text(derivation))
     return 0
 
 
-def _print_notes(notes: list[str], already: list[str] | None = None) -> list[str]:
-    """Print each note once on stderr as 'warning:' or 'note:', as its catalogue entry says;
-    a finding already shown with its rows is not repeated."""
+def _print_notes(notes: list[str], already: list[str] | None = None,
+                 quiet: bool = False) -> list[str]:
+    """Print each note once on stderr as 'warning:' or 'note:', as its catalogue entry says
+    (with ``quiet``, the warnings only); a finding already shown with its rows is not
+    repeated."""
     already = list(already or [])
     fresh = [n for n in distinct_messages(already + notes) if n not in already]
     for note in fresh:
         kind = kind_of(note)
         prefix = "warning" if kind is not None and kind.severity == "warning" else "note"
+        if quiet and prefix == "note":
+            continue
         print(f"{prefix}: {note}", file=sys.stderr)
     return already + fresh
 

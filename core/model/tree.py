@@ -415,9 +415,11 @@ class TreeModel:
             return None
         chosen, risk = self.chosen, self.path.get("cv_risk") or [float("nan")]
         one_box = chosen.get("one_box_cv_risk", risk[-1])
+        from .path_table import error_text  # printed as the app's and the path's errors are
+
         return say("size.no_better_than_no_tree", statement=self.no_tree_statement,
-                   error=f"{chosen['cv_risk']:.4g}", one_box=f"{one_box:.4g}",
-                   se=f"{chosen['cv_se']:.2g}")
+                   error=error_text(self, chosen["cv_risk"]),
+                   one_box=error_text(self, one_box), se=error_text(self, chosen["cv_se"]))
 
     def spec(self, column: str) -> ColumnSpec:
         for spec in self.predictors:

@@ -15,7 +15,9 @@ from reportlab.platypus import KeepTogether, Paragraph
 from .. import __version__
 from ..cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER, UNCHECKED_DETAIL
 from ..chart.options import SMALL_GROUP  # the chart dashes the boxes the report flags
-from ..phrases import METHOD_NAME, patients_among, plural, rows_and_patients, short_fingerprint
+from ..phrases import (
+    METHOD_NAME, patients_among, plural, rows_and_patients, shared_patients, short_fingerprint,
+)
 from ..model.path_table import path_rows
 from ..precision import summary_number
 from .figures import pruning_curve_figure, stability_figure
@@ -84,9 +86,8 @@ def title_page(c: ReportContents, title: str, s: Styles) -> list:
     if c.nested is not None:
         lines.append(f"Honest error of the whole procedure: {c.nested.summary()}.")
     for check in c.checks:
-        shared = ("" if check.separate else f"; {check.overlap_patients:,} of these patients "
-                  "were among the derivation patients, so this is not a check on separate "
-                  "patients")
+        shared = ("" if check.separate else f"; {shared_patients(check.overlap_patients)}, "
+                  "so this is not a check on separate patients")
         lines.append(f"Checked on {check.source} ({check.counted}{shared}): {check.summary}.")
     if c.stability is not None:
         lines.append(f"Stability: {c.stability.summary()}.")
@@ -448,11 +449,12 @@ def _limitations(c: ReportContents, s: Styles) -> list:
     for check in c.checks:
         if not check.separate:
             items.append(f"The check on {check.source} is not a check on separate patients: "
-                         f"{check.overlap_patients:,} of its patients were among the derivation "
-                         "patients.")
+                         f"{shared_patients(check.overlap_patients)}.")
     if not any(ch.kind == "external" and ch.separate for ch in c.checks):
-        items.append("It has not been checked on patients from another site or period in this "
-                     "report; that check is needed before use elsewhere.")
+        # An external check that shares derivation patients is a check, but not a separate one.
+        separate = ("separate " if any(ch.kind == "external" for ch in c.checks) else "")
+        items.append(f"It has not been checked on {separate}patients from another site or "
+                     "period in this report; that check is needed before use elsewhere.")
     for check in c.checks:
         outside = check.calibration_outside
         if outside:

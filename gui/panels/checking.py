@@ -25,7 +25,7 @@ from core.checking import (
 from core.data import read_table
 from core.model import error_text
 from core.option_limits import spin_range
-from core.phrases import plural, short_fingerprint
+from core.phrases import plural, shared_patients, short_fingerprint
 from core.safe_files import save_notes
 from core.report import (
     DECISION_CURVE_READING, calibration_figure, decision_curve_figure, prepare_report,
@@ -66,8 +66,8 @@ def check_html(result) -> str:
              f"{result.counted} checked, on the tree with fingerprint "
              f"{short_fingerprint(result.model_fingerprint)}.</p>"]
     if not result.separate:
-        parts.append(f"<p><b>Not a check on separate patients:</b> {result.overlap_patients:,} "
-                     "of these patients were among the derivation patients.</p>")
+        parts.append(f"<p><b>Not a check on separate patients:</b> "
+                     f"{shared_patients(result.overlap_patients)}.</p>")
     if result.n_excluded:
         parts.append(f"<p>{result.n_excluded:,} of {result.n_rows:,} rows were left out (outcome "
                      "not recorded or not a class the tree knows).</p>")
