@@ -76,3 +76,12 @@ def summary_number(value: float, data_decimals: int | None = None, unit: str = "
     if unit:
         text += unit if unit in ("%", "°C", "°F", "°") else f" {unit}"
     return text
+
+
+def error_number(value: float, task: str, data_decimals: int | None = None,
+                 class_decimals: int = 3) -> str:
+    """One tree error as printed: a mean squared error to its squares' precision, a
+    classification error (rate or cost) to ``class_decimals`` decimals."""
+    if task == "regression":
+        return summary_number(value, data_decimals, power=2)
+    return f"{value:.{class_decimals}f}"

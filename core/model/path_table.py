@@ -12,7 +12,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from ..precision import column_decimals, summary_number
+from ..precision import column_decimals, error_number, summary_number
 from .tree import TreeModel
 
 
@@ -55,9 +55,7 @@ def path_rows(model: TreeModel, class_decimals: int = 4) -> tuple[PathRow, ...]:
 def error_text(model: TreeModel, value: float, class_decimals: int = 3) -> str:
     """One error of ``model``'s kind as printed: a mean squared error to the squares'
     precision, a classification error to ``class_decimals`` decimals."""
-    if model.task == "regression":
-        return summary_number(value, model.outcome_decimals, power=2)
-    return f"{value:.{class_decimals}f}"
+    return error_number(value, model.task, model.outcome_decimals, class_decimals)
 
 
 def root_text(model: TreeModel, value: float) -> str:

@@ -24,7 +24,7 @@ from ..messages.message import say
 from ..phrases import names_phrase, rows_and_patients, rows_word, short_fingerprint
 from ..safe_files import check_format, read_json_document, write_text_atomic
 from .file_checks import check_model_document
-from ..precision import MAX_DECIMALS, summary_number
+from ..precision import MAX_DECIMALS, error_number, summary_number
 from .thresholds import format_number
 
 MODEL_FORMAT = "prunella-model/1"
@@ -415,11 +415,12 @@ class TreeModel:
             return None
         chosen, risk = self.chosen, self.path.get("cv_risk") or [float("nan")]
         one_box = chosen.get("one_box_cv_risk", risk[-1])
-        from .path_table import error_text  # printed as the app's and the path's errors are
+        def error(value: float) -> str:  # as the app's and the path table's errors print
+            return error_number(value, self.task, self.outcome_decimals)
 
         return say("size.no_better_than_no_tree", statement=self.no_tree_statement,
-                   error=error_text(self, chosen["cv_risk"]),
-                   one_box=error_text(self, one_box), se=error_text(self, chosen["cv_se"]))
+                   error=error(chosen["cv_risk"]), one_box=error(one_box),
+                   se=error(chosen["cv_se"]))
 
     def spec(self, column: str) -> ColumnSpec:
         for spec in self.predictors:
