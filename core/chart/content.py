@@ -12,6 +12,7 @@ from .. import __version__
 from ..cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER, UNCHECKED_DETAIL
 from ..checking.intervals import as_percent
 from ..checking.new_patients import record_summary
+from ..messages.message import say
 from ..precision import summary_number
 from ..model.tree import ANSWERS, MEASURE_FIRST, Node, TreeModel, answer_verb
 from ..phrases import in_sentence, plural, shared_patients, rows_and_patients, rows_count, short_fingerprint
@@ -299,6 +300,9 @@ def _validation(model: TreeModel, options: ChartOptions, check: dict | None
                                    "patients.", bold=True),)
         return PanelSection("Checked on patients who include derivation patients", items,
                             kind="checked")
+    if check.get("overlap_known") is False:  # checked where the overlap cannot be told
+        items = items + (PanelItem(say("check.overlap_not_known"), bold=True),)
+        return PanelSection("Checked on other patients", items, kind="checked")
     return PanelSection("Checked on separate patients", items, kind="checked")
 
 

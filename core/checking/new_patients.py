@@ -85,6 +85,10 @@ class CheckResult:
     overlap_patients: int = 0
     overlap_rows: int = 0
     overlap_left_out: bool = False
+    # False where the overlap cannot be told on this computer (the tree was grown on another,
+    # or by a Prunella whose digests are not used): the check is then neither called
+    # separate nor not separate (core/checking/overlap.py).
+    overlap_known: bool = True
     # The file's name, kept apart from ``source``: a name may hold a patient's name, a date
     # of birth or a record number, so the chart prints it only when asked (issue 15.10).
     file: str | None = None
@@ -101,8 +105,11 @@ class CheckResult:
         return self.model_fingerprint == model.fingerprint_before_check
 
     @property
-    def separate(self) -> bool:
-        """Whether the patients checked are separate from the derivation patients."""
+    def separate(self) -> bool | None:
+        """Whether the patients checked are separate from the derivation patients; None
+        where that is not known on this computer."""
+        if not self.overlap_known:
+            return None
         return self.overlap_patients == 0 or self.overlap_left_out
 
     @property
@@ -136,8 +143,11 @@ class CheckResult:
             record["data_sha256"] = self.data_sha256
         if self.file:
             record["file"] = self.file
-        record["overlap_patients"] = self.overlap_patients
-        record["separate"] = self.separate
+        if self.overlap_known:
+            record["overlap_patients"] = self.overlap_patients
+            record["separate"] = self.separate
+        else:  # neither separate nor not: a count of 0 would say more than is known
+            record["overlap_known"] = False
         # Plain numbers under the keys the first held-out check used (accuracy, risk,
         # mean_squared_error); [value, low, high] triples for the measures with intervals.
         if isinstance(m, RegressionMeasures):
@@ -171,6 +181,8 @@ class CheckResult:
         data["summary"] = self.summary
         data["calibration_outside"] = list(self.calibration_outside)
         data["separate"] = self.separate
+        if not self.overlap_known:
+            data["overlap_patients"] = data["overlap_rows"] = None
         return _json_safe(data)
 
     def text(self) -> str:
@@ -470,7 +482,8 @@ def check_table(model: TreeModel, table: LoadedTable, source: str | None = None,
     frame = table.frame
     report, mapping = match_columns(model, frame.columns)
     frame = frame.rename(columns=mapping)[[c for c in mapping.values()]].reset_index(drop=True)
-    shared, overlap_patients = overlapping_rows(model.extra.get("derivation_ids"), frame)
+    overlap = overlapping_rows(model.extra.get("derivation_ids"), frame)
+    shared, overlap_patients = overlap.rows, overlap.patients
     overlap_rows = int(shared.sum())
     if leave_out_overlap and overlap_rows:
         frame = frame.loc[~shared].reset_index(drop=True)
@@ -502,6 +515,8 @@ def check_table(model: TreeModel, table: LoadedTable, source: str | None = None,
     if overlap_patients:  # said first: it decides what kind of check this is
         notes.insert(0, say("check.overlap_left_out" if leave_out_overlap else "check.overlap",
                             patients=overlap_patients, rows=overlap_rows))
+    elif not overlap.known:  # said once, first, and the check goes on
+        notes.insert(0, overlap.not_known)
     notes = list(table.provenance.warnings) + notes
     routed = leaves > 0
     y, leaves, rows = y[routed], leaves[routed], rows.loc[routed].reset_index(drop=True)
@@ -525,7 +540,8 @@ def check_table(model: TreeModel, table: LoadedTable, source: str | None = None,
         model_fingerprint=model.fingerprint_before_check,
         data_sha256=table.provenance.sha256, needs_value=needs,
         overlap_patients=overlap_patients, overlap_rows=overlap_rows,
-        overlap_left_out=bool(leave_out_overlap and overlap_rows), file=f"{name}{sheet}")
+        overlap_left_out=bool(leave_out_overlap and overlap_rows), overlap_known=overlap.known,
+        file=f"{name}{sheet}")
 
 
 def with_check(model: TreeModel, result: CheckResult) -> TreeModel:

@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import math
 
+from ..checking.overlap import DIGEST_FORMAT
 from ..document_checks import LONG_TEXT_LENGTH, TEXT_LENGTH, Field
 from ..precision import MAX_DECIMALS
 from ..sizing.request_checks import check_request_document
@@ -198,11 +199,16 @@ def _check_findings(findings: Field) -> None:
 
 
 def _check_digests(ids: Field) -> None:
-    """Salted digests of the derivation patients' identifiers (core/checking/overlap.py)."""
+    """Keyed digests of the derivation patients' identifiers with the key's name, or an
+    earlier file's salted ones (never used for matching; core/checking/overlap.py)."""
     if not ids.object(optional=ids.unsaid):
         return
     ids["column"].text(optional=False)
-    ids["salt"].text(optional=False, longest=100)
+    if "format" in ids.value:
+        ids["format"].text(optional=False, choices=(DIGEST_FORMAT,))
+        ids["key_id"].text(optional=False, longest=100)
+    else:
+        ids["salt"].text(optional=False, longest=100)
     digests = ids["digests"]
     digests.list(optional=False, most=MAX_PATIENTS)
     if not all(isinstance(d, str) and len(d) <= 128 for d in digests.value):
@@ -221,6 +227,7 @@ def _check_validation(check: Field) -> None:
     check["patients"].whole(least=None)
     check["overlap_patients"].whole(optional=check["overlap_patients"].unsaid, least=None)
     check["separate"].truth()
+    check["overlap_known"].truth()
     check["model_fingerprint"].text(longest=128)
     check["warnings"].texts(most=MAX_FINDINGS, longest=LONG_TEXT_LENGTH)
     check["calibration_outside"].list(most=MAX_FINDINGS)

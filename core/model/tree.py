@@ -258,9 +258,11 @@ class Scored:
     waiting: np.ndarray | None = None  # the question box where that row waits, else 0
 
 
-# Parts of a model file that are not the tree: the guards' notes about the data, and the
-# check recorded on separate patients (which names the tree by this fingerprint itself).
-NOT_THE_TREE = ("findings", "validation")
+# Parts of a model file that are not the tree: the guards' notes about the data, the check
+# recorded on separate patients (which names the tree by this fingerprint itself), and the
+# digests of the derivation patients' identifiers, keyed with the growing computer's own key
+# (the same tree grown elsewhere has other digests, and is the same tree).
+NOT_THE_TREE = ("findings", "validation", "derivation_ids")
 
 
 def _digest(document: dict) -> str:
@@ -464,11 +466,27 @@ class TreeModel:
         to recognise a tree in a project saved by that version."""
         return _digest({k: v for k, v in self.to_dict().items() if k != "findings"})
 
+    @property
+    def fingerprint_with_digests(self) -> str:
+        """The fingerprint as computed before the identifier digests were left out of it
+        (they were salted then): only to recognise a tree, or its check, saved that way."""
+        return _digest({k: v for k, v in self.to_dict().items()
+                        if k not in ("findings", "validation")})
+
+    @property
+    def earlier_fingerprints(self) -> tuple[str, ...]:
+        """The fingerprints earlier versions gave this very tree (an earlier project or check
+        names it by one of these)."""
+        if "derivation_ids" not in self.extra:
+            return (self.fingerprint_with_check,)
+        return (self.fingerprint_with_digests, self.fingerprint_with_check)
+
     def is_named_by(self, fingerprint: str | None) -> bool:
         """Whether ``fingerprint`` (from a project or a check) names this tree, as this
-        version or Prunella 0.1 (whose fingerprint held the check) computed it."""
+        version or an earlier one (Prunella 0.1's held the check, a later one the
+        digests) computed it."""
         return fingerprint is not None and fingerprint in (self.fingerprint,
-                                                           self.fingerprint_with_check)
+                                                           *self.earlier_fingerprints)
 
     @property
     def short_fingerprint(self) -> str:
@@ -488,9 +506,10 @@ class TreeModel:
         another tree or written by Prunella 0.1 (which did not name the tree) does not count:
         the chart, the report and the app then say the tree is not yet checked."""
         record = self.extra.get("validation")
-        if not isinstance(record, dict) or \
-                record.get("model_fingerprint") != self.fingerprint_before_check:
-            return None
+        named = (self.fingerprint_before_check,) + (
+            (self.fingerprint_with_digests,) if "derivation_ids" in self.extra else ())
+        if not isinstance(record, dict) or record.get("model_fingerprint") not in named:
+            return None  # (a check saved before the digests left the fingerprint still counts)
         return record
 
     @property

@@ -15,6 +15,7 @@ from reportlab.platypus import KeepTogether, Paragraph
 from .. import __version__
 from ..cautions import CAUTION_TITLE, CAUTIONS, UNCHECKED_BANNER, UNCHECKED_DETAIL
 from ..chart.options import SMALL_GROUP  # the chart dashes the boxes the report flags
+from ..messages.message import say
 from ..phrases import (
     METHOD_NAME, patients_among, plural, rows_and_patients, shared_patients, short_fingerprint,
 )
@@ -86,8 +87,12 @@ def title_page(c: ReportContents, title: str, s: Styles) -> list:
     if c.nested is not None:
         lines.append(f"Honest error of the whole procedure: {c.nested.summary()}.")
     for check in c.checks:
-        shared = ("" if check.separate else f"; {shared_patients(check.overlap_patients)}, "
-                  "so this is not a check on separate patients")
+        if check.separate is None:  # checked away from the computer the tree was grown on
+            unknown = say("check.overlap_not_known").rstrip(".")
+            shared = "; " + unknown[0].lower() + unknown[1:]
+        else:
+            shared = ("" if check.separate else f"; {shared_patients(check.overlap_patients)}, "
+                      "so this is not a check on separate patients")
         lines.append(f"Checked on {check.source} ({check.counted}{shared}): {check.summary}.")
     if c.stability is not None:
         lines.append(f"Stability: {c.stability.summary()}.")
@@ -116,7 +121,8 @@ def _data_source(c: ReportContents, s: Styles) -> list:
         rows.append(["Text encoding, delimiter, decimal mark",
                      f"{p.encoding}, {p.delimiter!r}, {p.decimal!r}"])
     rows.append(["Model fingerprint (SHA-256 of the model's canonical JSON without its "
-                 "recorded check: keys sorted, no spaces; a check names the tree by it)",
+                 "recorded check and identifier digests: keys sorted, no spaces; a check "
+                 "names the tree by it)",
                  _grouped(model.fingerprint)])
     story = [para("The tree was derived from the file below. The fingerprint identifies its exact "
                   "bytes: a file with another fingerprint is other data.", s.body),
@@ -447,7 +453,9 @@ def _limitations(c: ReportContents, s: Styles) -> list:
     items.append(f"The tree comes from one cohort{where}; it is valid only for patients like "
                  "those it was derived from.")
     for check in c.checks:
-        if not check.separate:
+        if check.separate is None:
+            items.append(f"The check on {check.source}: {say('check.overlap_not_known')}")
+        elif not check.separate:
             items.append(f"The check on {check.source} is not a check on separate patients: "
                          f"{shared_patients(check.overlap_patients)}.")
     if not any(ch.kind == "external" and ch.separate for ch in c.checks):

@@ -102,11 +102,11 @@ def build_model(path: CrossValidatedPath, index: int, rule: str, table: LoadedTa
     }
     design = request.design
     if design.patient_id and design.patient_id in table.frame.columns:
-        # Salted digests of the derivation patients' identifiers, so that a later check can
-        # tell whether its patients are separate (core/checking/overlap.py).
+        # Digests of the derivation patients' identifiers keyed with this computer's key
+        # (never written out), so that a later check here can tell whether its patients are
+        # separate (core/checking/overlap.py).
         cells = table.frame[design.patient_id].iloc[data.rows]
-        extra["derivation_ids"] = derivation_ids(cells, design.patient_id,
-                                                 table.provenance.sha256[:16] or "prunella")
+        extra["derivation_ids"] = derivation_ids(cells, design.patient_id)
     if grown.settings.coarsen is not None:  # what the chart, the report and the app say
         extra["coarsened"] = {"levels": int(grown.settings.coarsen),
                               "columns": [c.spec.name for c in encoding.columns

@@ -11,6 +11,7 @@ from dataclasses import dataclass, field, replace
 
 import numpy as np
 
+from ..checking.identifier_key import identifier_key
 from ..checking.new_patients import CheckResult, check_heldout, with_check
 from ..data.table import LoadedTable
 from ..design.analysis import AnalysisData, prepare_analysis
@@ -65,6 +66,8 @@ def derive(table: LoadedTable, dictionary: DataDictionary, request: DerivationRe
     """Grow, prune and cross-validate a tree and choose its size as the request says.
     ``findings`` (the guards' findings as records) are kept in the model file."""
     check_request_limits(request)  # every number inside the table, before any work
+    if request.design.patient_id:  # the identifier key is made, or refused, before growing
+        identifier_key(create=True)
     full = prepare_analysis(table.frame, dictionary, request.design)
     notes = list(full.notes)
     heldout = None

@@ -65,7 +65,8 @@ def check_html(result) -> str:
     parts = [f"<p><b>{escape(result.source_and_file[0].upper() + result.source_and_file[1:])}</b>: "
              f"{result.counted} checked, on the tree with fingerprint "
              f"{short_fingerprint(result.model_fingerprint)}.</p>"]
-    if not result.separate:
+    # Where the overlap cannot be told here (None), the check's own warning says so, once.
+    if result.separate is False:
         parts.append(f"<p><b>Not a check on separate patients:</b> "
                      f"{shared_patients(result.overlap_patients)}.</p>")
     if result.n_excluded:

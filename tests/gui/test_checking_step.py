@@ -136,3 +136,34 @@ def test_the_decision_curve_sentence_sits_below_its_plot(demo, run):
             if "Decision curve" in words.text():
                 assert words.geometry().top() >= canvas.geometry().bottom()
                 assert words.geometry().height() >= words.heightForWidth(words.width())
+
+
+def test_a_tree_grown_on_another_computer_leaves_the_overlap_not_known(
+        grown, qtbot, dialogs, tmp_path, monkeypatch):
+    """The key of the identifier digests is on the computer the tree was grown on: here (a
+    new key) the check says once that the overlap cannot be checked, and never calls its
+    patients separate or not."""
+    from core.checking.identifier_key import identifier_key
+    from gui.panels.checking import check_html
+
+    monkeypatch.setenv("PRUNELLA_IDENTIFIER_KEY_FILE", str(tmp_path / "other_key"))
+    identifier_key(create=True)
+    window = grown
+    checking = window.panels["checking"]
+    frame = pd.read_csv(DEMO)
+    path = tmp_path / "north.csv"
+    frame[frame["campus"] == "North"].to_csv(path, index=False)
+    dialogs.open_name = str(path)
+    qtbot.mouseClick(checking.external_button, Qt.LeftButton)
+    qtbot.waitUntil(lambda: not checking.running and len(checking.checks) == 2, timeout=20000)
+    external = checking.checks[-1]
+    assert external.kind == "external" and external.separate is None
+    sentence = "can only be checked on the computer the tree was grown on"
+    from PySide6.QtWidgets import QLabel
+
+    shown = "\n".join(label.text() for label in checking.findChildren(QLabel))
+    assert shown.count(sentence) == 1
+    assert "from an external file (north.csv)" in _labels(checking)
+    assert "separate patients" not in check_html(external)
+    record = window.session.chart_derivation().model.extra["validation"]
+    assert record["overlap_known"] is False and "separate" not in record

@@ -38,6 +38,29 @@ ENTRIES = [
     ("check.overlap_left_out", "note", "{patients} patient(s) of this file ({rows} row(s)) "
      "were among the derivation patients; their rows were left out, so the check is on "
      "separate patients.", "Nothing to do."),
+    ("check.overlap_elsewhere", "warning", "Overlap with the derivation patients can only "
+     "be checked on the computer the tree was grown on (it keeps the key of the identifier "
+     "digests), so whether this file shares patients with them is not known.",
+     "Check the file on the computer the tree was grown on to know whether its patients are "
+     "separate; the rest of the check stands."),
+    ("check.overlap_old_digests", "warning", "This model file was written by an earlier "
+     "Prunella, whose digests of the derivation patients' identifiers are not safe to use, so "
+     "whether this file shares patients with them is not known.",
+     "Grow the tree again with this version to check overlap; the rest of the check stands."),
+    ("check.overlap_not_known", "note", "Whether these patients include derivation patients "
+     "is not known: overlap can only be checked on the computer the tree was grown on.",
+     "Check the file on the computer the tree was grown on."),
+    ("check.key_file_unsafe", "refused", "The identifier key file {path} is {what}, not a "
+     "private regular file; make it a regular file readable only by you (chmod 600 {path}) "
+     "or restore it from your backup.",
+     "The key file keeps patient identifiers unrecoverable from model files; keep it private."),
+    ("check.key_file_damaged", "refused", "The identifier key file {path} does not hold a key "
+     "of {n} bytes; restore it from your backup, or remove it to start a new key (trees grown "
+     "with the old key can then no longer be checked for overlap).",
+     "Restore the key file from your backup."),
+    ("check.key_file_unwritable", "refused", "The identifier key file {path} could not be "
+     "written ({reason}); make its folder writable, or name another path in "
+     "PRUNELLA_IDENTIFIER_KEY_FILE.", "The key file must be on this computer and private."),
     ("check.needs_value", "warning", "{n} row(s) were left out of the check because a value "
      "the tree asks for was not recorded where no derivation patient lacked it ({parts}).",
      "Measure these values; the tree has no evidence for where such a patient belongs."),
