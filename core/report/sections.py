@@ -461,6 +461,8 @@ def _limitations(c: ReportContents, s: Styles) -> list:
     if not any(ch.kind == "external" and ch.separate for ch in c.checks):
         # An external check that shares derivation patients is a check, but not a separate one.
         separate = ("separate " if any(ch.kind == "external" for ch in c.checks) else "")
+        if any(ch.kind == "external" and ch.separate is None for ch in c.checks):
+            separate = "known separate "  # an overlap not known here is not called separate
         items.append(f"It has not been checked on {separate}patients from another site or "
                      "period in this report; that check is needed before use elsewhere.")
     for check in c.checks:
