@@ -196,3 +196,11 @@ def test_the_unseen_note_names_each_level_with_its_rows_never_the_column_and_a_c
     label = model.spec("arrival_mode").display
     assert f"{label}: 13 (11 rows), 12 (7 rows), canoe (1 row) were not seen" in note
     assert "(19 cell(s))" in note and f"({label} 19)" not in note
+
+
+def test_calibration_lines_say_whose_share_they_show(demo, north):
+    """'box 5 yes derivation 3%' read as box 5's answer; the line names the share's class."""
+    table, _, _ = demo
+    result = check_table(north.model, _campus(table, "Riverside"))
+    lines = [line for line in result.text().splitlines() if line.startswith("  box ")]
+    assert lines and all(" share " in line for line in lines)

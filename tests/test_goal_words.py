@@ -11,6 +11,11 @@ def test_words_use_the_outcomes_own_levels_and_round_per_100():
     assert group_name("discharge", "ward") == "patients with “ward”"
     assert group_name("discharge", "ward", "visits", noun=False) == "with “ward”"
     assert "about 0 of every 100" in counts_in_words(0, 0, 0, 5, "died", "yes", "no")
+    # An outcome named as an event, not as what patients are: never "not PICU transfer".
+    event = counts_in_words(90, 100, 88, 100, "PICU transfer", "yes", "no", aim="cost",
+                            unit="visits")
+    assert "of every 100 visits with PICU transfer" in event
+    assert "of every 100 without PICU transfer." in event and "not PICU" not in event
 
 
 def test_rule_in_and_cost_sentences_name_the_levels_and_count_visits():

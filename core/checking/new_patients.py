@@ -215,7 +215,9 @@ class CheckResult:
                 places = getattr(m, "decimals", None)
                 derived = r.derivation_text(percent, places)
                 flag = {True: "", False: "  <- outside", None: ""}[r.agrees]
-                lines.append(f"  box {r.box:>3} {r.label:<14} derivation {derived:>6} of "
+                # The class whose share is shown, said so: a bare "yes" read as the box's answer.
+                label = f"share {r.label}" if percent else r.label
+                lines.append(f"  box {r.box:>3} {label:<14} derivation {derived:>6} of "
                              f"{r.derivation_n:<5} new {r.observed_text(percent, places)} of {r.n}{flag}")
         return "\n".join(lines)
 

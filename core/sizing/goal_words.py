@@ -24,13 +24,21 @@ AIMS = ("sensitivity", "specificity", "cost")  # rule out, rule in, a plain miss
 
 def group_name(outcome: str, level: str, unit: str = "patients", noun: bool = True) -> str:
     """Patients (or visits) of one outcome level in words: 'admitted patients' for yes, 'not
-    admitted' for no, else 'patients with “ward”' (the level's own name). ``noun=False``
+    admitted' for no ('visits with PICU transfer', 'without PICU transfer' for an outcome
+    named as an event), else 'patients with “ward”' (the level's own name). ``noun=False``
     leaves the noun out where the sentence has already said it ('with “no fall”')."""
     word = str(level).strip().lower()
+    # "admitted" describes patients ("admitted patients", "not admitted"); "PICU transfer"
+    # names an event they have or not ("visits with PICU transfer", "without PICU transfer").
+    describes = outcome.strip().split(" ")[-1].lower().endswith("ed")
     if word in YES:
-        return f"{outcome} {unit}" if noun else outcome
+        if describes:
+            return f"{outcome} {unit}" if noun else outcome
+        return f"{unit} with {outcome}" if noun else f"with {outcome}"
     if word in NO:
-        return f"not {outcome}"
+        if describes:
+            return f"not {outcome}"
+        return f"{unit} without {outcome}" if noun else f"without {outcome}"
     return f"{unit} with “{level}”" if noun else f"with “{level}”"
 
 
