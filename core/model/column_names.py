@@ -78,7 +78,7 @@ def refuse_absent(model: TreeModel, absent: Iterable[str], columns: Iterable,
     if not near:
         raise InputError(say("check.columns_absent", columns=named))
     raise InputError(say("check.columns_near", columns=named,
-                         near=", ".join(f"{n!r} for {c!r}" for c, n in near)))
+                         near=", ".join(f"{n!r} (for {c!r})" for c, n in near)))
 
 
 def columns_for_tree(model: TreeModel, columns: Iterable) -> tuple[

@@ -11,7 +11,7 @@ ENTRIES = [
      "{columns}; add them, named as in the derivation data.",
      "Every column the tree asks about must be in the file."),
     ("check.columns_near", "refused", "The file lacks column(s) the tree asks about: "
-     "{columns}; it has {near}, which looks meant for it: rename that column to the tree's "
+     "{columns}; the file's {near} looks meant for it, so rename that column to the tree's "
      "name (or add the column).", "Every column the tree asks about must be in the file, "
      "named as in the derivation data."),
     ("check.no_outcome_near", "refused", "The file has no column {name!r} ({label}), the "
