@@ -84,6 +84,21 @@ def test_the_command_line_refuses_a_name_as_patient_number(tmp_path):
     assert (sha256_of(path), path.stat().st_mtime_ns) == before
 
 
+def test_a_name_named_as_a_predictor_is_refused_without_teaching_the_way_round(tmp_path):
+    """The refusal for a text column told how to make it a predictor ("set its kind to
+    numeric, …"); for a column of names it says it identifies patients instead."""
+    path = tmp_path / "icu.csv"
+    visits().to_csv(path, index=False)
+    before = (sha256_of(path), path.stat().st_mtime_ns)
+    run = prunella("fit", path, "--outcome", "ICU", "--predictors", "Sats,Patient name",
+                   "--model", tmp_path / "m.json", "--folds", "3")
+    assert run.returncode == 2 and "Traceback" not in run.stderr
+    lines = [line for line in run.stderr.splitlines() if line.startswith("prunella: ")]
+    assert len(lines) == 1 and "seems to identify patients" in lines[0], run.stderr
+    assert "set its kind to numeric" not in run.stderr
+    assert (sha256_of(path), path.stat().st_mtime_ns) == before
+
+
 def test_names_that_repeat_often_are_still_names_said_once():
     """A ward's residents recur across many visits, so a name column need not be mostly
     distinct: 80 names over 1,400 visits are still names, and the identity warning is the only

@@ -199,6 +199,9 @@ def prepare_analysis(frame: pd.DataFrame, dictionary: DataDictionary,
         if spec.kind == "date":
             raise InputError(say("design.predictor_is_date", name=spec.display))
         if spec.kind not in PREDICTOR_KINDS:
+            if spec.note.startswith("identity: "):  # never teach the way round the guard
+                raise InputError(say("design.predictor_identifies", name=spec.display,
+                                     what=spec.note[len("identity: "):]))
             raise InputError(say("design.predictor_kind", name=spec.display, kind=spec.kind))
         column = typed_column(frame[name].iloc[rows].reset_index(drop=True), spec)
         notes.extend(column.notes)

@@ -23,6 +23,10 @@ ENTRIES = [
     ("design.predictor_kind", "refused", "{name!r} is marked as {kind}, which a tree cannot "
      "ask about; set its kind to numeric, binary, ordinal or nominal, or take it out of the "
      "predictors.", "Change its kind in the data dictionary, or leave it out."),
+    ("design.predictor_identifies", "refused", "{name!r} seems to identify patients "
+     "({what}), and a chart must never print it; take it out of the predictors.",
+     "Leave identifying columns out; if it does not identify anyone, say so by setting its "
+     "use and kind in step 1's table or the data dictionary."),
     ("design.predictor_is_date", "refused", "{name!r} holds dates, and a question on them "
      "would split patients by when they came, not by anything about them; take it out of the "
      "predictors.", "If the period matters, add a column that names it (the year, or before "
