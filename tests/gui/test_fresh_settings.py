@@ -12,6 +12,7 @@ import numpy as np  # noqa: E402
 import pandas as pd  # noqa: E402
 import pytest  # noqa: E402
 
+from core.design import default_design  # noqa: E402
 from core.sizing import CVSettings, TreeSettings  # noqa: E402
 
 
@@ -44,6 +45,8 @@ def test_another_file_resets_every_setting(demo, qtbot, run, clinic_file):
     window, session = demo, demo.session
     outcome, size = window.panels["outcome"], window.panels["size"]
     window.go_to("outcome")
+    _pick(outcome.positive_combo, "no")  # the other class to catch
+    assert session.design.positive == "no"
     outcome.cost_spin.setValue(3.0)
     assert session.tree.miss_cost == 3.0
     assert "3.0" in outcome.cost_spin.text()
@@ -84,7 +87,10 @@ def test_another_file_resets_every_setting(demo, qtbot, run, clinic_file):
     _pick(combo, "readmitted")
     assert session.design.outcome == "readmitted"
     assert session.tree == TreeSettings() and session.cv == CVSettings() and session.goal is None
+    default = default_design(session.dictionary, "readmitted")
+    assert session.design.positive == default.positive == "back within 30 days"
     # ... and every widget shows them.
+    assert outcome.positive_combo.currentData() == "back within 30 days"
     assert outcome.cost_spin.value() == 1.0
     assert outcome.goal_combo.currentData() == "cost" and outcome.goal_spin.value() == 95
     assert outcome.cost_spin.isEnabled() and not outcome.goal_spin.isEnabled()
