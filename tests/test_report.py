@@ -278,3 +278,27 @@ def test_the_report_calls_the_error_an_error(written):
     for wrong in ("Training risk", "Cross-validated risk", "Node risk", "Risk:"):
         assert wrong not in words
     assert "Error: " in words  # the pruning-path table's caption
+
+
+def test_a_check_whose_overlap_is_not_known_is_neither_separate_nor_not(contents, tmp_path,
+                                                                        monkeypatch):
+    """Checked with another computer's key: the report says the overlap is not known, and
+    calls that check neither a check on separate patients nor not one."""
+    from dataclasses import replace
+
+    from core.checking.identifier_key import identifier_key
+
+    table, _, _ = demo_inputs()
+    frame = table.frame
+    riverside = LoadedTable(frame[frame["campus"] == "Riverside"].reset_index(drop=True),
+                            table.provenance)
+    monkeypatch.setenv("PRUNELLA_IDENTIFIER_KEY_FILE", str(tmp_path / "other_key"))
+    identifier_key(create=True)
+    elsewhere = check_table(contents.model, riverside, source="Riverside elsewhere")
+    assert elsewhere.separate is None
+    words = re.sub(r"\s+", " ", _text(render_report(replace(contents, checks=(elsewhere,),
+                                                            nested=None, stability=None))))
+    assert "include derivation patients is not known" in words
+    assert "Riverside elsewhere is not a check on separate patients" not in words
+    assert "so this is not a check on separate patients" not in words
+    assert "not been checked on known separate patients" in words
