@@ -161,11 +161,13 @@ def test_the_report_counts_visits_or_patients(files):
     assert f"was grown on {derivation.data.n} patients" in words
     assert f"{derivation.heldout.n} patients" in words  # set aside before growing
     assert "Patients (rows with a recorded outcome, used for growing)" in words
+    assert "Minimum patients per outcome box" in words
     words, derivation = _report_words(paths["repeat"], "stay_days", "Record no",
                                       (paths["repeat_ext"],))
     data = derivation.data
     assert f"was grown on {data.n} visits of {np.unique(data.groups).size} patients" in words
     assert "Visits (rows with a recorded outcome, used for growing)" in words
+    assert "Minimum visits per outcome box" in words  # the box size counts rows
     ext = pd.read_csv(paths["repeat_ext"])
     assert f"{len(ext)} visits of {ext['Record no'].nunique()} patients checked" in words
     # Every bare count of patients belongs to "N visits of M patients" or names patients as

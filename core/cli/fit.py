@@ -56,7 +56,7 @@ def add_parsers(sub) -> None:
                      help="share of patients set aside before growing, "
                      "to check the tree on (e.g. 0.25)")
     fit.add_argument("--min-leaf", type=option_type("min_leaf"),
-                     default=5, help="fewest patients an outcome box may hold (default 5)")
+                     default=5, help="fewest rows an outcome box may hold: visits, or patients where each came once (default 5)")
     fit.add_argument("--max-depth", type=option_type("max_depth"),
                      help="maximum depth of the grown tree")
     fit.add_argument("--coarsen", type=option_type("coarsen"), metavar="N",

@@ -244,7 +244,7 @@ def _settings(c: ReportContents, s: Styles) -> list:
             ["Task", model.task],
             ["Grower", f"scikit-learn {sklearn.__version__} decision tree, split criterion "
                        f"{criterion}, best splitter"],
-            ["Minimum patients per outcome box", f"{t.min_leaf:,}"],
+            [f"Minimum {model.rows_word} per outcome box", f"{t.min_leaf:,}"],
             ["Maximum depth", str(t.max_depth) if t.max_depth else "none (grown to the minimum box size)"],
             ["Measurements coarsened", model.coarsening() or "no (every observed value was "
              "a possible threshold)"]]
