@@ -248,3 +248,18 @@ def test_an_earlier_salted_model_is_never_matched(files, tmp_path):
     ran = prunella("check", tmp_path / "old.json", folder / "external.csv")
     assert ran.returncode == 0, ran.stderr
     assert ran.stdout.count("earlier Prunella") == 1
+
+
+@pytest.mark.parametrize("change, field", [
+    ({"format": "sha1/1"}, "derivation_ids.format"),
+    ({"key_id": 7}, "derivation_ids.key_id"),
+    ({"format": "hmac-sha256/1", "key_id": None}, "derivation_ids.key_id"),
+])
+def test_a_tampered_digest_record_is_refused_naming_its_field(files, change, field):
+    from core.errors import InputError
+
+    _, model = files
+    data = json.loads(model.to_json())
+    data["derivation_ids"].update(change)
+    with pytest.raises(InputError, match=field.replace(".", r"\.")):
+        TreeModel.from_dict(data)
