@@ -122,6 +122,7 @@ def test_repeat_visits_are_counted_as_visits_of_patients(files, outcome):
     assert VISITS.search(rules) and not PATIENTS.search(rules), rules
     chart = _chart_words(model)
     assert f"{visits} visits of {patients} patients" in chart
+    assert "per patient" not in chart  # the error is a cost per visit here
     assert not PATIENTS.search(chart.replace(f"of {patients} patients", "")), chart
     # Checked on a file of repeat visits: visits of patients; on one row per patient: patients.
     ran = prunella("check", model_path, paths["repeat_ext"])
@@ -175,3 +176,16 @@ def test_the_report_counts_visits_or_patients(files):
     stray = [m.group(0) for m in PATIENTS.finditer(words)
              if not re.search(r"visits of $", words[max(0, m.start() - 10):m.start()])]
     assert not stray, stray
+
+
+def test_the_nested_error_is_a_cost_per_visit_where_rows_are_visits(files):
+    from core.checking import nested_cross_validate
+
+    folder, paths = files
+    table = read_table(paths["repeat"])
+    dictionary, _ = infer_dictionary(table.frame)
+    request = DerivationRequest(DesignSpec("transfused", PREDICTORS, patient_id="Record no"),
+                                cv=CVSettings(folds=3))
+    data = derive(table, dictionary, request).data
+    nested = nested_cross_validate(data, request, outer_folds=2)
+    assert nested.risk_measure == "expected misclassification cost per visit"

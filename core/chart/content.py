@@ -226,7 +226,7 @@ def _rule(model: TreeModel) -> str:
 
 def _performance(model: TreeModel) -> PanelSection:
     chosen, path = model.chosen, model.path
-    measure = path.get("risk_measure", "error")
+    measure = model.error_measure  # "per visit" where the rows are visits
     if model.task == "regression":
         name = "mean squared error"
         unit = f" {model.outcome.unit}" if model.outcome.unit else ""

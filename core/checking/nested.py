@@ -20,7 +20,7 @@ from ..errors import InputError
 from ..precision import decimals_observed, summary_number
 from ..messages.message import say
 from ..option_limits import check_request_limits, check_setting
-from ..phrases import plural
+from ..phrases import patients_among, plural, rows_word
 from ..progress import CancelFlag, Progress, stop_if_cancelled
 from ..sizing.cross_validated_path import case_losses, cross_validate_path, path_nodes
 from ..sizing.folds import CVSettings, fold_plan
@@ -155,7 +155,8 @@ def nested_cross_validate(data: AnalysisData, request: DerivationRequest,
         measures = classification_measures(data.y, predicted, probabilities, data.classes,
                                            loss=costs.loss, case_weight=costs.case_weight,
                                            groups=data.groups)
-        risk_measure = "expected misclassification cost per patient"
+        per = rows_word(data.n, patients_among(data.groups))[:-1]  # "visit" or "patient"
+        risk_measure = f"expected misclassification cost per {per}"
     else:
         measures = regression_measures(data.y, predicted, label=data.outcome.display,
                                        unit=data.outcome.unit, groups=data.groups,
