@@ -97,7 +97,8 @@ def _nudged(draw, value, texts: list[str]):
     if isinstance(value, bool):
         return not value
     if isinstance(value, (int, float)):
-        return draw(st.sampled_from([value + 1, value - 1, value * 10, -value, value / 3]))
+        third = value // 3 if isinstance(value, int) else value / 3  # ints of any size
+        return draw(st.sampled_from([value + 1, value - 1, value * 10, -value, third]))
     if isinstance(value, str):
         return draw(st.sampled_from(texts))
     if isinstance(value, list) and value:

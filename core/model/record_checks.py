@@ -35,6 +35,7 @@ def check_records(top: Field, classes: list, predictors: dict) -> None:
     # Each record may be left out, never null: readers take a default only for an absent one.
     if top["settings"].object(optional=top["settings"].unsaid):
         check_request_document(top["settings"])
+        _check_design_fits(top["settings"]["design"], top.value, predictors)
     _check_data(top["data"])
     _check_cohort(top["cohort"], classes)
     _check_costs(top["costs"], classes)
@@ -112,6 +113,16 @@ def _check_chosen(chosen: Field, leaves: int) -> None:
         chosen[key].number()
         if chosen[f"{key}_interval"].value is not None:
             chosen[f"{key}_interval"].numbers(length=2, nulls=True)
+
+
+def _check_design_fits(design: Field, document: dict, predictors: dict) -> None:
+    """The settings name the tree's own outcome and predictors (``prunella report`` grows
+    the tree again from them)."""
+    outcome = document["outcome_spec"]["name"]
+    if design.value["outcome"] != outcome:
+        design["outcome"].fail(f"it must be the tree's outcome, {outcome[:40]!r}")
+    if set(design.value["predictors"]) != set(predictors):
+        design["predictors"].fail("it must list the tree's predictors ('predictors')")
 
 
 def check_chosen_on_path(top: Field) -> None:
