@@ -94,3 +94,24 @@ def test_spin_boxes_take_their_limits_from_core_s_table(window):
     assert (size.repeats.minimum(), size.repeats.maximum()) == spin_range("repeats")
     assert size.max_depth.maximum() == spin_range("max_depth")[1]  # 0 is "no limit"
     assert checking.outer_folds.maximum() == spin_range("outer_folds")[1]
+
+
+def test_a_key_file_others_can_read_stops_the_run_with_one_sentence(demo, qtbot, run, dialogs,
+                                                                     tmp_path, monkeypatch):
+    """The identifier key (core/checking/identifier_key.py) must be private: a run with a
+    patient identifier is refused in one sentence, and the app stays usable."""
+    from core.checking.identifier_key import identifier_key
+
+    key = tmp_path / "identifier_key"
+    monkeypatch.setenv("PRUNELLA_IDENTIFIER_KEY_FILE", str(key))
+    identifier_key(create=True)
+    key.chmod(0o644)
+    window = demo
+    assert window.session.design.patient_id  # the demo's patients have repeat visits
+    run(window)
+    said = [t for t in dialogs.texts("warning") if "not a private regular file" in t]
+    assert len(said) == 1 and str(key) in said[0], dialogs.texts("warning")
+    assert window.session.model is None and window.panels["size"].run_button.isEnabled()
+    key.chmod(0o600)
+    run(window)
+    assert window.session.model is not None
