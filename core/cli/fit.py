@@ -87,7 +87,7 @@ def add_parsers(sub) -> None:
     fit.add_argument("--model", required=True, help="where to write the model JSON")
     fit.add_argument("--curve", help="write the pruning curve as CSV")
     fit.add_argument("--rules", help="write the tree as plain-text rules")
-    fit.add_argument("--quiet", action="store_true", help="print only warnings")
+    fit.add_argument("--quiet", action="store_true", help="leave out the pruning table and the tree (notes and warnings still go to stderr)")
     add_fit_chart_options(fit)
 
     score = sub.add_parser("score", help="route rows of a spreadsheet through a saved model")
@@ -172,7 +172,7 @@ def _fit(args, place) -> int:
                   [args.data, dictionary_path(args.dictionary, args.data)])
     table = read_table(args.data, sheet=args.sheet)
     dictionary, notes = dictionary_for(table, dictionary_path(args.dictionary, args.data))
-    shown = _print_notes(list(table.provenance.warnings) + notes, quiet=args.quiet)
+    shown = _print_notes(list(table.provenance.warnings) + notes)
     request = request_from_args(args, dictionary)
     request, findings = _guarded(args, table, dictionary, request)
     from ..design.guards import findings_from_notes
@@ -187,11 +187,10 @@ def _fit(args, place) -> int:
         write_csv_safely(curve_frame(derivation), args.curve)
     if args.rules:
         write_text_atomic(args.rules, model.rules())
-    # The summary says a tree is no better than no tree itself; --quiet, which prints only
-    # warnings, still gets that one on stderr.
+    # The summary says a tree is no better than no tree itself; --quiet, which leaves the
+    # summary out, still gets that warning on stderr.
     no_better = model.no_better_warning() if args.quiet else None
-    _print_notes(list(derivation.notes) + ([no_better] if no_better else []), shown,
-                 quiet=args.quiet)
+    _print_notes(list(derivation.notes) + ([no_better] if no_better else []), shown)
     if not args.quiet:
         # Printed before the chart, so a chart refused (one box, too large) still leaves the
         # pruning table and the chosen size on screen.
@@ -201,18 +200,14 @@ def _fit(args, place) -> int:
     return 0
 
 
-def _print_notes(notes: list[str], already: list[str] | None = None,
-                 quiet: bool = False) -> list[str]:
-    """Print each note once on stderr as 'warning:' or 'note:', as its catalogue entry says
-    (with ``quiet``, the warnings only); a finding already shown with its rows is not
-    repeated."""
+def _print_notes(notes: list[str], already: list[str] | None = None) -> list[str]:
+    """Print each note once on stderr as 'warning:' or 'note:', as its catalogue entry says;
+    a finding already shown with its rows is not repeated."""
     already = list(already or [])
     fresh = [n for n in distinct_messages(already + notes) if n not in already]
     for note in fresh:
         kind = kind_of(note)
         prefix = "warning" if kind is not None and kind.severity == "warning" else "note"
-        if quiet and prefix == "note":
-            continue
         print(f"{prefix}: {note}", file=sys.stderr)
     return already + fresh
 
