@@ -95,6 +95,8 @@ def test_command_line(files, tmp_path):
                    "--out", tmp_path / "d.json")
     record = json.loads((tmp_path / "d.json").read_text())
     assert record["n"] == 100 and record["separate"] is True
+    # Rows left out is a note (the check is on separate patients), not a warning.
+    assert "Note: 40 patient(s)" in ran.stdout and "Warning: 40 patient(s)" not in ran.stdout
 
 
 def test_an_older_model_without_digests_counts_none(files):

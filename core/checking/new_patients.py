@@ -27,7 +27,7 @@ from ..design.analysis import AnalysisData
 from ..dictionary.columns import ColumnSpec
 from ..dictionary.typed_columns import typed_column
 from ..errors import InputError
-from ..messages.message import say
+from ..messages.message import kind_of, say
 from ..phrases import patients_among, plural, rows_and_patients, rows_word
 from ..model.column_names import find_columns, near_name, refuse_absent
 from ..model.scoring import needs_counts, needs_warning
@@ -197,7 +197,7 @@ class CheckResult:
                 f"{c} {k}" for c, k in self.needs_value) + ".")
         if self.columns is not None:
             lines += self.columns.lines()
-        lines += [f"Warning: {w}" for w in self.warnings]
+        lines += [f"{_severity_word(w)}: {w}" for w in self.warnings]
         lines += ["", f"{'measure':<40} value (95% interval)"]
         lines += [f"{name:<40} {value}" for name, value in m.rows()]
         if isinstance(m, ClassificationMeasures):
@@ -220,6 +220,13 @@ class CheckResult:
                 lines.append(f"  box {r.box:>3} {label:<14} derivation {derived:>6} of "
                              f"{r.derivation_n:<5} new {r.observed_text(percent, places)} of {r.n}{flag}")
         return "\n".join(lines)
+
+
+def _severity_word(message: str) -> str:
+    """'Note' for a message the catalogue calls a note (overlapping rows left out), else
+    'Warning'."""
+    kind = kind_of(message)
+    return "Note" if kind is not None and kind.severity == "note" else "Warning"
 
 
 def record_summary(record: dict, model: TreeModel) -> str | None:
