@@ -55,7 +55,8 @@ def path_rows(model: TreeModel, class_decimals: int = 4) -> tuple[PathRow, ...]:
 def error_text(model: TreeModel, value: float, class_decimals: int = 3) -> str:
     """One error of ``model``'s kind as printed: a mean squared error to the squares'
     precision, a classification error to ``class_decimals`` decimals."""
-    return error_number(value, model.task, model.outcome_decimals, class_decimals)
+    decimals = model.outcome_decimals if model.task == "regression" else None
+    return error_number(value, model.task, decimals, class_decimals)
 
 
 def root_text(model: TreeModel, value: float) -> str:

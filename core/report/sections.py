@@ -348,8 +348,8 @@ def _chart(c: ReportContents, s: Styles) -> list:
     checks = sorted(c.checks, key=lambda ch: ch.kind != "external")
     if checks and checks[0].names(model):
         model = with_check(model, checks[0])
-        recorded = (", with the check on " + checks[0].source + " of section "
-                    f"{section('Performance')}")
+        recorded = (", with the check on " + text(checks[0].source) + " of section "
+                    f"{section('Performance')}")  # the caption is paragraph markup
     for paper in ("a4", "a3"):
         try:
             plan = plan_chart(model, ChartOptions(paper=paper, printed=c.printed_on))
