@@ -209,3 +209,17 @@ def test_a_repeated_header_is_found_after_an_empty_unnamed_column_was_dropped(tm
     except Exception as exc:  # noqa: BLE001 - only a clear refusal is allowed
         from core.errors import InputError
         assert isinstance(exc, InputError), exc
+
+
+def test_an_infinite_number_in_a_row_read_for_a_header_is_no_crash(tmp_path):
+    """Found by the fuzz test: a cell of 1e400 (infinity once read) in a row compared with the
+    header made the reader crash converting it to a whole number."""
+    from core.data import read_table
+    from core.errors import InputError
+
+    path = tmp_path / "odd.csv"
+    path.write_bytes(b",,,\n0,NA,0,0,NA\n0,1e400,0,0,NA")
+    try:
+        read_table(path)
+    except InputError:
+        pass  # refused in one sentence is as good as read

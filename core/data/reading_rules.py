@@ -91,7 +91,7 @@ def column_name_at(position: int, letters: bool) -> str:
 def clean_header(value) -> str:
     if value is None or (isinstance(value, float) and np.isnan(value)):
         return ""
-    if isinstance(value, float) and value == int(value):
+    if isinstance(value, float) and np.isfinite(value) and value == int(value):  # not 1e400
         value = int(value)
     return re.sub(r"\s+", " ", str(value)).strip()
 
