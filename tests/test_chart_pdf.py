@@ -208,7 +208,7 @@ def test_validation_results_replace_the_unchecked_banner(chosen) -> None:
     extra = dict(chosen.extra)
     extra["validation"] = {"source": "the Riverside campus, 2025", "n": 1817,
                            "summary": "error rate 21.0% (95% CI 19.2–22.9%); AUC 0.78",
-                           "model_fingerprint": chosen.fingerprint_before_check}
+                           "model_fingerprint": chosen.fingerprint}
     checked = dataclasses.replace(chosen, extra=extra)
     text = page_text(render_chart(checked, options()))
     assert UNCHECKED_BANNER not in text

@@ -162,8 +162,19 @@ def test_the_report_prints_box_means_to_the_data(ward):
     assert f"{mean:.1f} days" in words
     # A measured outcome's boxes have means, not rates, wherever the report names them.
     assert "derivation rate" not in words
-    if external.calibration_outside:
-        assert "the derivation mean of box(es)" in words
+    # Stays 5 days longer elsewhere put every box's derivation mean outside the observed
+    # interval: the limitation names the boxes' means.
+    later = pd.read_csv(folder / "ward_later.csv")
+    later["Length of stay (days)"] += 5
+    longer = folder / "ward_longer.csv"
+    later.to_csv(longer, index=False)
+    shifted = check_table(derivation.model, read_table(longer), source="longer stays")
+    assert shifted.calibration_outside
+    contents = prepare_report(derivation, external=(shifted,), nested=False, bootstrap=0,
+                              printed="2026-01-31")
+    words = " ".join(" ".join(page.extract_text() for page in
+                              pypdf.PdfReader(io.BytesIO(render_report(contents))).pages).split())
+    assert "the derivation mean of box(es)" in words and "derivation rate" not in words
 
 
 def test_an_older_model_file_keeps_three_significant_figures(ward):

@@ -67,16 +67,23 @@ def test_a_name_marked_as_patient_number_is_never_used_as_one():
     assert not may_group_patients(plain.get("Email"))
 
 
+def _refused(path, tmp_path, *options) -> tuple[str, str]:
+    """``prunella fit`` on ``path`` with ``options``: exit 2, no traceback; its one
+    'prunella:' sentence and all it printed on stderr."""
+    run = prunella("fit", path, "--outcome", "ICU", *options, "--model", tmp_path / "m.json",
+                   "--folds", "3")
+    assert run.returncode == 2 and "Traceback" not in run.stderr
+    lines = [line for line in run.stderr.splitlines() if line.startswith("prunella: ")]
+    assert len(lines) == 1, run.stderr
+    return lines[0], run.stderr
+
+
 def test_the_command_line_refuses_a_name_as_patient_number(tmp_path):
     path = tmp_path / "icu.csv"
     visits().to_csv(path, index=False)
     before = (sha256_of(path), path.stat().st_mtime_ns)
-    run = prunella("fit", path, "--outcome", "ICU", "--patient-id", "Patient name",
-                   "--model", tmp_path / "m.json", "--folds", "3")
-    assert run.returncode == 2 and "Traceback" not in run.stderr
-    lines = [line for line in run.stderr.splitlines() if line.startswith("prunella: ")]
-    assert len(lines) == 1 and "'Patient name'" in lines[0] and "not a safe patient number" \
-        in lines[0]
+    line, _ = _refused(path, tmp_path, "--patient-id", "Patient name")
+    assert "'Patient name'" in line and "not a safe patient number" in line
     run = prunella("fit", path, "--outcome", "ICU", "--model", tmp_path / "m.json",
                    "--folds", "3", "--min-leaf", "5")
     assert run.returncode == 0, run.stderr
@@ -90,12 +97,9 @@ def test_a_name_named_as_a_predictor_is_refused_without_teaching_the_way_round(t
     path = tmp_path / "icu.csv"
     visits().to_csv(path, index=False)
     before = (sha256_of(path), path.stat().st_mtime_ns)
-    run = prunella("fit", path, "--outcome", "ICU", "--predictors", "Sats,Patient name",
-                   "--model", tmp_path / "m.json", "--folds", "3")
-    assert run.returncode == 2 and "Traceback" not in run.stderr
-    lines = [line for line in run.stderr.splitlines() if line.startswith("prunella: ")]
-    assert len(lines) == 1 and "seems to identify patients" in lines[0], run.stderr
-    assert "set its kind to numeric" not in run.stderr
+    line, stderr = _refused(path, tmp_path, "--predictors", "Sats,Patient name")
+    assert "seems to identify patients" in line, stderr
+    assert "set its kind to numeric" not in stderr
     assert (sha256_of(path), path.stat().st_mtime_ns) == before
 
 

@@ -152,7 +152,7 @@ def test_check_records_the_tree_s_fingerprint_so_its_chart_counts_it(checked_fil
     assert ran.returncode == 0, ran.stderr
     assert state([other, cohort]) == before
     model = TreeModel.load(checked)
-    assert model.extra["validation"]["model_fingerprint"] == model.fingerprint_before_check
+    assert model.extra["validation"]["model_fingerprint"] == model.fingerprint
     assert model.recorded_check is not None and model.stored_check_refused is None
     out = cohort.parent / "rechecked.pdf"
     assert prunella("chart", checked, "--out", out, "--paper", "a3").returncode == 0

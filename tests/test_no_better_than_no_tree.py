@@ -129,14 +129,11 @@ def test_command_line_says_so(random_run, tmp_path):
                      "--model", tmp_path / "q.json", "--quiet")
     assert quiet.returncode == 0 and not quiet.stdout.strip()
     assert f"warning: {STATEMENT}" in quiet.stderr
-    # A chart refused for its one box still leaves the pruning table and the chosen size.
-    charted = prunella("fit", path, "--outcome", "outcome", "--folds", "5", "--min-leaf", "40",
-                       "--model", tmp_path / "c.json", "--chart", tmp_path / "c.pdf")
-    assert charted.returncode == 2 and "Chosen: 1 outcome box" in charted.stdout
-    assert "no decision chart to print" in charted.stderr and "Traceback" not in charted.stderr
     charted = prunella("fit", path, "--outcome", "outcome", "--folds", "5", "--min-leaf", "40",
                        "--model", tmp_path / "m2.json", "--chart", tmp_path / "c.pdf")
     assert charted.returncode == 2 and "no decision chart to print" in charted.stderr
+    # A chart refused for its one box still leaves the pruning table and the chosen size.
+    assert "Chosen: 1 outcome box" in charted.stdout and "Traceback" not in charted.stderr
     assert not (tmp_path / "c.pdf").exists()
     chart = prunella("chart", tmp_path / "m.json", "--out", tmp_path / "c2.pdf")
     assert chart.returncode == 2 and STATEMENT in chart.stderr

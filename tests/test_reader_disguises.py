@@ -36,6 +36,12 @@ def _inferred(data: Path):
 # --- item 9: dates stored as spreadsheet serial numbers ----------------------------------------
 
 
+def _written(path: Path, column: str, rows: list) -> Path:
+    """The base rows with ``column`` added, written as a CSV at ``path``."""
+    path.write_text(csv_text(HEADER + [column], rows), encoding="utf-8")
+    return path
+
+
 def _serial_dates(n: int, seed: int = 0) -> list[int]:
     # 45292 is 1 January 2024 as spreadsheets count days (from 30 December 1899).
     return [45292 + int(d) for d in np.random.default_rng(seed).integers(0, 366, n)]
@@ -44,8 +50,7 @@ def _serial_dates(n: int, seed: int = 0) -> list[int]:
 def test_serial_numbers_in_a_date_column_are_read_as_dates_with_a_warning(tmp_path):
     rows = add_column(base_rows(80), _serial_dates(80))
     rows[0][-1] = 45650  # 24 December 2024
-    data = tmp_path / "arrivals.csv"
-    data.write_text(csv_text(HEADER + ["Arrival date"], rows), encoding="utf-8")
+    data = _written(tmp_path / "arrivals.csv", "Arrival date", rows)
     _table, dictionary, notes = _inferred(data)
     spec = dictionary.get("Arrival date")
     assert spec.kind == "date" and spec.role == "ignore"
@@ -64,8 +69,7 @@ def test_serial_dates_with_times_and_words_and_in_a_text_column_are_dates_too(tm
     values[3] = "not recorded"
     values[7] = "unknown"
     rows = add_column(base_rows(60), values)
-    data = tmp_path / "admitted_on.csv"
-    data.write_text(csv_text(HEADER + ["date_of_admission"], rows), encoding="utf-8")
+    data = _written(tmp_path / "admitted_on.csv", "date_of_admission", rows)
     table, dictionary, notes = _inferred(data)
     assert dictionary.get("date_of_admission").kind == "date"
     note = next(n for n in notes if n.code == "infer.serial_dates")
@@ -80,8 +84,7 @@ def test_large_numbers_in_a_column_not_named_as_a_date_stay_numbers(tmp_path):
     # nothing says they are dates.
     rng = np.random.default_rng(1)
     rows = add_column(base_rows(60), [int(v) for v in rng.integers(30_000, 60_000, 60)])
-    data = tmp_path / "charges.csv"
-    data.write_text(csv_text(HEADER + ["charge"], rows), encoding="utf-8")
+    data = _written(tmp_path / "charges.csv", "charge", rows)
     _table, dictionary, notes = _inferred(data)
     assert dictionary.get("charge").kind == "numeric"
     assert not any(n.code == "infer.serial_dates" for n in notes)
@@ -89,8 +92,7 @@ def test_large_numbers_in_a_column_not_named_as_a_date_stay_numbers(tmp_path):
 
 def test_a_date_column_named_as_a_predictor_is_refused_in_one_sentence(tmp_path):
     rows = add_column(base_rows(60), _serial_dates(60))
-    data = tmp_path / "arrivals.csv"
-    data.write_text(csv_text(HEADER + ["Arrival date"], rows), encoding="utf-8")
+    data = _written(tmp_path / "arrivals.csv", "Arrival date", rows)
     refused(["fit", data, "--outcome", "admitted", "--model", tmp_path / "m.json",
              "--predictors", "Arrival date,age"],
             ["'Arrival date' holds dates", "when they came", "take it out of the predictors"],
@@ -106,8 +108,7 @@ def test_a_period_column_offered_as_a_question_is_warned_about(tmp_path):
     # that it encodes a period.
     rng = np.random.default_rng(3)
     rows = add_column(base_rows(80), [int(v) for v in rng.integers(2019, 2025, 80)])
-    data = tmp_path / "by_year.csv"
-    data.write_text(csv_text(HEADER + ["Admission year"], rows), encoding="utf-8")
+    data = _written(tmp_path / "by_year.csv", "Admission year", rows)
     stderr = loads(data)
     assert "'Admission year' would split patients by when they came, not by anything about " \
            "them; leave it out unless the period matters" in stderr
@@ -118,8 +119,7 @@ def test_a_period_column_offered_as_a_question_is_warned_about(tmp_path):
 
 def test_a_date_column_set_to_numbers_in_the_dictionary_is_warned_about(tmp_path):
     rows = add_column(base_rows(80), _serial_dates(80))
-    data = tmp_path / "arrivals.csv"
-    data.write_text(csv_text(HEADER + ["Arrival date"], rows), encoding="utf-8")
+    data = _written(tmp_path / "arrivals.csv", "Arrival date", rows)
     dictionary = tmp_path / "arrivals.dictionary.json"
     dictionary.write_text(json.dumps({"format": "prunella-dictionary/1", "columns": [
         {"name": "Arrival date", "kind": "numeric", "role": "predictor"}]}), encoding="utf-8")
@@ -161,8 +161,7 @@ def test_numbers_written_with_their_unit_are_read_as_numbers_with_a_warning(tmp_
     rows = add_column(base_rows(80), [f"{t} °C" for t in _temperatures(80)])
     rows[5][-1] = "not recorded"
     rows[0][-1] = "38.2 °C"
-    data = tmp_path / "temperatures.csv"
-    data.write_text(csv_text(HEADER + ["Temperature"], rows), encoding="utf-8")
+    data = _written(tmp_path / "temperatures.csv", "Temperature", rows)
     table, dictionary, notes = _inferred(data)
     spec = dictionary.get("Temperature")
     assert spec.kind == "numeric" and spec.unit == "°C" and spec.role == "predictor"
@@ -209,8 +208,7 @@ def test_mixed_units_in_one_column_are_never_converted_but_left_as_text_with_a_w
     temperatures = _temperatures(80, seed=4)
     cells = [f"{t} °C" if i % 3 else f"{t * 9 / 5 + 32:.1f} °F" for i, t in enumerate(temperatures)]
     rows = add_column(base_rows(80), cells)
-    data = tmp_path / "two_scales.csv"
-    data.write_text(csv_text(HEADER + ["Temperature"], rows), encoding="utf-8")
+    data = _written(tmp_path / "two_scales.csv", "Temperature", rows)
     _table, dictionary, notes = _inferred(data)
     spec = dictionary.get("Temperature")
     assert spec.kind == "text" and spec.role == "ignore"
@@ -236,8 +234,7 @@ def _cycle(levels, n):
 
 def test_a_category_whose_levels_are_names_is_left_out_with_the_identity_warning(tmp_path):
     rows = add_column(base_rows(80), _cycle(NURSES, 80))
-    data = tmp_path / "wards.csv"
-    data.write_text(csv_text(HEADER + ["Ward"], rows), encoding="utf-8")
+    data = _written(tmp_path / "wards.csv", "Ward", rows)
     _table, dictionary, notes = _inferred(data)
     assert dictionary.get("Ward").role == "ignore"
     note = next(n for n in notes if n.code == "infer.identity")
@@ -324,8 +321,7 @@ def test_names_written_in_other_ways_and_record_numbers_as_levels_are_caught():
 
 def test_a_site_column_named_after_people_is_not_taken_for_names(tmp_path):
     rows = add_column(base_rows(80), _cycle(["John Radcliffe", "Charles Gairdner"], 80))
-    data = tmp_path / "two_hospitals.csv"
-    data.write_text(csv_text(HEADER + ["hospital"], rows), encoding="utf-8")
+    data = _written(tmp_path / "two_hospitals.csv", "hospital", rows)
     _table, dictionary, notes = _inferred(data)
     assert dictionary.get("hospital").role == "site"
     assert not [n for n in notes if n.code == "infer.identity"]
@@ -333,16 +329,14 @@ def test_a_site_column_named_after_people_is_not_taken_for_names(tmp_path):
 
 def test_a_header_unit_the_cells_contradict_is_never_converted(tmp_path):
     rows = add_column(base_rows(60), [f"{t} °C" for t in _temperatures(60)])
-    data = tmp_path / "fahrenheit_header.csv"
-    data.write_text(csv_text(HEADER + ["Temperature (°F)"], rows), encoding="utf-8")
+    data = _written(tmp_path / "fahrenheit_header.csv", "Temperature (°F)", rows)
     _table, dictionary, notes = _inferred(data)
     assert dictionary.get("Temperature (°F)").kind == "text"
     note = next(n for n in notes if n.code == "infer.unit_disagrees")
     assert "the header says °F, but the cells write °C" in note
     # Spellings of one unit agree: "breaths/min" in the header, "22 /min" in the cells.
     rows = add_column(base_rows(60), [f"{r[2]} /min" for r in base_rows(60)])
-    data = tmp_path / "per_minute.csv"
-    data.write_text(csv_text(HEADER + ["Breathing rate (breaths/min)"], rows), encoding="utf-8")
+    data = _written(tmp_path / "per_minute.csv", "Breathing rate (breaths/min)", rows)
     _table, dictionary, notes = _inferred(data)
     spec = dictionary.get("Breathing rate (breaths/min)")
     assert spec.kind == "numeric" and spec.unit == "breaths/min"
@@ -400,8 +394,7 @@ def test_a_workbook_with_serial_dates_units_and_names_loads_with_its_warnings(tm
 def test_written_dates_set_to_categories_in_the_dictionary_are_warned_about(tmp_path):
     # "Seen on" holds dd/mm/yyyy dates; a hand-made dictionary calls it a category.
     rows = add_column(base_rows(80), [f"{1 + i % 3:02d}/0{1 + i % 2}/2024" for i in range(80)])
-    data = tmp_path / "seen.csv"
-    data.write_text(csv_text(HEADER + ["When"], rows), encoding="utf-8")
+    data = _written(tmp_path / "seen.csv", "When", rows)
     (tmp_path / "seen.dictionary.json").write_text(json.dumps({
         "format": "prunella-dictionary/1", "columns": [
             {"name": "When", "kind": "nominal", "role": "predictor"}]}), encoding="utf-8")

@@ -113,7 +113,7 @@ def as_checked(model: TreeModel, check: dict | None) -> TreeModel:
     from was. Never saved or printed: a check counts only for the tree it names."""
     if not check:
         return model
-    record = {**check, "model_fingerprint": model.fingerprint_before_check}
+    record = {**check, "model_fingerprint": model.fingerprint}
     return replace(model, extra={**model.extra, "validation": record})
 
 

@@ -27,7 +27,7 @@ from ..design.analysis import AnalysisData
 from ..dictionary.columns import ColumnSpec
 from ..dictionary.typed_columns import typed_column
 from ..errors import InputError
-from ..messages.message import kind_of, say
+from ..messages.message import say, severity_of
 from ..phrases import patients_among, plural, rows_and_patients, rows_word
 from ..model.column_names import find_columns, near_name, refuse_absent
 from ..model.scoring import needs_counts, needs_warning
@@ -102,7 +102,7 @@ class CheckResult:
     def names(self, model: TreeModel) -> bool:
         """Whether this check was made on ``model``: its fingerprint is the tree's (without
         the tree's own recorded check). A check of another tree says nothing of this one."""
-        return self.model_fingerprint == model.fingerprint_before_check
+        return self.model_fingerprint == model.fingerprint
 
     @property
     def separate(self) -> bool | None:
@@ -197,7 +197,9 @@ class CheckResult:
                 f"{c} {k}" for c, k in self.needs_value) + ".")
         if self.columns is not None:
             lines += self.columns.lines()
-        lines += [f"{_severity_word(w)}: {w}" for w in self.warnings]
+        # A note (overlapping rows left out) is said as one; anything else as a warning.
+        lines += [f"{'Note' if severity_of(w, 'warning') == 'note' else 'Warning'}: {w}"
+                  for w in self.warnings]
         lines += ["", f"{'measure':<40} value (95% interval)"]
         lines += [f"{name:<40} {value}" for name, value in m.rows()]
         if isinstance(m, ClassificationMeasures):
@@ -220,13 +222,6 @@ class CheckResult:
                 lines.append(f"  box {r.box:>3} {label:<14} derivation {derived:>6} of "
                              f"{r.derivation_n:<5} new {r.observed_text(percent, places)} of {r.n}{flag}")
         return "\n".join(lines)
-
-
-def _severity_word(message: str) -> str:
-    """'Note' for a message the catalogue calls a note (overlapping rows left out), else
-    'Warning'."""
-    kind = kind_of(message)
-    return "Note" if kind is not None and kind.severity == "note" else "Warning"
 
 
 def record_summary(record: dict, model: TreeModel) -> str | None:
@@ -418,7 +413,7 @@ def check_heldout(model: TreeModel, heldout: AnalysisData | None, share: float,
         measures=measure_model(model, heldout.y[routed], leaves[routed],
                                None if heldout.groups is None else heldout.groups[routed]),
         columns=None, unseen_levels=unseen, warnings=tuple(warnings),
-        model_fingerprint=model.fingerprint_before_check, data_sha256=data_sha256,
+        model_fingerprint=model.fingerprint, data_sha256=data_sha256,
         needs_value=needs, file=model.extra.get("data", {}).get("file"))
 
 
@@ -546,7 +541,7 @@ def check_table(model: TreeModel, table: LoadedTable, source: str | None = None,
         source=source, kind="external", n=len(rows), n_rows=n_rows, n_excluded=no_outcome,
         patients=patients, measures=measure_model(model, y, leaves, groups), columns=report,
         unseen_levels=unseen, warnings=tuple(notes),
-        model_fingerprint=model.fingerprint_before_check,
+        model_fingerprint=model.fingerprint,
         data_sha256=table.provenance.sha256, needs_value=needs,
         overlap_patients=overlap_patients, overlap_rows=overlap_rows,
         overlap_left_out=bool(leave_out_overlap and overlap_rows), overlap_known=overlap.known,

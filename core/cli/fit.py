@@ -17,7 +17,7 @@ from ..data.table import read_table
 from ..dictionary.columns import DataDictionary
 from ..dictionary.for_table import dictionary_for
 from ..errors import InputError
-from ..messages.message import distinct_messages, kind_of, say
+from ..messages.message import distinct_messages, say, severity_of
 from ..model.path_table import error_text, path_rows, root_text
 from ..model.tree import TreeModel
 from ..phrases import plural, rows_and_patients
@@ -206,8 +206,7 @@ def _print_notes(notes: list[str], already: list[str] | None = None) -> list[str
     already = list(already or [])
     fresh = [n for n in distinct_messages(already + notes) if n not in already]
     for note in fresh:
-        kind = kind_of(note)
-        prefix = "warning" if kind is not None and kind.severity == "warning" else "note"
+        prefix = "warning" if severity_of(note) == "warning" else "note"
         print(f"{prefix}: {note}", file=sys.stderr)
     return already + fresh
 

@@ -91,6 +91,13 @@ def kind_of(message: str | BaseException) -> MessageKind | None:
     return None if code is None else message_kinds().get(code)
 
 
+def severity_of(message: str | BaseException, default: str = "note") -> str:
+    """How serious a message is, from its catalogue entry ("note", "warning", …); ``default``
+    for text that carries no code."""
+    kind = kind_of(message)
+    return default if kind is None else kind.severity
+
+
 def advice_for(message: str | BaseException) -> str | None:
     """What to do about a message said by :func:`say`, from its catalogue entry."""
     kind = kind_of(message)

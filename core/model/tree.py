@@ -494,23 +494,18 @@ class TreeModel:
         return short_fingerprint(self.fingerprint)
 
     @property
-    def fingerprint_before_check(self) -> str:
-        """The fingerprint a check names: the tree's own (:attr:`fingerprint` leaves the
-        recorded check out, so it is the same before and after a check)."""
-        return self.fingerprint
-
-    @property
     def recorded_check(self) -> dict | None:
         """The recorded check on separate patients (``extra["validation"]``), only when it
         names this very tree by its fingerprint. A check edited into a file, copied from
         another tree or written by Prunella 0.1 (which did not name the tree) does not count:
         the chart, the report and the app then say the tree is not yet checked."""
         record = self.extra.get("validation")
-        named = (self.fingerprint_before_check,) + (
+        if not isinstance(record, dict):
+            return None  # nothing stored: no fingerprint to compute
+        named = (self.fingerprint,) + (
             (self.fingerprint_with_digests,) if "derivation_ids" in self.extra else ())
-        if not isinstance(record, dict) or record.get("model_fingerprint") not in named:
-            return None  # (a check saved before the digests left the fingerprint still counts)
-        return record
+        # (a check saved before the digests left the fingerprint still counts)
+        return record if record.get("model_fingerprint") in named else None
 
     @property
     def stored_check_refused(self) -> str | None:
