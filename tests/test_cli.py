@@ -135,3 +135,27 @@ def test_holdout_and_min_rule_and_regression(tmp_path):
     assert model["task"] == "regression" and model["chosen"]["rule"] == "min"
     assert model["validation"]["n"] > 700 and "mean_squared_error" in model["validation"]
     assert "bed_booked" not in model["columns_asked"]
+
+
+def test_a_reader_that_stops_early_gets_no_traceback(tmp_path):
+    """``prunella fit … | head -1``: when the reader closes the pipe, the command ends quietly
+    with the shell's status for a closed pipe (141), not a Python traceback."""
+    import os
+    import subprocess
+    import sys
+
+    from tests.helpers import ROOT
+
+    read_end, write_end = os.pipe()
+    os.close(read_end)  # the reader has already gone before anything is printed
+    try:
+        child = subprocess.run(
+            [sys.executable, "-m", "gui", "fit", str(DEMO_CSV), "--outcome", "admitted",
+             "--dictionary", str(DEMO_DICTIONARY), "--model", str(tmp_path / "m.json")],
+            cwd=ROOT, env=dict(os.environ, PYTHONPATH=str(ROOT)), stdout=write_end,
+            stderr=subprocess.PIPE, text=True, timeout=300)
+    finally:
+        os.close(write_end)
+    assert "Traceback" not in child.stderr, child.stderr
+    assert child.returncode == 141, child.stderr
+    assert (tmp_path / "m.json").exists()  # the work itself was done and saved

@@ -7,6 +7,7 @@ checking.py (check, report) and chart.py (chart).
 
 from __future__ import annotations
 
+import os
 import sys
 
 from .. import __version__
@@ -61,3 +62,17 @@ def main(argv: list[str] | None = None) -> int:
     except KeyboardInterrupt:
         print(f"prunella: {say('cli.interrupted')}", file=sys.stderr)
         return 130
+    except BrokenPipeError:
+        # The reader stopped reading (`prunella fit … | head`): nothing is wrong with the
+        # work, so no traceback. Point stdout at nothing, or Python's own flush at exit
+        # raises again; the status is the shell's for a closed pipe (128 + SIGPIPE).
+        _quiet_stdout()
+        return 141
+
+
+def _quiet_stdout() -> None:
+    try:
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+    except (OSError, ValueError):  # no real stdout (an embedded run): nothing to quiet
+        pass
