@@ -188,6 +188,18 @@ def test_stability_key_stands_clear_of_the_bars(contents):
         "asked anywhere in the tree", "first question"]
 
 
+def test_calibration_key_stands_clear_of_every_box(contents):
+    """The key sits below the axes: a box far from the diagonal can be in any corner, and a
+    key inside the axes could hide its interval."""
+    fig = calibration_figure(contents.checks[-1].measures)
+    figure_png(fig, dpi=50)  # lays the figure out
+    (ax,) = fig.axes
+    assert ax.get_legend() is None and len(fig.legends) == 1
+    key = fig.legends[0].get_window_extent()
+    assert key.y1 <= ax.get_window_extent().y0 + 1
+    assert "perfect agreement" in [t.get_text() for t in fig.legends[0].get_texts()]
+
+
 def test_report_details_read_as_one_document(contents, written):
     """Issue 12, item 8: counts with thousands separators throughout, captions that open
     with a capital, the size rule worded as it reads, the file dated with the report's date

@@ -196,10 +196,10 @@ def calibration_figure(measures: Measures, title: str | None = None) -> Figure:
         ax.yaxis.set_major_formatter(lambda v, _: f"{v:.0%}")
     if title:
         ax.set_title(title, fontsize=9)
-    if rows and len({r.label for r in rows}) > 1:  # many entries: below the axes
-        fig.legend(loc="outside lower center", ncols=2, fontsize=6.5, frameon=False)
-    else:
-        ax.legend(fontsize=7, frameon=False, loc="upper left")
+    # Below the axes, never inside them: a box far off the diagonal (the one that matters)
+    # can sit in any corner, and a key drawn over it would hide its interval.
+    many = rows and len({r.label for r in rows}) > 1
+    fig.legend(loc="outside lower center", ncols=2, fontsize=6.5 if many else 7, frameon=False)
     return fig
 
 
