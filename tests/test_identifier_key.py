@@ -8,9 +8,10 @@ import stat
 
 import pytest
 
-from core.checking.identifier_key import KEY_BYTES, identifier_key, key_file_path, key_id
+from core.checking.identifier_key import (KEY_BYTES, first_identifier_key, identifier_key,
+                                          key_file_path, key_id)
 from core.errors import InputError
-from tests.helpers import prunella
+from tests.helpers import DEMO_CSV, prunella
 
 
 @pytest.fixture
@@ -89,3 +90,41 @@ def test_the_command_line_refuses_an_unsafe_key_with_exit_2(key_path, tmp_path):
     assert ran.returncode == 2
     assert "not a private regular file" in ran.stderr and "Traceback" not in ran.stderr
     assert not (tmp_path / "m.json").exists()
+
+
+def test_a_new_key_is_said_once(key_path):
+    assert first_identifier_key() == key_path  # made just now
+    key = identifier_key()
+    assert first_identifier_key() is None and identifier_key() == key  # kept, not said again
+
+
+def test_the_first_tree_with_a_patient_number_says_the_key_was_made(key_path, tmp_path):
+    """Growing makes the key; the user is told where it is and to back it up, once."""
+    args = ("fit", DEMO_CSV, "--outcome", "admitted", "--patient-id", "patient_id",
+            "--folds", "3", "--model", tmp_path / "m.json")
+    first = prunella(*args)
+    assert first.returncode == 0, first.stderr
+    said = [line for line in first.stderr.splitlines() if "new identifier key" in line]
+    assert len(said) == 1 and str(key_path) in said[0] and "back it up" in said[0], said
+    again = prunella(*args)
+    assert again.returncode == 0 and "new identifier key" not in again.stderr
+    without = prunella("fit", DEMO_CSV, "--outcome", "admitted", "--folds", "3", "--model",
+                       tmp_path / "n.json")
+    assert "new identifier key" not in without.stderr
+
+
+def test_the_new_key_is_told_now_and_never_recorded(key_path):
+    """Where the key is kept is for the user at this run, not for the methods report or the
+    model file (the notes that are recorded)."""
+    from core.design import DesignSpec
+    from core.sizing import CVSettings, DerivationRequest, derive
+    from tests.helpers import demo_inputs
+
+    table, dictionary, predictors = demo_inputs()
+    request = DerivationRequest(DesignSpec("admitted", predictors[:4], patient_id="patient_id"),
+                                cv=CVSettings(folds=3))
+    first = derive(table, dictionary, request)
+    assert len(first.told_once) == 1 and str(key_path) in first.told_once[0]
+    assert not any("identifier key" in note for note in first.notes)
+    assert "identifier key" not in first.model.to_json()
+    assert derive(table, dictionary, request).told_once == ()

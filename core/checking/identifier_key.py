@@ -56,6 +56,21 @@ def identifier_key(create: bool = False) -> bytes | None:
     return _read_key(path)
 
 
+def first_identifier_key() -> Path | None:
+    """Make this computer's key if it has none yet (growing with a patient number): the key
+    file's path when it was made just now, so the user can be told to back it up, else None.
+    A key file that is there but unsafe is refused (InputError), as by :func:`identifier_key`."""
+    path = key_file_path()
+    try:
+        _read_key(path)
+        return None
+    except FileNotFoundError:
+        pass
+    made = _make_key(path)
+    _read_key(path)
+    return path if made else None
+
+
 def _refuse(path: Path, what: str) -> InputError:
     return InputError(say("check.key_file_unsafe", path=str(path), what=what))
 
@@ -87,10 +102,10 @@ def _read_key(path: Path) -> bytes:
     return key
 
 
-def _make_key(path: Path) -> None:
+def _make_key(path: Path) -> bool:
     """A new key, written whole or not at all: into a private temporary file beside it, then
     linked to its name, which fails if another process made the key meanwhile (its key is
-    kept)."""
+    kept, and False is returned)."""
     try:
         path.parent.mkdir(mode=0o700, parents=True, exist_ok=True)
         temporary = path.with_name(f".{path.name}.{os.getpid()}.{secrets.token_hex(4)}")
@@ -108,7 +123,8 @@ def _make_key(path: Path) -> None:
         try:
             os.link(temporary, path)
         except FileExistsError:
-            pass
+            return False
+        return True
     except OSError as error:
         raise InputError(say("check.key_file_unwritable", path=str(path),
                              reason=error.strerror or str(error))) from None

@@ -190,7 +190,8 @@ def _fit(args, place) -> int:
     # The summary says a tree is no better than no tree itself; --quiet, which leaves the
     # summary out, still gets that warning on stderr.
     no_better = model.no_better_warning() if args.quiet else None
-    _print_notes(list(derivation.notes) + ([no_better] if no_better else []), shown)
+    _print_notes(list(derivation.notes) + list(derivation.told_once)
+                 + ([no_better] if no_better else []), shown)
     if not args.quiet:
         # Printed before the chart, so a chart refused (one box, too large) still leaves the
         # pruning table and the chosen size on screen.

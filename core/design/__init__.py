@@ -4,7 +4,7 @@ from ..package_face import lazy_face
 
 __getattr__, __dir__, __all__ = lazy_face(__name__, {
     "analysis": ("AnalysisData", "DesignSpec", "default_design", "prepare_analysis",
-                 "suggest_task"),
+                 "rows_word_of_table", "suggest_task"),
     "matrix": ("fit_encoding",),
     "guards": ("GuardFinding", "GuardReport", "findings_from_notes", "findings_record",
                "guard_design", "identity_findings"),

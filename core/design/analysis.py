@@ -20,6 +20,7 @@ from ..dictionary.typed_columns import TypedColumn, positive_level, typed_column
 from ..document_checks import NAME_LENGTH, TEXT_LENGTH
 from ..errors import InputError
 from ..messages.message import say
+from ..phrases import rows_word
 
 TASKS = ("classification", "regression")
 
@@ -222,6 +223,14 @@ def prepare_analysis(frame: pd.DataFrame, dictionary: DataDictionary,
 
 def _in_role(spec: ColumnSpec, role: str) -> ColumnSpec:
     return spec if spec.role == role else replace(spec, role=role)
+
+
+def rows_word_of_table(frame: pd.DataFrame, patient_id: str | None) -> str:
+    """"visits" or "patients" for a table's rows before anything is grown (the app's step 3
+    labels): by the patient-number column as the analysis reads it (core/phrases.py)."""
+    if not patient_id or patient_id not in frame.columns:
+        return rows_word(len(frame), None)
+    return rows_word(len(frame), int(np.unique(_codes(frame[patient_id])).size))
 
 
 def _codes(values: pd.Series) -> np.ndarray:

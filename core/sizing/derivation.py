@@ -11,7 +11,7 @@ from dataclasses import dataclass, field, replace
 
 import numpy as np
 
-from ..checking.identifier_key import identifier_key
+from ..checking.identifier_key import first_identifier_key
 from ..checking.new_patients import CheckResult, check_heldout, with_check
 from ..data.table import LoadedTable
 from ..design.analysis import AnalysisData, prepare_analysis
@@ -52,6 +52,9 @@ class Derivation:
     # What the guards found before growing (core.design.guards.findings_record), recorded in
     # the model file as ``findings`` whatever size is chosen.
     findings: tuple[dict, ...] = ()
+    # Said to the user once, at this run, and never recorded (not in the report nor the model
+    # file): a new identifier key and where it is kept.
+    told_once: tuple[str, ...] = ()
 
     def check_on_heldout(self) -> CheckResult:
         """The chosen tree checked on the rows set aside before growing (refused when none
@@ -66,10 +69,11 @@ def derive(table: LoadedTable, dictionary: DataDictionary, request: DerivationRe
     """Grow, prune and cross-validate a tree and choose its size as the request says.
     ``findings`` (the guards' findings as records) are kept in the model file."""
     check_request_limits(request)  # every number inside the table, before any work
-    if request.design.patient_id:  # the identifier key is made, or refused, before growing
-        identifier_key(create=True)
+    # The identifier key is made, or refused, before growing; a new one is said once.
+    made_key = first_identifier_key() if request.design.patient_id else None
     full = prepare_analysis(table.frame, dictionary, request.design)
     notes = list(full.notes)
+    told = (say("check.key_made", path=str(made_key)),) if made_key is not None else ()
     heldout = None
     data = full
     if request.holdout:
@@ -93,7 +97,7 @@ def derive(table: LoadedTable, dictionary: DataDictionary, request: DerivationRe
                          grid=search.describe_grid(), cost=cost_words(search.miss_cost)))
         return _checked(Derivation(request, table, dictionary, data, heldout, path, model,
                                    tuple(notes), goal_search=search,
-                                   findings=tuple(findings)))
+                                   findings=tuple(findings), told_once=told))
     path = cross_validate_path(data, request.tree, request.cv, jobs=jobs, progress=progress,
                                cancel=cancel)
     notes.extend(coarsening_notes(path))
@@ -101,7 +105,7 @@ def derive(table: LoadedTable, dictionary: DataDictionary, request: DerivationRe
     notes.extend(note for note in [path.size_note(request.size, index)] if note)
     model = build_model(path, index, rule, table, dictionary, request)
     return _checked(Derivation(request, table, dictionary, data, heldout, path, model,
-                               tuple(notes), findings=tuple(findings)))
+                               tuple(notes), findings=tuple(findings), told_once=told))
 
 
 def coarsening_notes(path: CrossValidatedPath) -> list[str]:
@@ -130,7 +134,8 @@ def choose_model(derivation: Derivation, size: str | int) -> Derivation:
                             derivation.dictionary, derivation.request,
                             chosen_extra=search.chosen_record())
         notes = tuple(n for n in derivation.notes if getattr(n, "code", "") not in _SIZE_NOTES)
-        return _checked(replace(derivation, model=model, heldout_check=None, notes=notes))
+        return _checked(replace(derivation, model=model, heldout_check=None, notes=notes,
+                                told_once=()))
     index, rule = derivation.path.index_for(size)
     extra = None if search is None else {"miss_cost": search.miss_cost}
     model = build_model(derivation.path, index, rule, derivation.table, derivation.dictionary,
@@ -138,7 +143,7 @@ def choose_model(derivation: Derivation, size: str | int) -> Derivation:
     note = derivation.path.size_note(size, index)
     notes = tuple(n for n in derivation.notes if getattr(n, "code", "") not in _SIZE_NOTES)
     return _checked(replace(derivation, model=model, heldout_check=None,
-                            notes=notes + ((note,) if note else ())))
+                            notes=notes + ((note,) if note else ()), told_once=()))
 
 
 _SIZE_NOTES = ("size.not_on_path_smaller", "size.not_on_path_largest")  # one per chosen size

@@ -14,7 +14,7 @@ from PySide6.QtWidgets import (
 )
 
 from core.chart import sizes_that_fit
-from core.design import findings_from_notes, findings_record
+from core.design import findings_from_notes, findings_record, rows_word_of_table
 from core.errors import InputError
 from core.messages import say
 from core.option_limits import spin_range
@@ -96,6 +96,7 @@ class SizePanel(StepPanel):
         self.stale_banner.button.hide()  # this is step 3: Run is right here
         self.bindings = Bindings()
         self._started = 0.0
+        self._rows_word_for: tuple = (None, "patients")  # (which file and patient column, word)
         left = self._settings_side()
         splitter = side_by_side(left, self._curve_side(), stretch=(0, 1),
                                 sizes=(left.minimumWidth(), 800))
@@ -134,8 +135,7 @@ class SizePanel(StepPanel):
 
     def _growth_box(self) -> QGroupBox:
         """How the tree grows."""
-        self.min_leaf = with_tooltip(QSpinBox(), "The grower never makes an outcome box with "
-                                     "fewer patients than this.")
+        self.min_leaf = QSpinBox()  # label and tooltip say visits or patients (_show_rows_word)
         self.min_leaf.setRange(*_spin("min_leaf"))
         self.max_depth = with_tooltip(QSpinBox(), "The most questions in a row from box 1 to an "
                                       "outcome box; 'no limit' lets pruning decide.")
@@ -156,7 +156,8 @@ class SizePanel(StepPanel):
         self.coarsen.setRange(1, int(_spin("coarsen")[1]))  # 1: off (one level asks nothing)
         self.coarsen.setSpecialValueText("off")
         form = QFormLayout()
-        form.addRow("Fewest patients in an outcome box:", self.min_leaf)
+        self.min_leaf_label = QLabel()
+        form.addRow(self.min_leaf_label, self.min_leaf)
         form.addRow("Most questions in a row:", self.max_depth)
         form.addRow("Split criterion:", self.criterion)
         self.risk_label = QLabel("Pruning weighs:")
@@ -338,7 +339,23 @@ class SizePanel(StepPanel):
 
     def refresh_settings(self) -> None:
         self.bindings.show()
+        self._show_rows_word()
         self._enable_settings()
+
+    def _show_rows_word(self) -> None:
+        """The smallest box counts rows: visits where a patient number is set and patients
+        came back, else patients, as the fit will say it afterwards."""
+        session, design = self.session, self.session.design
+        key = (session.serial if session.table is not None else None,
+               design.patient_id if design is not None else None)
+        if self._rows_word_for[0] != key:  # a large file: count once per file and column
+            word = "patients" if session.table is None else rows_word_of_table(
+                session.table.frame, key[1])
+            self._rows_word_for = (key, word)
+        word = self._rows_word_for[1]
+        self.min_leaf_label.setText(f"Fewest {word} in an outcome box:")
+        self.min_leaf.setToolTip(f"The grower never makes an outcome box with fewer {word} "
+                                 "than this.")
 
     def _enable_settings(self, *_args) -> None:
         design = self.session.design
@@ -435,7 +452,7 @@ class SizePanel(StepPanel):
         session.set_result(derivation, chosen, changes_work=not reproduced)
         seconds = time.monotonic() - self._started
         text = f"Done in {seconds:.1f} s. {len(derivation.path.leaves)} sizes on the pruning path."
-        for note in dict.fromkeys(derivation.notes):  # each said once
+        for note in dict.fromkeys(derivation.notes + derivation.told_once):  # each said once
             text += " " + with_advice(note)
         if expected is not None:
             if reproduced:

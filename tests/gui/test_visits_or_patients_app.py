@@ -63,6 +63,7 @@ def test_repeat_visits_are_visits_in_every_step(window, qtbot, run, dialogs, tmp
     assert f"{visits} visits of {patients} patients" in shown  # grown on, step 5
     assert f"{len(other)} visits of {other['Record no'].nunique()} patients checked" in shown
     assert re.search(r"\d visits? reach this box", shown), "the box's details count visits"
+    assert "Fewest visits in an outcome box:" in shown  # step 3: the grower counts rows
     # Every count of patients is "N visits of M patients", or counts patients as patients
     # ("126 patient(s) have more than one row").
     stray = [shown[max(0, m.start() - 60):m.end() + 20] for m in PATIENTS.finditer(shown)
@@ -80,5 +81,37 @@ def test_one_row_per_patient_is_patients_in_every_step(window, qtbot, run, dialo
     shown = _every_step(window, qtbot, dialogs, external)
     assert "220 patients" in shown and "90 patients checked" in shown
     assert re.search(r"\d patients? reach this box", shown)
+    assert "Fewest patients in an outcome box:" in shown
     assert not VISITS.search(shown), VISITS.findall(shown)
 
+
+
+def test_the_smallest_box_setting_says_what_it_counts_before_anything_is_grown(
+        window, qtbot, dialogs, tmp_path):
+    """Step 3's smallest-box setting follows step 2's patient number at once, and a new file."""
+    repeat, single = tmp_path / "transfusion.csv", tmp_path / "one_each.csv"
+    _cohort(200, 3, 1).to_csv(repeat, index=False)
+    _cohort(120, 1, 2).to_csv(single, index=False)
+    dialogs.open_name = str(repeat)
+    window.open_action.trigger()
+    qtbot.waitUntil(lambda: window.session.table is not None, timeout=15000)
+    outcome = window.panels["outcome"]
+    outcome.outcome_combo.setCurrentIndex(outcome.outcome_combo.findData("transfused"))
+    size, combo = window.panels["size"], outcome.patient_combo
+    combo.setCurrentIndex(combo.findData("Record no"))
+    assert window.session.design.patient_id == "Record no"
+    assert size.min_leaf_label.text() == "Fewest visits in an outcome box:"
+    assert "fewer visits than this" in size.min_leaf.toolTip()
+    combo.setCurrentIndex(0)  # no patient number: every row is a patient
+    assert window.session.design.patient_id is None
+    assert size.min_leaf_label.text() == "Fewest patients in an outcome box:"
+    combo.setCurrentIndex(combo.findData("Record no"))
+    first = window.session.serial
+    dialogs.open_name = str(single)  # one visit each: the same column counts patients
+    window.open_action.trigger()
+    qtbot.waitUntil(lambda: window.session.serial != first, timeout=15000)
+    outcome.outcome_combo.setCurrentIndex(outcome.outcome_combo.findData("transfused"))
+    if window.session.design.patient_id != "Record no":
+        combo.setCurrentIndex(combo.findData("Record no"))
+    assert window.session.design.patient_id == "Record no"
+    assert size.min_leaf_label.text() == "Fewest patients in an outcome box:"

@@ -58,6 +58,11 @@ ENTRIES = [
      "of {n} bytes; restore it from your backup, or remove it to start a new key (trees grown "
      "with the old key can then no longer be checked for overlap).",
      "Restore the key file from your backup."),
+    ("check.key_made", "note", "A new identifier key was made for this computer in {path}; "
+     "back it up with your projects: tree files keep patient numbers only as digests made "
+     "with it, and without it no later check can tell which patients a file shares with "
+     "these. The key itself never goes into any output.",
+     "Back the key file up with your projects."),
     ("check.key_file_unwritable", "refused", "The identifier key file {path} could not be "
      "written ({reason}); make its folder writable, or name another path in "
      "PRUNELLA_IDENTIFIER_KEY_FILE.", "The key file must be on this computer and private."),
