@@ -13,6 +13,7 @@ import csv
 import io
 import json
 import math
+import re
 from collections.abc import Iterable
 from dataclasses import asdict, dataclass, replace
 from pathlib import Path
@@ -234,6 +235,36 @@ def _plausible(value, name: str) -> tuple[float, float] | None:
                              expected="two numbers, the lowest and the highest plausible "
                                       "value (e.g. [0, 100])"))
     return (low, high)
+
+
+# "20 to 45", "20–45", "20-45", "20; 45": one word or mark between the two numbers. A hyphen
+# divides only after a digit, so "-5 to 5" and "-5-5" keep the minus sign of -5.
+_RANGE_BETWEEN = re.compile(r"\s*(?:\bto\b|[–—;|]|(?<=[\d.])\s*-)\s*", re.IGNORECASE)
+
+
+def plausible_in_words(limits: tuple[float, float] | None) -> str:
+    """A column's plausible values as the dictionary table shows them: '20 to 45' ('' none)."""
+    if limits is None:
+        return ""
+    return " to ".join(f"{v:.15g}" for v in limits)
+
+
+def plausible_from_words(text: str, spec: "ColumnSpec") -> tuple[float, float] | None:
+    """Plausible values typed in the dictionary table ('20 to 45'; empty: none), refused in one
+    sentence when they are not two numbers lowest first or the column is not a measurement."""
+    text = str(text).strip()
+    if not text:
+        return None
+    if spec.kind != "numeric":
+        raise InputError(say("dictionary.plausible_not_measurement", column=spec.display))
+    parts = [part for part in _RANGE_BETWEEN.split(text) if part]
+    if len(parts) != 2:
+        raise InputError(say("dictionary.plausible_words", column=spec.display, given=text))
+    try:
+        return _plausible(parts, spec.name)
+    except InputError:
+        raise InputError(say("dictionary.plausible_words", column=spec.display,
+                             given=text)) from None
 
 
 def canonical_levels(spellings: Iterable[str]) -> list[str]:

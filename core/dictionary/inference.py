@@ -231,7 +231,16 @@ def _infer(name: str, values: pd.Series, rows) -> tuple[ColumnSpec, list[str]]:
     role = "site" if _SITE_HINT.search(name) and len(levels) >= 2 else "predictor"
     if len(levels) < len(by_text):
         notes.append(say("infer.capitals", column=name))
+    nothing = [level for level in levels if level.casefold() in _NOTHING_WORDS]
+    if len(nothing) > 1:  # "none" and "nil": split apart, each box of the tree sees half
+        notes.append(say("infer.one_answer_twice", column=name,
+                         levels=", ".join(repr(level) for level in nothing),
+                         all="both" if len(nothing) == 2 else "all"))
     return ColumnSpec(kind="nominal", levels=tuple(levels), role=role, **base), notes
+
+
+# Words that all answer "nothing of this" (common practice in clinical forms, no one source).
+_NOTHING_WORDS = frozenset({"none", "nil", "nothing", "no", "not any", "absent"})
 
 
 def _levels(by_text: dict[str, int]) -> list[str]:

@@ -9,7 +9,8 @@ from __future__ import annotations
 from PySide6.QtCore import QAbstractTableModel, QModelIndex, Qt, Signal
 from PySide6.QtWidgets import QComboBox, QStyledItemDelegate
 
-from core.dictionary import KINDS, ROLES, DataDictionary
+from core.dictionary import (KINDS, ROLES, DataDictionary, plausible_from_words,
+                             plausible_in_words)
 from core.errors import InputError
 
 ROLE_WORDS = {
@@ -39,6 +40,10 @@ COLUMNS = (
                      "levels) keep their order in the tree's questions."),
     ("label", "Label", "The words the chart and questions use for this column."),
     ("unit", "Unit", "The unit printed after numbers, such as mmHg or /min."),
+    ("plausible", "Plausible values",
+     "For a measurement: the lowest and highest value it can really take, such as 20 to 45 "
+     "for a temperature in °C; the one-patient look-up gives no box for a value outside "
+     "them. Empty: only the usual limits (0 to 100 for a percentage)."),
     ("missing_codes", "Codes for 'not recorded'",
      "Cell values that mean the value was not recorded, such as -99; separate several with "
      "semicolons."),
@@ -86,8 +91,10 @@ class DictionaryModel(QAbstractTableModel):
 
     def flags(self, index: QModelIndex):
         base = Qt.ItemIsEnabled | Qt.ItemIsSelectable
-        if index.column() > 0:
-            base |= Qt.ItemIsEditable
+        if index.column() > 0 and not (
+                COLUMNS[index.column()][0] == "plausible" and self._dictionary is not None
+                and self._dictionary.columns[index.row()].kind != "numeric"):
+            base |= Qt.ItemIsEditable  # plausible values belong to measurements only
         return base
 
     def data(self, index: QModelIndex, role: int = Qt.DisplayRole):
@@ -103,10 +110,14 @@ class DictionaryModel(QAbstractTableModel):
                 return KIND_WORDS[value]
             if field in ("missing_codes", "levels"):
                 return SEPARATOR.join(value)
+            if field == "plausible":
+                return plausible_in_words(value)
             return value
         if role == Qt.EditRole:
             if field in ("missing_codes", "levels"):
                 return SEPARATOR.join(value)
+            if field == "plausible":
+                return plausible_in_words(value)
             return value
         if role == Qt.ToolTipRole and field == "levels" and spec.kind == "ordinal":
             return "Ordered categories: the first level is the lowest."
@@ -118,13 +129,15 @@ class DictionaryModel(QAbstractTableModel):
             return False
         spec = self._dictionary.columns[index.row()]
         field = COLUMNS[index.column()][0]
-        if field in ("missing_codes", "levels"):
-            value = split_list(str(value))
-        elif field in ("label", "unit", "note"):
-            value = str(value).strip()
-        if getattr(spec, field) == value:
-            return False
         try:
+            if field in ("missing_codes", "levels"):
+                value = split_list(str(value))
+            elif field in ("label", "unit", "note"):
+                value = str(value).strip()
+            elif field == "plausible":
+                value = plausible_from_words(value, spec)
+            if getattr(spec, field) == value:
+                return False
             changed = self._dictionary.with_column(spec.name, **{field: value})
         except InputError as exc:
             self.refused.emit(str(exc))

@@ -15,7 +15,7 @@ from PySide6.QtWidgets import QTableView  # noqa: E402
 from core.dictionary import DataDictionary  # noqa: E402
 from gui.widgets.checklist import Checklist  # noqa: E402
 from gui.widgets.curve import CurveCanvas, CurveData  # noqa: E402
-from gui.widgets.dictionary_model import DictionaryModel  # noqa: E402
+from gui.widgets.dictionary_model import COLUMNS, DictionaryModel  # noqa: E402
 from gui.widgets.frame_model import FrameModel, cell_text  # noqa: E402
 from tests.helpers import DEMO_DICTIONARY  # noqa: E402
 
@@ -56,6 +56,10 @@ def test_cell_text():
     assert cell_text(pd.Timestamp("2024-01-02")) == "2024-01-02"
 
 
+def _column(field: str) -> int:
+    return [f for f, _header, _tip in COLUMNS].index(field)
+
+
 def test_dictionary_table_edits_through_core(qtbot):
     dictionary = DataDictionary.load(DEMO_DICTIONARY)
     model = DictionaryModel()
@@ -63,19 +67,47 @@ def test_dictionary_table_edits_through_core(qtbot):
     edited = []
     model.edited.connect(edited.append)
     row = dictionary.names.index("triage_level")
-    assert model.index(row, 6).data() == "1; 2; 3; 4; 5"
-    assert model.setData(model.index(row, 6), "5; 4; 3; 2; 1")  # reverse the level order
+    levels, kind, codes = _column("levels"), _column("kind"), _column("missing_codes")
+    assert model.index(row, levels).data() == "1; 2; 3; 4; 5"
+    assert model.setData(model.index(row, levels), "5; 4; 3; 2; 1")  # reverse the level order
     assert edited[-1].get("triage_level").levels == ("5", "4", "3", "2", "1")
-    assert model.setData(model.index(row, 2), "nominal")
+    assert model.setData(model.index(row, kind), "nominal")
     assert edited[-1].get("triage_level").kind == "nominal"
-    assert model.index(row, 2).data() == "unordered categories"
-    assert model.setData(model.index(row, 5), "-9 | 99")
+    assert model.index(row, kind).data() == "unordered categories"
+    assert model.setData(model.index(row, codes), "-9 | 99")
     assert edited[-1].get("triage_level").missing_codes == ("-9", "99")
     assert not model.setData(model.index(row, 0), "renamed")  # the name is not editable
     assert not model.flags(model.index(row, 0)) & Qt.ItemIsEditable
     count = len(edited)
-    assert not model.setData(model.index(row, 3), dictionary.get("triage_level").label)
+    assert not model.setData(model.index(row, _column("label")),
+                             dictionary.get("triage_level").label)
     assert len(edited) == count  # no change, no signal
+
+
+def test_plausible_values_are_typed_in_the_table(qtbot):
+    """A measurement's plausible values are set in step 1's table as '20 to 45'; a slip is
+    refused in one sentence and changes nothing; a category has none to set."""
+    dictionary = DataDictionary.load(DEMO_DICTIONARY)
+    model = DictionaryModel()
+    model.set_dictionary(dictionary)
+    edited, refused = [], []
+    model.edited.connect(edited.append)
+    model.refused.connect(refused.append)
+    row, column = dictionary.names.index("temperature"), _column("plausible")
+    cell = model.index(row, column)
+    assert model.headerData(column, Qt.Horizontal) == "Plausible values"
+    assert model.flags(cell) & Qt.ItemIsEditable
+    assert model.setData(cell, "30 – 43.5")
+    assert edited[-1].get("temperature").plausible == (30.0, 43.5)
+    assert model.index(row, column).data() == "30 to 43.5"
+    for slip in ("43.5 to 30", "thirty to 43", "30"):
+        assert not model.setData(cell, slip)
+        assert f"{slip!r} is not" in refused[-1] and "such as '20 to 45'" in refused[-1]
+    assert model.dictionary.get("temperature").plausible == (30.0, 43.5)  # unchanged
+    assert model.setData(cell, "")  # none again
+    assert edited[-1].get("temperature").plausible is None
+    triage = model.index(dictionary.names.index("triage_level"), column)
+    assert not model.flags(triage) & Qt.ItemIsEditable and triage.data() == ""
 
 
 def test_checklist_search_and_ticks(qtbot):

@@ -50,6 +50,9 @@ ENTRIES = [
      "Make the header's unit and the cells' unit the same."),
     ("infer.capitals", "note", "{column!r} spells some categories with different capitals; "
      "they were merged.", "Nothing to do."),
+    ("infer.one_answer_twice", "warning", "{column!r} has the categories {levels}, which may "
+     "{all} mean the same answer; the tree treats them as different ones.",
+     "If they mean the same, write them one way in a copy of the file and open that."),
     ("infer.sentinel", "warning", "{column!r}: the value {code}, found in {n} cell(s){rows}, "
      "looks like a code for 'not recorded' but is read as a value until you confirm it; to "
      "read it as not recorded, add it to the column's codes for 'not recorded' in the data "
@@ -69,6 +72,12 @@ ENTRIES = [
     ("dictionary.bad_field", "refused", "The data dictionary's entry for {column!r}: '{key}' "
      "must be {expected}; correct it or save the dictionary again from Prunella.",
      "Fix that field of the dictionary."),
+    ("dictionary.plausible_words", "refused", "Plausible values for {column} must be two "
+     "numbers, the lowest first, such as '20 to 45'; {given!r} is not.",
+     "Type the lowest and highest plausible value, or leave the cell empty for none."),
+    ("dictionary.plausible_not_measurement", "refused", "{column} is not a measurement, so it "
+     "has no plausible values; leave the cell empty, or make its kind a number first.",
+     "Only measurements have plausible values."),
     ("dictionary.repeated_levels", "refused", "The data dictionary lists the level(s) "
      "{levels} of {column!r} more than once; keep each level once.",
      "Remove the repeated levels."),
