@@ -261,7 +261,7 @@ def test_only_numbers_travel_to_the_workers(tmp_path, monkeypatch):
     assert any(note for note in derivation.data.notes)  # the limit was noted at reading
     nested_cross_validate(derivation.data, request, outer_folds=2, jobs=2)
     bootstrap_stability(derivation.data, request, derivation.model, resamples=2, jobs=2)
-    assert len(sent) == 3 + 2 + 2
+    assert len(sent) == (1 + 3) + 2 + 2  # the full-data tree and 3 folds, 2 outer folds, 2 resamples
     forbidden = [str(path), path.name, "clinic_extract", "RN-70", "Quillon", "<0.5"]
     forbidden += list(frame["record_no"].sample(20, random_state=0))
     from core.checking.identifier_key import identifier_key

@@ -17,7 +17,7 @@ import pandas as pd
 import pytest
 
 import core.sizing.derivation as derivation_module
-from core.design.matrix import fit_encoding, quantile_edges, quantile_levels
+from core.design.matrix import fit_encoding, quantile_edges, quantile_levels, training_matrix
 from core.errors import InputError
 from core.sizing import CVSettings, DerivationRequest, cross_validate_path, derive
 from core.sizing.grow import TreeSettings
@@ -49,6 +49,104 @@ def test_quantile_edges_are_observed_values_and_few_distinct_values_are_left_alo
     assert (np.diff(recorded[order]) >= 0).all()
     assert quantile_edges(np.round(values, 0), 16) is None  # about 8 distinct values: as it is
     assert quantile_edges(np.full(10, np.nan), 4) is None
+
+
+def _searched(values: np.ndarray, edges: np.ndarray) -> np.ndarray:
+    """The definition of a quantile level: the number of edges below the value."""
+    levels = np.searchsorted(edges, values, side="left").astype(np.float32)
+    levels[np.isnan(values)] = np.nan
+    return levels
+
+
+def _hard_cases():
+    """Values and edges where a shortcut for the binary search could go wrong."""
+    rng = np.random.default_rng(7)
+    n = 200_000  # above the size where the bucket table is used
+    normal = rng.normal(60, 12, n)
+    yield "normal, 255 edges", normal, np.unique(np.quantile(normal, np.arange(1, 256) / 256,
+                                                             method="inverted_cdf"))
+    heavy = rng.standard_cauchy(n) * 1e3  # most values in a few buckets, far outliers
+    yield "heavy tails", heavy, np.unique(np.quantile(heavy, np.arange(1, 64) / 64,
+                                                      method="inverted_cdf"))
+    counts = rng.poisson(3, n).astype(float)  # many values equal to an edge
+    yield "whole counts, values on edges", counts, np.array([1.0, 2.0, 3.0, 5.0, 8.0])
+    near = 1.0 + rng.integers(0, 40, n) * np.finfo(float).eps  # values one ulp apart
+    yield "one ulp apart", near, np.unique(near)[5:30:3]
+    close = np.array([0.1, np.nextafter(0.1, 1), 0.2])  # two edges in one bucket
+    spread = np.concatenate([rng.uniform(0, 0.3, n), close, np.nextafter(close, 0),
+                             np.nextafter(close, 1)])
+    yield "adjacent edges", spread, close
+    wild = normal.copy()
+    wild[::101] = np.nan
+    wild[1::997], wild[2::991] = np.inf, -np.inf
+    wild[3::983], wild[4::977] = 1e308, -1e308
+    yield "NaN, infinities and extremes", wild, np.unique(np.quantile(normal, [.1, .5, .9]))
+    yield "edges at the limits of floating point", wild, np.array([-1e308, 0.0, 1e308])
+    yield "one edge", normal, np.array([60.0])
+    yield "denormal span", np.full(n, 5e-324) * rng.integers(0, 4, n), np.array([0.0, 5e-324])
+    small = rng.normal(size=1000)  # below the table's size: the binary search itself
+    yield "few values", small, np.quantile(small, [0.25, 0.5, 0.75])
+
+
+@pytest.mark.parametrize("name,values,edges", list(_hard_cases()), ids=lambda v: v
+                         if isinstance(v, str) else "")
+def test_quantile_levels_equal_the_binary_search_exactly(name, values, edges):
+    """quantile_levels reads most levels from a bucket table (core/design/matrix.py); it must
+    give exactly what searching every value gives, including NaN, infinities and ties."""
+    with np.errstate(over="ignore", invalid="ignore"):
+        got = quantile_levels(values, edges)
+    assert got.dtype == np.float32
+    np.testing.assert_array_equal(got, _searched(values, edges), err_msg=name)
+
+
+def test_quantile_levels_on_random_columns_equal_the_binary_search():
+    rng = np.random.default_rng(11)
+    for trial in range(40):
+        n = int(rng.integers(65_536, 140_000))
+        scale = 10.0 ** rng.uniform(-6, 6)
+        values = rng.normal(0, scale, n) if trial % 2 else rng.exponential(scale, n)
+        values = np.round(values, int(rng.integers(0, 6))) if trial % 3 == 0 else values
+        values[rng.random(n) < 0.05] = np.nan
+        recorded = np.sort(values[~np.isnan(values)])
+        edges = np.unique(recorded[rng.integers(0, recorded.size, int(rng.integers(2, 300)))])
+        np.testing.assert_array_equal(quantile_levels(values, edges), _searched(values, edges))
+
+
+@pytest.mark.parametrize("outcome", ["two classes", "three classes", "measured"])
+def test_a_folds_matrix_in_one_pass_is_the_encoding_and_its_matrix(outcome):
+    """training_matrix (what a fold uses) gives exactly fit_encoding's columns and matrix,
+    for measurements, ordered and unordered categories (split into levels for three classes)."""
+    from core.design import DesignSpec, prepare_analysis
+    from core.dictionary import infer_dictionary
+
+    rng = np.random.default_rng(5)
+    n = 600
+    frame = pd.DataFrame({
+        "lactate": np.where(rng.random(n) < 0.05, np.nan, rng.gamma(2, 1, n)),
+        "ward": rng.choice(["medical", "surgical", "none", "nil"], n),
+        "triage": rng.choice(["1", "2", "3", "4"], n),
+        "stay": rng.gamma(3, 2, n).round(1),
+        "class": rng.choice(["a", "b", "c"] if outcome == "three classes" else ["a", "b"], n),
+    })
+    dictionary, _ = infer_dictionary(frame)
+    dictionary = dictionary.with_column("triage", kind="ordinal", levels=("1", "2", "3", "4"))
+    target = "stay" if outcome == "measured" else "class"
+    predictors = ("lactate", "ward", "triage") + (("stay",) if target == "class" else ())
+    data = prepare_analysis(frame, dictionary, DesignSpec(target, predictors))
+    rows = np.sort(rng.choice(n, 480, replace=False))
+    for coarsen in (None, 8):
+        encoding, X = training_matrix(data, rows, coarsen=coarsen)
+        expected = fit_encoding(data, rows, coarsen=coarsen)
+        assert len(encoding.columns) == len(expected.columns)
+        for got, want in zip(encoding.columns, expected.columns):
+            assert (got.predictor, got.kind, got.order, got.level) == (
+                want.predictor, want.kind, want.order, want.level)
+            assert (got.edges is None) == (want.edges is None)
+            if got.edges is not None:
+                assert np.array_equal(got.edges, want.edges)
+        np.testing.assert_array_equal(X, expected.matrix(data, rows))
+    assert len(encoding.columns) == (7 if outcome == "three classes" else 4 if target == "class"
+                                     else 3)
 
 
 def test_fold_levels_are_learnt_from_the_training_rows_only():

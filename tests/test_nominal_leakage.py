@@ -48,7 +48,10 @@ def test_ordering_on_all_rows_would_leak(monkeypatch, seed):
     """The same check fails when the ordering is (wrongly) learnt from all rows: the test
     above can tell leakage from none."""
     data = _noise_data(seed)
-    monkeypatch.setattr(pathcv, "fit_encoding",
-                        lambda d, rows=None, coarsen=None: fit_encoding(d, coarsen=coarsen))
+    def learnt_on_all_rows(d, rows, coarsen=None):
+        encoding = fit_encoding(d, coarsen=coarsen)  # every row, held-out ones too
+        return encoding, encoding.matrix(d, rows)
+
+    monkeypatch.setattr(pathcv, "training_matrix", learnt_on_all_rows)
     path = cross_validate_path(data, TreeSettings(min_leaf=1), CVSettings(folds=10, seed=0))
     assert path.cv_risk.min() < _root_risk(data) - 2 * path.cv_se[-1]

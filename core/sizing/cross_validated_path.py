@@ -5,6 +5,10 @@ held-out case is then routed once: along its path the collapse α's never increa
 prediction at grid value α′ is the first node on the path with collapse α ≤ α′. Counting, per
 case, how many path nodes are still internal at each α′ gives every prediction at once
 (no loop over α). The grid is the full-data sequence's geometric midpoints.
+
+The full-data tree is grown as one more task beside the folds, not before them, so no core
+waits for it: a fold sends back its tree's collapse α's and each held-out case's path, and
+the losses on the grid are counted once the full-data tree has fixed the grid.
 """
 
 from __future__ import annotations
@@ -17,7 +21,7 @@ import numpy as np
 from joblib import Parallel, delayed
 
 from ..design.analysis import AnalysisData
-from ..design.matrix import Encoding, fit_encoding
+from ..design.matrix import Encoding, fit_encoding, training_matrix
 from ..errors import InputError
 from ..messages.message import say
 from ..phrases import plural
@@ -128,11 +132,17 @@ class CrossValidatedPath:
         return say(key, wanted=wanted, used=plural(used, "outcome box", "outcome boxes"))
 
 
-def grow_full(data: AnalysisData, settings: TreeSettings) -> DerivationTree:
-    """Grow the maximal tree on every derivation row and compute its pruning sequence."""
+def growth_costs(data: AnalysisData, settings: TreeSettings) -> ClassCosts | None:
+    """The priors and losses every tree of a path is grown and judged with (None for a
+    measured outcome), refused with one sentence when the rows are too few to grow on."""
     if data.n < 2 * settings.min_leaf:
         raise InputError(say("size.too_few_rows", n=data.n, min_leaf=settings.min_leaf))
-    costs = class_costs(settings, data.y, len(data.classes)) if data.task == "classification" else None
+    return class_costs(settings, data.y, len(data.classes)) if data.task == "classification" else None
+
+
+def grow_full(data: AnalysisData, settings: TreeSettings) -> DerivationTree:
+    """Grow the maximal tree on every derivation row and compute its pruning sequence."""
+    costs = growth_costs(data, settings)
     encoding = fit_encoding(data, coarsen=settings.coarsen)
     X = encoding.matrix(data)
     tree = grow_tree(X, data.y, data.task, settings, costs)
@@ -141,12 +151,24 @@ def grow_full(data: AnalysisData, settings: TreeSettings) -> DerivationTree:
     return DerivationTree(data, settings, costs, encoding, tree, sequence)
 
 
+def grown_for_return(data: AnalysisData, settings: TreeSettings) -> DerivationTree:
+    """:func:`grow_full` as a worker runs it: the rows are left out of what it sends back (the
+    caller has them), so a million rows do not travel back with a tree of a few hundred boxes."""
+    return replace(grow_full(data, settings), data=None)
+
+
 def path_nodes(tree: FullTree, collapse: np.ndarray, X: np.ndarray,
                grid: np.ndarray) -> np.ndarray:
     """For each case (row of X) and grid α′, the node that predicts it: shape (cases, grid)."""
     paths = tree.estimator.decision_path(X)
-    indptr, indices = paths.indptr, paths.indices  # per row: node ids root→leaf (preorder)
-    n, g = X.shape[0], len(grid)
+    return nodes_on_grid(paths.indptr, paths.indices, collapse, grid)
+
+
+def nodes_on_grid(indptr: np.ndarray, indices: np.ndarray, collapse: np.ndarray,
+                  grid: np.ndarray) -> np.ndarray:
+    """For each case and grid α′, the node that predicts it, from the cases' paths (CSR:
+    ``indices[indptr[i]:indptr[i + 1]]`` are case i's nodes, root to outcome box)."""
+    n, g = len(indptr) - 1, len(grid)
     lengths = np.diff(indptr)
     rows = np.repeat(np.arange(n), lengths)
     # How many grid values lie below each path node's collapse α: it is internal for those.
@@ -159,35 +181,68 @@ def path_nodes(tree: FullTree, collapse: np.ndarray, X: np.ndarray,
 
 def case_losses(tree: FullTree, nodes: np.ndarray, y: np.ndarray,
                 costs: ClassCosts | None) -> np.ndarray:
-    """Loss of each case at each grid α′: cost × prior weight, or squared error."""
+    """Loss of each case at each grid α′: cost × prior weight, or squared error. ``tree`` is
+    anything with the tree's ``task`` and per-node ``label`` (a FullTree, a FoldRoutes)."""
     if tree.task == "regression":
         return (tree.label[nodes] - y[:, None]) ** 2
     predicted = tree.label[nodes]
     return costs.loss[y[:, None], predicted] * costs.case_weight[y][:, None]
 
 
+@dataclass(frozen=True)
+class FoldRoutes:
+    """What one fold's worker sends back: its tree's collapse α's and outcome per node, and the
+    path of every held-out case through it. Small: a few hundred nodes, and about a
+    tree's depth of node numbers per held-out case."""
+
+    task: str
+    test: np.ndarray = field(repr=False)
+    indptr: np.ndarray = field(repr=False)  # case i's path: indices[indptr[i]:indptr[i + 1]]
+    indices: np.ndarray = field(repr=False)
+    collapse: np.ndarray = field(repr=False)  # per node of the fold's tree
+    label: np.ndarray = field(repr=False)  # per node: class code or mean
+    share: np.ndarray | None = field(repr=False)  # two classes: the positive share per node
+
+    def on_grid(self, y: np.ndarray, costs: ClassCosts | None, grid: np.ndarray):
+        """Each held-out case's loss at every grid α′, and (two classes) the fold's counts:
+        what :class:`PathTally` adds up."""
+        y_test = y[self.test]
+        chunk = max(1, _CHUNK_CELLS // max(1, len(grid)))
+        counts = empty_counts(len(grid)) if self.share is not None else None
+        parts = []
+        for start in range(0, len(self.test), chunk):
+            stop = min(start + chunk, len(self.test))
+            offset = self.indptr[start]
+            nodes = nodes_on_grid(self.indptr[start:stop + 1] - offset,
+                                  self.indices[offset:self.indptr[stop]], self.collapse, grid)
+            parts.append(case_losses(self, nodes, y_test[start:stop], costs).astype(np.float64))
+            if counts is not None:
+                counts = counts + fold_counts(self.label[nodes], self.share[nodes],
+                                              y_test[start:stop])
+        losses = np.concatenate(parts) if parts else np.zeros((0, len(grid)))
+        return self.test, losses, counts
+
+
+def fold_routes(data: AnalysisData, settings: TreeSettings, costs: ClassCosts | None,
+                train: np.ndarray, test: np.ndarray) -> FoldRoutes:
+    """One fold, in a worker: grow on ``train`` and route ``test`` once (no grid needed)."""
+    encoding, X = training_matrix(data, train, coarsen=settings.coarsen)
+    tree = grow_tree(X, data.y[train], data.task, settings, costs)
+    del X  # the fold's matrix is the worker's largest array: free it before routing
+    collapse = collapse_alphas(tree.children_left, tree.children_right, tree.prune_risk)
+    paths = tree.estimator.decision_path(encoding.matrix(data, test))
+    two_classes = tree.task == "classification" and tree.class_counts.shape[1] == 2
+    share = tree.class_counts[:, 1] / np.maximum(tree.n, 1) if two_classes else None
+    # Node numbers fit in 32 bits (a tree has fewer nodes than rows): half the bytes to send.
+    return FoldRoutes(tree.task, test, paths.indptr.astype(np.int64),
+                      paths.indices.astype(np.int32), collapse, tree.label, share)
+
+
 def fold_losses(data: AnalysisData, settings: TreeSettings, costs: ClassCosts | None,
                 train: np.ndarray, test: np.ndarray, grid: np.ndarray):
     """One fold: grow on ``train``, route ``test`` once; each held-out case's loss at every
     grid α′, and (two classes) the fold's counts."""
-    encoding = fit_encoding(data, train, coarsen=settings.coarsen)
-    tree = grow_tree(encoding.matrix(data, train), data.y[train], data.task, settings, costs)
-    collapse = collapse_alphas(tree.children_left, tree.children_right, tree.prune_risk)
-    X_test = encoding.matrix(data, test)
-    y_test = data.y[test]
-    chunk = max(1, _CHUNK_CELLS // max(1, len(grid)))
-    two_classes = tree.task == "classification" and tree.class_counts.shape[1] == 2
-    counts = empty_counts(len(grid)) if two_classes else None
-    if two_classes:
-        share = tree.class_counts[:, 1] / np.maximum(tree.n, 1)
-    parts = []
-    for start in range(0, len(test), chunk):
-        stop = start + chunk
-        nodes = path_nodes(tree, collapse, X_test[start:stop], grid)
-        parts.append(case_losses(tree, nodes, y_test[start:stop], costs).astype(np.float64))
-        if two_classes:
-            counts = counts + fold_counts(tree.label[nodes], share[nodes], y_test[start:stop])
-    return test, np.concatenate(parts) if parts else np.zeros((0, len(grid))), counts
+    return fold_routes(data, settings, costs, train, test).on_grid(data.y, costs, grid)
 
 
 def cross_validate_path(data: AnalysisData, settings: TreeSettings, cv: CVSettings,
@@ -203,24 +258,28 @@ def cross_validate_path(data: AnalysisData, settings: TreeSettings, cv: CVSettin
     folds = fold_plan(cv, data.n, y=strat, groups=data.groups, sites=data.sites)
     total = len(folds) + 1
     stop_if_cancelled(cancel)
-    if grown is None:
-        grown = grow_full(data, settings)
-    if progress:
-        progress(1, total)
-    grid = grown.sequence.grid
-    tally = PathTally(data.n, len(grid))
+    costs = growth_costs(data, settings) if grown is None else grown.costs
     sent = data.for_workers()  # the numbers only: what a cluster's workers receive
-    tasks = (delayed(fold_losses)(sent, settings, grown.costs, f.train, f.test, grid)
-             for f in folds)
-    done = 1
-    # Always through joblib, so a joblib backend set by the caller (a cluster, say) spreads the
-    # folds without code changes; jobs=None defers to that backend's own default. Results come
-    # back in fold order, so repeated folds add up in the same order for any worker count.
+    # The full-data tree is the first task and the folds follow at once, so while one worker
+    # grows it the others are growing folds. Always through joblib, so a joblib backend set
+    # by the caller (a cluster, say) spreads the work without code changes; jobs=None defers
+    # to that backend's own default. Results come back in task order (the full-data tree
+    # first, then the folds in order), so repeated folds add up in the same order for any
+    # worker count.
+    tasks = [] if grown is not None else [delayed(grown_for_return)(sent, settings)]
+    tasks += [delayed(fold_routes)(sent, settings, costs, f.train, f.test) for f in folds]
     with sent_once(sent):  # on a cluster, the rows travel to each worker once
-        for result in Parallel(n_jobs=jobs, return_as="generator")(tasks):
+        results = iter(Parallel(n_jobs=jobs, return_as="generator")(tasks))
+        if grown is None:
+            grown = replace(next(results), data=data)  # the whole analysis again, notes included
+        stop_if_cancelled(cancel)
+        if progress:
+            progress(1, total)
+        grid = grown.sequence.grid
+        tally = PathTally(data.n, len(grid))
+        for done, routes in enumerate(results, start=2):
             stop_if_cancelled(cancel)
-            tally.add(*result)
-            done += 1
+            tally.add(*routes.on_grid(data.y, costs, grid))
             if progress:
                 progress(done, total)
     return tally.path(grown, cv, data, len(folds))

@@ -22,7 +22,7 @@ from ..errors import InputError
 from ..messages.message import say
 from ..progress import CancelFlag, Progress, stop_if_cancelled
 from ..work_place import sent_once
-from .cross_validated_path import CrossValidatedPath, PathTally, fold_losses, grow_full
+from .cross_validated_path import CrossValidatedPath, PathTally, fold_losses, grown_for_return
 from .folds import CVSettings, fold_plan
 from .goal import Goal, cost_words, miss_cost_grid
 from .grow import TreeSettings, class_costs
@@ -108,7 +108,7 @@ def search_goal(data: AnalysisData, settings: TreeSettings, cv: CVSettings, goal
 
 
 def _grown(i, data, settings):
-    return i, grow_full(data, settings)
+    return i, grown_for_return(data, settings)
 
 
 def _fold(i, *args):
