@@ -46,29 +46,26 @@ def identifier_key(create: bool = False) -> bytes | None:
     """This computer's key: read from its private file, made on first use when ``create``
     (growing a tree), else None when there is none (checking never makes one). A key file
     that is not a private regular file of the right size is refused (InputError)."""
-    path = key_file_path()
-    try:
-        return _read_key(path)
-    except FileNotFoundError:
-        if not create:
-            return None
-    _make_key(path)
-    return _read_key(path)
+    return _key(create)[0]
 
 
 def first_identifier_key() -> Path | None:
     """Make this computer's key if it has none yet (growing with a patient number): the key
     file's path when it was made just now, so the user can be told to back it up, else None.
     A key file that is there but unsafe is refused (InputError), as by :func:`identifier_key`."""
+    return key_file_path() if _key(create=True)[1] else None
+
+
+def _key(create: bool) -> tuple[bytes | None, bool]:
+    """The key (None: none, and not ``create``) and whether this call made it."""
     path = key_file_path()
     try:
-        _read_key(path)
-        return None
+        return _read_key(path), False
     except FileNotFoundError:
-        pass
+        if not create:
+            return None, False
     made = _make_key(path)
-    _read_key(path)
-    return path if made else None
+    return _read_key(path), made
 
 
 def _refuse(path: Path, what: str) -> InputError:

@@ -20,7 +20,7 @@ from ..dictionary.typed_columns import TypedColumn, positive_level, typed_column
 from ..document_checks import NAME_LENGTH, TEXT_LENGTH
 from ..errors import InputError
 from ..messages.message import say
-from ..phrases import rows_word
+from ..phrases import patients_among, rows_word
 
 TASKS = ("classification", "regression")
 
@@ -230,7 +230,7 @@ def rows_word_of_table(frame: pd.DataFrame, patient_id: str | None) -> str:
     labels): by the patient-number column as the analysis reads it (core/phrases.py)."""
     if not patient_id or patient_id not in frame.columns:
         return rows_word(len(frame), None)
-    return rows_word(len(frame), int(np.unique(_codes(frame[patient_id])).size))
+    return rows_word(len(frame), patients_among(_codes(frame[patient_id])))
 
 
 def _codes(values: pd.Series) -> np.ndarray:

@@ -22,6 +22,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..dictionary.columns import ColumnSpec
+from ..dictionary.typed_columns import TypedColumn
 from .analysis import AnalysisData
 
 
@@ -74,7 +75,7 @@ class Encoding:
         return out
 
 
-def _taken(column, rows: np.ndarray | None) -> np.ndarray:
+def _taken(column: TypedColumn, rows: np.ndarray | None) -> np.ndarray:
     """A predictor's numbers (a measurement) or level codes (a category) for some rows."""
     source = column.numbers if column.spec.kind == "numeric" else column.codes
     return source if rows is None else source[rows]
@@ -166,12 +167,15 @@ def training_matrix(data: AnalysisData, rows: np.ndarray,
     return Encoding(tuple(columns)), out
 
 
-def _width(data: AnalysisData, column) -> int:
+def _width(data: AnalysisData, column: TypedColumn) -> int:
     """How many matrix columns a predictor becomes (see _fit_predictor)."""
-    spec = column.spec
-    if spec.kind == "nominal" and data.task == "classification" and len(data.classes) > 2:
-        return len(spec.levels)
-    return 1
+    return len(column.spec.levels) if _levels_apart(data, column.spec) else 1
+
+
+def _levels_apart(data: AnalysisData, spec: ColumnSpec) -> bool:
+    """Whether a category's levels become one yes/no column each: an unordered category when
+    there are several classes, where no ordering of its levels is optimal."""
+    return spec.kind == "nominal" and data.task == "classification" and len(data.classes) > 2
 
 
 def _fit_predictor(data: AnalysisData, index: int, taken: np.ndarray, y: np.ndarray,
@@ -186,8 +190,7 @@ def _fit_predictor(data: AnalysisData, index: int, taken: np.ndarray, y: np.ndar
     if spec.kind in ("ordinal", "binary"):
         return [MatrixColumn(index, spec, spec.kind, order=levels,
                              value_of_code=np.arange(len(levels), dtype=np.float32))]
-    if data.task == "classification" and len(data.classes) > 2:
-        # Several classes: no ordering is optimal, so each level is its own yes/no question.
+    if _levels_apart(data, spec):  # each level its own yes/no question
         columns = []
         for code, level in enumerate(levels):
             value = np.full(len(levels), 0.0, dtype=np.float32)

@@ -103,17 +103,9 @@ class DictionaryModel(QAbstractTableModel):
         spec = self._dictionary.columns[index.row()]
         field = COLUMNS[index.column()][0]
         value = getattr(spec, field)
-        if role == Qt.DisplayRole:
-            if field == "role":
-                return ROLE_WORDS[value]
-            if field == "kind":
-                return KIND_WORDS[value]
-            if field in ("missing_codes", "levels"):
-                return SEPARATOR.join(value)
-            if field == "plausible":
-                return plausible_in_words(value)
-            return value
-        if role == Qt.EditRole:
+        if role == Qt.DisplayRole and field in ("role", "kind"):
+            return (ROLE_WORDS if field == "role" else KIND_WORDS)[value]  # codes in words
+        if role in (Qt.DisplayRole, Qt.EditRole):
             if field in ("missing_codes", "levels"):
                 return SEPARATOR.join(value)
             if field == "plausible":

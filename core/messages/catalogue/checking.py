@@ -62,7 +62,8 @@ ENTRIES = [
      "back it up with your projects: tree files keep patient numbers only as digests made "
      "with it, and without it no later check can tell which patients a file shares with "
      "these. The key itself never goes into any output.",
-     "Back the key file up with your projects."),
+     "Copy the key file to where your projects are backed up, and restore it there if "
+     "this computer is replaced."),
     ("check.key_file_unwritable", "refused", "The identifier key file {path} could not be "
      "written ({reason}); make its folder writable, or name another path in "
      "PRUNELLA_IDENTIFIER_KEY_FILE.", "The key file must be on this computer and private."),
