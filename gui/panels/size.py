@@ -346,8 +346,12 @@ class SizePanel(StepPanel):
         """The smallest box counts rows: visits where a patient number is set and patients
         came back, else patients, as the fit will say it afterwards."""
         session, design = self.session, self.session.design
-        key = (session.serial if session.table is not None else None,
-               design.patient_id if design is not None else None)
+        if design is not None:
+            patient_id = design.patient_id
+        else:  # no outcome chosen yet: the patient number step 1's dictionary names
+            named = session.dictionary.by_role("patient_id") if session.dictionary else ()
+            patient_id = named[0].name if named else None
+        key = (session.serial if session.table is not None else None, patient_id)
         if self._rows_word_for[0] != key:  # a large file: count once per file and column
             word = "patients" if session.table is None else rows_word_of_table(
                 session.table.frame, key[1])

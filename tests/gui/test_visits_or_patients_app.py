@@ -95,9 +95,14 @@ def test_the_smallest_box_setting_says_what_it_counts_before_anything_is_grown(
     dialogs.open_name = str(repeat)
     window.open_action.trigger()
     qtbot.waitUntil(lambda: window.session.table is not None, timeout=15000)
+    size = window.panels["size"]
+    # Before an outcome is chosen there are no step-2 choices: step 1's patient number counts.
+    assert window.session.design is None
+    assert window.session.dictionary.get("Record no").role == "patient_id"
+    assert size.min_leaf_label.text() == "Fewest visits in an outcome box:"
     outcome = window.panels["outcome"]
     outcome.outcome_combo.setCurrentIndex(outcome.outcome_combo.findData("transfused"))
-    size, combo = window.panels["size"], outcome.patient_combo
+    combo = outcome.patient_combo
     combo.setCurrentIndex(combo.findData("Record no"))
     assert window.session.design.patient_id == "Record no"
     assert size.min_leaf_label.text() == "Fewest visits in an outcome box:"
